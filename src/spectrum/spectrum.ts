@@ -1,0 +1,247 @@
+/**
+ * The `Spectrum` type every stage after `io` works with, and conversions between y-kinds.
+ *
+ * Decadic absorbance A = −log10 T = −log10(I/I0) (Beer–Lambert, DESIGN §3). Natural-log
+ * absorbance A_e = −ln T = A·ln 10. Transmittance in percent is 100·T.
+ */
+import { BandwrightError, assertAscending } from '../errors.js';
+
+/**
+ * What the y values of a spectrum are.
+ * - `absorbance`: decadic absorbance, −log10 T (the core's working kind)
+ * - `absorbance-natural`: −ln T (only when a file declares it)
+ * - `transmittance`: fraction, 0…1
+ * - `transmittance-percent`: percent, 0…100
+ * - `single-beam`: sample single-beam intensity; needs a `background` of the same grid
+ */
+export type YKind = 'absorbance' | 'absorbance-natural' | 'transmittance' | 'transmittance-percent' | 'single-beam';
+
+/** All y-kinds, for validating options and column names. */
+export const Y_KINDS: readonly YKind[] = ['absorbance', 'absorbance-natural', 'transmittance', 'transmittance-percent', 'single-beam'];
+
+/** Cell conditions and labels a scan file may carry. Units are fixed by the field names. */
+export interface ScanMetadata {
+  /** Where the scan came from: a path as given by the user, or a label such as `<stdin>`. */
+  source?: string;
+  /** Title or sample name in the file. */
+  title?: string;
+  /** Optical path length, m. */
+  pathLength_m?: number;
+  /** Gas temperature, K. */
+  temperature_K?: number;
+  /** Gas pressure, kPa. */
+  pressure_kPa?: number;
+  /** Nominal instrument resolution, cm⁻¹. */
+  resolution_cm?: number;
+  /** Format the scan was read from. */
+  format?: 'csv' | 'jcamp';
+  /** Date/time text found in the file, kept verbatim (not trusted as a measurement time). */
+  dateText?: string;
+}
+
+/**
+ * A spectrum on a strictly ascending wavenumber grid.
+ *
+ * Readers always deliver ascending x in cm⁻¹ (descending files and micrometre axes are
+ * converted). Arrays are not copied by consumers and must not be mutated after construction.
+ */
+export interface Spectrum {
+  /** Wavenumbers, cm⁻¹, strictly ascending. */
+  readonly x: Float64Array;
+  /** Ordinates of kind {@link Spectrum.yKind}, same length as x. */
+  readonly y: Float64Array;
+  /** What y is. */
+  readonly yKind: YKind;
+  /** Background single-beam intensity on the same grid; present only with `single-beam`. */
+  readonly background?: Float64Array;
+  /** Conditions and labels from the file. */
+  readonly metadata: ScanMetadata;
+}
+
+function label(spectrum: Pick<Spectrum, 'metadata'>): string {
+  return spectrum.metadata.source ?? 'spectrum';
+}
+
+/**
+ * Builds a spectrum after checking its invariants: equal lengths, at least two points, finite
+ * values, strictly ascending x, a background exactly when the kind is `single-beam`.
+ *
+ * @param init - the fields of the spectrum; arrays are taken, not copied
+ * @returns the same data as a `Spectrum`
+ * @throws BandwrightError `INVALID_VALUE` for lengths or non-finite values, `NOT_MONOTONIC` for x
+ */
+export function makeSpectrum(init: Spectrum): Spectrum {
+  const where = label(init);
+  const { x, y, background } = init;
+  if (x.length !== y.length) {
+    throw new BandwrightError('INVALID_VALUE', `${where}: ${x.length} x values but ${y.length} y values, must be equal`, { file: init.metadata.source });
+  }
+  if (x.length < 2) {
+    throw new BandwrightError('INVALID_VALUE', `${where}: ${x.length} point(s), a spectrum needs at least 2`, { file: init.metadata.source });
+  }
+  for (let i = 0; i < x.length; i++) {
+    if (!Number.isFinite(x[i]) || !Number.isFinite(y[i])) {
+      throw new BandwrightError('INVALID_VALUE', `${where}: point ${i + 1}: x = ${x[i]}, y = ${y[i]}, must be finite numbers`, { file: init.metadata.source });
+    }
+  }
+  assertAscending(x, { file: where });
+  if ((init.yKind === 'single-beam') !== (background !== undefined)) {
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      init.yKind === 'single-beam'
+        ? `${where}: a single-beam sample spectrum needs a background single-beam spectrum to give absorbance`
+        : `${where}: a background spectrum goes only with y-kind single-beam, not ${init.yKind}`,
+      { file: init.metadata.source },
+    );
+  }
+  if (background !== undefined) {
+    if (background.length !== x.length) {
+      throw new BandwrightError('INVALID_VALUE', `${where}: background has ${background.length} points, sample ${x.length}, must be equal`, { file: init.metadata.source });
+    }
+    for (let i = 0; i < background.length; i++) {
+      if (!Number.isFinite(background[i])) {
+        throw new BandwrightError('INVALID_VALUE', `${where}: background point ${i + 1} = ${background[i]}, must be a finite number`, { file: init.metadata.source });
+      }
+    }
+  }
+  return init;
+}
+
+/**
+ * Converts a spectrum to decadic absorbance.
+ *
+ * Transmittance T ≤ 0 (or a non-positive single-beam intensity) has no absorbance; such a
+ * point is an error, because clipping it would invent a number.
+ *
+ * @param spectrum - any y-kind
+ * @returns a new spectrum of kind `absorbance` (the input itself if it already is)
+ * @throws BandwrightError `INVALID_VALUE` naming the first point with T ≤ 0 or intensity ≤ 0
+ */
+export function toAbsorbance(spectrum: Spectrum): Spectrum {
+  if (spectrum.yKind === 'absorbance') return spectrum;
+  const n = spectrum.y.length;
+  const out = new Float64Array(n);
+  const where = label(spectrum);
+  const bad = (i: number, what: string, value: number): never => {
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `${where}: point ${i + 1} (x = ${spectrum.x[i]} cm⁻¹): ${what} = ${value}, must be > 0 to give an absorbance`,
+      { file: spectrum.metadata.source },
+    );
+  };
+  const y = spectrum.y;
+  switch (spectrum.yKind) {
+    case 'absorbance-natural':
+      for (let i = 0; i < n; i++) out[i] = (y[i] as number) / Math.LN10;
+      break;
+    case 'transmittance':
+    case 'transmittance-percent': {
+      const scale = spectrum.yKind === 'transmittance-percent' ? 0.01 : 1;
+      for (let i = 0; i < n; i++) {
+        const t = (y[i] as number) * scale;
+        if (!(t > 0)) bad(i, 'transmittance', y[i] as number);
+        out[i] = -Math.log10(t);
+      }
+      break;
+    }
+    case 'single-beam': {
+      const background = spectrum.background as Float64Array;
+      for (let i = 0; i < n; i++) {
+        const sample = y[i] as number;
+        const reference = background[i] as number;
+        if (!(sample > 0)) bad(i, 'sample intensity', sample);
+        if (!(reference > 0)) bad(i, 'background intensity', reference);
+        out[i] = -Math.log10(sample / reference);
+      }
+      break;
+    }
+  }
+  return { x: spectrum.x, y: out, yKind: 'absorbance', metadata: spectrum.metadata };
+}
+
+/**
+ * Converts decadic absorbance to transmittance (fraction): T = 10^(−A).
+ *
+ * @param spectrum - a spectrum of kind `absorbance`
+ * @returns a new spectrum of kind `transmittance`
+ * @throws BandwrightError `INVALID_VALUE` when the input is not absorbance
+ */
+export function toTransmittance(spectrum: Spectrum): Spectrum {
+  if (spectrum.yKind !== 'absorbance') {
+    throw new BandwrightError('INVALID_VALUE', `${label(spectrum)}: y-kind ${spectrum.yKind}, convert to absorbance first`, { file: spectrum.metadata.source });
+  }
+  const out = new Float64Array(spectrum.y.length);
+  for (let i = 0; i < out.length; i++) out[i] = 10 ** -(spectrum.y[i] as number);
+  return { x: spectrum.x, y: out, yKind: 'transmittance', metadata: spectrum.metadata };
+}
+
+/**
+ * Index of the first grid point ≥ `value` (binary search), or `x.length` when none.
+ *
+ * @param x - ascending grid
+ * @param value - the abscissa to look for, same unit as x
+ */
+export function lowerBound(x: ArrayLike<number>, value: number): number {
+  let lo = 0;
+  let hi = x.length;
+  while (lo < hi) {
+    const mid = (lo + hi) >>> 1;
+    if ((x[mid] as number) < value) lo = mid + 1;
+    else hi = mid;
+  }
+  return lo;
+}
+
+/**
+ * Linear interpolation of y at `value` on an ascending grid. Returns NaN outside [x0, x_last].
+ *
+ * @param x - ascending grid, cm⁻¹
+ * @param y - ordinates on that grid
+ * @param value - where to interpolate, cm⁻¹
+ */
+export function interpolateAt(x: ArrayLike<number>, y: ArrayLike<number>, value: number): number {
+  const n = x.length;
+  if (n === 0 || !(value >= (x[0] as number)) || !(value <= (x[n - 1] as number))) return Number.NaN;
+  const i = lowerBound(x, value);
+  if (i < n && x[i] === value) return y[i] as number;
+  const x1 = x[i - 1] as number;
+  const x2 = x[i] as number;
+  const y1 = y[i - 1] as number;
+  const y2 = y[i] as number;
+  return y1 + ((y2 - y1) * (value - x1)) / (x2 - x1);
+}
+
+/**
+ * Resamples y onto another ascending grid by linear interpolation.
+ *
+ * @param spectrum - source spectrum
+ * @param grid - target wavenumbers, cm⁻¹, ascending, inside the source range
+ * @returns a spectrum on `grid` of the same kind and metadata
+ * @throws BandwrightError `WINDOW` when the grid reaches outside the source range
+ */
+export function resample(spectrum: Spectrum, grid: Float64Array): Spectrum {
+  const { x, y } = spectrum;
+  const first = x[0] as number;
+  const last = x[x.length - 1] as number;
+  if (grid.length > 0 && ((grid[0] as number) < first || (grid[grid.length - 1] as number) > last)) {
+    throw new BandwrightError(
+      'WINDOW',
+      `${label(spectrum)}: covers ${first}–${last} cm⁻¹, cannot be resampled onto ${grid[0]}–${grid[grid.length - 1]} cm⁻¹`,
+      { file: spectrum.metadata.source },
+    );
+  }
+  const out = new Float64Array(grid.length);
+  let j = 1;
+  for (let i = 0; i < grid.length; i++) {
+    const value = grid[i] as number;
+    while (j < x.length - 1 && (x[j] as number) < value) j++;
+    const x1 = x[j - 1] as number;
+    const x2 = x[j] as number;
+    const t = (value - x1) / (x2 - x1);
+    out[i] = (y[j - 1] as number) + t * ((y[j] as number) - (y[j - 1] as number));
+  }
+  const background = spectrum.background === undefined ? undefined : resample({ ...spectrum, y: spectrum.background, background: undefined, yKind: 'absorbance' }, grid).y;
+  return background === undefined
+    ? { x: grid, y: out, yKind: spectrum.yKind, metadata: spectrum.metadata }
+    : { x: grid, y: out, yKind: spectrum.yKind, background, metadata: spectrum.metadata };
+}
