@@ -1,0 +1,619 @@
+/**
+ * Reader for spectrum tables (CSV/TSV): an x column and one y column, or an x column and a
+ * sample/background pair of single-beam columns. Bytes in, Float64Arrays out, one pass over the
+ * data with no string made per value (see `number-parse.ts`).
+ *
+ * Layout accepted, in order:
+ * 1. an optional UTF-8 byte-order mark;
+ * 2. blank lines and `#` comment lines; a comment of the form `# key = value` with a key
+ *    `title`, `path_length_m`, `temperature_K`, `temperature_C`, `pressure_kPa`,
+ *    `resolution_cm-1` or `date` sets that metadata field (other comments are free text);
+ * 3. an optional header line (present when its first cell is not a number);
+ * 4. data lines, one point each, contiguous; blank lines may follow the data, nothing else.
+ *
+ * Delimiter: tab, `;` or `,` — the first of these found on the first non-comment line, unless
+ * given. Decimal separator: `,` when the delimiter is `;` or tab and the data contain a comma,
+ * or when the delimiter is `,` and the first field is quoted and contains a comma; `.`
+ * otherwise, unless given. A decimal comma with a comma delimiter needs every field quoted.
+ *
+ * x is in cm⁻¹ unless the header's x column names micrometres (`wavelength_um`, `micrometers`,
+ * `µm`, `microns`) → ν = 10⁴/λ, or nanometres (`wavelength_nm`, `nanometers`) → ν = 10⁷/λ.
+ * Descending x is reversed so the result ascends; a reversal or duplicate is an error.
+ *
+ * The y-kind comes from the header's y column name or from the `yKind` option; if both are
+ * present they must agree. Without either, `defaultYKind` applies only when the caller gave one:
+ * absorbance is never assumed silently.
+ */
+import { BandwrightError } from '../errors.js';
+import { makeSpectrum, type ScanMetadata, type Spectrum, type YKind } from '../spectrum/spectrum.js';
+import { DECIMAL_COMMA, DECIMAL_POINT, parseNumberText, scanNumber, type NumberSyntax, type ScanCursor } from './number-parse.js';
+
+/** Options of {@link parseSpectrumTable}. */
+export interface SpectrumTableOptions {
+  /** Label used in messages and stored as `metadata.source`, e.g. the path as the user gave it. */
+  source: string;
+  /** What y is; must agree with the header's y column name when that names a kind. */
+  yKind?: YKind;
+  /** What y is when neither the header nor `yKind` says; used only when given explicitly. */
+  defaultYKind?: YKind;
+  /** Field delimiter; detected from the first non-comment line when absent. */
+  delimiter?: ',' | ';' | '\t';
+  /** Decimal separator; detected when absent (see the module notes). */
+  decimal?: '.' | ',';
+  /** Most data points accepted before a `LIMIT` error; default 2,000,000. */
+  maxPoints?: number;
+}
+
+/** Default of {@link SpectrumTableOptions.maxPoints}. */
+export const DEFAULT_MAX_POINTS = 2_000_000;
+
+/**
+ * The largest transmittance-fraction value accepted. A fraction cannot exceed 1 beyond noise;
+ * values above 1.5 are percent mislabelled as a fraction, and reading them as a fraction would
+ * give wildly wrong absorbances, so they are refused rather than rescaled by guesswork.
+ */
+export const MAX_TRANSMITTANCE_FRACTION = 1.5;
+
+const TAB = 0x09;
+const SPACE = 0x20;
+const QUOTE = 0x22;
+const HASH = 0x23;
+const COMMA = 0x2c;
+const SEMICOLON = 0x3b;
+const LF = 0x0a;
+const CR = 0x0d;
+
+type Role = 'x' | 'y' | 'sample' | 'background';
+type XUnit = 'cm-1' | 'um' | 'nm';
+
+const Y_NAMES: ReadonlyMap<string, YKind | 'sample' | 'background'> = new Map<string, YKind | 'sample' | 'background'>([
+  ...['absorbance', 'a', 'abs', 'absorbance_decadic', 'decadic_absorbance', 'absorbance_log10', 'absorbance_au'].map((n) => [n, 'absorbance'] as const),
+  ...['absorbance_natural', 'natural_absorbance', 'absorbance_ln', 'ln', 'napierian_absorbance', 'absorbance_napierian'].map((n) => [n, 'absorbance-natural'] as const),
+  ...['transmittance', 't', 'transmittance_fraction'].map((n) => [n, 'transmittance'] as const),
+  ...['transmittance_pct', 'transmittance_percent', 'transmittance_%', '%t', 't%', 't_%', 't_pct', 'percent_transmittance', 'pct_transmittance', '%_transmittance'].map(
+    (n) => [n, 'transmittance-percent'] as const,
+  ),
+  ...['sample', 'single_beam_sample', 'sample_single_beam', 'sample_intensity', 'sb_sample'].map((n) => [n, 'sample'] as const),
+  ...['background', 'single_beam_background', 'background_single_beam', 'background_intensity', 'reference', 'sb_background'].map((n) => [n, 'background'] as const),
+]);
+
+/** Header spellings recognised for each y-kind, for messages. */
+const Y_NAME_HINT =
+  'absorbance (or A), absorbance_natural (or ln), transmittance (or T, a fraction), transmittance_pct (or %T), or a pair sample,background (single_beam_sample,single_beam_background)';
+
+function normaliseName(name: string): string {
+  return name
+    .toLowerCase()
+    .replace(/[µμ]/g, 'u')
+    .replace(/[^a-z0-9%]+/g, '_')
+    .replace(/^_+|_+$/g, '');
+}
+
+function xUnitOf(name: string, where: string): XUnit {
+  const tokens = name
+    .toLowerCase()
+    .replace(/[µμ]/g, 'u')
+    .split(/[^a-z0-9]+/)
+    .filter((t) => t !== '');
+  const has = (...words: string[]): boolean => words.some((w) => tokens.includes(w));
+  if (has('um', 'micrometer', 'micrometers', 'micrometre', 'micrometres', 'micron', 'microns')) return 'um';
+  if (has('nm', 'nanometer', 'nanometers', 'nanometre', 'nanometres')) return 'nm';
+  if (has('cm', 'cm1', 'wavenumber', 'wavenumbers')) return 'cm-1';
+  if (has('wavelength', 'lambda')) {
+    throw new BandwrightError('PARSE', `${where}: x column "${name}" is a wavelength without a unit; name it wavelength_um or wavelength_nm`, {
+      parameter: name,
+    });
+  }
+  return 'cm-1';
+}
+
+function describeKind(kind: YKind): string {
+  return kind;
+}
+
+/** Text of bytes[start, end) for messages (UTF-8, invalid bytes replaced), shortened. */
+function textOf(bytes: Uint8Array, start: number, end: number): string {
+  const text = new TextDecoder('utf-8').decode(bytes.subarray(start, Math.min(end, start + 200)));
+  return text.length > 40 ? `${text.slice(0, 40)}…` : text;
+}
+
+function delimiterName(byte: number): string {
+  return byte === TAB ? 'tab' : `'${String.fromCharCode(byte)}'`;
+}
+
+/** Splits one line into cells honouring double quotes (used for the header line only). */
+function splitCells(line: string, delimiter: string): string[] {
+  const cells: string[] = [];
+  let current = '';
+  let quoted = false;
+  for (let i = 0; i < line.length; i++) {
+    const ch = line[i] as string;
+    if (quoted) {
+      if (ch === '"') {
+        if (line[i + 1] === '"') {
+          current += '"';
+          i++;
+        } else quoted = false;
+      } else current += ch;
+    } else if (ch === '"') quoted = true;
+    else if (ch === delimiter) {
+      cells.push(current.trim());
+      current = '';
+    } else current += ch;
+  }
+  cells.push(current.trim());
+  return cells;
+}
+
+/** Counts tab, semicolon and comma outside double quotes. */
+function countDelimiters(bytes: Uint8Array, start: number, end: number): { tab: number; semicolon: number; comma: number } {
+  let tab = 0;
+  let semicolon = 0;
+  let comma = 0;
+  let quoted = false;
+  for (let i = start; i < end; i++) {
+    const c = bytes[i];
+    if (c === QUOTE) quoted = !quoted;
+    else if (!quoted) {
+      if (c === TAB) tab++;
+      else if (c === SEMICOLON) semicolon++;
+      else if (c === COMMA) comma++;
+    }
+  }
+  return { tab, semicolon, comma };
+}
+
+const METADATA_KEYS = new Set(['title', 'path_length_m', 'temperature_k', 'temperature_c', 'pressure_kpa', 'resolution_cm-1', 'resolution_cm', 'date']);
+
+/** Reads a `# key = value` comment into metadata; other comments are ignored. */
+function readCommentLine(text: string, lineNumber: number, source: string, metadata: ScanMetadata, seen: Map<string, number>): void {
+  const body = text.replace(/^\s*#+/, '');
+  const equals = body.indexOf('=');
+  if (equals < 0) return;
+  const key = body.slice(0, equals).trim().toLowerCase().replace(/\s+/g, '_');
+  if (!METADATA_KEYS.has(key)) return;
+  const rawValue = body.slice(equals + 1).trim();
+  const canonical = key === 'resolution_cm' ? 'resolution_cm-1' : key === 'temperature_c' ? 'temperature_k' : key;
+  const earlier = seen.get(canonical);
+  if (earlier !== undefined) {
+    throw new BandwrightError('PARSE', `${source} line ${lineNumber}: ${body.slice(0, equals).trim()} given again (first on line ${earlier}), must appear once`, {
+      file: source,
+      line: lineNumber,
+      parameter: key,
+    });
+  }
+  seen.set(canonical, lineNumber);
+  if (key === 'title') {
+    metadata.title = rawValue;
+    return;
+  }
+  if (key === 'date') {
+    metadata.dateText = rawValue;
+    return;
+  }
+  const value = parseNumberText(rawValue);
+  const name = body.slice(0, equals).trim();
+  const bad = (rule: string): never => {
+    throw new BandwrightError('INVALID_VALUE', `${source} line ${lineNumber}: ${name} = ${JSON.stringify(rawValue)}, ${rule}`, {
+      file: source,
+      line: lineNumber,
+      parameter: name,
+    });
+  };
+  if (!Number.isFinite(value)) bad('must be a finite number');
+  switch (key) {
+    case 'path_length_m':
+      if (!(value > 0)) bad('must be > 0');
+      metadata.pathLength_m = value;
+      break;
+    case 'temperature_k':
+      if (!(value > 0)) bad('must be > 0 K');
+      metadata.temperature_K = value;
+      break;
+    case 'temperature_c':
+      if (!(value > -273.15)) bad('must be above absolute zero (> -273.15 °C)');
+      metadata.temperature_K = value + 273.15;
+      break;
+    case 'pressure_kpa':
+      if (!(value > 0)) bad('must be > 0');
+      metadata.pressure_kPa = value;
+      break;
+    default:
+      if (!(value > 0)) bad('must be > 0');
+      metadata.resolution_cm = value;
+  }
+}
+
+interface Layout {
+  roles: Role[];
+  names: string[];
+  yKind: YKind;
+  xUnit: XUnit;
+}
+
+function resolveLayout(header: string[] | undefined, columnCount: number, options: SpectrumTableOptions, headerLine: number): Layout {
+  const source = options.source;
+  const at = header === undefined ? `${source}` : `${source} line ${headerLine}`;
+  let headerKind: YKind | undefined;
+  let roles: Role[];
+  let xUnit: XUnit = 'cm-1';
+  if (header !== undefined) {
+    xUnit = xUnitOf(header[0] ?? '', at);
+    const kinds = header.slice(1).map((name) => Y_NAMES.get(normaliseName(name)));
+    if (header.length === 2) {
+      const kind = kinds[0];
+      if (kind === 'sample' || kind === 'background') {
+        throw new BandwrightError('PARSE', `${at}: column "${header[1]}" is a single-beam ${kind} spectrum; a single-beam table needs both columns, x,sample,background`, {
+          file: source,
+          line: headerLine,
+        });
+      }
+      headerKind = kind;
+      roles = ['x', 'y'];
+    } else if (header.length === 3) {
+      const [first, second] = kinds;
+      if ((first === 'sample' && second === 'background') || (first === 'background' && second === 'sample')) {
+        headerKind = 'single-beam';
+        roles = ['x', first, second];
+      } else if (first === undefined && second === undefined) {
+        roles = ['x', 'sample', 'background'];
+      } else {
+        throw new BandwrightError(
+          'PARSE',
+          `${at}: header ${JSON.stringify(header.join(','))} has 3 columns; 3 columns must be x, sample, background (single-beam pair)`,
+          { file: source, line: headerLine },
+        );
+      }
+    } else {
+      throw new BandwrightError('PARSE', `${at}: header has ${header.length} column(s), expected 2 (x, y) or 3 (x, sample, background)`, {
+        file: source,
+        line: headerLine,
+      });
+    }
+  } else if (columnCount === 2) roles = ['x', 'y'];
+  else if (columnCount === 3) roles = ['x', 'sample', 'background'];
+  else {
+    throw new BandwrightError('PARSE', `${at} line ${headerLine}: ${columnCount} field(s), expected 2 (x, y) or 3 (x, sample, background)`, {
+      file: source,
+      line: headerLine,
+    });
+  }
+  if (headerKind !== undefined && options.yKind !== undefined && headerKind !== options.yKind) {
+    throw new BandwrightError(
+      'PARSE',
+      `${at}: header column ${JSON.stringify(header?.slice(1).join(','))} says ${describeKind(headerKind)} but the y-kind option says ${describeKind(options.yKind)}; remove one or make them agree`,
+      { file: source, line: headerLine, parameter: 'yKind' },
+    );
+  }
+  const yKind = headerKind ?? options.yKind ?? options.defaultYKind;
+  if (yKind === undefined) {
+    const why =
+      header === undefined
+        ? 'has no header line'
+        : `header column ${JSON.stringify(header.slice(1).join(','))} does not name a y-kind`;
+    throw new BandwrightError(
+      'PARSE',
+      `${at}: ${why}, so what y is (absorbance, transmittance, …) is unknown; name the y column ${Y_NAME_HINT}, or give the y-kind explicitly`,
+      { file: source, line: headerLine, parameter: 'yKind' },
+    );
+  }
+  if ((yKind === 'single-beam') !== (roles.length === 3)) {
+    throw new BandwrightError(
+      'PARSE',
+      yKind === 'single-beam'
+        ? `${at}: y-kind single-beam needs 3 columns (x, sample, background), found ${roles.length}`
+        : `${at}: 3 columns (x, sample, background) but y-kind ${yKind}; 3 columns are read only as a single-beam pair`,
+      { file: source, line: headerLine },
+    );
+  }
+  const defaultNames: Record<Role, string> = { x: 'x', y: 'y', sample: 'sample', background: 'background' };
+  const names = header ?? roles.map((role) => defaultNames[role]);
+  return { roles, names, yKind, xUnit };
+}
+
+/**
+ * Refuses transmittance-fraction data that reach above {@link MAX_TRANSMITTANCE_FRACTION}.
+ *
+ * @param y - the ordinates as read
+ * @param where - message prefix (the source)
+ * @param hint - how to declare percent in this file format
+ * @throws BandwrightError `INVALID_VALUE` naming the largest value
+ */
+export function assertTransmittanceFraction(y: Float64Array, where: string, hint: string): void {
+  let max = -Infinity;
+  let at = 0;
+  for (let i = 0; i < y.length; i++) {
+    if ((y[i] as number) > max) {
+      max = y[i] as number;
+      at = i;
+    }
+  }
+  if (max > MAX_TRANSMITTANCE_FRACTION) {
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `${where}: transmittance (fraction) reaches ${max} at point ${at + 1}, a fraction cannot exceed ${MAX_TRANSMITTANCE_FRACTION}; the values look like percent: ${hint}`,
+      { file: where },
+    );
+  }
+}
+
+/**
+ * Parses a spectrum table from bytes.
+ *
+ * @param bytes - the file content (UTF-8 or ASCII; a BOM is skipped)
+ * @param options - source label, y-kind, delimiter, decimal separator, point limit
+ * @returns a spectrum on ascending wavenumbers (cm⁻¹) with `metadata.format = 'csv'` and any
+ *   `# key = value` conditions (path length m, temperature K, pressure kPa, resolution cm⁻¹)
+ * @throws BandwrightError `PARSE` (layout, non-numeric cell, column count, mixed delimiters,
+ *   undeclared y-kind), `INVALID_VALUE` (NaN, infinities, overflow, λ ≤ 0, transmittance
+ *   fraction above 1.5), `NOT_MONOTONIC` (reversal or duplicate x, naming the line), `LIMIT`
+ *   (more than `maxPoints` points). Every message names the source and line.
+ * @example
+ * const spectrum = parseSpectrumTable(new TextEncoder().encode('wavenumber_cm-1,absorbance\n2000,0.1\n2001,0.2\n'),
+ *   { source: 'co.csv' });
+ * // spectrum.yKind === 'absorbance', spectrum.x = [2000, 2001]
+ */
+export function parseSpectrumTable(bytes: Uint8Array, options: SpectrumTableOptions): Spectrum {
+  const source = options.source;
+  const maxPoints = options.maxPoints ?? DEFAULT_MAX_POINTS;
+  if (!Number.isInteger(maxPoints) || maxPoints < 2) {
+    throw new BandwrightError('INVALID_VALUE', `maxPoints = ${maxPoints}, must be an integer >= 2`, { parameter: 'maxPoints' });
+  }
+  const length = bytes.length;
+  let pos = length >= 3 && bytes[0] === 0xef && bytes[1] === 0xbb && bytes[2] === 0xbf ? 3 : 0;
+  let lineNumber = 0;
+  const metadata: ScanMetadata = { source, format: 'csv' };
+  const seenKeys = new Map<string, number>();
+
+  // Preamble: blank lines and comments up to the first content line.
+  let contentStart = -1;
+  let contentEnd = -1;
+  let nextLine = pos;
+  while (pos < length) {
+    lineNumber++;
+    let lineEnd = bytes.indexOf(LF, pos);
+    if (lineEnd < 0) lineEnd = length;
+    nextLine = lineEnd + 1;
+    let end = lineEnd;
+    if (end > pos && bytes[end - 1] === CR) end--;
+    let p = pos;
+    while (p < end && (bytes[p] === SPACE || bytes[p] === TAB)) p++;
+    if (p < end) {
+      if (bytes[p] === HASH) {
+        readCommentLine(new TextDecoder('utf-8').decode(bytes.subarray(p, end)), lineNumber, source, metadata, seenKeys);
+      } else {
+        contentStart = pos;
+        contentEnd = end;
+        break;
+      }
+    }
+    pos = nextLine;
+  }
+  if (contentStart < 0) {
+    throw new BandwrightError('PARSE', `${source}: no data lines (the file is empty or has only comments)`, { file: source });
+  }
+  const firstContentLine = lineNumber;
+
+  // Delimiter.
+  let delimiter: number;
+  if (options.delimiter !== undefined) delimiter = options.delimiter.charCodeAt(0);
+  else {
+    const counts = countDelimiters(bytes, contentStart, contentEnd);
+    if (counts.tab > 0) delimiter = TAB;
+    else if (counts.semicolon > 0) delimiter = SEMICOLON;
+    else if (counts.comma > 0) delimiter = COMMA;
+    else {
+      throw new BandwrightError(
+        'PARSE',
+        `${source} line ${firstContentLine}: ${JSON.stringify(textOf(bytes, contentStart, contentEnd))} has no delimiter (comma, semicolon or tab); a spectrum table needs an x and a y column`,
+        { file: source, line: firstContentLine },
+      );
+    }
+  }
+  const delimiterText = String.fromCharCode(delimiter);
+
+  // Header or data?
+  const firstCells = splitCells(new TextDecoder('utf-8').decode(bytes.subarray(contentStart, contentEnd)), delimiterText);
+  const firstCell = firstCells[0] ?? '';
+  const firstIsNumber =
+    !Number.isNaN(parseNumberText(firstCell, DECIMAL_POINT)) ||
+    !Number.isNaN(parseNumberText(firstCell, DECIMAL_COMMA)) ||
+    /^[+-]?(nan|inf|infinity)$/i.test(firstCell);
+  const header = firstIsNumber ? undefined : firstCells;
+  let dataStart: number;
+  let dataLineNumber: number;
+  if (header === undefined) {
+    dataStart = contentStart;
+    dataLineNumber = firstContentLine;
+  } else {
+    dataStart = nextLine;
+    dataLineNumber = firstContentLine + 1;
+  }
+  const layout = resolveLayout(header, firstCells.length, options, firstContentLine);
+  const columnCount = layout.roles.length;
+
+  // Decimal separator.
+  let decimal: number;
+  if (options.decimal !== undefined) decimal = options.decimal.charCodeAt(0);
+  else if (delimiter !== COMMA) decimal = bytes.indexOf(COMMA, dataStart) >= 0 ? COMMA : 0x2e;
+  else {
+    let p = dataStart;
+    while (p < length && (bytes[p] === SPACE || bytes[p] === TAB || bytes[p] === CR || bytes[p] === LF)) p++;
+    let commaInQuotes = false;
+    if (bytes[p] === QUOTE) {
+      const close = bytes.indexOf(QUOTE, p + 1);
+      const lineEnd = bytes.indexOf(LF, p);
+      const limit = close < 0 ? length : close;
+      if (lineEnd < 0 || limit < lineEnd) {
+        const comma = bytes.indexOf(COMMA, p + 1);
+        commaInQuotes = comma >= 0 && comma < limit;
+      }
+    }
+    decimal = commaInQuotes ? COMMA : 0x2e;
+  }
+  const syntax: NumberSyntax = decimal === COMMA ? DECIMAL_COMMA : DECIMAL_POINT;
+  const quotesRequired = decimal === COMMA && delimiter === COMMA;
+  const skipTabs = delimiter !== TAB;
+
+  // Capacity: at most one point per remaining line.
+  let lines = 1;
+  for (let p = bytes.indexOf(LF, dataStart); p >= 0; p = bytes.indexOf(LF, p + 1)) lines++;
+  const capacity = Math.min(lines, maxPoints);
+  const xs = new Float64Array(capacity);
+  const ys = new Float64Array(capacity);
+  const backgrounds = columnCount === 3 ? new Float64Array(capacity) : undefined;
+  const targets: Float64Array[] = layout.roles.map((role) => (role === 'x' ? xs : role === 'background' ? (backgrounds as Float64Array) : ys));
+  const cursor: ScanCursor = { end: 0 };
+
+  const fail = (code: 'PARSE' | 'INVALID_VALUE' | 'NOT_MONOTONIC' | 'LIMIT', line: number, message: string, parameter?: string): never => {
+    throw new BandwrightError(code, `${source} line ${line}: ${message}`, parameter === undefined ? { file: source, line } : { file: source, line, parameter });
+  };
+  const fieldEnd = (start: number, end: number): number => {
+    let quoted = false;
+    for (let i = start; i < end; i++) {
+      const c = bytes[i];
+      if (c === QUOTE) quoted = !quoted;
+      else if (!quoted && c === delimiter) return i;
+    }
+    return end;
+  };
+  const badField = (line: number, column: number, start: number, lineEnd: number): never => {
+    const name = layout.names[column] ?? `column ${column + 1}`;
+    const stop = fieldEnd(start, lineEnd);
+    let text = textOf(bytes, start, stop).trim();
+    if (text.length >= 2 && text.startsWith('"') && text.endsWith('"')) text = text.slice(1, -1);
+    if (text === '') {
+      return fail('PARSE', line, `column ${column + 1} (${name}) is empty, must be a number`, name);
+    }
+    if (/^[+-]?(nan|inf|infinity)$/i.test(text)) {
+      return fail('INVALID_VALUE', line, `column ${column + 1} (${name}) = ${JSON.stringify(text)}, must be a finite number`, name);
+    }
+    for (const other of [TAB, SEMICOLON, COMMA]) {
+      // A stray comma in a tab/semicolon table is a decimal-separator problem, reported below.
+      if (other === COMMA && delimiter !== COMMA) continue;
+      if (other !== delimiter && other !== decimal && text.includes(String.fromCharCode(other))) {
+        return fail(
+          'PARSE',
+          line,
+          `${delimiterName(other)} found in ${JSON.stringify(text)} but the delimiter is ${delimiterName(delimiter)}; mixed delimiters`,
+          name,
+        );
+      }
+    }
+    const hint =
+      decimal !== COMMA && text.includes(',')
+        ? ` (the decimal separator is '.'; for a decimal comma use ';' or tab as the delimiter${delimiter === COMMA ? ', or quote every field, since a decimal comma with a comma delimiter is ambiguous' : ''})`
+        : decimal === COMMA && text.includes('.')
+          ? ` (the decimal separator is ','${options.decimal === undefined ? ', detected from commas in the data' : ''}; a '.' is not accepted with it, nor is digit grouping)`
+          : '';
+    return fail('PARSE', line, `column ${column + 1} (${name}) = ${JSON.stringify(text)}, not a number; must be a decimal such as 2143.5 or 1.2e-3${hint}`, name);
+  };
+
+  let n = 0;
+  let direction = 0;
+  let blankLine = 0;
+  pos = dataStart;
+  lineNumber = dataLineNumber - 1;
+  while (pos < length) {
+    lineNumber++;
+    let lineEnd = bytes.indexOf(LF, pos);
+    if (lineEnd < 0) lineEnd = length;
+    let end = lineEnd;
+    if (end > pos && bytes[end - 1] === CR) end--;
+    let p = pos;
+    pos = lineEnd + 1;
+    while (p < end && (bytes[p] === SPACE || (skipTabs && bytes[p] === TAB))) p++;
+    if (p === end) {
+      if (blankLine === 0) blankLine = lineNumber;
+      continue;
+    }
+    if (blankLine !== 0) fail('PARSE', lineNumber, `data after the blank line ${blankLine}; the data lines of a table must be contiguous`);
+    if (bytes[p] === HASH) fail('PARSE', lineNumber, 'comment line inside the data; # comments are allowed only before the data');
+    if (n === capacity) fail('LIMIT', lineNumber, `more than ${maxPoints} data points, the limit (maxPoints)`);
+    for (let column = 0; column < columnCount; column++) {
+      while (p < end && (bytes[p] === SPACE || (skipTabs && bytes[p] === TAB))) p++;
+      const fieldStart = p;
+      const quoted = p < end && bytes[p] === QUOTE;
+      if (quoted) p++;
+      else if (quotesRequired) {
+        fail(
+          'PARSE',
+          lineNumber,
+          `column ${column + 1} is not quoted; with a decimal comma and a comma delimiter every field must be quoted ("1234,5","0,25"), otherwise the comma is ambiguous`,
+        );
+      }
+      const value = scanNumber(bytes, p, end, syntax, cursor);
+      if (cursor.end === p) badField(lineNumber, column, fieldStart, end);
+      p = cursor.end;
+      if (quoted) {
+        if (p >= end || bytes[p] !== QUOTE) badField(lineNumber, column, fieldStart, end);
+        p++;
+      }
+      while (p < end && (bytes[p] === SPACE || (skipTabs && bytes[p] === TAB))) p++;
+      if (column < columnCount - 1) {
+        if (p >= end) {
+          fail('PARSE', lineNumber, `${column + 1} field(s), expected ${columnCount} (${layout.names.join(', ')})`);
+        }
+        if (bytes[p] !== delimiter) badField(lineNumber, column, fieldStart, end);
+        p++;
+      } else if (p < end) {
+        if (bytes[p] === delimiter) {
+          let fields = columnCount;
+          for (let k = p; k < end; k = fieldEnd(k + 1, end)) fields++;
+          fail('PARSE', lineNumber, `${fields} fields, expected ${columnCount} (${layout.names.join(', ')})${decimal !== COMMA && delimiter === COMMA ? '; if the numbers use a decimal comma, a comma delimiter is ambiguous: use ; or tab, or quote every field' : ''}`);
+        }
+        badField(lineNumber, column, fieldStart, end);
+      }
+      if (value - value !== 0) {
+        const name = layout.names[column] ?? `column ${column + 1}`;
+        fail('INVALID_VALUE', lineNumber, `column ${column + 1} (${name}) = ${JSON.stringify(textOf(bytes, fieldStart, cursor.end).trim())} overflows a double, must be a finite number`, name);
+      }
+      (targets[column] as Float64Array)[n] = value;
+    }
+    if (n > 0) {
+      const step = (xs[n] as number) - (xs[n - 1] as number);
+      if (step === 0) fail('NOT_MONOTONIC', lineNumber, `x = ${xs[n]} repeats the previous line's x; duplicate x value`, layout.names[0]);
+      const sign = step > 0 ? 1 : -1;
+      if (direction === 0) direction = sign;
+      else if (sign !== direction) {
+        fail(
+          'NOT_MONOTONIC',
+          lineNumber,
+          `x = ${xs[n]} after ${xs[n - 1]} reverses the ${direction > 0 ? 'ascending' : 'descending'} order; x values must be strictly increasing or strictly decreasing`,
+          layout.names[0],
+        );
+      }
+    }
+    n++;
+  }
+  if (n === 0) throw new BandwrightError('PARSE', `${source}: a header but no data lines`, { file: source });
+
+  const trim = (array: Float64Array): Float64Array => (n === capacity ? array : array.slice(0, n));
+  const x = trim(xs);
+  const y = trim(ys);
+  const background = backgrounds === undefined ? undefined : trim(backgrounds);
+  if (layout.xUnit !== 'cm-1') {
+    const scale = layout.xUnit === 'um' ? 1e4 : 1e7;
+    for (let i = 0; i < n; i++) {
+      const lambda = x[i] as number;
+      if (!(lambda > 0)) {
+        throw new BandwrightError(
+          'INVALID_VALUE',
+          `${source}: point ${i + 1}: wavelength ${lambda} ${layout.xUnit === 'um' ? 'µm' : 'nm'}, must be > 0 to give a wavenumber`,
+          { file: source },
+        );
+      }
+      x[i] = scale / lambda;
+    }
+    direction = -direction;
+  }
+  if (direction < 0) {
+    x.reverse();
+    y.reverse();
+    background?.reverse();
+  }
+  if (layout.yKind === 'transmittance') {
+    assertTransmittanceFraction(y, source, 'name the column transmittance_pct (or %T) or give the y-kind transmittance-percent');
+  }
+  return makeSpectrum(background === undefined ? { x, y, yKind: layout.yKind, metadata } : { x, y, yKind: layout.yKind, background, metadata });
+}
