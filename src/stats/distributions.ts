@@ -1,0 +1,96 @@
+/**
+ * Student-t and Fisher-F quantiles and cumulative distribution functions.
+ *
+ * Thin wrappers around the @stdlib kernels (no tables, no home-made series). These are scalar
+ * numeric kernels: outside their domain they return NaN rather than throw, so callers that
+ * feed them user input check the result (see {@link criticalT}, which throws).
+ */
+import tCdfKernel from '@stdlib/stats-base-dists-t-cdf';
+import tQuantileKernel from '@stdlib/stats-base-dists-t-quantile';
+import fCdfKernel from '@stdlib/stats-base-dists-f-cdf';
+import fQuantileKernel from '@stdlib/stats-base-dists-f-quantile';
+import { BandwrightError } from '../errors.js';
+
+/**
+ * Quantile of Student's t distribution: the value t with P(T ≤ t) = p.
+ *
+ * Returns NaN when p is outside [0, 1], when df ≤ 0, or when either is NaN.
+ * p = 0 gives −Infinity and p = 1 gives +Infinity.
+ *
+ * @param p - lower-tail probability, 0…1
+ * @param df - degrees of freedom, > 0 (need not be an integer)
+ * @returns the quantile, or NaN outside the domain
+ * @example
+ * tQuantile(0.975, 8); // 2.306004135204166, the two-sided 95 % value for 8 degrees of freedom
+ */
+export function tQuantile(p: number, df: number): number {
+  return tQuantileKernel(p, df);
+}
+
+/**
+ * Cumulative distribution function of Student's t distribution, P(T ≤ x).
+ *
+ * Returns NaN when df ≤ 0 or when an argument is NaN.
+ *
+ * @param x - the value
+ * @param df - degrees of freedom, > 0
+ * @returns probability 0…1, or NaN outside the domain
+ */
+export function tCdf(x: number, df: number): number {
+  return tCdfKernel(x, df);
+}
+
+/**
+ * Quantile of the F distribution with d1 (numerator) and d2 (denominator) degrees of freedom.
+ *
+ * Returns NaN when p is outside [0, 1], when d1 ≤ 0 or d2 ≤ 0, or when an argument is NaN.
+ *
+ * @param p - lower-tail probability, 0…1
+ * @param d1 - numerator degrees of freedom, > 0
+ * @param d2 - denominator degrees of freedom, > 0
+ * @returns the quantile, or NaN outside the domain
+ * @example
+ * fQuantile(0.99, 1, 7); // 12.246…, the Mandel test's critical value for 10 standards
+ */
+export function fQuantile(p: number, d1: number, d2: number): number {
+  return fQuantileKernel(p, d1, d2);
+}
+
+/**
+ * Cumulative distribution function of the F distribution, P(F ≤ x).
+ *
+ * Returns NaN when d1 ≤ 0 or d2 ≤ 0, or when an argument is NaN; 0 for x ≤ 0.
+ *
+ * @param x - the value
+ * @param d1 - numerator degrees of freedom, > 0
+ * @param d2 - denominator degrees of freedom, > 0
+ * @returns probability 0…1, or NaN outside the domain
+ */
+export function fCdf(x: number, d1: number, d2: number): number {
+  return fCdfKernel(x, d1, d2);
+}
+
+/**
+ * Critical value of Student's t for a confidence level, for the pipeline (throws instead of
+ * returning NaN).
+ *
+ * @param level - confidence level, strictly between 0 and 1 (e.g. 0.95)
+ * @param df - degrees of freedom, > 0
+ * @param options - `sides`: 2 (default) gives t(1 − (1 − level)/2, df); 1 gives t(level, df)
+ * @returns the critical value, > 0 for level > 0.5 (one-sided) or any level (two-sided)
+ * @throws BandwrightError `INVALID_VALUE` when level or df is outside its domain
+ * @example
+ * criticalT(0.99, 8); // 3.355…, two-sided 99 %
+ * criticalT(0.99, 8, { sides: 1 }); // 2.896…, one-sided 99 %
+ */
+export function criticalT(level: number, df: number, options: { sides?: 1 | 2 } = {}): number {
+  const sides = options.sides ?? 2;
+  if (!(level > 0 && level < 1)) {
+    throw new BandwrightError('INVALID_VALUE', `level = ${level}, must be strictly between 0 and 1`, { parameter: 'level' });
+  }
+  if (!(df > 0) || !Number.isFinite(df)) {
+    throw new BandwrightError('INVALID_VALUE', `degrees of freedom = ${df}, must be a finite number > 0`, { parameter: 'df' });
+  }
+  const p = sides === 2 ? 1 - (1 - level) / 2 : level;
+  return tQuantile(p, df);
+}
