@@ -1,0 +1,160 @@
+/**
+ * Quantifying scans (or given responses) with a univariate calibration. Pure.
+ *
+ * For each gas: measure the band exactly as the calibration did, divide the response by the
+ * scan's φ (its path, pressure and temperature relative to the calibration's reference), invert
+ * the calibration curve for the concentration and its prediction interval, then flag what a
+ * reader must know (below the detection or determination limit, outside the calibrated range,
+ * saturated, far from the calibration's conditions).
+ */
+import { measureBand } from '../bands/band.js';
+import { BandwrightError } from '../errors.js';
+import { conditionsFarReasons, densityPathFactor, resolveConditions, type CellConditions, type PartialConditions } from '../gas/conditions.js';
+import { cautionsFor } from '../gas/safety.js';
+import { predictConcentration } from '../models/univariate.js';
+import { toAbsorbance, type Spectrum } from '../spectrum/spectrum.js';
+import type { Calibration, GasCalibration } from './calibration.js';
+import { decorateGases, type GasResult, type ReportingOptions, type ResultFlag, type ScanResult } from './result.js';
+
+/** Options for quantification. */
+export interface QuantifyOptions extends ReportingOptions {
+  /** Prediction-interval level, 0 < level < 1 (default 0.95). */
+  level?: number;
+  /** Conditions from command-line options, used when the scan does not carry them. */
+  defaultConditions?: PartialConditions;
+  /** Conditions that override the scan's own (e.g. a manifest row), looked at first. */
+  givenConditions?: PartialConditions;
+}
+
+function checkLevel(level: number): number {
+  if (!(level > 0 && level < 1)) {
+    throw new BandwrightError('INVALID_VALUE', `--level = ${level}, must be a probability between 0 and 1 (e.g. 0.95)`, { parameter: '--level' });
+  }
+  return level;
+}
+
+/**
+ * Turns one inverse prediction into a gas result with limit and range flags.
+ *
+ * @param gas - the gas calibration
+ * @param responses - responses at reference conditions (m replicates)
+ * @param level - interval level
+ */
+function estimate(gas: GasCalibration, responses: readonly number[], level: number): GasResult {
+  const prediction = predictConcentration(gas.model, responses, { level });
+  const flags: ResultFlag[] = [];
+  const notes: string[] = [];
+  // The standard interval is always bounded; only Fieller's can be unbounded (null ends).
+  const result: GasResult = {
+    gas: gas.gas,
+    value: prediction.value,
+    unit: gas.unit,
+    low: prediction.low ?? Number.NEGATIVE_INFINITY,
+    high: prediction.high ?? Number.POSITIVE_INFINITY,
+    se: prediction.se,
+    flags,
+    notes: [...prediction.warnings],
+  };
+  const { detection, determination } = gas.model.limits;
+  if (detection.value !== null) {
+    result.detectionLimit = { value: detection.value, definition: detection.definition };
+    if (prediction.value < detection.value) {
+      flags.push('below-lod');
+      notes.push(`below the detection limit ${detection.value.toPrecision(3)} ${gas.unit} (${detection.definition}): report as "< LOD"`);
+    }
+  }
+  if (determination.value !== null) {
+    result.determinationLimit = { value: determination.value, definition: determination.definition };
+    if (!flags.includes('below-lod') && prediction.value < determination.value) {
+      flags.push('below-loq');
+      notes.push(`below the determination limit ${determination.value.toPrecision(3)} ${gas.unit}: detected, but not quantified to the stated precision`);
+    }
+  }
+  const [low, high] = gas.model.range;
+  if (prediction.extrapolated || prediction.value > high || (low > 0 && prediction.value < low)) {
+    flags.push('extrapolated');
+    notes.push(`outside the calibrated range ${low}–${high} ${gas.unit}: the curve is extrapolated`);
+  }
+  return result;
+}
+
+/**
+ * Quantifies one scan with a band calibration.
+ *
+ * @param calibration - a verified band calibration
+ * @param spectrum - the sample scan (any y-kind)
+ * @param options - level, conditions, reporting
+ * @returns the scan's result
+ * @throws BandwrightError `CONDITIONS_MISSING`, `WINDOW` (band outside the scan), `NO_SOLUTION`,
+ *   `CONVERSION`, `INVALID_VALUE` (level, or a calibration that is not a band calibration)
+ */
+export function quantifyBandScan(calibration: Calibration, spectrum: Spectrum, options: QuantifyOptions = {}): ScanResult {
+  if (calibration.method.model !== 'band') {
+    throw new BandwrightError('INVALID_VALUE', `the calibration is a ${calibration.method.model} calibration; quantifyBandScan needs a band calibration`);
+  }
+  const level = checkLevel(options.level ?? 0.95);
+  const scan = spectrum.metadata.source ?? 'scan';
+  const resolved = resolveConditions({ manifest: options.givenConditions, scan: spectrum.metadata, options: options.defaultConditions }, scan);
+  const conditions: CellConditions = { pathLength_m: resolved.pathLength_m, temperature_K: resolved.temperature_K, pressure_kPa: resolved.pressure_kPa };
+  const phi = densityPathFactor(conditions, calibration.reference);
+  const far = conditionsFarReasons(conditions, calibration.reference);
+  const absorbance = toAbsorbance(spectrum);
+  const gases: GasResult[] = [];
+  let baselineRms = 0;
+  for (const gas of calibration.gases) {
+    const feature = gas.feature;
+    if (feature === undefined) throw new BandwrightError('SCHEMA', `calibration gas ${gas.gas} has no band; it was built from responses, use quantify --response`);
+    const measured = measureBand(absorbance, feature.band, { windows: feature.baseline, order: feature.baselineOrder });
+    baselineRms = Math.max(baselineRms, measured.baseline.rms_AU);
+    const raw = feature.response === 'area' ? measured.area : measured.height;
+    const result = estimate(gas, [raw / phi], level);
+    if (measured.peakAbsorbance > calibration.method.saturationAbsorbance) {
+      result.flags.push('saturated');
+      result.notes.push(`peak absorbance ${measured.peakAbsorbance.toFixed(3)} in the band is above ${calibration.method.saturationAbsorbance}: lines saturate, the result may be biased low`);
+    }
+    if (far.length > 0) {
+      result.flags.push('conditions-far');
+      result.notes.push(...far);
+    }
+    gases.push(result);
+  }
+  return {
+    scan,
+    conditions,
+    gases: decorateGases(gases, options, conditions.pathLength_m),
+    residualRms: baselineRms,
+    cautions: cautionsFor(calibration.gases.map((g) => g.gas)),
+    warnings: [],
+  };
+}
+
+/**
+ * Quantifies given responses (already at the calibration's reference conditions) with a
+ * univariate calibration of one gas: the mean of m replicates gives one estimate.
+ *
+ * @param calibration - a verified calibration with one gas
+ * @param responses - m ≥ 1 replicate responses
+ * @param options - level and reporting options
+ * @returns a result labelled `responses`
+ * @throws BandwrightError `INVALID_VALUE` for no responses or a non-finite one; `NO_SOLUTION`
+ */
+export function quantifyResponses(calibration: Calibration, responses: readonly number[], options: QuantifyOptions = {}): ScanResult {
+  if (calibration.gases.length !== 1) {
+    throw new BandwrightError('INVALID_VALUE', `the calibration has ${calibration.gases.length} gases; --response needs a calibration of one gas`, { parameter: '--response' });
+  }
+  if (responses.length === 0) throw new BandwrightError('INVALID_VALUE', '--response: give at least one response', { parameter: '--response' });
+  responses.forEach((r, i) => {
+    if (!Number.isFinite(r)) throw new BandwrightError('INVALID_VALUE', `--response ${i + 1} = ${r}, must be a finite number`, { parameter: '--response' });
+  });
+  const level = checkLevel(options.level ?? 0.95);
+  const gas = calibration.gases[0] as GasCalibration;
+  const result = estimate(gas, responses, level);
+  return {
+    scan: responses.length === 1 ? 'response' : `mean of ${responses.length} responses`,
+    conditions: calibration.reference,
+    gases: decorateGases([result], options, calibration.reference.pathLength_m),
+    cautions: cautionsFor([gas.gas]),
+    warnings: [],
+  };
+}
+

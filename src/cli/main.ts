@@ -1,0 +1,71 @@
+/**
+ * The bandwright command-line program: commander wiring, error reporting and exit statuses
+ * (DESIGN §4: 0 success; 1 bad input or failed computation; 2 usage error; recheck and status
+ * use 3 and 4).
+ */
+import { Command, CommanderError } from 'commander';
+import { BandwrightError, TOOL } from '../index.js';
+import { registerCalibrate } from './calibrate.js';
+import type { CommandContext, TextSink } from './context.js';
+import { registerInspect } from './inspect.js';
+import { registerQuantify } from './quantify.js';
+
+/**
+ * Builds the program. Each command's action stores its exit status in the context.
+ *
+ * @param context - output streams and status
+ */
+export function buildProgram(context: CommandContext): Command {
+  const program = new Command();
+  program
+    .name('bandwright')
+    .description('Gas-cell infrared quantification: calibrate from certified standards, quantify samples with prediction intervals, recheck drift.')
+    .version(TOOL.version, '-V, --version')
+    .showHelpAfterError('(run with --help for usage)')
+    .configureOutput({ writeOut: (s) => context.stdout.write(s), writeErr: (s) => context.stderr.write(s) })
+    .exitOverride();
+  registerCalibrate(program, context);
+  registerQuantify(program, context);
+  registerInspect(program, context);
+  for (const command of program.commands) command.exitOverride().configureOutput({ writeOut: (s) => context.stdout.write(s), writeErr: (s) => context.stderr.write(s) });
+  return program;
+}
+
+/**
+ * Runs the program on an argument vector.
+ *
+ * @param argv - full `process.argv` (node, script, arguments…)
+ * @param streams - where to print (default: the process's stdout and stderr)
+ * @returns the exit status
+ */
+export async function main(argv: readonly string[], streams: { stdout?: TextSink; stderr?: TextSink; interactive?: boolean } = {}): Promise<number> {
+  const context: CommandContext = {
+    stdout: streams.stdout ?? process.stdout,
+    stderr: streams.stderr ?? process.stderr,
+    interactive: streams.interactive ?? process.stderr.isTTY === true,
+    status: 0,
+  };
+  const program = buildProgram(context);
+  try {
+    await program.parseAsync([...argv]);
+    return context.status;
+  } catch (error) {
+    if (error instanceof CommanderError) {
+      // Help and version end with exit code 0; everything else commander refuses is a usage error.
+      return error.exitCode === 0 ? 0 : 2;
+    }
+    if (error instanceof BandwrightError) {
+      context.stderr.write(`bandwright: ${error.message}\n`);
+      return error.code === 'USAGE' ? 2 : 1;
+    }
+    context.stderr.write(`bandwright: internal error: ${error instanceof Error ? (error.stack ?? error.message) : String(error)}\n`);
+    return 1;
+  }
+}
+
+const invokedDirectly = process.argv[1] !== undefined && import.meta.url === new URL(`file://${process.argv[1]}`).href;
+if (invokedDirectly) {
+  main(process.argv).then((status) => {
+    process.exitCode = status;
+  });
+}

@@ -1,0 +1,62 @@
+/**
+ * The public library API of bandwright: everything the command-line program itself uses.
+ * Scripts may drive the same functions (read files through the `io` functions, compute with the
+ * pure core, format with the `report` functions).
+ */
+export { BandwrightError, isBandwrightError, type ErrorCode, type ErrorLocation } from './errors.js';
+export { TOOL } from './version.js';
+
+// Spectra
+export { makeSpectrum, toAbsorbance, toTransmittance, resample, interpolateAt, Y_KINDS, type Spectrum, type YKind, type ScanMetadata } from './spectrum/spectrum.js';
+
+// Band features
+export { measureBand, fitBaseline, evaluateBaseline, type BandFeatures, type BaselineSpec, type FittedBaseline } from './bands/band.js';
+export { assertBandWindows, formatWindow, type Window } from './bands/windows.js';
+
+// Gases, conditions, units, safety
+export { SPECIES, findSpecies, requireInfraredSpecies, normalModeCount, needsCaution, type Species } from './gas/species.js';
+export { resolveConditions, densityPathFactor, conditionsFarReasons, medianConditions, type CellConditions, type PartialConditions } from './gas/conditions.js';
+export {
+  ppmToMgPerM3,
+  toDryBasis,
+  correctToReferenceOxygen,
+  toPpm,
+  fromPpm,
+  unitLabel,
+  molarVolume_L,
+  parseConcentrationUnit,
+  NORMAL_STATE,
+  GAS_CONSTANT,
+  type ConcentrationUnit,
+  type ReferenceState,
+} from './gas/units.js';
+export { GENERAL_CAUTION, cautionFor, cautionsFor, exceededLimits, type ExposureLimit } from './gas/safety.js';
+
+// Statistics and models
+export { leastSquares, solveLeastSquaresMany, type LeastSquaresFit } from './stats/least-squares.js';
+export { tQuantile, fQuantile, tCdf, fCdf } from './stats/distributions.js';
+export { fitUnivariate, predictConcentration, type UnivariateModel } from './models/univariate.js';
+
+// Calibrations
+export { parseMethod, parseResponseMethod, DEFAULT_RECHECK, type Method, type BandMethod, type ResponseMethod, type ClsMethod, type CurveForm, type WeightScheme } from './calibration/method.js';
+export { SCHEMA_VERSION, calibrationHash, sealCalibration, verifyCalibration, canonicalJson, type Calibration, type CalibrationInput, type GasCalibration } from './calibration/calibration.js';
+export { buildBandCalibration, buildResponseCalibration, type StandardScan, type BuildContext, type ResponseRow } from './calibration/build.js';
+export { quantifyBandScan, quantifyResponses, type QuantifyOptions } from './calibration/quantify.js';
+export { decorateGases, type GasResult, type ScanResult, type ResultFlag, type ReportingOptions, type Conversion } from './calibration/result.js';
+
+// Files
+export { readScan, parseScan } from './io/scan.js';
+export { expandScanArguments } from './io/scan-paths.js';
+export { sha256OfBytes, sha256OfFile } from './io/hash.js';
+export { readManifest, parseManifest, type Manifest, type ManifestEntry } from './io/manifest.js';
+export { loadStandards } from './io/standards.js';
+export { readCalibration, writeCalibration, readMethod } from './io/calibration-file.js';
+export { readResponseTable, readLimits } from './io/tables.js';
+export { writeFileAtomic } from './io/atomic-write.js';
+export { formatCsv, guardCell } from './io/csv-table.js';
+export { formatJcamp } from './io/jcamp-write.js';
+export { formatSpectrumCsv } from './io/spectrum-csv-write.js';
+
+// Reports
+export { formatResultsText, resultsDocument, resultsCsv, resultColumns, resultRow, isFailure, type BatchEntry, type ScanFailure } from './report/results.js';
+export { formatTextTable, formatNumber } from './report/table.js';
