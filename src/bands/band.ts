@@ -135,7 +135,7 @@ export function measureBand(spectrum: Spectrum, band: Window, baseline: Baseline
     throw new BandwrightError('INVALID_VALUE', `${spectrum.metadata.source ?? 'scan'}: y-kind ${spectrum.yKind}, band features need absorbance`, { file: spectrum.metadata.source });
   }
   assertBandWindows(band, baseline.windows, 'band');
-  const [start, end] = windowIndices(spectrum, band, `band ${formatWindow(band)}`, 1);
+  const [start, end] = windowIndices(spectrum, band, 'band', 1);
   const fitted = fitBaseline(spectrum, band, baseline);
   const { x, y } = spectrum;
   const corrected = (j: number): number => (y[j] as number) - evaluateBaseline(fitted, x[j] as number);

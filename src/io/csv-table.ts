@@ -52,7 +52,7 @@ export function parseTable(text: string, source: string, options: { maxRows?: nu
     return lo + 1;
   };
 
-  const parsed = Papa.parse<string[]>(text, { header: false, skipEmptyLines: false, comments: false, delimitersToGuess: [',', ';', '\t'] });
+  const parsed = Papa.parse<string[]>(text, { header: false, skipEmptyLines: false, comments: false, delimiter: headerDelimiter(text) });
   const quoteError = parsed.errors.find((e) => e.type === 'Quotes');
   if (quoteError !== undefined) {
     throw new BandwrightError('PARSE', `${source} line ${(quoteError.row ?? 0) + 1}: ${quoteError.message}`, { file: source });
@@ -111,6 +111,17 @@ export function parseTable(text: string, source: string, options: { maxRows?: nu
     rows.push({ line, cells });
   }
   return { columns, rows, delimiter, decimalComma: sawDecimalComma };
+}
+
+/**
+ * The delimiter, judged from the header line alone: header names hold no decimal commas, so a tab
+ * or semicolon there decides, and data rows such as `a.csv;10,5` cannot mislead the guess.
+ */
+function headerDelimiter(text: string): string {
+  const header = text.split('\n').find((line) => line.trim() !== '' && !line.trimStart().startsWith('#')) ?? '';
+  if (header.includes('\t')) return '\t';
+  if (header.includes(';')) return ';';
+  return ',';
 }
 
 function lineStartOffsets(text: string): number[] {
