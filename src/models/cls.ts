@@ -1,0 +1,215 @@
+/**
+ * Spectral classical least squares (K-matrix) for gas mixtures (DESIGN §3): fit pure-component
+ * spectra from standards over the method's regions, with a polynomial baseline per region and an
+ * optional background spectrum, and predict a sample's concentrations with prediction intervals
+ * calibrated for correlated channels. The mathematics is in `cls-core.ts` (shared with band-area
+ * CLS); this module handles channels, regions and baseline.
+ *
+ * Units: spectra in decadic absorbance on the model's channels; concentrations in each
+ * component's unit at the standard's own conditions; φ = (L/L_ref)(P/P_ref)(T_ref/T) per
+ * standard and per sample (dimensionless), so the model works in φ-scaled concentrations.
+ */
+import { BandwrightError } from '../errors.js';
+import { channelSegments, MAX_BASELINE_ORDER, nuisanceBasis } from './cls-basis.js';
+import type { ClsComponent, ClsCoreModel, ClsPrediction, ClsState } from './cls-core.js';
+import { DEFAULT_POOR_FIT_RATIO, fitClsCore, prepareClsState, predictClsState } from './cls-core.js';
+import { validateClsInputs } from './cls-validate.js';
+
+export type { ClsComponent, ClsEstimate, ClsFlag, ClsPrediction, ClsCalibrationStatistics, ClsCrossValidation, ClsRange, ClsTerm } from './cls-core.js';
+export { DEFAULT_CLS_CONDITION_LIMIT, DEFAULT_POOR_FIT_RATIO, MINIMUM_SEPARATION_RATIO } from './cls-core.js';
+
+/** Standards for a spectral CLS fit. Nothing here is modified. */
+export interface ClsData {
+  /** Number of channels, or the grid itself (cm⁻¹; used to centre and scale the baseline polynomials). */
+  readonly channels: number | Float64Array;
+  /**
+   * Region label of each channel (integers ≥ 0); the baseline polynomial is fitted on each region
+   * separately. Default: one region.
+   */
+  readonly regionOf?: ArrayLike<number>;
+  /** Absorbance spectra of the standards, standards × channels. */
+  readonly spectra: readonly ArrayLike<number>[];
+  /** Certified concentrations, standards × components, each in its component's unit (≥ 0). */
+  readonly concentrations: readonly ArrayLike<number>[];
+  /** φ = (L/L_ref)(P/P_ref)(T_ref/T) of each standard (> 0). */
+  readonly phi: ArrayLike<number>;
+  /** Components in column order of `concentrations`: reported gases and interferents. */
+  readonly components: readonly ClsComponent[];
+  /** Optional label of each standard (e.g. its scan file) for messages. */
+  readonly standardLabels?: readonly string[];
+}
+
+/** Options of {@link fitCls}. */
+export interface ClsFitOptions {
+  /** Polynomial baseline order per region, 0…3 (default 1: offset and slope). */
+  readonly baselineOrder?: number;
+  /** A constant background spectrum (absorbance on the channels) with a free coefficient in every spectrum. */
+  readonly background?: ArrayLike<number>;
+  /** Names of components given a second-order (quadratic) term, for saturating bands. */
+  readonly secondOrder?: readonly string[];
+  /** Default confidence level of prediction intervals (default 0.95). */
+  readonly level?: number;
+  /** Largest condition number of the column-scaled concentration and pure-spectrum matrices (default 1000). */
+  readonly conditionLimit?: number;
+}
+
+/** A fitted spectral CLS model: plain JSON-safe data. */
+export interface ClsModel extends ClsCoreModel {
+  /** Model kind. */
+  readonly kind: 'cls';
+  /** Layout version of this object. */
+  readonly formatVersion: 1;
+  /** Channel grid (cm⁻¹) when one was given, else null (channel indices were used). */
+  readonly grid: readonly number[] | null;
+  /** Baseline polynomial order per region. */
+  readonly baselineOrder: number;
+  /** Background spectrum, or null. */
+  readonly background: readonly number[] | null;
+}
+
+/** Options of {@link predictCls}. */
+export interface ClsPredictOptions {
+  /** φ = (L/L_ref)(P/P_ref)(T_ref/T) of the sample (> 0). */
+  readonly phi: number;
+  /** Confidence level of the intervals (default: the model's, usually 0.95). */
+  readonly level?: number;
+  /**
+   * Residual-RMS ratio over the calibration's that a sample must exceed, besides the F test at
+   * 99 %, to be flagged `poor-fit` (default 1.5).
+   */
+  readonly poorFitRatio?: number;
+}
+
+function positionsOf(channels: number | Float64Array): ArrayLike<number> {
+  if (typeof channels === 'number') return Float64Array.from({ length: channels }, (_, i) => i);
+  return channels;
+}
+
+/**
+ * Fits a spectral CLS model from standards.
+ *
+ * @param data - channels (count or grid, cm⁻¹), region per channel, absorbance spectra,
+ *   certified concentrations (component units), φ per standard, components
+ * @param options - baseline order (0…3, default 1), background spectrum, second-order
+ *   components, level (default 0.95), condition limit (default 1000)
+ * @returns the model (plain object: pure spectra, prediction matrix, noise model, statistics,
+ *   leave-one-out cross-validation)
+ * @throws BandwrightError `INVALID_VALUE` naming the standard, channel or component for shapes,
+ *   non-finite values, negative concentrations or φ ≤ 0; `INSUFFICIENT_DATA` for too few
+ *   standards or channels; `SINGULAR` naming the gases when collinear standards or coinciding
+ *   bands make them inseparable
+ * @example
+ * const model = fitCls(
+ *   { channels: grid, spectra, concentrations, phi: spectra.map(() => 1),
+ *     components: [{ name: 'CO', reported: true, unit: 'ppm' }, { name: 'H2O', reported: false, unit: 'ppm' }] },
+ *   { baselineOrder: 1 },
+ * );
+ */
+export function fitCls(data: ClsData, options: ClsFitOptions = {}): ClsModel {
+  const channelCount = typeof data.channels === 'number' ? data.channels : data.channels.length;
+  const validated = validateClsInputs(
+    { responses: data.spectra, concentrations: data.concentrations, phi: data.phi, components: data.components, standardLabels: data.standardLabels },
+    options,
+    { channelCount, channelWord: 'channel', responsesName: 'spectra' },
+  );
+  const baselineOrder = options.baselineOrder ?? 1;
+  if (!(Number.isInteger(baselineOrder) && baselineOrder >= 0 && baselineOrder <= MAX_BASELINE_ORDER)) {
+    throw new BandwrightError('INVALID_VALUE', `baselineOrder = ${baselineOrder}, must be an integer 0…${MAX_BASELINE_ORDER}`, { parameter: 'baselineOrder' });
+  }
+  if (typeof data.channels !== 'number') {
+    for (let j = 0; j < channelCount; j++) {
+      if (!Number.isFinite(data.channels[j])) {
+        throw new BandwrightError('INVALID_VALUE', `channels[${j}] = ${data.channels[j]}, grid values must be finite numbers (cm⁻¹)`, { parameter: 'channels' });
+      }
+    }
+  }
+  const regionOf = Float64Array.from({ length: channelCount }, (_, j) => data.regionOf?.[j] ?? 0);
+  if (data.regionOf !== undefined && data.regionOf.length !== channelCount) {
+    throw new BandwrightError('INVALID_VALUE', `regionOf has ${data.regionOf.length} labels for ${channelCount} channels, must be equal`, { parameter: 'regionOf' });
+  }
+  regionOf.forEach((label, j) => {
+    if (!(Number.isInteger(label) && label >= 0)) {
+      throw new BandwrightError('INVALID_VALUE', `regionOf[${j}] = ${label}, must be an integer >= 0`, { parameter: 'regionOf' });
+    }
+  });
+  let background: Float64Array | undefined;
+  if (options.background !== undefined) {
+    if (options.background.length !== channelCount) {
+      throw new BandwrightError('INVALID_VALUE', `background has ${options.background.length} values for ${channelCount} channels, must be equal`, { parameter: 'background' });
+    }
+    background = Float64Array.from(options.background);
+    background.forEach((value, j) => {
+      if (!Number.isFinite(value)) throw new BandwrightError('INVALID_VALUE', `background channel ${j} = ${value}, must be a finite number`, { parameter: 'background' });
+    });
+  }
+  const positions = positionsOf(data.channels);
+  const nuisance = nuisanceBasis({ positions, regionOf, order: baselineOrder, ...(background ? { background } : {}) });
+  const segments = channelSegments(regionOf, positions);
+  const core = fitClsCore(
+    { responses: data.spectra, concentrations: data.concentrations, phi: data.phi, components: data.components },
+    {
+      level: validated.level,
+      conditionLimit: validated.conditionLimit,
+      secondOrder: validated.secondOrder,
+      nuisance,
+      segments,
+      estimateCorrelation: true,
+      channelWord: 'channel',
+    },
+  );
+  return {
+    kind: 'cls',
+    formatVersion: 1,
+    ...core,
+    grid: typeof data.channels === 'number' ? null : Array.from(data.channels),
+    baselineOrder,
+    background: background ? Array.from(background) : null,
+  };
+}
+
+const prepared = new WeakMap<ClsModel, ClsState>();
+
+function stateOf(model: ClsModel): ClsState {
+  let state = prepared.get(model);
+  if (state === undefined) {
+    const regionOf = new Float64Array(model.channelCount);
+    for (const segment of model.segments) regionOf.fill(segment.region, segment.start, segment.end);
+    const positions = model.grid ?? Float64Array.from({ length: model.channelCount }, (_, i) => i);
+    const nuisance = nuisanceBasis({
+      positions,
+      regionOf,
+      order: model.baselineOrder,
+      ...(model.background ? { background: model.background } : {}),
+    });
+    state = prepareClsState(model, nuisance);
+    prepared.set(model, state);
+  }
+  return state;
+}
+
+/**
+ * Predicts a sample's concentrations from its absorbance spectrum.
+ *
+ * The first call for a model builds its numeric state (baseline basis, typed arrays) and caches
+ * it; later calls cost a few matrix–vector products over the channels.
+ *
+ * @param model - a model from {@link fitCls} (or the same object read back from JSON)
+ * @param spectrum - decadic absorbance on the model's channels; not modified
+ * @param options - the sample's φ, confidence level (default the model's), poor-fit ratio
+ * @returns per reported gas { name, unit, value, se, low, high, flags } at the sample's
+ *   conditions, the interferents likewise, the residual spectrum and its RMS (absorbance), and
+ *   the `poor-fit` flag
+ * @throws BandwrightError `INVALID_VALUE` for a spectrum of the wrong length or with non-finite
+ *   values, φ ≤ 0, or a level outside (0, 1)
+ * @example
+ * const result = predictCls(model, sampleAbsorbance, { phi: 1 });
+ * result.estimates[0]; // { name: 'CO', value: 71.3, se: 0.4, low: 70.5, high: 72.1, ... }
+ */
+export function predictCls(model: ClsModel, spectrum: ArrayLike<number>, options: ClsPredictOptions): ClsPrediction {
+  return predictClsState(model, stateOf(model), spectrum, {
+    phi: options.phi,
+    level: options.level ?? model.level,
+    poorFitRatio: options.poorFitRatio ?? DEFAULT_POOR_FIT_RATIO,
+    channelWord: 'channel',
+  });
+}

@@ -1,0 +1,154 @@
+/**
+ * Small synthetic spectra for model tests (synthetic, known truth): Lorentzian and Gaussian
+ * bands on a uniform grid, a seeded normal generator, correlated noise (white noise smoothed by
+ * a short triangular kernel, the way apodisation and resampling correlate neighbouring
+ * channels), and a toy saturating band (narrow lines, Beer–Lambert on transmittance, then an
+ * instrument kernel applied to transmittance). These are shape generators only; physical line
+ * lists, partition functions and instrument line shapes belong to `src/simulate/`.
+ */
+
+/** A uniform ascending grid from `start` to `end` (inclusive) with spacing `step`, cm⁻¹. */
+export function uniformGrid(start: number, end: number, step: number): Float64Array {
+  const count = Math.round((end - start) / step) + 1;
+  const grid = new Float64Array(count);
+  for (let i = 0; i < count; i++) grid[i] = start + i * step;
+  return grid;
+}
+
+/** Peak-normalised Lorentzian band: peak / (1 + ((x − centre)/hwhm)²). */
+export function lorentzianBand(grid: Float64Array, band: { centre: number; hwhm: number; peak: number }): Float64Array {
+  const out = new Float64Array(grid.length);
+  for (let i = 0; i < grid.length; i++) {
+    const u = (grid[i]! - band.centre) / band.hwhm;
+    out[i] = band.peak / (1 + u * u);
+  }
+  return out;
+}
+
+/** Peak-normalised Gaussian band: peak · exp(−ln2 ((x − centre)/hwhm)²). */
+export function gaussianBand(grid: Float64Array, band: { centre: number; hwhm: number; peak: number }): Float64Array {
+  const out = new Float64Array(grid.length);
+  for (let i = 0; i < grid.length; i++) {
+    const u = (grid[i]! - band.centre) / band.hwhm;
+    out[i] = band.peak * Math.exp(-Math.LN2 * u * u);
+  }
+  return out;
+}
+
+/** Sum of several spectra with weights: Σ w_k s_k. */
+export function combine(parts: ReadonlyArray<{ spectrum: ArrayLike<number>; weight: number }>, length: number): Float64Array {
+  const out = new Float64Array(length);
+  for (const part of parts) {
+    for (let i = 0; i < length; i++) out[i]! += part.weight * part.spectrum[i]!;
+  }
+  return out;
+}
+
+/** Adds offset + slope·(x − x_mid) to a copy of `spectrum`. */
+export function withLinearBaseline(spectrum: Float64Array, grid: Float64Array, offset: number, slope: number): Float64Array {
+  const mid = (grid[0]! + grid[grid.length - 1]!) / 2;
+  const out = new Float64Array(spectrum.length);
+  for (let i = 0; i < spectrum.length; i++) out[i] = spectrum[i]! + offset + slope * (grid[i]! - mid);
+  return out;
+}
+
+/** A seeded generator of standard normal deviates (mulberry32 uniforms, Box–Muller). */
+export function normalGenerator(seed: number): () => number {
+  let state = seed >>> 0;
+  const uniform = (): number => {
+    state = (state + 0x6d2b79f5) >>> 0;
+    let t = state;
+    t = Math.imul(t ^ (t >>> 15), t | 1);
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+  };
+  let spare: number | undefined;
+  return () => {
+    if (spare !== undefined) {
+      const value = spare;
+      spare = undefined;
+      return value;
+    }
+    let u = 0;
+    while (u === 0) u = uniform();
+    const v = uniform();
+    const radius = Math.sqrt(-2 * Math.log(u));
+    spare = radius * Math.sin(2 * Math.PI * v);
+    return radius * Math.cos(2 * Math.PI * v);
+  };
+}
+
+/**
+ * Correlated Gaussian noise: white noise convolved with a triangular kernel of half-width
+ * `halfWidth` channels, rescaled so each channel's standard deviation is `rms`. halfWidth 0
+ * gives white noise.
+ */
+export function correlatedNoise(length: number, options: { rms: number; halfWidth: number; normal: () => number }): Float64Array {
+  const { rms, halfWidth, normal } = options;
+  const weights: number[] = [];
+  for (let k = -halfWidth; k <= halfWidth; k++) weights.push(halfWidth + 1 - Math.abs(k));
+  const norm = Math.sqrt(weights.reduce((sum, w) => sum + w * w, 0));
+  const white = new Float64Array(length + 2 * halfWidth);
+  for (let i = 0; i < white.length; i++) white[i] = normal();
+  const out = new Float64Array(length);
+  for (let i = 0; i < length; i++) {
+    let sum = 0;
+    for (let k = 0; k < weights.length; k++) sum += weights[k]! * white[i + k]!;
+    out[i] = (rms * sum) / norm;
+  }
+  return out;
+}
+
+/** Adds `noise` to a copy of `spectrum`. */
+export function plus(spectrum: ArrayLike<number>, noise: ArrayLike<number>): Float64Array {
+  const out = new Float64Array(spectrum.length);
+  for (let i = 0; i < spectrum.length; i++) out[i] = spectrum[i]! + noise[i]!;
+  return out;
+}
+
+/**
+ * A toy saturating band: lines much narrower than the instrument resolution, Beer–Lambert on
+ * a fine grid (T = exp(−column·Σ s_k L_k(ν)) with unit-area Lorentzians L_k), the instrument
+ * kernel (Gaussian, half-width `kernelHwhm`) applied to transmittance, and decadic absorbance
+ * −log10 of the smoothed transmittance sampled on `grid`. Because the kernel acts on
+ * transmittance, apparent absorbance grows less than linearly with the column amount.
+ *
+ * @param grid - output grid, cm⁻¹, uniform and ascending
+ * @param band - line centres (cm⁻¹) and strengths (natural-log absorbance area per unit column),
+ *   Lorentz half-width of every line (cm⁻¹), instrument Gaussian half-width (cm⁻¹), column amount
+ */
+export function saturatingBand(
+  grid: Float64Array,
+  band: { lines: ReadonlyArray<{ centre: number; strength: number }>; lineHwhm: number; kernelHwhm: number; column: number },
+): Float64Array {
+  const step = grid[1]! - grid[0]!;
+  const oversample = 20;
+  const fineStep = step / oversample;
+  const margin = Math.ceil((4 * band.kernelHwhm) / fineStep);
+  const fineCount = (grid.length - 1) * oversample + 1 + 2 * margin;
+  const fineStart = grid[0]! - margin * fineStep;
+  const transmittance = new Float64Array(fineCount);
+  for (let i = 0; i < fineCount; i++) {
+    const nu = fineStart + i * fineStep;
+    let tau = 0;
+    for (const line of band.lines) {
+      const u = (nu - line.centre) / band.lineHwhm;
+      tau += (line.strength / (Math.PI * band.lineHwhm)) / (1 + u * u);
+    }
+    transmittance[i] = Math.exp(-band.column * tau);
+  }
+  const out = new Float64Array(grid.length);
+  for (let j = 0; j < grid.length; j++) {
+    const centreIndex = margin + j * oversample;
+    let sum = 0;
+    let weight = 0;
+    for (let k = -margin; k <= margin; k++) {
+      const u = (k * fineStep) / band.kernelHwhm;
+      const w = Math.exp(-Math.LN2 * u * u);
+      sum += w * transmittance[centreIndex + k]!;
+      weight += w;
+    }
+    out[j] = -Math.log10(sum / weight);
+  }
+  return out;
+}
