@@ -312,6 +312,23 @@ function resolveLayout(header: string[] | undefined, columnCount: number, option
 }
 
 /**
+ * Refuses UTF-16 text (as spreadsheet "Unicode text" exports write it), which would otherwise
+ * fail on its first NUL byte with a puzzling message.
+ *
+ * @param bytes - file content
+ * @param source - label for the message
+ * @throws BandwrightError `PARSE` when the content starts with a UTF-16 byte-order mark or its
+ *   first bytes alternate with NUL
+ */
+export function assertNotUtf16(bytes: Uint8Array, source: string): void {
+  const bom = bytes.length >= 2 && ((bytes[0] === 0xff && bytes[1] === 0xfe) || (bytes[0] === 0xfe && bytes[1] === 0xff));
+  const nulPattern = bytes.length >= 4 && ((bytes[1] === 0 && bytes[3] === 0 && bytes[0] !== 0) || (bytes[0] === 0 && bytes[2] === 0 && bytes[1] !== 0));
+  if (bom || nulPattern) {
+    throw new BandwrightError('PARSE', `${source}: the file is UTF-16 text; save it as UTF-8 (or ASCII)`, { file: source });
+  }
+}
+
+/**
  * Refuses transmittance-fraction data that reach above {@link MAX_TRANSMITTANCE_FRACTION}.
  *
  * @param y - the ordinates as read
@@ -360,6 +377,7 @@ export function parseSpectrumTable(bytes: Uint8Array, options: SpectrumTableOpti
     throw new BandwrightError('INVALID_VALUE', `maxPoints = ${maxPoints}, must be an integer >= 2`, { parameter: 'maxPoints' });
   }
   const length = bytes.length;
+  assertNotUtf16(bytes, source);
   let pos = length >= 3 && bytes[0] === 0xef && bytes[1] === 0xbb && bytes[2] === 0xbf ? 3 : 0;
   let lineNumber = 0;
   const metadata: ScanMetadata = { source, format: 'csv' };
