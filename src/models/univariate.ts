@@ -27,9 +27,11 @@
  *   calibrated range; var(x̂0) = (s²/(m·w0) + gᵀ·Cov·g)/(b + 2c·x̂0)², g = (1, x̂0, x̂0²), df = n − 3
  * where w0 is the weight at x̂0 (for weighted fits the new observations are assumed to scatter as
  * the standards would at that concentration; unweighted w0 = 1), ȳ and Sxx = Σw(x − x̄)² are
- * weighted. Fieller's interval (straight line and through origin) solves
- * (ȳ0 − ŷ(x))² = t²·Var(ȳ0 − ŷ(x)) for x exactly; when g = t²s²/(b²Sxx) ≥ 1 the slope is not
- * significantly different from zero at that level and the interval is unbounded.
+ * weighted. Fieller's interval (straight line and through origin) is the set of x with
+ * (ȳ0 − ŷ(x))² ≤ t²·(s²/(m·w(x)) + Var ŷ(x)): in closed form when unweighted, where g =
+ * t²s²/(b²Sxx) ≥ 1 (slope not significantly different from zero at that level) makes it
+ * unbounded; found numerically when weighted, with w(x) taken at each candidate x, so its coverage
+ * does not rest on the plug-in w(x̂0) of the standard interval.
  */
 import { BandwrightError } from '../errors.js';
 import { criticalT } from '../stats/distributions.js';
@@ -176,9 +178,9 @@ export interface ConcentrationEstimate {
   value: number;
   /** Standard error of x̂0 (delta method). */
   se: number;
-  /** Lower end of the interval, or null when the Fieller interval is unbounded. */
+  /** Lower end of the interval, or null when a Fieller interval is unbounded below. */
   low: number | null;
-  /** Upper end of the interval, or null when the Fieller interval is unbounded. */
+  /** Upper end of the interval, or null when a Fieller interval is unbounded above. */
   high: number | null;
   /** Confidence level. */
   level: number;
@@ -194,7 +196,7 @@ export interface ConcentrationEstimate {
   method: string;
   /** True when x̂0 lies outside the calibrated range. */
   extrapolated: boolean;
-  /** True when the Fieller interval has no finite bounds (g ≥ 1); low and high are then null. */
+  /** True when a Fieller interval has an unbounded end (unweighted: g ≥ 1, then both ends are null). */
   unbounded: boolean;
   /** g = t²s²/(b²Sxx) for straight lines (slope's relative uncertainty), null for second order. */
   g: number | null;
@@ -640,6 +642,44 @@ function invertQuadratic(model: UnivariateModel, target: number): number {
 }
 
 /**
+ * Ends of {x : (ȳ0 − ŷ(x))² ≤ t²·(s²/(m·w(x)) + Var ŷ(x))} around x̂0, found by stepping outwards
+ * until the inequality fails and then bisecting. An end that is not found within 1e8 times the
+ * calibrated range is unbounded (null).
+ */
+function fiellerByBracketing(model: UnivariateModel, mean: number, m: number, t: number, start: number, se: number): { low: number | null; high: number | null } {
+  const { a, b, c } = model.coefficients;
+  const s2 = model.residualSD * model.residualSD;
+  const excess = (x: number): number => {
+    const residual = mean - (a + b * x + c * x * x);
+    return residual * residual - t * t * (s2 / (m * weightAt(model, x)) + quadraticForm(model.covariance, x));
+  };
+  const width = Math.max(model.range[1] - model.range[0], Math.abs(start));
+  const end = (direction: 1 | -1): number | null => {
+    let inside = start;
+    let step = Math.max(t * se, width * 1e-6);
+    let outside: number | null = null;
+    while (step <= 1e8 * width) {
+      const candidate = start + direction * step;
+      if (excess(candidate) >= 0) {
+        outside = candidate;
+        break;
+      }
+      inside = candidate;
+      step *= 2;
+    }
+    if (outside === null) return null;
+    let beyond: number = outside;
+    for (let iteration = 0; iteration < 200 && Math.abs(beyond - inside) > 1e-14 * width; iteration++) {
+      const middle: number = (inside + beyond) / 2;
+      if (excess(middle) >= 0) beyond = middle;
+      else inside = middle;
+    }
+    return (inside + beyond) / 2;
+  };
+  return { low: end(-1), high: end(1) };
+}
+
+/**
  * Infers the concentration of a sample from the mean of its m replicate responses, with an
  * interval at the given level (see the module comment for the formulas).
  *
@@ -705,27 +745,37 @@ export function predictConcentration(model: UnivariateModel, responses: readonly
   let unbounded = false;
   if (method === 'fieller') {
     const gValue = g as number;
-    let quadratic: [number, number, number];
-    let shift = 0;
-    if (model.form === 'linear') {
-      // (D − b·z)² = t²s²(1/(m·w0) + 1/Σw + z²/Sxx) with z = x − x̄ and D = ȳ0 − ȳ.
-      const D = mean - model.meanResponse;
-      quadratic = [b * b * (1 - gValue), -2 * b * D, D * D - t * t * s * s * (newObservationTerm + 1 / model.sumWeights)];
-      shift = model.meanX;
+    if (model.weights === 'none') {
+      let quadratic: [number, number, number];
+      let shift = 0;
+      if (model.form === 'linear') {
+        // (D − b·z)² = t²s²(1/m + 1/n + z²/Sxx) with z = x − x̄ and D = ȳ0 − ȳ.
+        const D = mean - model.meanResponse;
+        quadratic = [b * b * (1 - gValue), -2 * b * D, D * D - t * t * s * s * (newObservationTerm + 1 / model.sumWeights)];
+        shift = model.meanX;
+      } else {
+        quadratic = [b * b * (1 - gValue), -2 * b * mean, mean * mean - t * t * s * s * newObservationTerm];
+      }
+      description = `Fieller interval: the concentrations x with (ȳ0 − ŷ(x))² ≤ t²·Var(ȳ0 − ŷ(x)), t = t(${1 - (1 - level) / 2}, ${df}), solved in closed form; g = t²s²/(b²·S) = ${short(gValue)}`;
+      if (gValue >= 1) {
+        unbounded = true;
+        low = null;
+        high = null;
+      } else {
+        const roots = quadraticRoots(...quadratic);
+        low = shift + (roots[0] as number);
+        high = shift + (roots[roots.length - 1] as number);
+      }
     } else {
-      quadratic = [b * b * (1 - gValue), -2 * b * mean, mean * mean - t * t * s * s * newObservationTerm];
+      const ends = fiellerByBracketing(model, mean, m, t, value, se);
+      low = ends.low;
+      high = ends.high;
+      unbounded = low === null || high === null;
+      description = `Fieller interval: the concentrations x with (ȳ0 − ŷ(x))² ≤ t²·(s²/(m·w(x)) + Var ŷ(x)), t = t(${1 - (1 - level) / 2}, ${df}), with the weight w(x) taken at each x (${model.weighting.rule}), solved numerically; g = t²s²/(b²·S) = ${short(gValue)}`;
     }
-    description = `Fieller interval: the concentrations x with (ȳ0 − ŷ(x))² ≤ t²·Var(ȳ0 − ŷ(x)), t = t(${1 - (1 - level) / 2}, ${df}), g = t²s²/(b²·S) = ${short(gValue)}${model.weights !== 'none' ? ', new-observation weight taken at x̂0' : ''}`;
-    if (gValue >= 1) {
-      unbounded = true;
-      low = null;
-      high = null;
-      description += '; g ≥ 1: the slope is not significantly different from zero at this level, so the interval is unbounded';
-      warnings.push(`the Fieller interval is unbounded (g = ${short(gValue)} ≥ 1): the calibration's slope is too poorly determined to bound this concentration at level ${level}`);
-    } else {
-      const roots = quadraticRoots(...quadratic);
-      low = shift + (roots[0] as number);
-      high = shift + (roots[roots.length - 1] as number);
+    if (unbounded) {
+      description += '; the slope is too poorly determined at this level, so the interval is unbounded';
+      warnings.push(`the Fieller interval is unbounded (g = ${short(gValue)}): the calibration's slope is too poorly determined to bound this concentration at level ${level}`);
     }
   } else if (g !== null && g > 0.1) {
     warnings.push(`the slope is poorly determined (g = ${short(g)} > 0.1): the standard interval is only approximate; use the Fieller method`);
