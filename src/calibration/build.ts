@@ -70,7 +70,7 @@ function plainConditions(resolved: ResolvedConditions): CellConditions {
   return { pathLength_m: resolved.pathLength_m, temperature_K: resolved.temperature_K, pressure_kPa: resolved.pressure_kPa };
 }
 
-function zeroGasLimit(responses: readonly number[], concentrations: readonly number[], slope: number, unit: ConcentrationUnit): ZeroGasLimit | undefined {
+function zeroGasLimit(responses: readonly number[], concentrations: readonly number[], slope: number): ZeroGasLimit | undefined {
   const zeros = responses.filter((_, i) => concentrations[i] === 0);
   if (zeros.length < 2 || !(Math.abs(slope) > 0)) return undefined;
   const mean = zeros.reduce((a, b) => a + b, 0) / zeros.length;
@@ -78,7 +78,7 @@ function zeroGasLimit(responses: readonly number[], concentrations: readonly num
   return {
     value: (3 * sd) / Math.abs(slope),
     scans: zeros.length,
-    definition: `3 × SD of the responses of ${zeros.length} zero-gas standards ÷ slope, in ${unit} (noise-based limit from blanks; common practice)`,
+    definition: `3 × SD of the responses of ${zeros.length} zero-gas standards ÷ slope (noise-based limit from blanks; common practice)`,
   };
 }
 
@@ -132,9 +132,6 @@ export function buildBandCalibration(method: BandMethod, standards: readonly Sta
       response.push(scaled);
     });
     const model = fitUnivariate({ concentration, response }, { form: gasMethod.curve, weights: gasMethod.weights, alpha: method.detectionAlpha });
-    if (model.mandel?.significant === true && gasMethod.curve !== 'quadratic') {
-      warnings.push(`${gasMethod.name}: ${model.mandel.recommendation}`);
-    }
     const gas: GasCalibration = {
       gas: gasMethod.name,
       unit: gasMethod.unit,
@@ -143,7 +140,7 @@ export function buildBandCalibration(method: BandMethod, standards: readonly Sta
       weights: gasMethod.weights,
       model,
     };
-    const blank = zeroGasLimit(response, concentration, model.coefficients.b, gasMethod.unit);
+    const blank = zeroGasLimit(response, concentration, model.coefficients.b);
     if (blank !== undefined) gas.zeroGasLimit = blank;
     return gas;
   });
@@ -189,14 +186,13 @@ export function buildResponseCalibration(method: ResponseMethod, rows: readonly 
   const response = rows.map((row) => row.response);
   const model = fitUnivariate({ concentration, response }, { form: gasMethod.curve, weights: gasMethod.weights, alpha: method.detectionAlpha });
   const warnings = [...(context.warnings ?? [])];
-  if (model.mandel?.significant === true && gasMethod.curve !== 'quadratic') warnings.push(`${gasMethod.name}: ${model.mandel.recommendation}`);
   const reference: CellConditions = {
     pathLength_m: method.reference.pathLength_m ?? 1,
     temperature_K: method.reference.temperature_K ?? 296.15,
     pressure_kPa: method.reference.pressure_kPa ?? 101.325,
   };
   const gas: GasCalibration = { gas: gasMethod.name, unit: gasMethod.unit, curve: gasMethod.curve, weights: gasMethod.weights, model };
-  const blank = zeroGasLimit(response, concentration, model.coefficients.b, gasMethod.unit);
+  const blank = zeroGasLimit(response, concentration, model.coefficients.b);
   if (blank !== undefined) gas.zeroGasLimit = blank;
   return sealCalibration({
     schemaVersion: SCHEMA_VERSION,

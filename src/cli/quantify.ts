@@ -16,6 +16,8 @@ import {
   resultsDocument,
   writeFileAtomic,
   parseConcentrationUnit,
+  correctToReferenceOxygen,
+  isFailure,
   type BatchEntry,
   type Calibration,
   type QuantifyOptions,
@@ -65,6 +67,8 @@ export function quantifyOptionsFrom(flags: QuantifyFlags): QuantifyOptions {
   if ((flags.o2 === undefined) !== (flags.o2Ref === undefined)) throw new BandwrightError('USAGE', 'the O2 correction needs both --o2 <measured %> and --o2-ref <reference %>', { parameter: flags.o2 === undefined ? '--o2' : '--o2-ref' });
   if (flags.o2 !== undefined && flags.o2Ref !== undefined) {
     options.oxygen = { measured_pct: percent(flags.o2, '--o2'), reference_pct: percent(flags.o2Ref, '--o2-ref'), air_pct: percent(flags.o2Air, '--o2-air') };
+    // The O2 values do not depend on the scan: refuse an impossible correction before reading any.
+    correctToReferenceOxygen(1, options.oxygen);
   }
   if (flags.limits !== undefined) options.limits = readLimits(flags.limits);
   if (flags.unit !== undefined) options.unit = parseConcentrationUnit(flags.unit, '--unit');
@@ -143,7 +147,9 @@ export function registerQuantify(program: Command, context: CommandContext): voi
       }
       if (flags.json) context.stdout.write(`${JSON.stringify(resultsDocument(entries, { file: calibrationPath, sha256: calibration.sha256 }, level), null, 2)}\n`);
       else context.stdout.write(`${formatResultsText(entries, level)}\n`);
-      const failed = entries.filter((e) => 'error' in e).length;
+      const failures = entries.filter(isFailure);
+      for (const failure of failures) note(context, `bandwright: ${failure.error}`);
+      const failed = failures.length;
       if (failed > 0) {
         note(context, `${failed} of ${entries.length} scan(s) could not be quantified`);
         raiseStatus(context, 1);
