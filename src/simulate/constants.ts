@@ -1,0 +1,553 @@
+/**
+ * Physical constants and the molecular data behind the simulator.
+ *
+ * Every molecular constant carries its source in a comment and in the data (`source`); "from
+ * memory" marks a value recalled rather than read from the publication at the time of writing.
+ * Wavenumber constants are in cm⁻¹ throughout.
+ *
+ * Not modelled, and why:
+ * - Herman–Wallis factors (the rotational dependence of the transition moment): no sourced
+ *   coefficients were at hand, so line intensities follow the rigid Hönl–London pattern. For the
+ *   CO fundamental this changes single lines by roughly a percent at J ≈ 10 (from memory) and
+ *   leaves the band sum unchanged by construction.
+ * - Hot bands (transitions from excited vibrational levels): the lower level's population is
+ *   removed from the fundamental through the vibrational partition function, but the hot-band
+ *   lines themselves are not listed. For CO at 296 K the v = 1 population is 3e-5; for CO₂ the
+ *   01¹1 ← 01¹0 band near 2336 cm⁻¹ carries several percent of the ν₃ absorption and is missing.
+ * - Minor isotopologues other than H³⁷Cl (¹³CO, ¹³CO₂ …); pressure shifts; self-broadening;
+ *   line mixing; far-wing (sub-Lorentzian) corrections.
+ */
+
+/** Boltzmann constant, J/K (CODATA / SI 2019, exact). */
+export const BOLTZMANN_J_K = 1.380649e-23;
+/** Avogadro constant, 1/mol (SI 2019, exact). */
+export const AVOGADRO_PER_MOL = 6.02214076e23;
+/** Speed of light in vacuum, m/s (SI, exact). */
+export const SPEED_OF_LIGHT_M_S = 299_792_458;
+/** Second radiation constant c₂ = hc/k, cm·K (CODATA 2018). */
+export const SECOND_RADIATION_CONSTANT_CM_K = 1.438776877;
+/** Reference temperature of line-strength and broadening data, K (standard line-list practice). */
+export const REFERENCE_TEMPERATURE_K = 296;
+/** Reference pressure of broadening coefficients, kPa (1 atm). */
+export const REFERENCE_PRESSURE_KPA = 101.325;
+
+/**
+ * Spectroscopic constants of a diatomic electronic state in the Herzberg (Dunham-like)
+ * expansion, cm⁻¹:
+ *   G(v) = ωe(v+½) − ωexe(v+½)² + ωeye(v+½)³ + ωeze(v+½)⁴
+ *   B_v = Be − αe(v+½) + γe(v+½)²,  D_v = De + βe(v+½)
+ *   F_v(J) = B_v·J(J+1) − D_v·J²(J+1)²
+ * Field names are the trade's ASCII spellings of ωe, ωexe, …, Be, αe, γe, De, βe.
+ */
+export interface DiatomicConstants {
+  /** Isotopologue, e.g. `¹²C¹⁶O`. */
+  molecule: string;
+  /** ωe, cm⁻¹. */
+  we: number;
+  /** ωexe, cm⁻¹. */
+  wexe: number;
+  /** ωeye, cm⁻¹. */
+  weye: number;
+  /** ωeze, cm⁻¹. */
+  weze: number;
+  /** Be, cm⁻¹. */
+  Be: number;
+  /** αe, cm⁻¹. */
+  alphae: number;
+  /** γe, cm⁻¹. */
+  gammae: number;
+  /** De, cm⁻¹. */
+  De: number;
+  /** βe, cm⁻¹. */
+  betae: number;
+  /** Where each value comes from. */
+  source: string;
+}
+
+/**
+ * A ²Π ground state treated in a simplified Hund's case (a): two spin–orbit components Ω = ½
+ * and 3/2 separated by A, rotational levels B_v[J(J+1) − Ω²], Λ-doubling neglected.
+ */
+export interface PiStateConstants extends DiatomicConstants {
+  /** Spin–orbit constant A, cm⁻¹ (the Ω = 3/2 component lies A above Ω = ½ for a regular state). */
+  spinOrbitA: number;
+}
+
+/**
+ * One vibrational band of a linear polyatomic molecule, given as a band origin with lower- and
+ * upper-state rotational constants (Σ–Σ parallel band: P and R branches, no Q).
+ */
+export interface LinearBandConstants {
+  /** Isotopologue, e.g. `¹²C¹⁶O₂`. */
+  molecule: string;
+  /** Band label, e.g. `ν3 (00⁰1 ← 00⁰0)`. */
+  band: string;
+  /** Band origin ν0, cm⁻¹. */
+  bandOrigin_cm: number;
+  /** Lower-state B″, cm⁻¹. */
+  lowerB: number;
+  /** Upper-state B′, cm⁻¹. */
+  upperB: number;
+  /** Lower-state D″, cm⁻¹. */
+  lowerD: number;
+  /** Upper-state D′, cm⁻¹. */
+  upperD: number;
+  /**
+   * Which lower-state J exist. `even`: nuclear-spin statistics of a symmetric molecule with
+   * spin-0 end nuclei (¹²C¹⁶O₂ ground state: only even J; common practice).
+   */
+  lowerStateJ: 'all' | 'even';
+  /** Where each value comes from. */
+  source: string;
+}
+
+/** A harmonic normal mode, for vibrational partition functions. */
+export interface VibrationalMode {
+  /** Fundamental wavenumber, cm⁻¹. */
+  wavenumber_cm: number;
+  /** Degeneracy (2 for a bending mode of a linear molecule, 3 for an F₂ mode of CH₄). */
+  degeneracy: number;
+}
+
+/** Air broadening of a gas's lines. */
+export interface Broadening {
+  /** Air-broadened Lorentz HWHM at 296 K and 1 atm, cm⁻¹/atm. */
+  airBroadening_cm_atm: number;
+  /** Temperature exponent n of γ(T) = γ(296 K)·(296/T)^n. */
+  temperatureExponent: number;
+  /** Where the values come from. */
+  source: string;
+}
+
+/** An integrated band strength (sum of line intensities) at 296 K. */
+export interface BandStrength {
+  /** cm/molecule, per molecule of the gas as named (all isotopologues together). */
+  value_cm_per_molecule: number;
+  /** Where it comes from. */
+  source: string;
+}
+
+/** Fields every gas model has. */
+interface GasModelBase {
+  /** Canonical gas name from the species table (`CO`, `HCl` …). */
+  gas: string;
+  /** True for band models that only imitate a spectrum's shape (see {@link BandGasModel}). */
+  approximate: boolean;
+  /** Notes a caller can show about the model's limits. */
+  notes: readonly string[];
+  /** Air broadening. */
+  broadening: Broadening;
+}
+
+/** Line-by-line model of a diatomic Σ–Σ fundamental (1 ← 0) for one or more isotopologues. */
+export interface DiatomicGasModel extends GasModelBase {
+  kind: 'diatomic';
+  approximate: false;
+  /** Isotopologues with their natural abundance (fractions summing to 1) and molar mass. */
+  isotopologues: readonly { constants: DiatomicConstants; abundance: number; molarMass_g_mol: number; abundanceSource: string }[];
+  /** Band strength of the 1 ← 0 band at 296 K, per molecule of the gas. */
+  bandStrength: BandStrength;
+}
+
+/** Simplified line-by-line model of a ²Π diatomic fundamental (P, Q and R branches). */
+export interface PiGasModel extends GasModelBase {
+  kind: 'diatomic-pi';
+  approximate: false;
+  constants: PiStateConstants;
+  molarMass_g_mol: number;
+  bandStrength: BandStrength;
+}
+
+/** Line-by-line model of one parallel band of a linear polyatomic molecule. */
+export interface LinearGasModel extends GasModelBase {
+  kind: 'linear-band';
+  approximate: false;
+  constants: LinearBandConstants;
+  molarMass_g_mol: number;
+  bandStrength: BandStrength;
+  /** Normal modes for the vibrational partition function. */
+  vibrationalModes: readonly VibrationalMode[];
+  /** Source of the mode wavenumbers. */
+  modesSource: string;
+}
+
+/**
+ * One band of an approximate band model: a pseudo-line forest with a rotational envelope.
+ *
+ * Pseudo-lines sit on a ladder of offsets from the band centre (`lineSpacing_cm` apart, moved
+ * by up to ±`positionJitter`/2 of a spacing and split into `clusterComponents` components
+ * spread over `clusterSpread_cm`), on both sides (P and R). A pseudo-line at offset d stands
+ * for the rigid-rotor level J = d/(2B) − 1 (R side) or d/(2B) (P side) with B =
+ * `envelopeB_cm`, so its lower-state energy B·J(J+1) and Hönl–London-like weight shape the
+ * envelope and its temperature dependence. A share `qBranchFraction` of the strength goes into
+ * a Q branch within `qBranchWidth_cm` below the centre. Intensities scatter about the envelope
+ * (`exponential`: a line forest; `uniform`: ±30 %; `none`).
+ */
+export interface ApproximateBand {
+  /** Mode label, e.g. `ν2`. */
+  mode: string;
+  /** Band centre, cm⁻¹. */
+  center_cm: number;
+  /** Integrated strength at 296 K, cm/molecule. */
+  bandStrength: BandStrength;
+  /** Effective rotational constant shaping the envelope, cm⁻¹. */
+  envelopeB_cm: number;
+  /** Mean spacing of the pseudo-lines, cm⁻¹. */
+  lineSpacing_cm: number;
+  /** Random displacement of each pseudo-line, as a fraction of the spacing (0–1). */
+  positionJitter: number;
+  /** Components per pseudo-line (≥ 1). */
+  clusterComponents: number;
+  /** Spread of a cluster's components, cm⁻¹. */
+  clusterSpread_cm: number;
+  /** Share of the band strength in a Q branch (0–1). */
+  qBranchFraction: number;
+  /** Width of the Q branch, cm⁻¹. */
+  qBranchWidth_cm: number;
+  /** Largest offset from the centre that carries pseudo-lines, cm⁻¹. */
+  maxOffset_cm: number;
+  /** Scatter of pseudo-line intensities about the envelope. */
+  intensityScatter: 'exponential' | 'uniform' | 'none';
+}
+
+/**
+ * Approximate band model for a non-linear molecule (CH₄, H₂O, NH₃, SO₂): right band centres,
+ * approximate integrated strengths and a realistic-looking but invented line pattern. Good for
+ * interferent structure and demos, not for quantitative work on the gas itself.
+ */
+export interface BandGasModel extends GasModelBase {
+  kind: 'band-model';
+  approximate: true;
+  molarMass_g_mol: number;
+  bands: readonly ApproximateBand[];
+  vibrationalModes: readonly VibrationalMode[];
+  modesSource: string;
+}
+
+/** Any gas model the simulator knows. */
+export type GasModel = DiatomicGasModel | PiGasModel | LinearGasModel | BandGasModel;
+
+// ---------------------------------------------------------------------------------------------
+// Diatomic constants
+
+/**
+ * ¹²C¹⁶O X¹Σ⁺. ωe, ωexe, ωeye, Be, αe: Huber & Herzberg 1979 via the NIST WebBook (facts.md,
+ * from memory). De = 6.12e-6 cm⁻¹: Huber & Herzberg, from memory.
+ */
+export const CARBON_MONOXIDE_12C16O: DiatomicConstants = {
+  molecule: '¹²C¹⁶O',
+  we: 2169.81358, // Huber & Herzberg 1979 (facts.md), from memory
+  wexe: 13.28831, // Huber & Herzberg 1979 (facts.md), from memory
+  weye: 0.01051, // Huber & Herzberg 1979 (facts.md), from memory
+  weze: 0,
+  Be: 1.93128087, // Huber & Herzberg 1979 (facts.md), from memory
+  alphae: 0.01750441, // Huber & Herzberg 1979 (facts.md), from memory
+  gammae: 0,
+  De: 6.12147e-6, // Huber & Herzberg 1979, from memory
+  betae: 0,
+  source: 'ωe, ωexe, ωeye, Be, αe: Huber & Herzberg 1979 (NIST WebBook), facts.md, from memory; De: Huber & Herzberg 1979, from memory',
+};
+
+/**
+ * H³⁵Cl X¹Σ⁺. ωe, ωexe, Be, αe: Huber & Herzberg (facts.md, from memory); ωeye = 0.2243,
+ * ωeze = −0.0122, De = 5.3194e-4: Huber & Herzberg, from memory. With ωeze the band origin
+ * comes to 2885.98 cm⁻¹ (facts.md: ν0 ≈ 2885.98).
+ */
+export const HYDROGEN_CHLORIDE_H35CL: DiatomicConstants = {
+  molecule: 'H³⁵Cl',
+  we: 2990.946, // Huber & Herzberg (facts.md), from memory
+  wexe: 52.8186, // Huber & Herzberg (facts.md), from memory
+  weye: 0.2243, // Huber & Herzberg, from memory
+  weze: -0.0122, // Huber & Herzberg, from memory
+  Be: 10.5934, // Huber & Herzberg (facts.md), from memory
+  alphae: 0.3072, // Huber & Herzberg (facts.md), from memory
+  gammae: 0,
+  De: 5.3194e-4, // Huber & Herzberg, from memory
+  betae: 0,
+  source: 'ωe, ωexe, Be, αe: Huber & Herzberg (facts.md), from memory; ωeye, ωeze, De: Huber & Herzberg, from memory',
+};
+
+/**
+ * Atomic masses, u (atomic mass evaluation; from memory), for reduced masses of isotopologues.
+ */
+const ATOMIC_MASS_U = {
+  H1: 1.00782503207,
+  Cl35: 34.96885268,
+  Cl37: 36.96590259,
+  N14: 14.0030740048,
+  O16: 15.99491461956,
+} as const;
+
+/**
+ * Constants of another isotopologue by the isotope relations (ρ = √(μ/μᵢ)): ωe ∝ ρ, ωexe ∝ ρ²,
+ * ωeye ∝ ρ³, ωeze ∝ ρ⁴, Be ∝ ρ², αe ∝ ρ³, γe ∝ ρ⁴, De ∝ ρ⁴, βe ∝ ρ⁵ (Born–Oppenheimer mass
+ * scaling; common practice).
+ *
+ * @param constants - the reference isotopologue
+ * @param rho - √(μ_reference/μ_other), dimensionless
+ * @param molecule - label of the new isotopologue
+ */
+export function isotopeScaledConstants(constants: DiatomicConstants, rho: number, molecule: string): DiatomicConstants {
+  return {
+    molecule,
+    we: constants.we * rho,
+    wexe: constants.wexe * rho ** 2,
+    weye: constants.weye * rho ** 3,
+    weze: constants.weze * rho ** 4,
+    Be: constants.Be * rho ** 2,
+    alphae: constants.alphae * rho ** 3,
+    gammae: constants.gammae * rho ** 4,
+    De: constants.De * rho ** 4,
+    betae: constants.betae * rho ** 5,
+    source: `${constants.molecule} constants scaled by the isotope relations with ρ = ${rho.toFixed(7)} (common practice); ${constants.source}`,
+  };
+}
+
+const reducedMass = (a: number, b: number): number => (a * b) / (a + b);
+const RHO_H37CL = Math.sqrt(reducedMass(ATOMIC_MASS_U.H1, ATOMIC_MASS_U.Cl35) / reducedMass(ATOMIC_MASS_U.H1, ATOMIC_MASS_U.Cl37));
+
+/** H³⁷Cl X¹Σ⁺, from {@link HYDROGEN_CHLORIDE_H35CL} by the isotope relations. */
+export const HYDROGEN_CHLORIDE_H37CL: DiatomicConstants = isotopeScaledConstants(HYDROGEN_CHLORIDE_H35CL, RHO_H37CL, 'H³⁷Cl');
+
+/**
+ * ¹⁴N¹⁶O X²Π (regular, Ω = ½ lowest). ωe, ωexe, Be, αe: Huber & Herzberg (facts.md, from
+ * memory); De = 0.5e-6 and A = 123.1 cm⁻¹: Huber & Herzberg, from memory. ωeye not used.
+ */
+export const NITRIC_OXIDE_14N16O: PiStateConstants = {
+  molecule: '¹⁴N¹⁶O',
+  we: 1904.2, // Huber & Herzberg (facts.md), from memory
+  wexe: 14.075, // Huber & Herzberg (facts.md), from memory
+  weye: 0,
+  weze: 0,
+  Be: 1.672, // Huber & Herzberg (facts.md), from memory
+  alphae: 0.0171, // Huber & Herzberg (facts.md), from memory
+  gammae: 0,
+  De: 0.5e-6, // Huber & Herzberg, from memory
+  betae: 0,
+  spinOrbitA: 123.1, // Huber & Herzberg, from memory
+  source: 'ωe, ωexe, Be, αe: Huber & Herzberg (facts.md), from memory; De, A: Huber & Herzberg, from memory',
+};
+
+// ---------------------------------------------------------------------------------------------
+// Linear polyatomic bands
+
+/** ¹²C¹⁶O₂ ν₃ (00⁰1 ← 00⁰0). Band origin and rotational constants from memory. */
+export const CARBON_DIOXIDE_NU3: LinearBandConstants = {
+  molecule: '¹²C¹⁶O₂',
+  band: 'ν3 (00⁰1 ← 00⁰0)',
+  bandOrigin_cm: 2349.143, // from memory (facts.md: ν3 2349.1)
+  lowerB: 0.390219, // ground state B″, from memory
+  upperB: 0.387141, // 00⁰1 B′, from memory
+  lowerD: 1.333e-7, // from memory
+  upperD: 1.331e-7, // from memory
+  lowerStateJ: 'even', // ¹⁶O has nuclear spin 0: only even J in the Σg⁺ ground state (common practice)
+  source: 'ν0 = 2349.143, B″ = 0.390219, B′ = 0.387141, D″ ≈ D′ ≈ 1.33e-7 cm⁻¹: from memory (facts.md gives ν3 ≈ 2349.1); even-J-only ground state: nuclear-spin statistics, common practice',
+};
+
+/** ¹⁴N₂¹⁶O ν₃ (00⁰1 ← 00⁰0). Band origin and rotational constants from memory. */
+export const NITROUS_OXIDE_NU3: LinearBandConstants = {
+  molecule: '¹⁴N₂¹⁶O',
+  band: 'ν3 (00⁰1 ← 00⁰0)',
+  bandOrigin_cm: 2223.757, // from memory (facts.md: ν3 2224)
+  lowerB: 0.419011, // from memory
+  upperB: 0.415559, // from memory
+  lowerD: 1.76e-7, // from memory
+  upperD: 1.75e-7, // from memory
+  lowerStateJ: 'all', // NNO has no exchange symmetry
+  source: 'ν0 = 2223.757, B″ = 0.419011, B′ = 0.415559, D″ ≈ D′ ≈ 1.75e-7 cm⁻¹: from memory (facts.md gives ν3 ≈ 2224)',
+};
+
+// ---------------------------------------------------------------------------------------------
+// Gas models
+
+const FROM_MEMORY_MODES = 'fundamental wavenumbers from memory (facts.md / species table where listed), harmonic approximation';
+const APPROXIMATE_NOTE = 'approximate band model: band centres from the species table, integrated strengths from memory (±30 % or worse), invented pseudo-line pattern; not for quantifying this gas';
+
+/** The simulator's gas models, keyed by canonical gas name. */
+export const GAS_MODELS: Readonly<Record<string, GasModel>> = {
+  CO: {
+    kind: 'diatomic',
+    gas: 'CO',
+    approximate: false,
+    isotopologues: [{ constants: CARBON_MONOXIDE_12C16O, abundance: 1, molarMass_g_mol: 28.010, abundanceSource: 'treated as pure ¹²C¹⁶O (¹³CO near 2096 cm⁻¹ not modelled)' }],
+    bandStrength: { value_cm_per_molecule: 1.013e-17, source: 'Zou & Varanasi, JQSRT 2002: (1.013 ± 0.007)e-17 cm/molecule at 296 K' },
+    broadening: { airBroadening_cm_atm: 0.065, temperatureExponent: 0.7, source: 'γ_air ≈ 0.05–0.08 cm⁻¹/atm at 296 K (facts.md, from memory), 0.065 taken for every line; n ≈ 0.7 from memory' },
+    notes: ['Herman–Wallis factors not applied (no sourced coefficients); hot bands omitted'],
+  },
+  HCl: {
+    kind: 'diatomic',
+    gas: 'HCl',
+    approximate: false,
+    isotopologues: [
+      { constants: HYDROGEN_CHLORIDE_H35CL, abundance: 0.7576, molarMass_g_mol: ATOMIC_MASS_U.H1 + ATOMIC_MASS_U.Cl35, abundanceSource: '³⁵Cl 75.76 %, IUPAC isotopic abundances, from memory' },
+      { constants: HYDROGEN_CHLORIDE_H37CL, abundance: 0.2424, molarMass_g_mol: ATOMIC_MASS_U.H1 + ATOMIC_MASS_U.Cl37, abundanceSource: '³⁷Cl 24.24 %, IUPAC isotopic abundances, from memory' },
+    ],
+    bandStrength: { value_cm_per_molecule: 5.0e-18, source: 'HCl 1–0 band ≈ 5.0e-18 cm/molecule at 296 K (≈ 130 cm⁻² atm⁻¹ at 273 K), from memory, uncertain by about 20 %' },
+    broadening: { airBroadening_cm_atm: 0.05, temperatureExponent: 0.7, source: 'from memory; the real γ falls from ≈ 0.08 at low J to ≈ 0.03 at high J' },
+    notes: ['H³⁵Cl and H³⁷Cl at natural abundance; Herman–Wallis factors not applied'],
+  },
+  NO: {
+    kind: 'diatomic-pi',
+    gas: 'NO',
+    approximate: false,
+    constants: NITRIC_OXIDE_14N16O,
+    molarMass_g_mol: ATOMIC_MASS_U.N14 + ATOMIC_MASS_U.O16,
+    bandStrength: { value_cm_per_molecule: 4.1e-18, source: 'NO 1–0 band ≈ 4.1e-18 cm/molecule at 296 K (≈ 110 cm⁻² atm⁻¹ at 273 K), from memory, uncertain by about 20 %' },
+    broadening: { airBroadening_cm_atm: 0.055, temperatureExponent: 0.75, source: 'from memory' },
+    notes: ['simplified ²Π model: Hund\'s case (a) Ω = ½ and 3/2 sub-bands with P, Q and R branches, Λ-doubling and spin uncoupling neglected; high-J line positions are off by up to tenths of a cm⁻¹'],
+  },
+  CO2: {
+    kind: 'linear-band',
+    gas: 'CO2',
+    approximate: false,
+    constants: CARBON_DIOXIDE_NU3,
+    molarMass_g_mol: 12 + 2 * ATOMIC_MASS_U.O16,
+    bandStrength: { value_cm_per_molecule: 9.5e-17, source: 'CO₂ ν3 (626 fundamental) ≈ 9.5e-17 cm/molecule at 296 K (≈ 2500 cm⁻² atm⁻¹ at 273 K), from memory, uncertain by about 10 %' },
+    broadening: { airBroadening_cm_atm: 0.07, temperatureExponent: 0.75, source: 'from memory' },
+    vibrationalModes: [
+      { wavenumber_cm: 1333, degeneracy: 1 },
+      { wavenumber_cm: 667.4, degeneracy: 2 },
+      { wavenumber_cm: 2349.1, degeneracy: 1 },
+    ],
+    modesSource: FROM_MEMORY_MODES,
+    notes: ['only the ν3 fundamental of ¹²C¹⁶O₂ (no ν2 band near 667 cm⁻¹, no hot bands, no ¹³CO₂)'],
+  },
+  N2O: {
+    kind: 'linear-band',
+    gas: 'N2O',
+    approximate: false,
+    constants: NITROUS_OXIDE_NU3,
+    molarMass_g_mol: 2 * ATOMIC_MASS_U.N14 + ATOMIC_MASS_U.O16,
+    bandStrength: { value_cm_per_molecule: 5.0e-17, source: 'N₂O ν3 ≈ 5.0e-17 cm/molecule at 296 K (≈ 1300 cm⁻² atm⁻¹ at 273 K), from memory, uncertain by about 20 %' },
+    broadening: { airBroadening_cm_atm: 0.075, temperatureExponent: 0.75, source: 'from memory' },
+    vibrationalModes: [
+      { wavenumber_cm: 1285, degeneracy: 1 },
+      { wavenumber_cm: 589, degeneracy: 2 },
+      { wavenumber_cm: 2224, degeneracy: 1 },
+    ],
+    modesSource: FROM_MEMORY_MODES,
+    notes: ['only the ν3 fundamental (no hot bands, no ν1 near 1285 cm⁻¹)'],
+  },
+  H2O: {
+    kind: 'band-model',
+    gas: 'H2O',
+    approximate: true,
+    molarMass_g_mol: 18.015,
+    bands: [
+      {
+        mode: 'ν2', center_cm: 1594.7,
+        bandStrength: { value_cm_per_molecule: 1.05e-17, source: 'H₂O ν2 ≈ 1.05e-17 cm/molecule at 296 K, from memory (approximate)' },
+        envelopeB_cm: 20, lineSpacing_cm: 1.3, positionJitter: 1, clusterComponents: 1, clusterSpread_cm: 0,
+        qBranchFraction: 0.05, qBranchWidth_cm: 25, maxOffset_cm: 420, intensityScatter: 'exponential',
+      },
+      {
+        mode: 'ν3', center_cm: 3755.9,
+        bandStrength: { value_cm_per_molecule: 6.9e-18, source: 'H₂O ν3 ≈ 6.9e-18 cm/molecule at 296 K, from memory (approximate)' },
+        envelopeB_cm: 20, lineSpacing_cm: 1.3, positionJitter: 1, clusterComponents: 1, clusterSpread_cm: 0,
+        qBranchFraction: 0, qBranchWidth_cm: 0, maxOffset_cm: 380, intensityScatter: 'exponential',
+      },
+      {
+        mode: 'ν1', center_cm: 3657.1,
+        bandStrength: { value_cm_per_molecule: 5e-19, source: 'H₂O ν1 ≈ 5e-19 cm/molecule at 296 K, from memory (approximate)' },
+        envelopeB_cm: 20, lineSpacing_cm: 2.5, positionJitter: 1, clusterComponents: 1, clusterSpread_cm: 0,
+        qBranchFraction: 0.1, qBranchWidth_cm: 20, maxOffset_cm: 300, intensityScatter: 'exponential',
+      },
+    ],
+    vibrationalModes: [
+      { wavenumber_cm: 3657.1, degeneracy: 1 },
+      { wavenumber_cm: 1594.7, degeneracy: 1 },
+      { wavenumber_cm: 3755.9, degeneracy: 1 },
+    ],
+    modesSource: FROM_MEMORY_MODES,
+    broadening: { airBroadening_cm_atm: 0.08, temperatureExponent: 0.7, source: 'typical H₂O air broadening, from memory' },
+    notes: [APPROXIMATE_NOTE],
+  },
+  CH4: {
+    kind: 'band-model',
+    gas: 'CH4',
+    approximate: true,
+    molarMass_g_mol: 16.043,
+    bands: [
+      {
+        mode: 'ν3', center_cm: 3019,
+        bandStrength: { value_cm_per_molecule: 1.1e-17, source: 'CH₄ ν3 ≈ 1.1e-17 cm/molecule at 296 K, from memory (approximate)' },
+        // spherical-top P/R lines 2B(1 − ζ3) ≈ 9.9 cm⁻¹ apart (B ≈ 5.24, ζ3 ≈ 0.05; from memory), tetrahedral multiplets
+        envelopeB_cm: 4.95, lineSpacing_cm: 9.9, positionJitter: 0, clusterComponents: 3, clusterSpread_cm: 0.6,
+        qBranchFraction: 0.25, qBranchWidth_cm: 4, maxOffset_cm: 200, intensityScatter: 'uniform',
+      },
+      {
+        mode: 'ν4', center_cm: 1306,
+        bandStrength: { value_cm_per_molecule: 5.3e-18, source: 'CH₄ ν4 ≈ 5.3e-18 cm/molecule at 296 K, from memory (approximate)' },
+        // line spacing 2B(1 − ζ4) ≈ 5.8 cm⁻¹ (ζ4 ≈ 0.45; from memory)
+        envelopeB_cm: 2.9, lineSpacing_cm: 5.8, positionJitter: 0, clusterComponents: 3, clusterSpread_cm: 0.5,
+        qBranchFraction: 0.3, qBranchWidth_cm: 3, maxOffset_cm: 140, intensityScatter: 'uniform',
+      },
+    ],
+    vibrationalModes: [
+      { wavenumber_cm: 2917, degeneracy: 1 },
+      { wavenumber_cm: 1534, degeneracy: 2 },
+      { wavenumber_cm: 3019, degeneracy: 3 },
+      { wavenumber_cm: 1306, degeneracy: 3 },
+    ],
+    modesSource: FROM_MEMORY_MODES,
+    broadening: { airBroadening_cm_atm: 0.055, temperatureExponent: 0.75, source: 'typical CH₄ air broadening, from memory' },
+    notes: [APPROXIMATE_NOTE],
+  },
+  NH3: {
+    kind: 'band-model',
+    gas: 'NH3',
+    approximate: true,
+    molarMass_g_mol: 17.031,
+    bands: [
+      {
+        mode: 'ν2 (s)', center_cm: 931.6,
+        bandStrength: { value_cm_per_molecule: 6e-18, source: 'NH₃ ν2 ≈ 1.2e-17 cm/molecule at 296 K shared between the inversion components at 931.6 and 968.1 cm⁻¹, from memory (approximate)' },
+        envelopeB_cm: 9.94, lineSpacing_cm: 19.9, positionJitter: 0, clusterComponents: 4, clusterSpread_cm: 2.5,
+        qBranchFraction: 0.3, qBranchWidth_cm: 6, maxOffset_cm: 300, intensityScatter: 'uniform',
+      },
+      {
+        mode: 'ν2 (a)', center_cm: 968.1,
+        bandStrength: { value_cm_per_molecule: 6e-18, source: 'NH₃ ν2 ≈ 1.2e-17 cm/molecule at 296 K shared between the inversion components at 931.6 and 968.1 cm⁻¹, from memory (approximate)' },
+        envelopeB_cm: 9.94, lineSpacing_cm: 19.9, positionJitter: 0, clusterComponents: 4, clusterSpread_cm: 2.5,
+        qBranchFraction: 0.3, qBranchWidth_cm: 6, maxOffset_cm: 300, intensityScatter: 'uniform',
+      },
+    ],
+    vibrationalModes: [
+      { wavenumber_cm: 3337, degeneracy: 1 },
+      { wavenumber_cm: 950, degeneracy: 1 },
+      { wavenumber_cm: 3444, degeneracy: 2 },
+      { wavenumber_cm: 1627, degeneracy: 2 },
+    ],
+    modesSource: FROM_MEMORY_MODES,
+    broadening: { airBroadening_cm_atm: 0.085, temperatureExponent: 0.7, source: 'typical NH₃ air broadening, from memory' },
+    notes: [APPROXIMATE_NOTE],
+  },
+  SO2: {
+    kind: 'band-model',
+    gas: 'SO2',
+    approximate: true,
+    molarMass_g_mol: 64.058,
+    bands: [
+      {
+        mode: 'ν3', center_cm: 1362,
+        bandStrength: { value_cm_per_molecule: 2.7e-17, source: 'SO₂ ν3 ≈ 2.7e-17 cm/molecule at 296 K, from memory (approximate)' },
+        envelopeB_cm: 0.32, lineSpacing_cm: 0.12, positionJitter: 1, clusterComponents: 1, clusterSpread_cm: 0,
+        qBranchFraction: 0.05, qBranchWidth_cm: 4, maxOffset_cm: 60, intensityScatter: 'exponential',
+      },
+      {
+        mode: 'ν1', center_cm: 1151,
+        bandStrength: { value_cm_per_molecule: 3.5e-18, source: 'SO₂ ν1 ≈ 3.5e-18 cm/molecule at 296 K, from memory (approximate)' },
+        envelopeB_cm: 0.32, lineSpacing_cm: 0.15, positionJitter: 1, clusterComponents: 1, clusterSpread_cm: 0,
+        qBranchFraction: 0.15, qBranchWidth_cm: 5, maxOffset_cm: 55, intensityScatter: 'exponential',
+      },
+    ],
+    vibrationalModes: [
+      { wavenumber_cm: 1151, degeneracy: 1 },
+      { wavenumber_cm: 518, degeneracy: 1 },
+      { wavenumber_cm: 1362, degeneracy: 1 },
+    ],
+    modesSource: 'NIST CCCBDB (facts.md), harmonic approximation',
+    broadening: { airBroadening_cm_atm: 0.1, temperatureExponent: 0.75, source: 'typical SO₂ air broadening, from memory' },
+    notes: [APPROXIMATE_NOTE],
+  },
+};
