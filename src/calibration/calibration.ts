@@ -18,7 +18,7 @@ export const SCHEMA_VERSION = '1.0';
 /** An input file the calibration was built from. */
 export interface CalibrationInput {
   /** What the file was. */
-  role: 'manifest' | 'method' | 'standard' | 'background' | 'responses';
+  role: 'manifest' | 'method' | 'standard' | 'responses';
   /** Path relative to the calibration file's folder (or absolute when on another volume). */
   path: string;
   /** SHA-256 of the file's bytes, hex. */

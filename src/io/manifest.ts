@@ -2,11 +2,10 @@
  * Manifest of standards (CSV): which scans, their certified concentrations and cell conditions.
  *
  * Columns (DESIGN §4): `scan` (path relative to the manifest), one column per gas named
- * `<GAS>_<unit>` (unit ppm, ppb or pct), optional `background` (a background single-beam scan for a
- * single-beam sample), `path_length_m`, `temperature_K` or `temperature_C`, `pressure_kPa`,
+ * `<GAS>_<unit>` (unit ppm, ppb or pct), optional `path_length_m`, `temperature_K` or `temperature_C`, `pressure_kPa`,
  * `uncertainty_pct`, `lot`. Other columns are kept as notes and reported as a warning.
  */
-import { dirname, isAbsolute, relative, resolve, sep } from 'node:path';
+import { dirname, isAbsolute, join, relative, resolve, sep } from 'node:path';
 import { BandwrightError } from '../errors.js';
 import type { PartialConditions } from '../gas/conditions.js';
 import { requireInfraredSpecies } from '../gas/species.js';
@@ -30,10 +29,8 @@ export interface ManifestEntry {
   line: number;
   /** Scan path as written in the manifest. */
   scan: string;
-  /** Scan path resolved against the manifest's folder. */
+  /** Scan path joined to the manifest's folder as given (relative when the manifest path is). */
   scanPath: string;
-  /** Background single-beam scan, resolved, when given. */
-  backgroundPath?: string;
   /** Certified concentrations, one per gas column. */
   concentrations: CertifiedValue[];
   /** Conditions given in the row (others come from the scan or options). */
@@ -56,7 +53,7 @@ export interface Manifest {
   warnings: string[];
 }
 
-const KNOWN = new Set(['scan', 'background', 'path_length_m', 'temperature_k', 'temperature_c', 'pressure_kpa', 'uncertainty_pct', 'lot']);
+const KNOWN = new Set(['scan', 'path_length_m', 'temperature_k', 'temperature_c', 'pressure_kpa', 'uncertainty_pct', 'lot']);
 const GAS_COLUMN = /^(.+)_(ppm|ppb|pct)$/i;
 
 /**
@@ -130,8 +127,9 @@ function parseEntry(row: Table['rows'][number], table: Table, gases: Manifest['g
   };
   const scan = cell('scan');
   if (scan === undefined) throw new BandwrightError('PARSE', `${path} line ${row.line}: scan is empty, must name a scan file`, { file: path, line: row.line, parameter: 'scan' });
-  const scanPath = insideFolder(scan, folder, { file: path, line: row.line, column: 'scan' });
-  const background = cell('background');
+  insideFolder(scan, folder, { file: path, line: row.line, column: 'scan' });
+  // Keep the path as the user would write it from where they ran the command, for messages.
+  const scanPath = join(dirname(path), scan);
   const concentrations = gases.map(({ gas, unit, column }) => {
     const value = number(column.toLowerCase(), column);
     if (value === undefined) {
@@ -156,7 +154,6 @@ function parseEntry(row: Table['rows'][number], table: Table, gases: Manifest['g
     throw new BandwrightError('INVALID_VALUE', `${path} line ${row.line}: uncertainty_pct = ${uncertainty}, must be >= 0`, { file: path, line: row.line, parameter: 'uncertainty_pct' });
   }
   const entry: ManifestEntry = { line: row.line, scan, scanPath, concentrations, conditions };
-  if (background !== undefined) entry.backgroundPath = insideFolder(background, folder, { file: path, line: row.line, column: 'background' });
   if (uncertainty !== undefined) entry.uncertaintyPct = uncertainty;
   const lot = cell('lot');
   if (lot !== undefined) entry.lot = lot;
@@ -164,10 +161,9 @@ function parseEntry(row: Table['rows'][number], table: Table, gases: Manifest['g
 }
 
 /**
- * Resolves a path written in a manifest against the manifest's folder and refuses paths that
- * leave it (absolute paths or `..`), so a manifest cannot pull in unrelated files.
+ * Refuses a path written in a manifest that leaves the manifest's folder (absolute paths or `..`), so a manifest cannot pull in unrelated files.
  */
-function insideFolder(written: string, folder: string, where: { file: string; line: number; column: string }): string {
+function insideFolder(written: string, folder: string, where: { file: string; line: number; column: string }): void {
   const resolved = resolve(folder, written);
   const rel = relative(folder, resolved);
   if (isAbsolute(written) || rel === '' || rel.startsWith(`..${sep}`) || rel === '..' || isAbsolute(rel)) {
@@ -177,5 +173,4 @@ function insideFolder(written: string, folder: string, where: { file: string; li
       { file: where.file, line: where.line, parameter: where.column },
     );
   }
-  return resolved;
 }
