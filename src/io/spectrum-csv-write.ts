@@ -1,7 +1,8 @@
 /**
  * Writes a spectrum as a table that {@link parseSpectrumTable} reads back exactly: `#` comment
  * lines with the cell conditions, a header naming the x unit and the y-kind, and one point per
- * line with every number in its shortest round-trip form (`String(value)`), so no digit is lost.
+ * line with every number in its shortest round-trip form (`String(value)`, and `-0` for −0), so
+ * no bit is lost.
  */
 import { BandwrightError } from '../errors.js';
 import type { Spectrum, YKind } from '../spectrum/spectrum.js';
@@ -21,6 +22,11 @@ export const Y_COLUMN_NAMES: Readonly<Record<Exclude<YKind, 'single-beam'>, stri
   transmittance: 'transmittance',
   'transmittance-percent': 'transmittance_pct',
 });
+
+/** Shortest round-trip text of a double; keeps the sign of −0, which `String` drops. */
+function numberText(value: number): string {
+  return Object.is(value, -0) ? '-0' : String(value);
+}
 
 function oneLine(text: string): string {
   return text.replace(/[\r\n]+/g, ' ').trim();
@@ -65,10 +71,10 @@ export function formatSpectrumCsv(spectrum: Spectrum, options: SpectrumCsvOption
       throw new BandwrightError('INVALID_VALUE', `${metadata.source ?? 'spectrum'}: single-beam spectrum without a background`, {});
     }
     lines.push(['wavenumber_cm-1', 'single_beam_sample', 'single_beam_background'].join(delimiter));
-    for (let i = 0; i < x.length; i++) lines.push(`${String(x[i])}${delimiter}${String(y[i])}${delimiter}${String(background[i])}`);
+    for (let i = 0; i < x.length; i++) lines.push(`${numberText(x[i] as number)}${delimiter}${numberText(y[i] as number)}${delimiter}${numberText(background[i] as number)}`);
   } else {
     lines.push(`wavenumber_cm-1${delimiter}${Y_COLUMN_NAMES[spectrum.yKind]}`);
-    for (let i = 0; i < x.length; i++) lines.push(`${String(x[i])}${delimiter}${String(y[i])}`);
+    for (let i = 0; i < x.length; i++) lines.push(`${numberText(x[i] as number)}${delimiter}${numberText(y[i] as number)}`);
   }
   for (let i = 0; i < x.length; i++) {
     if (!Number.isFinite(x[i]) || !Number.isFinite(y[i]) || (background !== undefined && !Number.isFinite(background[i]))) {
