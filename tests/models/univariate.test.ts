@@ -114,7 +114,7 @@ describe('fitUnivariate against NIST StRD', () => {
     expectRelative(model.rSquared, certified.R2, 1e-7, 'Pontius R²');
     expect(model.df).toBe(certified.dfResidual);
     // Covariance in original units: its diagonal gives the certified standard errors.
-    names.forEach((key, j) => expectRelative(Math.sqrt((model.covariance[j] as number[])[j] as number), certified.SE[j] as number, 1e-7, `Pontius √Cov[${j}][${j}]`));
+    names.forEach((_, j) => expectRelative(Math.sqrt((model.covariance[j] as number[])[j] as number), certified.SE[j] as number, 1e-7, `Pontius √Cov[${j}][${j}]`));
   });
 });
 
