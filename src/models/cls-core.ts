@@ -310,7 +310,8 @@ function quadraticForm(matrix: readonly (readonly number[])[], v: ArrayLike<numb
 
 function formatNumber(value: number): string {
   if (!Number.isFinite(value)) return 'infinite';
-  return Math.abs(value) >= 1e4 || (Math.abs(value) < 1e-2 && value !== 0) ? value.toExponential(1).replace('e+', 'e') : value.toPrecision(3);
+  const size = Math.abs(value);
+  return size >= 1e5 || (size < 1e-2 && value !== 0) ? value.toExponential(1).replace('e+', 'e') : String(Number(value.toPrecision(3)));
 }
 
 /** "CO", "CO and N2O", "CO, N2O and H2O" */

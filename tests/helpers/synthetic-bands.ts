@@ -152,3 +152,65 @@ export function saturatingBand(
   }
   return out;
 }
+
+/** A synthetic three-component mixture on one region (synthetic, known truth). */
+export interface MixtureScenario {
+  /** Grid, cm⁻¹. */
+  grid: Float64Array;
+  /** Component names, reported flags and units, in concentration column order. */
+  components: { name: string; reported: boolean; unit: string }[];
+  /** Pure spectra, absorbance per ppm, one per component. */
+  pure: Float64Array[];
+  /** Noise-free absorbance of concentrations c (ppm) times φ. */
+  spectrumOf: (concentrations: readonly number[], phi?: number) => Float64Array;
+}
+
+/**
+ * "CO" (three Lorentzian bands), "N2O" (three Lorentzians 5 cm⁻¹ from CO's, wider: strongly
+ * overlapping) and the interferent "H2O" (two Gaussians, one under the CO/N2O cluster), on
+ * 2000–2250 cm⁻¹ every 0.5 cm⁻¹. Band names are labels only; the shapes are invented.
+ */
+export function overlappingMixture(): MixtureScenario {
+  const grid = uniformGrid(2000, 2250, 0.5);
+  const n = grid.length;
+  const co = combine([2100, 2110, 2120].map((centre, k) => ({ spectrum: lorentzianBand(grid, { centre, hwhm: 3, peak: 0.005 * (1 - 0.2 * k) }), weight: 1 })), n);
+  const n2o = combine([2105, 2115, 2125].map((centre, k) => ({ spectrum: lorentzianBand(grid, { centre, hwhm: 4, peak: 0.006 * (1 - 0.15 * k) }), weight: 1 })), n);
+  const h2o = combine([2130, 2180].map((centre) => ({ spectrum: gaussianBand(grid, { centre, hwhm: 5, peak: 1e-4 }), weight: 1 })), n);
+  const pure = [co, n2o, h2o];
+  return {
+    grid,
+    components: [
+      { name: 'CO', reported: true, unit: 'ppm' },
+      { name: 'N2O', reported: true, unit: 'ppm' },
+      { name: 'H2O', reported: false, unit: 'ppm' },
+    ],
+    pure,
+    spectrumOf: (concentrations, phi = 1) => combine(pure.map((spectrum, j) => ({ spectrum, weight: concentrations[j]! * phi })), n),
+  };
+}
+
+/** A design of standards: n rows of (CO 0…200, N2O 0…100, H2O 2000…5000) ppm, mutually uncorrelated levels. */
+export function mixtureDesign(count: number): number[][] {
+  const rows: number[][] = [];
+  for (let i = 0; i < count; i++) {
+    rows.push([
+      Math.round((200 * ((i * 7) % count)) / (count - 1)),
+      Math.round((100 * ((i * 3) % count)) / (count - 1)),
+      2000 + (3000 * ((i * 3) % 4)) / 3,
+    ]);
+  }
+  return rows;
+}
+
+/** Cosine of the angle between two spectra (1 = same shape). */
+export function cosine(a: ArrayLike<number>, b: ArrayLike<number>): number {
+  let ab = 0;
+  let aa = 0;
+  let bb = 0;
+  for (let i = 0; i < a.length; i++) {
+    ab += a[i]! * b[i]!;
+    aa += a[i]! * a[i]!;
+    bb += b[i]! * b[i]!;
+  }
+  return ab / Math.sqrt(aa * bb);
+}
