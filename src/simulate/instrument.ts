@@ -96,7 +96,12 @@ export function convolveWithInstrument(signal: Float64Array, options: Instrument
   const opdStep = 1 / (size * step_cm);
   for (let k = 0; k < size; k++) {
     const opd = (k <= size / 2 ? k : size - k) * opdStep;
-    const a = apodizationFunction(opd, maxOpd, apodization);
+    // The boxcar's edge bin gets the share of its width that lies inside OPD_max, so the
+    // effective OPD_max (and so the resolution) is not rounded to whole bins.
+    const a =
+      apodization === 'boxcar'
+        ? Math.min(1, Math.max(0, (maxOpd - opd) / opdStep + 0.5))
+        : apodizationFunction(opd, maxOpd, apodization);
     re[k] = (re[k] as number) * a;
     im[k] = (im[k] as number) * a;
   }
