@@ -53,9 +53,13 @@ export { loadStandards } from './io/standards.js';
 export { readCalibration, writeCalibration, readMethod } from './io/calibration-file.js';
 export { readResponseTable, readLimits } from './io/tables.js';
 export { writeFileAtomic } from './io/atomic-write.js';
+export { isNonEmptyFolder } from './io/folders.js';
 export { formatCsv, guardCell } from './io/csv-table.js';
 export { formatJcamp } from './io/jcamp-write.js';
 export { formatSpectrumCsv } from './io/spectrum-csv-write.js';
+
+// Simulation
+export { simulateSpectrum, type SimulationOptions, type SimulationResult } from './simulate/index.js';
 
 // Reports
 export { formatResultsText, resultsDocument, resultsCsv, resultColumns, resultRow, isFailure, type BatchEntry, type ScanFailure } from './report/results.js';

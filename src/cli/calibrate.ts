@@ -25,7 +25,7 @@ import {
 } from '../index.js';
 import { formatCalibrationSummary } from '../report/calibration-summary.js';
 import { note, type CommandContext } from './context.js';
-import { parsePositiveOption, parseWindowListOption, parseWindowOption } from './parse.js';
+import { parseNumberOption, parsePositiveOption, parseWindowListOption, parseWindowOption } from './parse.js';
 
 interface CalibrateOptions {
   method?: string;
@@ -97,6 +97,17 @@ function methodFromFlags(options: CalibrateOptions): BandMethod {
   return parseMethod({ model: 'band', gases: [gas], recheck: recheckFromFlags(options) }, 'options') as BandMethod;
 }
 
+/**
+ * Creation time to stamp: now, or SOURCE_DATE_EPOCH (seconds since 1970, the reproducible-builds
+ * convention) when set, so regenerated example calibrations are byte-for-byte the same.
+ */
+function creationTime(): string {
+  const epoch = process.env.SOURCE_DATE_EPOCH;
+  if (epoch === undefined || epoch === '') return new Date().toISOString();
+  const seconds = parseNumberOption(epoch, 'SOURCE_DATE_EPOCH', [(n) => Number.isInteger(n) && n >= 0, 'must be whole seconds since 1970']);
+  return new Date(seconds * 1000).toISOString();
+}
+
 function defaultOutput(input: string): string {
   return join(dirname(input), `${basename(input, extname(input))}.calibration.json`);
 }
@@ -140,7 +151,7 @@ export function registerCalibrate(program: Command, context: CommandContext): vo
     .action((manifestPath: string | undefined, options: CalibrateOptions) => {
       let calibration: Calibration;
       let output: string;
-      const createdAt = new Date().toISOString();
+      const createdAt = creationTime();
       if (options.responses !== undefined) {
         if (manifestPath !== undefined) throw new BandwrightError('USAGE', 'calibrate: give either a manifest or --responses, not both', { parameter: '--responses' });
         if (options.gas === undefined) throw new BandwrightError('USAGE', 'calibrate --responses needs --gas <name>', { parameter: '--gas' });

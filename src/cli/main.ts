@@ -6,9 +6,11 @@
 import { Command, CommanderError } from 'commander';
 import { BandwrightError, TOOL } from '../index.js';
 import { registerCalibrate } from './calibrate.js';
+import { registerDemo } from './demo.js';
 import type { CommandContext, TextSink } from './context.js';
 import { registerInspect } from './inspect.js';
 import { registerQuantify } from './quantify.js';
+import { registerSimulate } from './simulate.js';
 
 /**
  * Builds the program. Each command's action stores its exit status in the context.
@@ -27,8 +29,27 @@ export function buildProgram(context: CommandContext): Command {
   registerCalibrate(program, context);
   registerQuantify(program, context);
   registerInspect(program, context);
+  registerSimulate(program, context);
+  registerDemo(program, context, runCaptured);
   for (const command of program.commands) command.exitOverride().configureOutput({ writeOut: (s) => context.stdout.write(s), writeErr: (s) => context.stderr.write(s) });
   return program;
+}
+
+/**
+ * Runs one command line in a fresh program whose output is captured (used by `demo`).
+ *
+ * @param args - arguments after `bandwright`
+ * @returns the exit status and what was printed
+ */
+export async function runCaptured(args: readonly string[]): Promise<{ status: number; stdout: string; stderr: string }> {
+  let stdout = '';
+  let stderr = '';
+  const status = await main(['node', 'bandwright', ...args], {
+    stdout: { write: (text: string) => (stdout += text) },
+    stderr: { write: (text: string) => (stderr += text) },
+    interactive: false,
+  });
+  return { status, stdout, stderr };
 }
 
 /**

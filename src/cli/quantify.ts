@@ -142,7 +142,7 @@ export function registerQuantify(program: Command, context: CommandContext): voi
       }
       const gases = calibration.gases.map((g) => ({ gas: g.gas, unit: options.unit ?? g.unit }));
       if (flags.csv !== undefined) {
-        writeFileAtomic(flags.csv, resultsCsv(entries, gases, calibration.sha256), { overwrite: flags.force === true });
+        writeFileAtomic(flags.csv, resultsCsv(entries, gases, calibration.sha256), { overwrite: flags.force === true, createFolder: true });
         note(context, `results written to ${flags.csv}`);
       }
       if (flags.json) context.stdout.write(`${JSON.stringify(resultsDocument(entries, { file: calibrationPath, sha256: calibration.sha256 }, level), null, 2)}\n`);

@@ -27,7 +27,7 @@ export function readCalibration(path: string): Calibration {
  * @throws BandwrightError `FILE_EXISTS` without force; `FILE_READ` when the folder is not writable
  */
 export function writeCalibration(path: string, calibration: Calibration, options: { force?: boolean } = {}): void {
-  writeFileAtomic(path, `${JSON.stringify(calibration, null, 2)}\n`, { overwrite: options.force === true });
+  writeFileAtomic(path, `${JSON.stringify(calibration, null, 2)}\n`, { overwrite: options.force === true, createFolder: true });
 }
 
 /**

@@ -1,0 +1,84 @@
+/**
+ * `bandwright demo`: the whole job on the bundled example data (examples/README.md), written
+ * under one folder, with a short account of what was done and where it is.
+ *
+ * Each step runs the real command through the same program, so the demo shows exactly what a
+ * user would get from typing the commands it lists.
+ */
+import { join, relative } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import type { Command } from 'commander';
+import { BandwrightError, isNonEmptyFolder, writeFileAtomic } from '../index.js';
+import { note, raiseStatus, type CommandContext } from './context.js';
+
+/** The bundled examples folder, found from this file (works from src/ under tsx and from dist/). */
+export function examplesFolder(): string {
+  return fileURLToPath(new URL('../../examples/', import.meta.url));
+}
+
+interface DemoStep {
+  /** What the step does, in words. */
+  title: string;
+  /** The command line, after `bandwright`. */
+  args: string[];
+  /** Write the command's standard output to this file (relative to the output folder). */
+  stdoutFile?: string;
+  /** Exit statuses that count as the step working as intended. */
+  expected?: number[];
+}
+
+/**
+ * Registers `demo` on the program.
+ *
+ * @param program - the commander program
+ * @param context - output and status
+ * @param run - runs one command line in a fresh context and returns its status and output
+ */
+export function registerDemo(program: Command, context: CommandContext, run: (args: string[]) => Promise<{ status: number; stdout: string; stderr: string }>): void {
+  program
+    .command('demo')
+    .description('run the whole job on the bundled example data: calibrate, quantify, and more as it is built')
+    .option('--out <dir>', 'folder for everything the demo writes', 'bandwright-demo')
+    .option('--force', 'use the folder even if it is not empty (files the demo writes are replaced)')
+    .action(async (flags: { out: string; force?: boolean }) => {
+      const out = flags.out;
+      if (isNonEmptyFolder(out) && !flags.force) {
+        throw new BandwrightError('FILE_EXISTS', `${out} exists and is not empty; choose another --out or add --force`, { parameter: '--out' });
+      }
+      const examples = relative(process.cwd(), examplesFolder()) || '.';
+      const lab = join(examples, 'lab-co');
+      const at = (name: string): string => join(out, name);
+      const force = flags.force ? ['--force'] : [];
+      const steps: DemoStep[] = [
+        {
+          title: 'Calibrate CO from 14 standards (zero gas and six levels in duplicate), second-order band-area curve',
+          args: ['calibrate', join(lab, 'standards.csv'), '--method', join(lab, 'method.json'), '-o', at('lab-co.calibration.json'), ...force],
+          stdoutFile: 'lab-co.calibration.txt',
+        },
+        {
+          title: 'Quantify five samples with 95 % prediction intervals (table, CSV and JSON)',
+          args: ['quantify', at('lab-co.calibration.json'), join(lab, 'samples'), '--csv', at('lab-co.results.csv'), ...force],
+          stdoutFile: 'lab-co.results.txt',
+        },
+        {
+          title: 'The same results as JSON for scripts',
+          args: ['quantify', at('lab-co.calibration.json'), join(lab, 'samples'), '--json', '--mg-m3'],
+          stdoutFile: 'lab-co.results.json',
+        },
+      ];
+      note(context, `bandwright demo: the example scenario is described in ${join(examples, 'README.md')}`);
+      for (const [i, step] of steps.entries()) {
+        const result = await run(step.args);
+        const ok = (step.expected ?? [0]).includes(result.status);
+        if (step.stdoutFile !== undefined) writeFileAtomic(at(step.stdoutFile), result.stdout, { overwrite: true, createFolder: true });
+        note(context, `\n${i + 1}. ${step.title}\n   $ bandwright ${step.args.join(' ')}${step.stdoutFile === undefined ? '' : `\n   → ${at(step.stdoutFile)}`}${ok ? '' : `\n   ! exit status ${result.status}:\n${result.stderr}`}`);
+        if (!ok) {
+          raiseStatus(context, 1);
+          note(context, 'the demo stops here; the message above says why');
+          return;
+        }
+        if (step.args[0] === 'quantify' && step.stdoutFile?.endsWith('.txt')) context.stdout.write(`${result.stdout}\n`);
+      }
+      note(context, `\nEverything is in ${out}/. Each step above is an ordinary bandwright command you can run yourself.`);
+    });
+}
