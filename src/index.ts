@@ -41,7 +41,7 @@ export { fitUnivariate, predictConcentration, type UnivariateModel } from './mod
 export { parseMethod, parseResponseMethod, DEFAULT_RECHECK, type Method, type BandMethod, type ResponseMethod, type ClsMethod, type CurveForm, type WeightScheme } from './calibration/method.js';
 export { SCHEMA_VERSION, calibrationHash, sealCalibration, verifyCalibration, canonicalJson, type Calibration, type CalibrationInput, type GasCalibration } from './calibration/calibration.js';
 export { buildBandCalibration, buildResponseCalibration, type StandardScan, type BuildContext, type ResponseRow } from './calibration/build.js';
-export { quantifyBandScan, quantifyResponses, type QuantifyOptions } from './calibration/quantify.js';
+export { quantifyScan, quantifyBandScan, quantifyResponses, type QuantifyOptions } from './calibration/quantify.js';
 export { decorateGases, type GasResult, type ScanResult, type ResultFlag, type ReportingOptions, type Conversion } from './calibration/result.js';
 
 // Files

@@ -158,3 +158,24 @@ export function quantifyResponses(calibration: Calibration, responses: readonly 
   };
 }
 
+
+/**
+ * Quantifies one scan with any calibration that works on spectra (dispatches on the method).
+ *
+ * @param calibration - a verified calibration
+ * @param spectrum - the sample scan (any y-kind)
+ * @param options - level, conditions, reporting
+ * @returns the scan's result
+ * @throws BandwrightError as the model's quantify function; `INVALID_VALUE` for a calibration made
+ *   from tabulated responses (it has no spectral method: use {@link quantifyResponses})
+ */
+export function quantifyScan(calibration: Calibration, spectrum: Spectrum, options: QuantifyOptions = {}): ScanResult {
+  switch (calibration.method.model) {
+    case 'band':
+      return quantifyBandScan(calibration, spectrum, options);
+    case 'responses':
+      throw new BandwrightError('INVALID_VALUE', 'the calibration was built from tabulated responses and cannot read scans; give --response values instead', { parameter: 'scans' });
+    case 'cls':
+      throw new BandwrightError('INVALID_VALUE', 'classical-least-squares calibrations are not supported by this build', { parameter: 'calibration' });
+  }
+}

@@ -7,7 +7,7 @@ import {
   BandwrightError,
   expandScanArguments,
   formatResultsText,
-  quantifyBandScan,
+  quantifyScan,
   quantifyResponses,
   readCalibration,
   readLimits,
@@ -88,7 +88,7 @@ export function quantifyScans(calibration: Calibration, scans: readonly string[]
   return scans.map((scan): BatchEntry => {
     try {
       const spectrum = readScan(scan, kind === undefined ? {} : { yKind: kind });
-      return quantifyBandScan(calibration, spectrum, options);
+      return quantifyScan(calibration, spectrum, options);
     } catch (error) {
       if (error instanceof BandwrightError) return { scan, error: error.message };
       throw error;

@@ -3,8 +3,11 @@
  *
  * - A file is kept as given, whatever its extension.
  * - A folder gives every regular file in it (not in subfolders) whose extension is a scan
- *   extension (default `.csv .tsv .txt .jdx .dx .jcamp`, case-insensitive), sorted by name.
- * - A glob (an argument containing `*`, `?` or `[`) matches regular files: `*` any run of
+ *   extension (default `.csv .tsv .txt .jdx .dx .jcamp`, case-insensitive), sorted by name;
+ *   hidden files (name starting with `.`, such as editor backups or `._` resource forks) are
+ *   skipped.
+ * - A glob (an argument containing `*`, `?` or `[` that is not itself an existing path) matches
+ *   regular files: `*` any run of
  *   characters within a path segment, `?` one character, `[abc]`, `[a-z]`, `[!abc]`/`[^abc]` a
  *   character class, `**` as a whole segment any number of folders (zero or more); `\` escapes
  *   the next character. As in POSIX shells, `*`, `?` and classes do not match a leading `.` of a
@@ -195,6 +198,15 @@ function expandGlob(pattern: string): string[] {
   return [...new Set(results)].sort(compareNames);
 }
 
+function exists(path: string): boolean {
+  try {
+    statSync(path);
+    return true;
+  } catch {
+    return false;
+  }
+}
+
 function isDirectory(path: string): boolean {
   try {
     return statSync(path).isDirectory();
@@ -231,7 +243,7 @@ export function expandScanArguments(args: readonly string[], options: ExpandScan
       add('-');
       continue;
     }
-    if (isGlob(argument)) {
+    if (isGlob(argument) && !exists(argument)) {
       const matches = expandGlob(argument);
       if (matches.length === 0) {
         throw new BandwrightError('FILE_NOT_FOUND', `${argument}: the pattern matches no file`, { file: argument });
@@ -253,6 +265,7 @@ export function expandScanArguments(args: readonly string[], options: ExpandScan
     const scans = listFolder(argument)
       .filter((entry) => {
         const name = entry.name.toLowerCase();
+        if (name.startsWith('.')) return false;
         return extensions.some((extension) => name.endsWith(extension)) && isFile(join(argument, entry.name), entry);
       })
       .map((entry) => entry.name)

@@ -18,6 +18,8 @@
  *   line mixing; far-wing (sub-Lorentzian) corrections.
  */
 
+import { findSpecies } from '../gas/species.js';
+
 /** Boltzmann constant, J/K (CODATA / SI 2019, exact). */
 export const BOLTZMANN_J_K = 1.380649e-23;
 /** Avogadro constant, 1/mol (SI 2019, exact). */
@@ -274,8 +276,6 @@ const ATOMIC_MASS_U = {
   H1: 1.00782503207,
   Cl35: 34.96885268,
   Cl37: 36.96590259,
-  N14: 14.0030740048,
-  O16: 15.99491461956,
 } as const;
 
 /**
@@ -360,6 +360,13 @@ export const NITROUS_OXIDE_NU3: LinearBandConstants = {
 // ---------------------------------------------------------------------------------------------
 // Gas models
 
+/** Molar mass from the species table (g/mol), so Doppler widths use the same values as the rest of the tool. */
+function speciesMolarMass(name: string): number {
+  const species = findSpecies(name);
+  if (species === undefined) throw new Error(`species table has no ${name}`);
+  return species.molarMass_g_mol;
+}
+
 const FROM_MEMORY_MODES = 'fundamental wavenumbers from memory (facts.md / species table where listed), harmonic approximation';
 const APPROXIMATE_NOTE = 'approximate band model: band centres from the species table, integrated strengths from memory (±30 % or worse), invented pseudo-line pattern; not for quantifying this gas';
 
@@ -369,7 +376,7 @@ export const GAS_MODELS: Readonly<Record<string, GasModel>> = {
     kind: 'diatomic',
     gas: 'CO',
     approximate: false,
-    isotopologues: [{ constants: CARBON_MONOXIDE_12C16O, abundance: 1, molarMass_g_mol: 28.010, abundanceSource: 'treated as pure ¹²C¹⁶O (¹³CO near 2096 cm⁻¹ not modelled)' }],
+    isotopologues: [{ constants: CARBON_MONOXIDE_12C16O, abundance: 1, molarMass_g_mol: speciesMolarMass('CO'), abundanceSource: 'treated as pure ¹²C¹⁶O (¹³CO near 2096 cm⁻¹ not modelled)' }],
     bandStrength: { value_cm_per_molecule: 1.013e-17, source: 'Zou & Varanasi, JQSRT 2002: (1.013 ± 0.007)e-17 cm/molecule at 296 K' },
     broadening: { airBroadening_cm_atm: 0.065, temperatureExponent: 0.7, source: 'γ_air ≈ 0.05–0.08 cm⁻¹/atm at 296 K (facts.md, from memory), 0.065 taken for every line; n ≈ 0.7 from memory' },
     notes: ['Herman–Wallis factors not applied (no sourced coefficients); hot bands omitted'],
@@ -378,6 +385,7 @@ export const GAS_MODELS: Readonly<Record<string, GasModel>> = {
     kind: 'diatomic',
     gas: 'HCl',
     approximate: false,
+    // Each isotopologue keeps its own molar mass (Doppler width), from the atomic masses above.
     isotopologues: [
       { constants: HYDROGEN_CHLORIDE_H35CL, abundance: 0.7576, molarMass_g_mol: ATOMIC_MASS_U.H1 + ATOMIC_MASS_U.Cl35, abundanceSource: '³⁵Cl 75.76 %, IUPAC isotopic abundances, from memory' },
       { constants: HYDROGEN_CHLORIDE_H37CL, abundance: 0.2424, molarMass_g_mol: ATOMIC_MASS_U.H1 + ATOMIC_MASS_U.Cl37, abundanceSource: '³⁷Cl 24.24 %, IUPAC isotopic abundances, from memory' },
@@ -391,7 +399,7 @@ export const GAS_MODELS: Readonly<Record<string, GasModel>> = {
     gas: 'NO',
     approximate: false,
     constants: NITRIC_OXIDE_14N16O,
-    molarMass_g_mol: ATOMIC_MASS_U.N14 + ATOMIC_MASS_U.O16,
+    molarMass_g_mol: speciesMolarMass('NO'),
     bandStrength: { value_cm_per_molecule: 4.1e-18, source: 'NO 1–0 band ≈ 4.1e-18 cm/molecule at 296 K (≈ 110 cm⁻² atm⁻¹ at 273 K), from memory, uncertain by about 20 %' },
     broadening: { airBroadening_cm_atm: 0.055, temperatureExponent: 0.75, source: 'from memory' },
     notes: ['simplified ²Π model: Hund\'s case (a) Ω = ½ and 3/2 sub-bands with P, Q and R branches, Λ-doubling and spin uncoupling neglected; high-J line positions are off by up to tenths of a cm⁻¹'],
@@ -401,7 +409,7 @@ export const GAS_MODELS: Readonly<Record<string, GasModel>> = {
     gas: 'CO2',
     approximate: false,
     constants: CARBON_DIOXIDE_NU3,
-    molarMass_g_mol: 12 + 2 * ATOMIC_MASS_U.O16,
+    molarMass_g_mol: speciesMolarMass('CO2'),
     bandStrength: { value_cm_per_molecule: 9.5e-17, source: 'CO₂ ν3 (626 fundamental) ≈ 9.5e-17 cm/molecule at 296 K (≈ 2500 cm⁻² atm⁻¹ at 273 K), from memory, uncertain by about 10 %' },
     broadening: { airBroadening_cm_atm: 0.07, temperatureExponent: 0.75, source: 'from memory' },
     vibrationalModes: [
@@ -417,7 +425,7 @@ export const GAS_MODELS: Readonly<Record<string, GasModel>> = {
     gas: 'N2O',
     approximate: false,
     constants: NITROUS_OXIDE_NU3,
-    molarMass_g_mol: 2 * ATOMIC_MASS_U.N14 + ATOMIC_MASS_U.O16,
+    molarMass_g_mol: speciesMolarMass('N2O'),
     bandStrength: { value_cm_per_molecule: 5.0e-17, source: 'N₂O ν3 ≈ 5.0e-17 cm/molecule at 296 K (≈ 1300 cm⁻² atm⁻¹ at 273 K), from memory, uncertain by about 20 %' },
     broadening: { airBroadening_cm_atm: 0.075, temperatureExponent: 0.75, source: 'from memory' },
     vibrationalModes: [
@@ -432,7 +440,7 @@ export const GAS_MODELS: Readonly<Record<string, GasModel>> = {
     kind: 'band-model',
     gas: 'H2O',
     approximate: true,
-    molarMass_g_mol: 18.015,
+    molarMass_g_mol: speciesMolarMass('H2O'),
     bands: [
       {
         mode: 'ν2', center_cm: 1594.7,
@@ -466,7 +474,7 @@ export const GAS_MODELS: Readonly<Record<string, GasModel>> = {
     kind: 'band-model',
     gas: 'CH4',
     approximate: true,
-    molarMass_g_mol: 16.043,
+    molarMass_g_mol: speciesMolarMass('CH4'),
     bands: [
       {
         mode: 'ν3', center_cm: 3019,
@@ -497,7 +505,7 @@ export const GAS_MODELS: Readonly<Record<string, GasModel>> = {
     kind: 'band-model',
     gas: 'NH3',
     approximate: true,
-    molarMass_g_mol: 17.031,
+    molarMass_g_mol: speciesMolarMass('NH3'),
     bands: [
       {
         mode: 'ν2 (s)', center_cm: 931.6,
@@ -526,7 +534,7 @@ export const GAS_MODELS: Readonly<Record<string, GasModel>> = {
     kind: 'band-model',
     gas: 'SO2',
     approximate: true,
-    molarMass_g_mol: 64.058,
+    molarMass_g_mol: speciesMolarMass('SO2'),
     bands: [
       {
         mode: 'ν3', center_cm: 1362,
