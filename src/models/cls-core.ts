@@ -550,7 +550,7 @@ function checkPureSpectra(fitted: FittedState, components: readonly ClsComponent
     if (terms[t]!.power === 1 && ratio < MINIMUM_SEPARATION_RATIO) {
       throw new BandwrightError(
         'SINGULAR',
-        `pure spectrum of ${names[t]!} is not distinguishable from the calibration noise (signal ${formatNumber(ratio)} times the noise energy, must be >= ${MINIMUM_SEPARATION_RATIO}): it does not absorb measurably in the method's ${channelWord}s, or its standards are too weak`,
+        `pure spectrum of ${names[t]!} is not distinguishable from the calibration noise (signal ${formatNumber(ratio)} times the energy the calibration residual leaves in it, must be >= ${MINIMUM_SEPARATION_RATIO}): it does not absorb measurably in the method's ${channelWord}s, its standards are too weak, or the residual is lack of fit rather than noise (for saturating bands try a second-order term)`,
         { parameter: 'spectra' },
       );
     }
@@ -568,7 +568,7 @@ function checkPureSpectra(fitted: FittedState, components: readonly ClsComponent
       if (ratio < MINIMUM_SEPARATION_RATIO) {
         throw new BandwrightError(
           'SINGULAR',
-          `pure spectra of ${names[t]!} and ${names[u]!} have the same shape within the calibration noise (their difference carries ${formatNumber(ratio)} times the noise energy, must be >= ${MINIMUM_SEPARATION_RATIO}): their bands coincide and cannot be separated; extend the regions to where their bands differ, or drop one of them`,
+          `pure spectra of ${names[t]!} and ${names[u]!} have the same shape within the calibration noise (their difference carries ${formatNumber(ratio)} times the energy the calibration residual leaves in it, must be >= ${MINIMUM_SEPARATION_RATIO}): their bands coincide and cannot be separated; extend the regions to where their bands differ, or drop one of them (if the residual is lack of fit rather than noise, e.g. saturating bands, try a second-order term)`,
           { parameter: 'spectra' },
         );
       }
