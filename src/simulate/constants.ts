@@ -143,7 +143,9 @@ interface GasModelBase {
 
 /** Line-by-line model of a diatomic Σ–Σ fundamental (1 ← 0) for one or more isotopologues. */
 export interface DiatomicGasModel extends GasModelBase {
+  /** Model kind tag. */
   kind: 'diatomic';
+  /** Line-by-line from constants. */
   approximate: false;
   /** Isotopologues with their natural abundance (fractions summing to 1) and molar mass. */
   isotopologues: readonly { constants: DiatomicConstants; abundance: number; molarMass_g_mol: number; abundanceSource: string }[];
@@ -153,19 +155,29 @@ export interface DiatomicGasModel extends GasModelBase {
 
 /** Simplified line-by-line model of a ²Π diatomic fundamental (P, Q and R branches). */
 export interface PiGasModel extends GasModelBase {
+  /** Model kind tag. */
   kind: 'diatomic-pi';
+  /** Line-by-line from constants (simplified, see `notes`). */
   approximate: false;
+  /** Constants of the ²Π state. */
   constants: PiStateConstants;
+  /** Molar mass for the Doppler width, g/mol (species table). */
   molarMass_g_mol: number;
+  /** Band strength of the 1 ← 0 band at 296 K. */
   bandStrength: BandStrength;
 }
 
 /** Line-by-line model of one parallel band of a linear polyatomic molecule. */
 export interface LinearGasModel extends GasModelBase {
+  /** Model kind tag. */
   kind: 'linear-band';
+  /** Line-by-line from constants. */
   approximate: false;
+  /** Band origin and rotational constants. */
   constants: LinearBandConstants;
+  /** Molar mass for the Doppler width, g/mol (species table). */
   molarMass_g_mol: number;
+  /** Strength of the band at 296 K. */
   bandStrength: BandStrength;
   /** Normal modes for the vibrational partition function. */
   vibrationalModes: readonly VibrationalMode[];
@@ -218,11 +230,17 @@ export interface ApproximateBand {
  * interferent structure and demos, not for quantitative work on the gas itself.
  */
 export interface BandGasModel extends GasModelBase {
+  /** Model kind tag. */
   kind: 'band-model';
+  /** Always approximate: callers must show it. */
   approximate: true;
+  /** Molar mass for the Doppler width, g/mol (species table). */
   molarMass_g_mol: number;
+  /** The modelled bands. */
   bands: readonly ApproximateBand[];
+  /** Normal modes for the vibrational partition function. */
   vibrationalModes: readonly VibrationalMode[];
+  /** Source of the mode wavenumbers. */
   modesSource: string;
 }
 
