@@ -1,0 +1,139 @@
+/**
+ * Band-area classical least squares: the small version of spectral CLS (DESIGN §3) for
+ * mixtures measured by several baseline-corrected band areas (or peak heights), with more bands
+ * than gases. A band plays the part of a channel: the same core (`cls-core.ts`) fits the
+ * K-matrix of band responses per unit concentration, refuses gases that cannot be separated,
+ * predicts with intervals and cross-validates. Differences from spectral CLS: no baseline terms
+ * (areas are already baseline-corrected) and bands are taken as independent measurements with a
+ * common noise variance (no channel correlation).
+ *
+ * Units: band areas in AU·cm⁻¹ (or peak heights in AU); concentrations in each component's unit
+ * at the standard's conditions; φ = (L/L_ref)(P/P_ref)(T_ref/T) per standard and sample.
+ */
+import { BandwrightError } from '../errors.js';
+import type { ClsComponent, ClsCoreModel, ClsPrediction, ClsState } from './cls-core.js';
+import { DEFAULT_POOR_FIT_RATIO, fitClsCore, predictClsState, prepareClsState } from './cls-core.js';
+import { validateClsInputs } from './cls-validate.js';
+
+export type { ClsComponent, ClsEstimate, ClsPrediction } from './cls-core.js';
+
+/** Standards for a band-area CLS fit. Nothing here is modified. */
+export interface BandClsData {
+  /** Band names in column order of `areas` (e.g. `2040-2245`), used in messages and results. */
+  readonly bands: readonly string[];
+  /** Baseline-corrected band areas (AU·cm⁻¹) or peak heights (AU), standards × bands. */
+  readonly areas: readonly ArrayLike<number>[];
+  /** Certified concentrations, standards × components (≥ 0). */
+  readonly concentrations: readonly ArrayLike<number>[];
+  /** φ of each standard (> 0). */
+  readonly phi: ArrayLike<number>;
+  /** Components: reported gases and interferents. */
+  readonly components: readonly ClsComponent[];
+  /** Optional label of each standard for messages. */
+  readonly standardLabels?: readonly string[];
+}
+
+/** Options of {@link fitBandCls}. */
+export interface BandClsFitOptions {
+  /** Names of components given a second-order term. */
+  readonly secondOrder?: readonly string[];
+  /** Default confidence level of prediction intervals (default 0.95). */
+  readonly level?: number;
+  /** Largest condition number of the column-scaled concentration and band-response matrices (default 1000). */
+  readonly conditionLimit?: number;
+}
+
+/** A fitted band-area CLS model: plain JSON-safe data. */
+export interface BandClsModel extends ClsCoreModel {
+  /** Model kind. */
+  readonly kind: 'band-cls';
+  /** Layout version of this object. */
+  readonly formatVersion: 1;
+  /** Band names, in the order a sample's areas must follow. */
+  readonly bands: readonly string[];
+}
+
+/** Options of {@link predictBandCls}. */
+export interface BandClsPredictOptions {
+  /** φ of the sample (> 0). */
+  readonly phi: number;
+  /** Confidence level (default: the model's). */
+  readonly level?: number;
+  /** Residual-RMS ratio that a poor fit must also exceed (default 1.5). */
+  readonly poorFitRatio?: number;
+}
+
+/**
+ * Fits a band-area CLS model.
+ *
+ * @param data - band names, band areas of the standards (AU·cm⁻¹), certified concentrations,
+ *   φ per standard, components
+ * @param options - second-order components, level (default 0.95), condition limit (default 1000)
+ * @returns the model
+ * @throws BandwrightError `INVALID_VALUE` for shapes, non-finite or negative values;
+ *   `INSUFFICIENT_DATA` for too few standards or no more bands than model terms; `SINGULAR`
+ *   naming the gases when collinear standards or proportional band responses make them inseparable
+ * @example
+ * const model = fitBandCls({ bands: ['b1', 'b2', 'b3'], areas, concentrations, phi,
+ *   components: [{ name: 'NO', reported: true, unit: 'ppm' }, { name: 'NO2', reported: true, unit: 'ppm' }] });
+ */
+export function fitBandCls(data: BandClsData, options: BandClsFitOptions = {}): BandClsModel {
+  const bandCount = data.bands.length;
+  const names = new Set<string>();
+  data.bands.forEach((band, k) => {
+    if (typeof band !== 'string' || band === '') throw new BandwrightError('INVALID_VALUE', `bands[${k}] = ${JSON.stringify(band)}, must be a non-empty band name`, { parameter: 'bands' });
+    if (names.has(band)) throw new BandwrightError('INVALID_VALUE', `bands[${k}] = "${band}" appears twice, band names must be unique`, { parameter: 'bands' });
+    names.add(band);
+  });
+  const validated = validateClsInputs(
+    { responses: data.areas, concentrations: data.concentrations, phi: data.phi, components: data.components, standardLabels: data.standardLabels },
+    options,
+    { channelCount: bandCount, channelWord: 'band', responsesName: 'areas' },
+  );
+  const terms = data.components.length + validated.secondOrder.length;
+  if (bandCount <= terms) {
+    throw new BandwrightError(
+      'INSUFFICIENT_DATA',
+      `${bandCount} band(s) for ${terms} model term(s): band-area CLS needs more bands than gases (and second-order terms)`,
+      { parameter: 'bands' },
+    );
+  }
+  const core = fitClsCore(
+    { responses: data.areas, concentrations: data.concentrations, phi: data.phi, components: data.components },
+    {
+      level: validated.level,
+      conditionLimit: validated.conditionLimit,
+      secondOrder: validated.secondOrder,
+      nuisance: [],
+      segments: data.bands.map((_, k) => ({ start: k, end: k + 1, region: k })),
+      estimateCorrelation: false,
+      channelWord: 'band',
+    },
+  );
+  return { kind: 'band-cls', formatVersion: 1, ...core, bands: [...data.bands] };
+}
+
+const prepared = new WeakMap<BandClsModel, ClsState>();
+
+/**
+ * Predicts a sample's concentrations from its band areas.
+ *
+ * @param model - a model from {@link fitBandCls}
+ * @param areas - the sample's band areas, in the model's band order (AU·cm⁻¹); not modified
+ * @param options - φ of the sample, level, poor-fit ratio
+ * @returns estimates with prediction intervals, band residuals, `poor-fit` flag
+ * @throws BandwrightError `INVALID_VALUE` for a wrong number of areas, a non-finite area, φ ≤ 0
+ */
+export function predictBandCls(model: BandClsModel, areas: ArrayLike<number>, options: BandClsPredictOptions): ClsPrediction {
+  let state = prepared.get(model);
+  if (state === undefined) {
+    state = prepareClsState(model, []);
+    prepared.set(model, state);
+  }
+  return predictClsState(model, state, areas, {
+    phi: options.phi,
+    level: options.level ?? model.level,
+    poorFitRatio: options.poorFitRatio ?? DEFAULT_POOR_FIT_RATIO,
+    channelWord: 'band',
+  });
+}
