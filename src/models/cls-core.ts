@@ -213,7 +213,10 @@ export interface ClsPrediction {
   readonly warnings: readonly string[];
 }
 
-/** Numeric state used for prediction (typed arrays; built from a model or during fitting). */
+/**
+ * Numeric state used for prediction (typed arrays and derived factors), built once from a model
+ * by {@link prepareClsState} or during fitting; the symbols are those of this module's header.
+ */
 export interface ClsState {
   readonly componentCount: number;
   readonly terms: readonly ClsTerm[];
@@ -563,7 +566,8 @@ function checkPureSpectra(fitted: FittedState, components: readonly ClsComponent
       const lambda = inner(t, u) / (columnNorms[u]! * columnNorms[u]!);
       const difference = columnNorms[t]! * columnNorms[t]! - lambda * inner(t, u);
       const noise = variance * baseCount * (gram[t]![t]! - 2 * lambda * gram[t]![u]! + lambda * lambda * gram[u]![u]!);
-      const ratio = noise > 0 ? difference / noise : Number.POSITIVE_INFINITY;
+      if (!(noise > 0)) continue;
+      const ratio = difference / noise;
       if (separationRatio[t] === null || ratio < separationRatio[t]!) separationRatio[t] = ratio;
       if (ratio < MINIMUM_SEPARATION_RATIO) {
         throw new BandwrightError(
@@ -582,8 +586,6 @@ function checkPureSpectra(fitted: FittedState, components: readonly ClsComponent
 
 /** Options of {@link predictClsState}. */
 export interface ClsStatePredictOptions {
-  /** Confidence level, strictly between 0 and 1. */
-  readonly level: number;
   /** Residual-RMS ratio (sample / calibration) that a poor fit must also exceed. */
   readonly poorFitRatio: number;
   /** Apply the stored inflation factors (false inside cross-validation). */
@@ -739,7 +741,7 @@ export function predictClsState(
   if (!(options.poorFitRatio >= 1)) {
     throw new BandwrightError('INVALID_VALUE', `poorFitRatio = ${options.poorFitRatio}, must be >= 1`, { parameter: 'poorFitRatio' });
   }
-  const raw = predictRaw(state, sample, { level: options.level, poorFitRatio: options.poorFitRatio, inflate: true });
+  const raw = predictRaw(state, sample, { poorFitRatio: options.poorFitRatio, inflate: true });
   const t = criticalT(options.level, raw.degreesOfFreedom);
   const estimates: ClsEstimate[] = [];
   const interferents: ClsEstimate[] = [];
@@ -860,6 +862,13 @@ export function fitClsCore(data: ClsCoreData, options: ClsCoreOptions): ClsCoreM
     throw rephraseDesignError(error);
   }
   const correlation = fitted.correlation;
+  if (!(fitted.state.sampleResidualCount >= 1)) {
+    throw new BandwrightError(
+      'INSUFFICIENT_DATA',
+      `${channels} ${options.channelWord}s leave ${formatNumber(fitted.state.sampleResidualCount)} independent residual value(s) after the baseline and ${q} term(s), given the channel-noise correlation (${correlation.length - 1} lags): widen the regions`,
+      { parameter: 'spectra' },
+    );
+  }
   const checks = checkPureSpectra(fitted, components, terms, options.conditionLimit, options.channelWord);
   const state = fitted.state;
 
@@ -886,7 +895,7 @@ export function fitClsCore(data: ClsCoreData, options: ClsCoreOptions): ClsCoreM
       if (isBandwrightError(error, 'SINGULAR') || isBandwrightError(error, 'INSUFFICIENT_DATA')) continue;
       throw error;
     }
-    const raw = predictRaw(reduced.state, data.responses[left]!, { level: options.level, poorFitRatio: DEFAULT_POOR_FIT_RATIO, inflate: false });
+    const raw = predictRaw(reduced.state, data.responses[left]!, { poorFitRatio: DEFAULT_POOR_FIT_RATIO, inflate: false });
     predictions++;
     const phi = data.phi[left]!;
     for (let j = 0; j < p; j++) {

@@ -175,6 +175,20 @@ describe('baseline invariance (property, fast-check seed 42; synthetic, known tr
   });
 });
 
+describe('extrapolation (synthetic, known truth)', () => {
+  it('flags a gas above the calibrated range, not one inside it', () => {
+    const model = fitCls(noisyStandards({ seed: 14, rms: 1e-3 }), { baselineOrder: 1 });
+    const result = predictCls(model, scenario.spectrumOf([400, 40, 3000]), { phi: 1 });
+    expect(result.estimates[0]!.flags).toEqual(['extrapolated']);
+    expect(result.estimates[1]!.flags).toEqual([]);
+    // The range is judged on φ-scaled values (what the spectrum shows): a 150 ppm spectrum read
+    // at φ = 0.5 reports 300 ppm, yet its absorbance lies inside the calibrated 0–200 ppm·φ range.
+    const scaled = predictCls(model, scenario.spectrumOf([150, 40, 3000]), { phi: 0.5 });
+    expect(scaled.estimates[0]!.value).toBeCloseTo(300, 0);
+    expect(scaled.estimates[0]!.flags).toEqual([]);
+  });
+});
+
 describe('poor fit (synthetic, known truth)', () => {
   const model = fitCls(noisyStandards({ seed: 6, rms: 1e-3 }), { baselineOrder: 1 });
   const normal = normalGenerator(17);
@@ -314,7 +328,7 @@ describe('input validation names the standard, channel or component', () => {
       code: 'INVALID_VALUE',
       pattern: /spectra\[3\] \(standard 4\) channel 17 = NaN, must be a finite number/,
     },
-    { name: 'wrong spectrum length', data: { spectra: base.spectra.map((s, i) => (i === 2 ? s.subarray(1) : s)) }, code: 'INVALID_VALUE', pattern: /spectra\[2\] \(standard 3\) has 500 channels, must have 501/ },
+    { name: 'wrong spectrum length', data: { spectra: base.spectra.map((s, i) => (i === 2 ? Array.from(s).slice(1) : s)) }, code: 'INVALID_VALUE', pattern: /spectra\[2\] \(standard 3\) has 500 channels, must have 501/ },
     {
       name: 'negative concentration',
       data: { concentrations: base.concentrations.map((c, i) => (i === 1 ? [c[0]!, -5, c[2]!] : c)) },
