@@ -1,10 +1,10 @@
 /**
  * Decimal numbers read straight from bytes, correctly rounded, without making a string per value.
  *
- * Fast path (Clinger 1990, "How to read floating point numbers accurately"): a decimal with at
- * most 15 significant digits has an integer mantissa m < 10^15 < 2^53, exact as a double; when
- * the decimal exponent e satisfies |e| ≤ 22, 10^|e| is exact as well, so m·10^e or m/10^−e is one
- * IEEE operation and therefore correctly rounded. Every other literal (more digits, larger
+ * Fast path (Clinger 1990, "How to read floating point numbers accurately"): when the digits,
+ * read as one integer m, stay below 2^53, m is exact as a double; when the decimal exponent e
+ * satisfies |e| ≤ 22, 10^|e| is exact as well, so m·10^e or m/10^−e is one IEEE operation and
+ * therefore correctly rounded. Every other literal (more digits, larger
  * exponents, subnormals) falls back to `Number(text)`, which ECMAScript requires to be correctly
  * rounded. The syntax is checked here first, so `Number` only ever sees a plain decimal literal.
  */
@@ -30,8 +30,9 @@ export interface ScanCursor {
   end: number;
 }
 
-const EXACT_POWERS_OF_TEN: readonly number[] = Array.from({ length: 23 }, (_, i) => 10 ** i);
-const MAX_FAST_DIGITS = 15;
+// Parsed from literals, which are correctly rounded (1e0 … 1e22 are exact doubles).
+const EXACT_POWERS_OF_TEN: readonly number[] = Array.from({ length: 23 }, (_, i) => Number(`1e${i}`));
+const TWO_TO_53 = 2 ** 53;
 
 /**
  * Reads one decimal number starting exactly at `start` (no leading blanks are skipped):
@@ -48,71 +49,56 @@ const MAX_FAST_DIGITS = 15;
 export function scanNumber(bytes: Uint8Array, start: number, limit: number, syntax: NumberSyntax, cursor: ScanCursor): number {
   let i = start;
   let negative = false;
-  let c = i < limit ? (bytes[i] as number) : -1;
-  if (c === 0x2d || c === 0x2b) {
-    negative = c === 0x2d;
-    i++;
+  if (i < limit) {
+    const sign = bytes[i] as number;
+    if (sign === 0x2d) {
+      negative = true;
+      i++;
+    } else if (sign === 0x2b) i++;
   }
+  // All digits go into one integer mantissa; it is exact while it stays below 2^53 (it only
+  // grows, so a final value below 2^53 means every step was exact).
   let mantissa = 0;
-  let significant = 0; // significant digits seen (leading zeros excluded)
-  let digits = 0; // all mantissa digits seen
-  let fractionDigits = 0; // digits after the separator that went into `mantissa` or were dropped
+  const integerStart = i;
   while (i < limit) {
-    c = bytes[i] as number;
-    if (c < 0x30 || c > 0x39) break;
-    digits++;
-    if (significant > 0 || c !== 0x30) {
-      significant++;
-      if (significant <= MAX_FAST_DIGITS) mantissa = mantissa * 10 + (c - 0x30);
-    }
+    const digit = (bytes[i] as number) - 0x30;
+    if (digit >>> 0 > 9) break;
+    mantissa = mantissa * 10 + digit;
     i++;
   }
+  let digits = i - integerStart;
+  let fractionDigits = 0;
   if (i < limit && bytes[i] === syntax.decimalByte) {
     i++;
+    const fractionStart = i;
     while (i < limit) {
-      c = bytes[i] as number;
-      if (c < 0x30 || c > 0x39) break;
-      digits++;
-      fractionDigits++;
-      if (significant > 0 || c !== 0x30) {
-        significant++;
-        if (significant <= MAX_FAST_DIGITS) mantissa = mantissa * 10 + (c - 0x30);
-      }
+      const digit = (bytes[i] as number) - 0x30;
+      if (digit >>> 0 > 9) break;
+      mantissa = mantissa * 10 + digit;
       i++;
     }
+    fractionDigits = i - fractionStart;
+    digits += fractionDigits;
   }
   if (digits === 0) {
     cursor.end = start;
     return Number.NaN;
   }
   let exponent = 0;
-  let exponentNegative = false;
   if (syntax.exponent && i < limit && (bytes[i] === 0x65 || bytes[i] === 0x45)) {
-    let j = i + 1;
-    const s = j < limit ? (bytes[j] as number) : -1;
-    if (s === 0x2d || s === 0x2b) {
-      exponentNegative = s === 0x2d;
-      j++;
-    }
-    const exponentStart = j;
-    while (j < limit) {
-      c = bytes[j] as number;
-      if (c < 0x30 || c > 0x39) break;
-      if (exponent < 100_000) exponent = exponent * 10 + (c - 0x30);
-      j++;
-    }
-    if (j > exponentStart) i = j;
+    exponent = scanExponent(bytes, i, limit, cursor);
+    i = cursor.end;
   }
   cursor.end = i;
-  if (significant === 0) return negative ? -0 : 0;
-  if (significant <= MAX_FAST_DIGITS) {
-    // With at most 15 significant digits every fraction digit went into the mantissa.
-    const power = (exponentNegative ? -exponent : exponent) - fractionDigits;
-    if (power >= 0 && power <= 22) {
-      const value = mantissa * (EXACT_POWERS_OF_TEN[power] as number);
-      return negative ? -value : value;
-    }
-    if (power < 0 && power >= -22) {
+  if (mantissa === 0) return negative ? -0 : 0;
+  if (mantissa < TWO_TO_53) {
+    const power = exponent - fractionDigits;
+    if (power >= 0) {
+      if (power <= 22) {
+        const value = mantissa * (EXACT_POWERS_OF_TEN[power] as number);
+        return negative ? -value : value;
+      }
+    } else if (power >= -22) {
       const value = mantissa / (EXACT_POWERS_OF_TEN[-power] as number);
       return negative ? -value : value;
     }
@@ -120,14 +106,37 @@ export function scanNumber(bytes: Uint8Array, start: number, limit: number, synt
   return slowValue(bytes, start, i, syntax);
 }
 
+/** Reads `[eE][+-]?digits` at `marker`; returns the exponent and sets `cursor.end` past it (or at the marker when no digits follow). */
+function scanExponent(bytes: Uint8Array, marker: number, limit: number, cursor: ScanCursor): number {
+  let j = marker + 1;
+  let negative = false;
+  if (j < limit) {
+    const sign = bytes[j];
+    if (sign === 0x2d) {
+      negative = true;
+      j++;
+    } else if (sign === 0x2b) j++;
+  }
+  const digitsStart = j;
+  let exponent = 0;
+  while (j < limit) {
+    const digit = (bytes[j] as number) - 0x30;
+    if (digit >>> 0 > 9) break;
+    if (exponent < 100_000) exponent = exponent * 10 + digit;
+    j++;
+  }
+  if (j === digitsStart) {
+    cursor.end = marker;
+    return 0;
+  }
+  cursor.end = j;
+  return negative ? -exponent : exponent;
+}
+
 /** Correctly rounded fallback: the validated literal as a JavaScript string, given to `Number`. */
 function slowValue(bytes: Uint8Array, start: number, end: number, syntax: NumberSyntax): number {
-  let text = '';
-  for (let k = start; k < end; k++) {
-    const c = bytes[k] as number;
-    text += c === syntax.decimalByte ? '.' : String.fromCharCode(c);
-  }
-  return Number(text);
+  const text = String.fromCharCode.apply(null, bytes.subarray(start, end) as unknown as number[]);
+  return Number(syntax.decimalByte === 0x2e ? text : text.replace(',', '.'));
 }
 
 /**

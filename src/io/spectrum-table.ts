@@ -311,6 +311,200 @@ function resolveLayout(header: string[] | undefined, columnCount: number, option
   return { roles, names, yKind, xUnit };
 }
 
+/** What the row loop needs; passed explicitly so the hot loop keeps its values in registers. */
+interface RowContext {
+  bytes: Uint8Array;
+  length: number;
+  source: string;
+  delimiter: number;
+  decimal: number;
+  decimalDetected: boolean;
+  skipTabs: boolean;
+  quotesRequired: boolean;
+  columnCount: number;
+  names: string[];
+  /** Initial length of the output arrays (they double when full, up to maxPoints). */
+  capacity: number;
+  maxPoints: number;
+  syntax: NumberSyntax;
+  /** Per column: 0 x, 1 y (or sample), 2 background. */
+  roles: number[];
+}
+
+function rowFail(context: RowContext, code: 'PARSE' | 'INVALID_VALUE' | 'NOT_MONOTONIC' | 'LIMIT', line: number, message: string, parameter?: string): never {
+  const source = context.source;
+  throw new BandwrightError(code, `${source} line ${line}: ${message}`, parameter === undefined ? { file: source, line } : { file: source, line, parameter });
+}
+
+function fieldEnd(context: RowContext, start: number, end: number): number {
+  const { bytes, delimiter } = context;
+  let quoted = false;
+  for (let i = start; i < end; i++) {
+    const c = bytes[i];
+    if (c === QUOTE) quoted = !quoted;
+    else if (!quoted && c === delimiter) return i;
+  }
+  return end;
+}
+
+function lineEndAt(context: RowContext, from: number): number {
+  const { bytes, length } = context;
+  let end = bytes.indexOf(LF, from);
+  if (end < 0) end = length;
+  if (end > from && bytes[end - 1] === CR) end--;
+  return end;
+}
+
+/** Diagnoses a field that is not a number and throws the most specific message. */
+function badField(context: RowContext, line: number, column: number, start: number, lineEnd: number): never {
+  const { delimiter, decimal } = context;
+  const name = context.names[column] ?? `column ${column + 1}`;
+  const stop = fieldEnd(context, start, lineEnd);
+  let text = textOf(context.bytes, start, stop).trim();
+  if (text.length >= 2 && text.startsWith('"') && text.endsWith('"')) text = text.slice(1, -1);
+  if (text === '') return rowFail(context, 'PARSE', line, `column ${column + 1} (${name}) is empty, must be a number`, name);
+  if (/^[+-]?(nan|inf|infinity)$/i.test(text)) {
+    return rowFail(context, 'INVALID_VALUE', line, `column ${column + 1} (${name}) = ${JSON.stringify(text)}, must be a finite number`, name);
+  }
+  for (const other of [TAB, SEMICOLON, COMMA]) {
+    // A stray comma in a tab/semicolon table is a decimal-separator problem, reported below.
+    if (other === COMMA && delimiter !== COMMA) continue;
+    if (other !== delimiter && other !== decimal && text.includes(String.fromCharCode(other))) {
+      return rowFail(context, 'PARSE', line, `${delimiterName(other)} found in ${JSON.stringify(text)} but the delimiter is ${delimiterName(delimiter)}; mixed delimiters`, name);
+    }
+  }
+  const hint =
+    decimal !== COMMA && text.includes(',')
+      ? ` (the decimal separator is '.'; for a decimal comma use ';' or tab as the delimiter${delimiter === COMMA ? ', or quote every field, since a decimal comma with a comma delimiter is ambiguous' : ''})`
+      : decimal === COMMA && text.includes('.')
+        ? ` (the decimal separator is ','${context.decimalDetected ? ', detected from commas in the data' : ''}; a '.' is not accepted with it, nor is digit grouping)`
+        : '';
+  return rowFail(context, 'PARSE', line, `column ${column + 1} (${name}) = ${JSON.stringify(text)}, not a number; must be a decimal such as 2143.5 or 1.2e-3${hint}`, name);
+}
+
+function grown(array: Float64Array, capacity: number): Float64Array<ArrayBuffer> {
+  const bigger = new Float64Array(capacity);
+  bigger.set(array);
+  return bigger;
+}
+
+/**
+ * The data rows: one pass per line, numbers scanned up to the buffer's end (a line break is not a
+ * digit, so no number runs past its line); the line end is looked for only to explain an error.
+ * Checks monotonic x as it goes, so the message names the line.
+ */
+function readRows(
+  context: RowContext,
+  start: number,
+  firstLine: number,
+): { n: number; direction: number; xs: Float64Array; ys: Float64Array; backgrounds: Float64Array } {
+  const { bytes, length, delimiter, skipTabs, quotesRequired, columnCount, syntax, roles, maxPoints } = context;
+  let capacity = context.capacity;
+  let xs: Float64Array<ArrayBuffer> = new Float64Array(capacity);
+  let ys: Float64Array<ArrayBuffer> = new Float64Array(capacity);
+  let backgrounds: Float64Array<ArrayBuffer> = new Float64Array(columnCount === 3 ? capacity : 0);
+  const cursor: ScanCursor = { end: 0 };
+  const lastColumn = columnCount - 1;
+  let n = 0;
+  let direction = 0;
+  let blankLine = 0;
+  let pos = start;
+  let lineNumber = firstLine - 1;
+  while (pos < length) {
+    lineNumber++;
+    let p = pos;
+    let c = bytes[p] as number;
+    while (c === SPACE || (skipTabs && c === TAB)) c = bytes[++p] as number;
+    if (p >= length || c === LF || c === CR) {
+      const end = lineEndAt(context, pos);
+      if (end > p) rowFail(context, 'PARSE', lineNumber, 'a carriage return inside the line; lines end with LF or CRLF');
+      pos = end < length && bytes[end] === CR ? end + 2 : end + 1;
+      if (blankLine === 0) blankLine = lineNumber;
+      continue;
+    }
+    if (blankLine !== 0) rowFail(context, 'PARSE', lineNumber, `data after the blank line ${blankLine}; the data lines of a table must be contiguous`);
+    if (c === HASH) rowFail(context, 'PARSE', lineNumber, 'comment line inside the data; # comments are allowed only before the data');
+    if (n === capacity) {
+      if (capacity >= maxPoints) rowFail(context, 'LIMIT', lineNumber, `more than ${maxPoints} data points, the limit (maxPoints)`);
+      capacity = Math.min(maxPoints, capacity * 2);
+      xs = grown(xs, capacity);
+      ys = grown(ys, capacity);
+      if (columnCount === 3) backgrounds = grown(backgrounds, capacity);
+    }
+    for (let column = 0; column < columnCount; column++) {
+      c = bytes[p] as number;
+      while (c === SPACE || (skipTabs && c === TAB)) c = bytes[++p] as number;
+      const fieldStart = p;
+      const quoted = c === QUOTE;
+      if (quoted) p++;
+      else if (quotesRequired) {
+        rowFail(
+          context,
+          'PARSE',
+          lineNumber,
+          `column ${column + 1} is not quoted; with a decimal comma and a comma delimiter every field must be quoted ("1234,5","0,25"), otherwise the comma is ambiguous`,
+        );
+      }
+      const value = scanNumber(bytes, p, length, syntax, cursor);
+      if (cursor.end === p) badField(context, lineNumber, column, fieldStart, lineEndAt(context, fieldStart));
+      p = cursor.end;
+      if (quoted) {
+        if (bytes[p] !== QUOTE) badField(context, lineNumber, column, fieldStart, lineEndAt(context, fieldStart));
+        p++;
+      }
+      c = bytes[p] as number;
+      while (c === SPACE || (skipTabs && c === TAB)) c = bytes[++p] as number;
+      if (column < lastColumn) {
+        if (c !== delimiter) {
+          const end = lineEndAt(context, fieldStart);
+          if (p >= end) rowFail(context, 'PARSE', lineNumber, `${column + 1} field(s), expected ${columnCount} (${context.names.join(', ')})`);
+          badField(context, lineNumber, column, fieldStart, end);
+        }
+        p++;
+      } else {
+        if (c === CR && (p + 1 >= length || bytes[p + 1] === LF)) p++;
+        if (p < length && bytes[p] !== LF) {
+          const end = lineEndAt(context, fieldStart);
+          if (p < end && bytes[p] === delimiter) {
+            let fields = columnCount;
+            for (let k = p; k < end; k = fieldEnd(context, k + 1, end)) fields++;
+            const hint = context.decimal !== COMMA && delimiter === COMMA ? '; if the numbers use a decimal comma, a comma delimiter is ambiguous: use ; or tab, or quote every field' : '';
+            rowFail(context, 'PARSE', lineNumber, `${fields} fields, expected ${columnCount} (${context.names.join(', ')})${hint}`);
+          }
+          if (p >= end) rowFail(context, 'PARSE', lineNumber, 'a carriage return inside the line; lines end with LF or CRLF');
+          badField(context, lineNumber, column, fieldStart, end);
+        }
+      }
+      if (value - value !== 0) {
+        const name = context.names[column] ?? `column ${column + 1}`;
+        rowFail(context, 'INVALID_VALUE', lineNumber, `column ${column + 1} (${name}) = ${JSON.stringify(textOf(bytes, fieldStart, cursor.end).trim())} overflows a double, must be a finite number`, name);
+      }
+      const role = roles[column];
+      if (role === 0) xs[n] = value;
+      else if (role === 1) ys[n] = value;
+      else backgrounds[n] = value;
+    }
+    pos = p + 1;
+    if (n > 0) {
+      const step = (xs[n] as number) - (xs[n - 1] as number);
+      if (step === 0) rowFail(context, 'NOT_MONOTONIC', lineNumber, `x = ${xs[n]} repeats the previous line's x; duplicate x value`, context.names[0]);
+      const sign = step > 0 ? 1 : -1;
+      if (direction === 0) direction = sign;
+      else if (sign !== direction) {
+        rowFail(
+          context,
+          'NOT_MONOTONIC',
+          lineNumber,
+          `x = ${xs[n]} after ${xs[n - 1]} reverses the ${direction > 0 ? 'ascending' : 'descending'} order; x values must be strictly increasing or strictly decreasing`,
+          context.names[0],
+        );
+      }
+    }
+    n++;
+  }
+  return { n, direction, xs, ys, backgrounds };
+}
+
 /**
  * Refuses UTF-16 text (as spreadsheet "Unicode text" exports write it), which would otherwise
  * fail on its first NUL byte with a puzzling message.
@@ -473,140 +667,35 @@ export function parseSpectrumTable(bytes: Uint8Array, options: SpectrumTableOpti
   const quotesRequired = decimal === COMMA && delimiter === COMMA;
   const skipTabs = delimiter !== TAB;
 
-  // Capacity: at most one point per remaining line.
-  let lines = 1;
-  for (let p = bytes.indexOf(LF, dataStart); p >= 0; p = bytes.indexOf(LF, p + 1)) lines++;
-  const capacity = Math.min(lines, maxPoints);
-  const xs = new Float64Array(capacity);
-  const ys = new Float64Array(capacity);
-  const backgrounds = columnCount === 3 ? new Float64Array(capacity) : undefined;
-  const targets: Float64Array[] = layout.roles.map((role) => (role === 'x' ? xs : role === 'background' ? (backgrounds as Float64Array) : ys));
-  const cursor: ScanCursor = { end: 0 };
-
-  const fail = (code: 'PARSE' | 'INVALID_VALUE' | 'NOT_MONOTONIC' | 'LIMIT', line: number, message: string, parameter?: string): never => {
-    throw new BandwrightError(code, `${source} line ${line}: ${message}`, parameter === undefined ? { file: source, line } : { file: source, line, parameter });
+  // First guess at the number of points from the first data line's length; arrays grow if needed.
+  let firstEnd = bytes.indexOf(LF, dataStart);
+  if (firstEnd < 0) firstEnd = length;
+  const estimate = Math.ceil(((length - dataStart) / Math.max(1, firstEnd - dataStart + 1)) * 1.05) + 16;
+  const capacity = Math.min(estimate, maxPoints);
+  const roles = layout.roles.map((role) => (role === 'x' ? 0 : role === 'background' ? 2 : 1));
+  const context: RowContext = {
+    bytes,
+    length,
+    source,
+    delimiter,
+    decimal,
+    decimalDetected: options.decimal === undefined,
+    skipTabs,
+    quotesRequired,
+    columnCount,
+    names: layout.names,
+    capacity,
+    maxPoints,
+    syntax,
+    roles,
   };
-  const fieldEnd = (start: number, end: number): number => {
-    let quoted = false;
-    for (let i = start; i < end; i++) {
-      const c = bytes[i];
-      if (c === QUOTE) quoted = !quoted;
-      else if (!quoted && c === delimiter) return i;
-    }
-    return end;
-  };
-  const badField = (line: number, column: number, start: number, lineEnd: number): never => {
-    const name = layout.names[column] ?? `column ${column + 1}`;
-    const stop = fieldEnd(start, lineEnd);
-    let text = textOf(bytes, start, stop).trim();
-    if (text.length >= 2 && text.startsWith('"') && text.endsWith('"')) text = text.slice(1, -1);
-    if (text === '') {
-      return fail('PARSE', line, `column ${column + 1} (${name}) is empty, must be a number`, name);
-    }
-    if (/^[+-]?(nan|inf|infinity)$/i.test(text)) {
-      return fail('INVALID_VALUE', line, `column ${column + 1} (${name}) = ${JSON.stringify(text)}, must be a finite number`, name);
-    }
-    for (const other of [TAB, SEMICOLON, COMMA]) {
-      // A stray comma in a tab/semicolon table is a decimal-separator problem, reported below.
-      if (other === COMMA && delimiter !== COMMA) continue;
-      if (other !== delimiter && other !== decimal && text.includes(String.fromCharCode(other))) {
-        return fail(
-          'PARSE',
-          line,
-          `${delimiterName(other)} found in ${JSON.stringify(text)} but the delimiter is ${delimiterName(delimiter)}; mixed delimiters`,
-          name,
-        );
-      }
-    }
-    const hint =
-      decimal !== COMMA && text.includes(',')
-        ? ` (the decimal separator is '.'; for a decimal comma use ';' or tab as the delimiter${delimiter === COMMA ? ', or quote every field, since a decimal comma with a comma delimiter is ambiguous' : ''})`
-        : decimal === COMMA && text.includes('.')
-          ? ` (the decimal separator is ','${options.decimal === undefined ? ', detected from commas in the data' : ''}; a '.' is not accepted with it, nor is digit grouping)`
-          : '';
-    return fail('PARSE', line, `column ${column + 1} (${name}) = ${JSON.stringify(text)}, not a number; must be a decimal such as 2143.5 or 1.2e-3${hint}`, name);
-  };
-
-  let n = 0;
-  let direction = 0;
-  let blankLine = 0;
-  pos = dataStart;
-  lineNumber = dataLineNumber - 1;
-  while (pos < length) {
-    lineNumber++;
-    let lineEnd = bytes.indexOf(LF, pos);
-    if (lineEnd < 0) lineEnd = length;
-    let end = lineEnd;
-    if (end > pos && bytes[end - 1] === CR) end--;
-    let p = pos;
-    pos = lineEnd + 1;
-    while (p < end && (bytes[p] === SPACE || (skipTabs && bytes[p] === TAB))) p++;
-    if (p === end) {
-      if (blankLine === 0) blankLine = lineNumber;
-      continue;
-    }
-    if (blankLine !== 0) fail('PARSE', lineNumber, `data after the blank line ${blankLine}; the data lines of a table must be contiguous`);
-    if (bytes[p] === HASH) fail('PARSE', lineNumber, 'comment line inside the data; # comments are allowed only before the data');
-    if (n === capacity) fail('LIMIT', lineNumber, `more than ${maxPoints} data points, the limit (maxPoints)`);
-    for (let column = 0; column < columnCount; column++) {
-      while (p < end && (bytes[p] === SPACE || (skipTabs && bytes[p] === TAB))) p++;
-      const fieldStart = p;
-      const quoted = p < end && bytes[p] === QUOTE;
-      if (quoted) p++;
-      else if (quotesRequired) {
-        fail(
-          'PARSE',
-          lineNumber,
-          `column ${column + 1} is not quoted; with a decimal comma and a comma delimiter every field must be quoted ("1234,5","0,25"), otherwise the comma is ambiguous`,
-        );
-      }
-      const value = scanNumber(bytes, p, end, syntax, cursor);
-      if (cursor.end === p) badField(lineNumber, column, fieldStart, end);
-      p = cursor.end;
-      if (quoted) {
-        if (p >= end || bytes[p] !== QUOTE) badField(lineNumber, column, fieldStart, end);
-        p++;
-      }
-      while (p < end && (bytes[p] === SPACE || (skipTabs && bytes[p] === TAB))) p++;
-      if (column < columnCount - 1) {
-        if (p >= end) {
-          fail('PARSE', lineNumber, `${column + 1} field(s), expected ${columnCount} (${layout.names.join(', ')})`);
-        }
-        if (bytes[p] !== delimiter) badField(lineNumber, column, fieldStart, end);
-        p++;
-      } else if (p < end) {
-        if (bytes[p] === delimiter) {
-          let fields = columnCount;
-          for (let k = p; k < end; k = fieldEnd(k + 1, end)) fields++;
-          fail('PARSE', lineNumber, `${fields} fields, expected ${columnCount} (${layout.names.join(', ')})${decimal !== COMMA && delimiter === COMMA ? '; if the numbers use a decimal comma, a comma delimiter is ambiguous: use ; or tab, or quote every field' : ''}`);
-        }
-        badField(lineNumber, column, fieldStart, end);
-      }
-      if (value - value !== 0) {
-        const name = layout.names[column] ?? `column ${column + 1}`;
-        fail('INVALID_VALUE', lineNumber, `column ${column + 1} (${name}) = ${JSON.stringify(textOf(bytes, fieldStart, cursor.end).trim())} overflows a double, must be a finite number`, name);
-      }
-      (targets[column] as Float64Array)[n] = value;
-    }
-    if (n > 0) {
-      const step = (xs[n] as number) - (xs[n - 1] as number);
-      if (step === 0) fail('NOT_MONOTONIC', lineNumber, `x = ${xs[n]} repeats the previous line's x; duplicate x value`, layout.names[0]);
-      const sign = step > 0 ? 1 : -1;
-      if (direction === 0) direction = sign;
-      else if (sign !== direction) {
-        fail(
-          'NOT_MONOTONIC',
-          lineNumber,
-          `x = ${xs[n]} after ${xs[n - 1]} reverses the ${direction > 0 ? 'ascending' : 'descending'} order; x values must be strictly increasing or strictly decreasing`,
-          layout.names[0],
-        );
-      }
-    }
-    n++;
-  }
+  const rows = readRows(context, dataStart, dataLineNumber);
+  const { n, xs, ys } = rows;
+  const backgrounds = columnCount === 3 ? rows.backgrounds : undefined;
+  let direction = rows.direction;
   if (n === 0) throw new BandwrightError('PARSE', `${source}: a header but no data lines`, { file: source });
 
-  const trim = (array: Float64Array): Float64Array => (n === capacity ? array : array.slice(0, n));
+  const trim = (array: Float64Array): Float64Array => (n === array.length ? array : array.slice(0, n));
   const x = trim(xs);
   const y = trim(ys);
   const background = backgrounds === undefined ? undefined : trim(backgrounds);
