@@ -475,6 +475,48 @@ class Ordinates {
   }
 }
 
+/**
+ * Decoder state across the data lines of one `##XYDATA` table. `emit` adds one ordinate, or checks
+ * it when it is the Y-check value that opens a line after a line ending in DIF form.
+ */
+class OrdinateStream {
+  readonly out: Ordinates;
+  readonly maxPoints: number;
+  /** The previous line ended in DIF form, so this line's first ordinate repeats its last. */
+  yCheckPending = false;
+  /** Last ordinate of the current line (or the Y-check value). */
+  previous = 0;
+  lastKind = ABSOLUTE;
+  lastDifference = 0;
+  ordinatesOnLine = 0;
+  /** Set when a Y-check value disagrees: [found, expected]. */
+  mismatch: [number, number] | undefined;
+  constructor(capacity: number, maxPoints: number) {
+    this.out = new Ordinates(capacity);
+    this.maxPoints = maxPoints;
+  }
+  startLine(): void {
+    this.ordinatesOnLine = 0;
+  }
+  /** @returns false when the point limit is reached or a Y check fails (see `mismatch`). */
+  emit(value: number, kind: number): boolean {
+    if (this.ordinatesOnLine === 0 && this.yCheckPending) {
+      const expected = this.out.values[this.out.length - 1] as number;
+      if (value !== expected) {
+        this.mismatch = [value, expected];
+        return false;
+      }
+    } else {
+      if (this.out.length >= this.maxPoints) return false;
+      this.out.push(value);
+    }
+    this.previous = value;
+    this.lastKind = kind;
+    this.ordinatesOnLine++;
+    return true;
+  }
+}
+
 /** True when the line [start, end) reads entirely as blank/comma separated AFFN numbers with at least one exponent. */
 function isExponentAffnLine(bytes: Uint8Array, start: number, end: number, cursor: ScanCursor): boolean {
   let sawExponent = false;
@@ -501,6 +543,21 @@ function isExponentAffnLine(bytes: Uint8Array, start: number, end: number, curso
   return tokens >= 2;
 }
 
+/** One unit of the last printed digit of the AFFN literal in bytes[start, end) (1 for "4000", 0.01 for "3999.04"). */
+function printedUnitOf(bytes: Uint8Array, start: number, end: number): number {
+  let fraction = -1;
+  let exponent = 0;
+  for (let i = start; i < end; i++) {
+    const c = bytes[i] as number;
+    if (c === 0x2e) fraction = 0;
+    else if (c === 0x45 || c === 0x65) {
+      exponent = parseNumberText(String.fromCharCode.apply(null, bytes.subarray(i + 1, end) as unknown as number[]));
+      break;
+    } else if (fraction >= 0 && c >= 0x30 && c <= 0x39) fraction++;
+  }
+  return 10 ** ((Number.isFinite(exponent) ? exponent : 0) - Math.max(0, fraction));
+}
+
 interface LineStart {
   line: number;
   x: number;
@@ -513,16 +570,12 @@ function decodeXyData(bytes: Uint8Array, record: Record_, header: Header, source
   if (format !== '(X++(Y..Y))') {
     throw new BandwrightError('PARSE', `${source} line ${record.line}: ##XYDATA=${record.value} not supported; only (X++(Y..Y))`, { file: source, line: record.line });
   }
-  const out = new Ordinates(header.nPoints ?? 1024);
+  const stream = new OrdinateStream(header.nPoints ?? 1024, maxPoints);
   const lineStarts: LineStart[] = [];
   const cursor: ScanCursor = { end: 0 };
-  let yCheckPending = false;
   let lineNumber = record.line;
   let pos = record.dataStart;
   const stop = record.dataEnd;
-  const fail = (code: 'PARSE' | 'YCHECK' | 'LIMIT', message: string): never => {
-    throw new BandwrightError(code, `${source} line ${lineNumber}: ${message}`, { file: source, line: lineNumber });
-  };
   while (pos < stop) {
     lineNumber++;
     let lineEnd = bytes.indexOf(LF, pos);
@@ -537,28 +590,11 @@ function decodeXyData(bytes: Uint8Array, record: Record_, header: Header, source
     while (p < end && (bytes[p] === SPACE || bytes[p] === TAB)) p++;
     while (end > p && (bytes[end - 1] === SPACE || bytes[end - 1] === TAB)) end--;
     if (p === end) continue;
-
-    const lineBase = out.length;
+    stream.startLine();
+    const lineBase = stream.out.length;
+    const lineIndex = stream.yCheckPending ? lineBase - 1 : lineBase;
     let tokenCount = 0;
-    let previous = 0; // the last ordinate value on this line (or the Y-check value)
-    let lastKind = ABSOLUTE;
-    let lastDifference = 0;
     let lastWasDup = false;
-    let ordinatesOnLine = 0;
-    const ordinate = (value: number, kind: number): void => {
-      if (ordinatesOnLine === 0 && yCheckPending) {
-        const expected = out.values[out.length - 1] as number;
-        if (value !== expected) {
-          fail('YCHECK', `Y-check value ${value} differs from the last ordinate of the previous data line (${expected}); the DIF data are corrupt or a line is missing`);
-        }
-      } else {
-        if (out.length >= maxPoints) fail('LIMIT', `more than ${maxPoints} data points, the limit (maxPoints)`);
-        out.push(value);
-      }
-      previous = value;
-      lastKind = kind;
-      ordinatesOnLine++;
-    };
 
     if (isExponentAffnLine(bytes, p, end, cursor)) {
       while (p < end) {
@@ -570,14 +606,13 @@ function decodeXyData(bytes: Uint8Array, record: Record_, header: Header, source
         const tokenStart = p;
         const value = scanNumber(bytes, p, end, DECIMAL_POINT, cursor);
         p = cursor.end;
-        if (!Number.isFinite(value)) fail('PARSE', `${JSON.stringify(decode(bytes, tokenStart, p))} overflows a double`);
-        if (tokenCount === 0) {
-          lineStarts.push({ line: lineNumber, x: value, index: yCheckPending ? lineBase - 1 : lineBase, printedUnit: lastDigitUnit(decode(bytes, tokenStart, p)) });
-        } else ordinate(value, ABSOLUTE);
+        if (!Number.isFinite(value)) dataError(source, lineNumber, 'PARSE', `${JSON.stringify(decode(bytes, tokenStart, p))} overflows a double`);
+        if (tokenCount === 0) lineStarts.push({ line: lineNumber, x: value, index: lineIndex, printedUnit: printedUnitOf(bytes, tokenStart, p) });
+        else if (!stream.emit(value, ABSOLUTE)) emitError(stream, source, lineNumber);
         tokenCount++;
       }
-      if (ordinatesOnLine === 0) fail('PARSE', 'a data line needs an X value and at least one ordinate');
-      yCheckPending = false;
+      if (stream.ordinatesOnLine === 0) dataError(source, lineNumber, 'PARSE', 'a data line needs an X value and at least one ordinate');
+      stream.yCheckPending = false;
       continue;
     }
 
@@ -592,7 +627,7 @@ function decodeXyData(bytes: Uint8Array, record: Record_, header: Header, source
       let kind: number; // 0 absolute, 1 difference, 2 duplicate count
       if ((c >= 0x30 && c <= 0x39) || c === 0x2e || c === 0x2b || c === 0x2d) {
         value = scanNumber(bytes, p, end, DECIMAL_POINT_NO_EXPONENT, cursor);
-        if (cursor.end === p) fail('PARSE', `${JSON.stringify(decode(bytes, p, Math.min(end, p + 12)))} is not a number`);
+        if (cursor.end === p) dataError(source, lineNumber, 'PARSE', `${JSON.stringify(decode(bytes, p, Math.min(end, p + 12)))} is not a number`);
         p = cursor.end;
         kind = 0;
       } else {
@@ -622,53 +657,76 @@ function decodeXyData(bytes: Uint8Array, record: Record_, header: Header, source
           first = 9;
           kind = 2;
         } else if (c === 0x3f) {
-          return fail('PARSE', `'?' (a missing value) at column ${p - lineStart + 1}; a spectrum needs every ordinate`);
+          return dataError(source, lineNumber, 'PARSE', `'?' (a missing value) at column ${p - lineStart + 1}; a spectrum needs every ordinate`);
         } else {
-          return fail('PARSE', `unexpected character ${JSON.stringify(String.fromCharCode(c))} at column ${p - lineStart + 1}; not AFFN, SQZ, DIF or DUP`);
+          return dataError(source, lineNumber, 'PARSE', `unexpected character ${JSON.stringify(String.fromCharCode(c))} at column ${p - lineStart + 1}; not AFFN, SQZ, DIF or DUP`);
         }
         p++;
         const negative = first < 0;
         let magnitude = negative ? -first : first;
         while (p < end) {
-          const d = bytes[p] as number;
-          if (d < 0x30 || d > 0x39) break;
-          magnitude = magnitude * 10 + (d - 0x30);
+          const digit = (bytes[p] as number) - 0x30;
+          if (digit >>> 0 > 9) break;
+          magnitude = magnitude * 10 + digit;
           p++;
         }
-        if (p < end && bytes[p] === 0x2e) fail('PARSE', `decimal point after the ASDF value ${JSON.stringify(decode(bytes, tokenStart, p + 1))}; SQZ, DIF and DUP values are integers`);
+        if (p < end && bytes[p] === 0x2e) {
+          dataError(source, lineNumber, 'PARSE', `decimal point after the ASDF value ${JSON.stringify(decode(bytes, tokenStart, p + 1))}; SQZ, DIF and DUP values are integers`);
+        }
         value = negative ? -magnitude : magnitude;
       }
-      if (!Number.isFinite(value)) fail('PARSE', `${JSON.stringify(decode(bytes, tokenStart, p))} overflows a double`);
+      if (!Number.isFinite(value)) dataError(source, lineNumber, 'PARSE', `${JSON.stringify(decode(bytes, tokenStart, p))} overflows a double`);
       if (tokenCount === 0) {
-        if (kind !== 0) fail('PARSE', `the line starts with ${JSON.stringify(decode(bytes, tokenStart, p))}, must start with the X value (AFFN or SQZ)`);
-        lineStarts.push({ line: lineNumber, x: value, index: yCheckPending ? lineBase - 1 : lineBase, printedUnit: c >= 0x40 ? 1 : lastDigitUnit(decode(bytes, tokenStart, p)) });
+        if (kind !== 0) dataError(source, lineNumber, 'PARSE', `the line starts with ${JSON.stringify(decode(bytes, tokenStart, p))}, must start with the X value (AFFN or SQZ)`);
+        lineStarts.push({ line: lineNumber, x: value, index: lineIndex, printedUnit: c >= 0x40 ? 1 : printedUnitOf(bytes, tokenStart, p) });
         tokenCount++;
         continue;
       }
       tokenCount++;
       if (kind === 0) {
-        ordinate(value, ABSOLUTE);
+        if (!stream.emit(value, ABSOLUTE)) emitError(stream, source, lineNumber);
         lastWasDup = false;
       } else if (kind === 1) {
-        if (ordinatesOnLine === 0) fail('PARSE', `DIF value ${JSON.stringify(decode(bytes, tokenStart, p))} is the first ordinate of the line; the first ordinate must be absolute (SQZ or AFFN)`);
-        lastDifference = value;
-        ordinate(previous + value, DIFFERENCE);
+        if (stream.ordinatesOnLine === 0) {
+          dataError(source, lineNumber, 'PARSE', `DIF value ${JSON.stringify(decode(bytes, tokenStart, p))} is the first ordinate of the line; the first ordinate must be absolute (SQZ or AFFN)`);
+        }
+        stream.lastDifference = value;
+        if (!stream.emit(stream.previous + value, DIFFERENCE)) emitError(stream, source, lineNumber);
         lastWasDup = false;
       } else {
-        if (ordinatesOnLine === 0 || lastWasDup) {
-          fail('PARSE', `DUP count ${JSON.stringify(decode(bytes, tokenStart, p))} ${lastWasDup ? 'follows another DUP' : 'has no value before it to repeat'}`);
+        if (stream.ordinatesOnLine === 0 || lastWasDup) {
+          dataError(source, lineNumber, 'PARSE', `DUP count ${JSON.stringify(decode(bytes, tokenStart, p))} ${lastWasDup ? 'follows another DUP' : 'has no value before it to repeat'}`);
         }
-        if (value < 1) fail('PARSE', `DUP count ${value}, must be >= 1`);
-        if (out.length + value - 1 > maxPoints) fail('LIMIT', `DUP count ${value} gives more than ${maxPoints} data points, the limit (maxPoints)`);
-        const kindRepeated = lastKind;
-        for (let k = 1; k < value; k++) ordinate(kindRepeated === DIFFERENCE ? previous + lastDifference : previous, kindRepeated);
+        if (value < 1) dataError(source, lineNumber, 'PARSE', `DUP count ${value}, must be >= 1`);
+        if (stream.out.length + value - 1 > maxPoints) dataError(source, lineNumber, 'LIMIT', `DUP count ${value} gives more than ${maxPoints} data points, the limit (maxPoints)`);
+        const repeated = stream.lastKind;
+        for (let k = 1; k < value; k++) {
+          const next = repeated === DIFFERENCE ? stream.previous + stream.lastDifference : stream.previous;
+          if (!stream.emit(next, repeated)) emitError(stream, source, lineNumber);
+        }
         lastWasDup = true;
       }
     }
-    if (ordinatesOnLine === 0) fail('PARSE', 'a data line needs an X value and at least one ordinate');
-    yCheckPending = lastKind === DIFFERENCE;
+    if (stream.ordinatesOnLine === 0) dataError(source, lineNumber, 'PARSE', 'a data line needs an X value and at least one ordinate');
+    stream.yCheckPending = stream.lastKind === DIFFERENCE;
   }
-  return { y: out.values.slice(0, out.length), lineStarts };
+  return { y: stream.out.values.slice(0, stream.out.length), lineStarts };
+}
+
+function dataError(source: string, line: number, code: 'PARSE' | 'LIMIT', message: string): never {
+  throw new BandwrightError(code, `${source} line ${line}: ${message}`, { file: source, line });
+}
+
+function emitError(stream: OrdinateStream, source: string, line: number): never {
+  if (stream.mismatch !== undefined) {
+    const [found, expected] = stream.mismatch;
+    throw new BandwrightError(
+      'YCHECK',
+      `${source} line ${line}: Y-check value ${found} differs from the last ordinate of the previous data line (${expected}); the DIF data are corrupt or a line is missing`,
+      { file: source, line },
+    );
+  }
+  return dataError(source, line, 'LIMIT', `more than ${stream.maxPoints} data points, the limit (maxPoints)`);
 }
 
 // ---------------------------------------------------------------- XYPOINTS (AFFN pairs)
