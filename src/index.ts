@@ -35,13 +35,16 @@ export { GENERAL_CAUTION, cautionFor, cautionsFor, exceededLimits, type Exposure
 // Statistics and models
 export { leastSquares, solveLeastSquaresMany, type LeastSquaresFit } from './stats/least-squares.js';
 export { tQuantile, fQuantile, tCdf, fCdf } from './stats/distributions.js';
-export { fitUnivariate, predictConcentration, type UnivariateModel } from './models/univariate.js';
+export { fitUnivariate, predictConcentration, responseBand, type UnivariateModel } from './models/univariate.js';
+export { fitCls, predictCls, type ClsModel, type ClsPrediction } from './models/cls.js';
+export { fitBandCls, predictBandCls, type BandClsModel } from './models/band-cls.js';
 
 // Calibrations
 export { parseMethod, parseResponseMethod, DEFAULT_RECHECK, type Method, type BandMethod, type ResponseMethod, type ClsMethod, type CurveForm, type WeightScheme } from './calibration/method.js';
-export { SCHEMA_VERSION, calibrationHash, sealCalibration, verifyCalibration, canonicalJson, type Calibration, type CalibrationInput, type GasCalibration } from './calibration/calibration.js';
+export { SCHEMA_VERSION, reportedGases, calibrationHash, sealCalibration, verifyCalibration, canonicalJson, type Calibration, type CalibrationInput, type GasCalibration, type ClsCalibration } from './calibration/calibration.js';
+export { buildClsCalibration, channelsFromScan, onChannels } from './calibration/build-cls.js';
 export { buildBandCalibration, buildResponseCalibration, type StandardScan, type BuildContext, type ResponseRow } from './calibration/build.js';
-export { quantifyScan, quantifyBandScan, quantifyResponses, type QuantifyOptions } from './calibration/quantify.js';
+export { quantifyScan, quantifyBandScan, quantifyClsScan, quantifyResponses, type QuantifyOptions } from './calibration/quantify.js';
 export { decorateGases, type GasResult, type ScanResult, type ResultFlag, type ReportingOptions, type Conversion } from './calibration/result.js';
 
 // Files

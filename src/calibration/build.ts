@@ -57,7 +57,13 @@ function certifiedIn(standard: StandardScan, gas: string, unit: ConcentrationUni
   return fromPpm(toPpm(value.value, value.unit), unit);
 }
 
-function referenceConditions(given: PartialConditions, conditions: readonly CellConditions[]): CellConditions {
+/**
+ * Reference conditions of a calibration: those the method gives, the standards' medians for the rest.
+ *
+ * @param given - from the method
+ * @param conditions - the standards' conditions
+ */
+export function referenceConditions(given: PartialConditions, conditions: readonly CellConditions[]): CellConditions {
   const median = medianConditions(conditions);
   return {
     pathLength_m: given.pathLength_m ?? median.pathLength_m,
@@ -149,7 +155,7 @@ export function buildBandCalibration(method: BandMethod, standards: readonly Sta
     schemaVersion: SCHEMA_VERSION,
     tool: { name: TOOL.name, version: TOOL.version },
     createdAt: context.createdAt ?? new Date().toISOString(),
-    ...(context.title === undefined ? {} : { title: context.title }),
+    ...titleOf(context, method),
     method,
     reference,
     gases,
@@ -158,6 +164,17 @@ export function buildBandCalibration(method: BandMethod, standards: readonly Sta
     warnings,
     cautions: cautionsFor(method.gases.map((g) => g.name)),
   });
+}
+
+/**
+ * The calibration's title: the command line's, else the method's, else none.
+ *
+ * @param context - build context
+ * @param method - the method
+ */
+export function titleOf(context: BuildContext, method: { title?: string }): { title?: string } {
+  const title = context.title ?? method.title;
+  return title === undefined ? {} : { title };
 }
 
 /** One row of a responses table. */
@@ -198,7 +215,7 @@ export function buildResponseCalibration(method: ResponseMethod, rows: readonly 
     schemaVersion: SCHEMA_VERSION,
     tool: { name: TOOL.name, version: TOOL.version },
     createdAt: context.createdAt ?? new Date().toISOString(),
-    ...(context.title === undefined ? {} : { title: context.title }),
+    ...titleOf(context, method),
     method,
     reference,
     gases: [gas],

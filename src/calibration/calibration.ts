@@ -8,6 +8,7 @@ import { createHash } from 'node:crypto';
 import { BandwrightError } from '../errors.js';
 import type { CellConditions } from '../gas/conditions.js';
 import type { ConcentrationUnit } from '../gas/units.js';
+import type { ClsModel } from '../models/cls.js';
 import type { UnivariateModel } from '../models/univariate.js';
 import type { Window } from '../bands/windows.js';
 import type { CurveForm, Method, ResponseKind, WeightScheme } from './method.js';
@@ -18,7 +19,7 @@ export const SCHEMA_VERSION = '1.0';
 /** An input file the calibration was built from. */
 export interface CalibrationInput {
   /** What the file was. */
-  role: 'manifest' | 'method' | 'standard' | 'responses';
+  role: 'manifest' | 'method' | 'standard' | 'background' | 'responses';
   /** Path relative to the calibration file's folder (or absolute when on another volume). */
   path: string;
   /** SHA-256 of the file's bytes, hex. */
@@ -73,6 +74,20 @@ export interface GasCalibration {
   zeroGasLimit?: ZeroGasLimit;
 }
 
+/** A classical-least-squares calibration of several components over spectral regions. */
+export interface ClsCalibration {
+  /** The fitted model (channel grid, pure spectra, prediction matrix, statistics, cross-validation). */
+  model: ClsModel;
+  /** Spectral regions, cm⁻¹. */
+  regions: Window[];
+  /**
+   * Detection limit of each reported gas at the reference conditions, in its unit: 3.3 × the
+   * prediction standard error of a blank (ICH Q2 form with σ from the model's own prediction
+   * uncertainty); a sample's limit is this ÷ its φ.
+   */
+  detectionLimits: Record<string, number>;
+}
+
 /** Everything in a calibration file except its own hash. */
 export interface CalibrationBody {
   /** Schema version, `major.minor`. */
@@ -87,8 +102,10 @@ export interface CalibrationBody {
   method: Method;
   /** Reference conditions responses are scaled to. */
   reference: CellConditions;
-  /** Univariate gas calibrations (band and response methods). */
+  /** Univariate gas calibrations (band and response methods); empty for classical least squares. */
   gases: GasCalibration[];
+  /** The classical-least-squares model, for `cls` methods. */
+  cls?: ClsCalibration;
   /** The standards. */
   standards: CalibrationStandard[];
   /** Input files and their hashes. */
@@ -177,4 +194,17 @@ export function verifyCalibration(value: unknown, source: string): Calibration {
     );
   }
   return record as unknown as Calibration;
+}
+
+/**
+ * The gases a calibration reports, with their units, whatever its kind.
+ *
+ * @param calibration - any calibration
+ * @returns gases in calibration order
+ */
+export function reportedGases(calibration: CalibrationBody): { gas: string; unit: ConcentrationUnit }[] {
+  if (calibration.cls !== undefined) {
+    return calibration.cls.model.components.filter((c) => c.reported).map((c) => ({ gas: c.name, unit: c.unit as ConcentrationUnit }));
+  }
+  return calibration.gases.map((g) => ({ gas: g.gas, unit: g.unit }));
 }

@@ -31,6 +31,8 @@ export const DEFAULT_SATURATION_ABSORBANCE = 1.0;
 
 /** Settings shared by every method kind. */
 export interface MethodCommon {
+  /** Title, e.g. the analysis and the cell. */
+  title?: string;
   /** Recheck schedule. */
   recheck: RecheckPolicy;
   /** Reference conditions to scale to; fields not given come from the standards' medians. */
@@ -98,8 +100,11 @@ export interface ClsMethod extends MethodCommon {
   regions: Window[];
   /** Baseline polynomial order per region (0–3). */
   baselineOrder: number;
-  /** Fit a constant background spectrum as an extra component. */
-  background: boolean;
+  /**
+   * A constant background spectrum (absorbance) given a free coefficient in every spectrum, e.g.
+   * a window deposit or a purge impurity: path relative to the method file, or absent.
+   */
+  background?: string;
 }
 
 /** Any method. */
@@ -183,7 +188,9 @@ function parseCommon(check: Checker, root: Record<string, Json>): MethodCommon {
   for (const field of ['pathLength_m', 'temperature_K', 'pressure_kPa'] as const) {
     if (referenceRaw[field] !== undefined) reference[field] = check.number(referenceRaw[field], `reference.${field}`, (n) => n > 0, 'must be > 0');
   }
+  if (root.title !== undefined && typeof root.title !== 'string') check.fail('title', root.title, 'must be text');
   return {
+    ...(typeof root.title === 'string' ? { title: root.title } : {}),
     recheck,
     reference,
     saturationAbsorbance: root.saturationAbsorbance === undefined ? DEFAULT_SATURATION_ABSORBANCE : check.number(root.saturationAbsorbance, 'saturationAbsorbance', (n) => n > 0, 'must be an absorbance > 0'),
@@ -259,14 +266,16 @@ export function parseMethod(value: Json, source: string): Method {
       }
     }
   });
-  if (root.background !== undefined && typeof root.background !== 'boolean') check.fail('background', root.background, 'must be true or false');
+  if (root.background !== undefined && (typeof root.background !== 'string' || root.background.trim() === '')) {
+    check.fail('background', root.background, 'must be the path of a background absorbance scan, relative to the method file');
+  }
   return {
     model: 'cls',
     gases,
     interferents,
     regions: [...regions].sort((a, b) => a[0] - b[0]),
     baselineOrder: check.integer(root.baselineOrder, 'baselineOrder', 0, 3, 1),
-    background: root.background === true,
+    ...(typeof root.background === 'string' ? { background: root.background } : {}),
     ...common,
   };
 }

@@ -11,8 +11,11 @@ import { measureBand } from '../bands/band.js';
 import { BandwrightError } from '../errors.js';
 import { conditionsFarReasons, densityPathFactor, resolveConditions, type CellConditions, type PartialConditions } from '../gas/conditions.js';
 import { cautionsFor } from '../gas/safety.js';
+import { toPpm } from '../gas/units.js';
+import { predictCls } from '../models/cls.js';
 import { predictConcentration } from '../models/univariate.js';
 import { toAbsorbance, type Spectrum } from '../spectrum/spectrum.js';
+import { onChannels } from './build-cls.js';
 import type { Calibration, GasCalibration } from './calibration.js';
 import { decorateGases, type GasResult, type ReportingOptions, type ResultFlag, type ScanResult } from './result.js';
 
@@ -93,11 +96,7 @@ export function quantifyBandScan(calibration: Calibration, spectrum: Spectrum, o
     throw new BandwrightError('INVALID_VALUE', `the calibration is a ${calibration.method.model} calibration; quantifyBandScan needs a band calibration`);
   }
   const level = checkLevel(options.level ?? 0.95);
-  const scan = spectrum.metadata.source ?? 'scan';
-  const resolved = resolveConditions({ manifest: options.givenConditions, scan: spectrum.metadata, options: options.defaultConditions }, scan);
-  const conditions: CellConditions = { pathLength_m: resolved.pathLength_m, temperature_K: resolved.temperature_K, pressure_kPa: resolved.pressure_kPa };
-  const phi = densityPathFactor(conditions, calibration.reference);
-  const far = conditionsFarReasons(conditions, calibration.reference);
+  const { scan, conditions, phi, far } = scanConditions(calibration, spectrum, options);
   const absorbance = toAbsorbance(spectrum);
   const gases: GasResult[] = [];
   let baselineRms = 0;
@@ -125,6 +124,83 @@ export function quantifyBandScan(calibration: Calibration, spectrum: Spectrum, o
     residualRms: baselineRms,
     cautions: cautionsFor(calibration.gases.map((g) => g.gas)),
     warnings: [],
+  };
+}
+
+/** The scan's conditions, φ and how far they are from the calibration's. */
+function scanConditions(calibration: Calibration, spectrum: Spectrum, options: QuantifyOptions): { scan: string; conditions: CellConditions; phi: number; far: string[] } {
+  const scan = spectrum.metadata.source ?? 'scan';
+  const resolved = resolveConditions({ manifest: options.givenConditions, scan: spectrum.metadata, options: options.defaultConditions }, scan);
+  const conditions: CellConditions = { pathLength_m: resolved.pathLength_m, temperature_K: resolved.temperature_K, pressure_kPa: resolved.pressure_kPa };
+  return { scan, conditions, phi: densityPathFactor(conditions, calibration.reference), far: conditionsFarReasons(conditions, calibration.reference) };
+}
+
+/**
+ * Quantifies one scan with a classical-least-squares calibration: the scan is resampled onto the
+ * calibration's channels, the baseline projected out, and every component estimated together;
+ * reported gases get intervals and flags, interferents are used only for the dry basis (water)
+ * and are listed in the warnings.
+ *
+ * @param calibration - a verified cls calibration
+ * @param spectrum - the sample scan (any y-kind)
+ * @param options - level, conditions, reporting
+ * @returns the scan's result, with the fit's residual RMS (AU)
+ * @throws BandwrightError `WINDOW` naming the scan when it does not cover the regions,
+ *   `CONDITIONS_MISSING`, `CONVERSION`
+ */
+export function quantifyClsScan(calibration: Calibration, spectrum: Spectrum, options: QuantifyOptions = {}): ScanResult {
+  const cls = calibration.cls;
+  if (calibration.method.model !== 'cls' || cls === undefined) {
+    throw new BandwrightError('INVALID_VALUE', `the calibration is a ${calibration.method.model} calibration; quantifyClsScan needs a classical-least-squares calibration`);
+  }
+  const level = checkLevel(options.level ?? 0.95);
+  const { scan, conditions, phi, far } = scanConditions(calibration, spectrum, options);
+  const grid = Float64Array.from(cls.model.grid ?? []);
+  const values = onChannels(spectrum, grid, cls.regions);
+  let peak = 0;
+  for (const v of values) peak = Math.max(peak, v);
+  const prediction = predictCls(cls.model, values, { phi, level });
+  const warnings = [...prediction.warnings];
+  const gases = prediction.estimates.map((estimate): GasResult => {
+    const flags: ResultFlag[] = [...estimate.flags];
+    const notes: string[] = [];
+    if (estimate.flags.includes('extrapolated')) notes.push(`outside the calibrated range of the standards: the model is extrapolated`);
+    const limit = (cls.detectionLimits[estimate.name] ?? Number.NaN) / phi;
+    const result: GasResult = { gas: estimate.name, value: estimate.value, unit: estimate.unit as GasResult['unit'], low: estimate.low, high: estimate.high, se: estimate.se, flags, notes };
+    if (Number.isFinite(limit)) {
+      result.detectionLimit = { value: limit, definition: "3.3 × the prediction standard error of a blank at this scan's conditions (classical least squares)" };
+      if (estimate.value < limit) {
+        flags.push('below-lod');
+        notes.push(`below the detection limit ${limit.toPrecision(3)} ${estimate.unit}: report as "< LOD"`);
+      }
+    }
+    if (prediction.flags.includes('poor-fit')) {
+      flags.push('poor-fit');
+      notes.push(`the fit leaves a residual ${prediction.fitRatio.toFixed(2)}× the calibration's (limit ${prediction.fitRatioLimit.toFixed(2)}): an absorber the method does not model may be present`);
+    }
+    if (peak > calibration.method.saturationAbsorbance) {
+      flags.push('saturated');
+      notes.push(`peak absorbance ${peak.toFixed(3)} in the regions is above ${calibration.method.saturationAbsorbance}: lines saturate`);
+    }
+    if (far.length > 0) {
+      flags.push('conditions-far');
+      notes.push(...far);
+    }
+    return result;
+  });
+  const water = prediction.interferents.find((e) => e.name === 'H2O') ?? prediction.estimates.find((e) => e.name === 'H2O');
+  for (const interferent of prediction.interferents) warnings.push(`interferent ${interferent.name} modelled at ${interferent.value.toPrecision(4)} ${interferent.unit} (not reported)`);
+  const reporting: ReportingOptions =
+    options.dryBasis !== undefined && options.dryBasis.waterFraction === undefined && water !== undefined
+      ? { ...options, dryBasis: { waterFraction: toPpm(water.value, water.unit as GasResult['unit']) * 1e-6, measuredInScan: true } }
+      : options;
+  return {
+    scan,
+    conditions,
+    gases: decorateGases(gases, reporting, conditions.pathLength_m),
+    residualRms: prediction.residualRms,
+    cautions: cautionsFor(cls.model.components.map((c) => c.name)),
+    warnings,
   };
 }
 
@@ -176,6 +252,6 @@ export function quantifyScan(calibration: Calibration, spectrum: Spectrum, optio
     case 'responses':
       throw new BandwrightError('INVALID_VALUE', 'the calibration was built from tabulated responses and cannot read scans; give --response values instead', { parameter: 'scans' });
     case 'cls':
-      throw new BandwrightError('INVALID_VALUE', 'classical-least-squares calibrations are not supported by this build', { parameter: 'calibration' });
+      return quantifyClsScan(calibration, spectrum, options);
   }
 }

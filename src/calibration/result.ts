@@ -76,8 +76,11 @@ export interface ScanResult {
 export interface ReportingOptions {
   /** Report mg/m³ at this state (temperature K, pressure kPa). */
   massConcentration?: ReferenceState;
-  /** Report on a dry basis: water vapour fraction given, or taken from H2O measured in the same scan when omitted. */
-  dryBasis?: { waterFraction?: number };
+  /**
+   * Report on a dry basis: the water vapour mole fraction given (or measured in the same scan, then
+   * `measuredInScan`); when omitted, H2O among the reported gases is used.
+   */
+  dryBasis?: { waterFraction?: number; measuredInScan?: boolean };
   /** Correct to a reference O2 (measured, reference, air in %). */
   oxygen?: { measured_pct: number; reference_pct: number; air_pct?: number };
   /** User exposure limits for the over-limit flag. */
@@ -98,7 +101,7 @@ export interface ReportingOptions {
  */
 export function decorateGases(gases: readonly GasResult[], options: ReportingOptions, pathLength_m: number): GasResult[] {
   let waterFraction = options.dryBasis?.waterFraction;
-  let waterNote = waterFraction === undefined ? '' : `water vapour ${(waterFraction * 100).toFixed(2)} % as given`;
+  let waterNote = waterFraction === undefined ? '' : `water vapour ${(waterFraction * 100).toFixed(2)} % ${options.dryBasis?.measuredInScan ? 'measured in the same scan' : 'as given'}`;
   if (options.dryBasis !== undefined && waterFraction === undefined) {
     const water = gases.find((g) => g.gas === 'H2O');
     if (water === undefined) {

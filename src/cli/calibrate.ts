@@ -7,6 +7,8 @@ import type { Command } from 'commander';
 import {
   BandwrightError,
   buildBandCalibration,
+  buildClsCalibration,
+  readScan,
   buildResponseCalibration,
   loadStandards,
   parseMethod,
@@ -163,7 +165,6 @@ export function registerCalibrate(program: Command, context: CommandContext): vo
       } else {
         if (manifestPath === undefined) throw new BandwrightError('USAGE', 'calibrate: give a manifest of standards (or --responses <table>)', { parameter: 'manifest' });
         const method = options.method !== undefined ? readMethod(options.method) : methodFromFlags(options);
-        if (method.model !== 'band') throw new BandwrightError('USAGE', `calibrate: method model "${method.model}" is not supported by this build`, { parameter: '--method' });
         output = options.output ?? defaultOutput(manifestPath);
         const folder = dirname(resolve(output));
         const manifest = readManifest(manifestPath);
@@ -174,13 +175,24 @@ export function registerCalibrate(program: Command, context: CommandContext): vo
           ...(options.method === undefined ? [] : [{ role: 'method' as const, path: relativeTo(folder, options.method), sha256: sha256OfFile(options.method) }]),
           ...loaded.inputs.map((input) => ({ ...input, path: relativeTo(folder, input.path) })),
         ];
-        calibration = buildBandCalibration(method, loaded.standards, {
+        const context = {
           inputs,
           createdAt,
           defaultConditions: conditionOptions(options),
           warnings: manifest.warnings,
           ...(options.title === undefined ? {} : { title: options.title }),
-        });
+        };
+        if (method.model === 'cls') {
+          // A background spectrum is named relative to the method file.
+          const backgroundPath = method.background === undefined || options.method === undefined ? undefined : join(dirname(options.method), method.background);
+          const background = backgroundPath === undefined ? undefined : readScan(backgroundPath, yKind === undefined ? {} : { yKind });
+          if (backgroundPath !== undefined) inputs.push({ role: 'background', path: relativeTo(folder, backgroundPath), sha256: sha256OfFile(backgroundPath) });
+          calibration = buildClsCalibration(method, loaded.standards, { ...context, ...(background === undefined ? {} : { background }) });
+        } else if (method.model === 'band') {
+          calibration = buildBandCalibration(method, loaded.standards, context);
+        } else {
+          throw new BandwrightError('USAGE', 'calibrate: a responses method needs --responses <table>', { parameter: '--method' });
+        }
       }
       writeCalibration(output, calibration, { force: options.force === true });
       if (options.json) context.stdout.write(`${JSON.stringify(calibration, null, 2)}\n`);

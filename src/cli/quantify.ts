@@ -10,6 +10,7 @@ import {
   quantifyScan,
   quantifyResponses,
   readCalibration,
+  reportedGases,
   readLimits,
   readScan,
   resultsCsv,
@@ -140,7 +141,7 @@ export function registerQuantify(program: Command, context: CommandContext): voi
         if (scanArguments.length === 0) throw new BandwrightError('USAGE', 'quantify: give at least one scan (file, folder, glob or -), or --response', { parameter: 'scans' });
         entries = quantifyScans(calibration, expandScanArguments(scanArguments), options, flags.yKind);
       }
-      const gases = calibration.gases.map((g) => ({ gas: g.gas, unit: options.unit ?? g.unit }));
+      const gases = reportedGases(calibration).map((g) => ({ gas: g.gas, unit: options.unit ?? g.unit }));
       if (flags.csv !== undefined) {
         writeFileAtomic(flags.csv, resultsCsv(entries, gases, calibration.sha256), { overwrite: flags.force === true, createFolder: true });
         note(context, `results written to ${flags.csv}`);

@@ -2,7 +2,7 @@
  * A calibration described in plain text: per gas the curve, its statistics, the linearity
  * verdict and the limits (each with its definition), then conditions, schedule, warnings and cautions.
  */
-import type { Calibration, GasCalibration } from '../calibration/calibration.js';
+import type { Calibration, ClsCalibration, GasCalibration } from '../calibration/calibration.js';
 import { formatWindow } from '../bands/windows.js';
 import { unitLabel } from '../gas/units.js';
 import { formatNumber } from './table.js';
@@ -34,6 +34,30 @@ function gasSummary(gas: GasCalibration): string[] {
   return lines;
 }
 
+function clsSummary(cls: ClsCalibration): string[] {
+  const model = cls.model;
+  const statistics = model.calibration;
+  const lines = [
+    `classical least squares over ${cls.regions.map(formatWindow).join(', ')} (${model.channelCount} channels), baseline order ${model.baselineOrder} per region${model.background === null ? '' : ', with a background spectrum'}`,
+    `  ${statistics.standards} standards; residual RMS ${formatNumber(statistics.residualRms, 3)} AU; condition numbers: concentrations ${formatNumber(statistics.conditionConcentrations, 3)}, pure spectra ${formatNumber(statistics.conditionPureSpectra, 3)}`,
+  ];
+  model.components.forEach((component, i) => {
+    const range = model.ranges[i];
+    const rmsecv = model.crossValidation.rmsecv[i];
+    const inflation = model.crossValidation.inflation[i] ?? 1;
+    const second = model.terms.some((t) => t.component === i && t.power === 2);
+    const limit = cls.detectionLimits[component.name];
+    const unit = component.unit === 'pct' ? '%' : component.unit;
+    lines.push(
+      `  ${component.name}${component.reported ? '' : ' (interferent, not reported)'}: ${second ? 'first and second order' : 'first order'}, standards ${range === undefined ? '?' : `${formatNumber(range.min)}–${formatNumber(range.max)}`} ${unit}` +
+        `${rmsecv === null || rmsecv === undefined ? '' : `, RMSECV ${formatNumber(rmsecv, 3)} ${unit}`}` +
+        `${inflation > 1 ? `, intervals widened ×${inflation.toFixed(2)} (leave-one-out errors larger than predicted)` : ''}` +
+        `${limit === undefined ? '' : `, detection limit ${formatNumber(limit, 3)} ${unit} at reference conditions`}`,
+    );
+  });
+  return lines;
+}
+
 /**
  * Formats a calibration summary.
  *
@@ -46,6 +70,7 @@ export function formatCalibrationSummary(calibration: Calibration): string {
     `Calibration${calibration.title === undefined ? '' : ` "${calibration.title}"`} (${calibration.method.model}), built ${calibration.createdAt} by ${calibration.tool.name} ${calibration.tool.version}`,
     '',
     ...calibration.gases.flatMap((gas) => [...gasSummary(gas), '']),
+    ...(calibration.cls === undefined ? [] : [...clsSummary(calibration.cls), '']),
     `Reference conditions: path ${reference.pathLength_m} m, ${formatNumber(reference.temperature_K, 5)} K, ${formatNumber(reference.pressure_kPa, 6)} kPa (responses are scaled by φ = (L/L_ref)(P/P_ref)(T_ref/T))`,
     `Recheck: every ${calibration.method.recheck.everyDays} days, tolerance ±${calibration.method.recheck.tolerancePct} %`,
   ];
