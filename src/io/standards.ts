@@ -7,11 +7,8 @@ import type { YKind } from '../spectrum/spectrum.js';
 import { BandwrightError } from '../errors.js';
 import { sha256OfBytes } from './hash.js';
 import type { Manifest } from './manifest.js';
-import { parseScan } from './scan.js';
+import { DEFAULT_MAX_SCAN_BYTES, parseScan } from './scan.js';
 import { readBytes } from './text-file.js';
-
-/** Largest scan file read, bytes (200 MB). */
-export const DEFAULT_MAX_SCAN_BYTES = 200 * 1024 * 1024;
 
 /** Standards in memory plus the inputs to record in the calibration. */
 export interface LoadedStandards {
