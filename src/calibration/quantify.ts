@@ -76,7 +76,8 @@ function estimate(gas: GasCalibration, responses: readonly number[], level: numb
   const [low, high] = gas.model.range;
   if (prediction.extrapolated || prediction.value > high || (low > 0 && prediction.value < low)) {
     flags.push('extrapolated');
-    notes.push(`outside the calibrated range ${low}–${high} ${gas.unit}: the curve is extrapolated`);
+    // The model's own warning already says so when it noticed; add the range only otherwise.
+    if (!prediction.extrapolated) notes.push(`outside the calibrated range ${low}–${high} ${gas.unit}: the curve is extrapolated`);
   }
   return result;
 }

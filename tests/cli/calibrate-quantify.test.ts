@@ -106,3 +106,33 @@ describe('calibrate then quantify', () => {
     expect(JSON.parse(quantified.stdout).results[0].gases[0].value).toBeCloseTo(30, 0);
   });
 });
+
+describe('result flags', () => {
+  it('flags a sample above the calibrated range as extrapolated', async () => {
+    writeScan(at('high.csv'), bandScan(600, { metadata: reference }));
+    const run = await runCli('quantify', at('co.json'), at('high.csv'), '--json');
+    const gas = JSON.parse(run.stdout).results[0].gases[0];
+    expect(gas.flags).toContain('extrapolated');
+    expect(gas.notes.join(' ')).toMatch(/outside the calibrated range/);
+    expect(gas.notes.filter((n: string) => /outside the calibrated range/.test(n))).toHaveLength(1);
+  });
+
+  it('flags saturation against the method threshold', async () => {
+    writeFileSync(at('low-threshold.json'), JSON.stringify({ gases: [{ name: 'CO', band: [2040, 2245], baseline: [[2000, 2030], [2255, 2290]] }], saturationAbsorbance: 0.05 }));
+    expect((await runCli('calibrate', at('standards.csv'), '--method', at('low-threshold.json'), '-o', at('low-threshold.cal.json'))).status).toBe(0);
+    const run = await runCli('quantify', at('low-threshold.cal.json'), at('sample.jdx'), '--json');
+    expect(JSON.parse(run.stdout).results[0].gases[0].flags).toContain('saturated');
+  });
+
+  it('flags over-limit on the interval upper end with the example limits file (NIOSH REL 35 ppm TWA for CO, facts.md)', async () => {
+    writeScan(at('near-limit.csv'), bandScan(34.8, { metadata: reference }));
+    const limits = join(import.meta.dirname, '..', '..', 'examples', 'limits.csv');
+    const run = await runCli('quantify', at('co.json'), at('near-limit.csv'), '--limits', limits, '--json');
+    const gas = JSON.parse(run.stdout).results[0].gases[0];
+    // The central value is below 35 ppm but the interval reaches over it.
+    expect(gas.value).toBeLessThan(35);
+    expect(gas.high).toBeGreaterThan(35);
+    expect(gas.flags).toContain('over-limit');
+    expect(gas.notes.join(' ')).toMatch(/NIOSH REL TWA limit of 35 ppm .*local rules govern/);
+  });
+});
