@@ -1,0 +1,309 @@
+/**
+ * The calibration report: one self-contained HTML page for an analyst reviewing a calibration or
+ * an auditor reading a test file. It holds the summary, per gas the statistics, the linearity
+ * verdict, the detection limits and the plots (curve with prediction band and residuals, the
+ * standards' spectra with windows and baselines), the standards table, the recheck history with
+ * its control chart, the provenance (every input with its SHA-256 and whether the file on disk
+ * still matches, tool versions, times) and the safety cautions.
+ *
+ * Pure: the caller reads the files (through `src/io`) and says what it found; this module only
+ * turns that into text.
+ */
+import { formatWindow } from '../bands/windows.js';
+import type { Calibration, CalibrationInput, GasCalibration } from '../calibration/calibration.js';
+import { unitLabel } from '../gas/units.js';
+import { bulletList, cautionBox, factList, figure, htmlPage, htmlTable, notice, numberCell, paragraph, type Cell } from './html-page.js';
+import { element, escapeText, slug } from './svg/markup.js';
+import { calibrationPlots, controlChartPlot, type NamedPlot, type StandardSpectrum } from './svg/plot-set.js';
+import type { ControlChartInput } from './svg/control-chart.js';
+import type { WavenumberAxis } from './svg/spectra.js';
+import { formatNumber } from './table.js';
+
+/** What was found for one recorded input file. */
+export type InputFileStatus = 'unchanged' | 'changed' | 'missing' | 'unreadable';
+
+/** A recorded input and what the file on disk is now. */
+export interface InputCheck extends CalibrationInput {
+  /** Whether the file still matches its recorded SHA-256. */
+  status: InputFileStatus;
+  /** SHA-256 of the file as it is now, when it could be read and differs. */
+  currentSha256?: string;
+  /** Why it could not be read, in words. */
+  message?: string;
+}
+
+/** The recheck history as the report shows it: the control chart's records and limits, plus notes. */
+export interface RecheckHistoryView {
+  /** Control-chart input (records, tolerance, σ, trend). */
+  chart: ControlChartInput;
+  /** Notes about the history (e.g. which σ was used and why, when the next check is due). */
+  notes?: readonly string[];
+  /** Where the history was read from (plain text), for the provenance. */
+  source?: string;
+}
+
+/** Everything the calibration report shows besides the calibration itself. */
+export interface CalibrationReportInput {
+  /** The verified calibration. */
+  calibration: Calibration;
+  /** The calibration file as the user named it. */
+  calibrationFile: string;
+  /** When the report was made, ISO 8601. */
+  generatedAt: string;
+  /** Tool making the report. */
+  tool: { name: string; version: string };
+  /** Recorded inputs with their status now (same order as `calibration.inputs`). */
+  inputs: readonly InputCheck[];
+  /** Standards' spectra that could be read and match their hash, by standard index. */
+  spectra: readonly StandardSpectrum[];
+  /** Plain-words notes about spectra that could not be used (missing, changed, unreadable). */
+  spectraNotes: readonly string[];
+  /** Recheck history, when one exists. */
+  history?: RecheckHistoryView;
+}
+
+/** Options of {@link calibrationReportHtml}. */
+export interface CalibrationReportOptions {
+  /** Wavenumber axis direction of spectra (default `descending`). */
+  wavenumberAxis?: WavenumberAxis;
+  /** Level of the bands drawn (default 0.95). */
+  level?: number;
+}
+
+const CURVE_WORDS = { linear: 'straight line r = a + b·c', origin: 'straight line through the origin r = b·c', quadratic: 'second order r = a + b·c + c₂·c²' } as const;
+
+function levelText(level: number): string {
+  return `${formatNumber(level * 100, 3).replace(/\.?0+$/, '')} %`;
+}
+
+function maybe(value: number | null, digits = 4): string {
+  return value === null ? 'not available' : formatNumber(value, digits);
+}
+
+function statisticsTable(gas: GasCalibration): string {
+  const model = gas.model;
+  const unit = unitLabel(gas.unit);
+  const names: Record<'a' | 'b' | 'c', string> = { a: 'a (intercept)', b: `b (slope, per ${unit})`, c: `c₂ (second order, per ${unit}²)` };
+  const rows: Cell[][] = model.parameters.map((p) => [names[p], numberCell(formatNumber(model.coefficients[p], 6)), numberCell(formatNumber(model.standardErrors[p], 3))]);
+  const table = htmlTable({ caption: `${gas.gas}: coefficients`, header: ['coefficient', numberCell('value'), numberCell('standard error')], rows });
+  const facts = htmlTable({
+    caption: `${gas.gas}: fit statistics`,
+    header: ['statistic', numberCell('value')],
+    rows: [
+      ['standards (n)', numberCell(String(model.n))],
+      ['concentration levels', numberCell(String(model.levels.length))],
+      ['calibrated range', numberCell(`${formatNumber(model.range[0])} – ${formatNumber(model.range[1])} ${unit}`)],
+      ['residual SD s', numberCell(formatNumber(model.residualSD, 4))],
+      ['degrees of freedom', numberCell(String(model.df))],
+      [`R² (${model.rSquaredKind})`, numberCell(model.rSquared.toFixed(6))],
+      ['condition number (scaled design)', numberCell(formatNumber(model.conditionNumber, 3))],
+      ['weighting', model.weighting.rule],
+    ],
+  });
+  return table + facts;
+}
+
+function linearityText(gas: GasCalibration): string {
+  const mandel = gas.model.mandel;
+  if (mandel === null) return paragraph('Linearity: the Mandel fitting test needs at least 4 standards at 3 or more levels; it was not made.', 'verdict');
+  return (
+    element('p', { class: 'verdict' }, escapeText(`Linearity (Mandel test): ${mandel.recommendation}`)) +
+    htmlTable({
+      caption: `${gas.gas}: Mandel fitting test`,
+      header: ['quantity', numberCell('value')],
+      rows: [
+        ['DS² = (n−2)s²(linear) − (n−3)s²(second order)', numberCell(formatNumber(mandel.ds2, 4))],
+        ['test value PW = DS²/s²(second order)', numberCell(formatNumber(mandel.testValue, 4))],
+        [`F(${mandel.confidence}; ${mandel.df[0]}, ${mandel.df[1]})`, numberCell(formatNumber(mandel.fCritical, 4))],
+        ['p value', numberCell(formatNumber(mandel.pValue, 3))],
+        ['significant', mandel.significant ? 'yes: the second-order curve fits significantly better' : 'no: a straight line is adequate'],
+      ],
+    }) +
+    paragraph(mandel.definition, 'muted')
+  );
+}
+
+function limitsTable(gas: GasCalibration): string {
+  const unit = unitLabel(gas.unit);
+  const limits = gas.model.limits;
+  const rows: Cell[][] = [
+    ['decision limit x_C', numberCell(maybe(limits.decision.value, 3)), unit, limits.decision.definition],
+    ['detection limit x_D (LOD)', numberCell(maybe(limits.detection.value, 3)), unit, limits.detection.definition],
+    ['determination limit x_Q (LOQ)', numberCell(maybe(limits.determination.value, 3)), unit, limits.determination.definition],
+    ['ICH Q2 detection 3.3σ/b', numberCell(maybe(limits.ichDetection.value, 3)), unit, limits.ichDetection.definition],
+    ['ICH Q2 quantitation 10σ/b', numberCell(maybe(limits.ichQuantitation.value, 3)), unit, limits.ichQuantitation.definition],
+  ];
+  if (gas.zeroGasLimit !== undefined) rows.push(['zero-gas limit', numberCell(formatNumber(gas.zeroGasLimit.value, 3)), unit, gas.zeroGasLimit.definition]);
+  return htmlTable({ caption: `${gas.gas}: detection and determination limits (α = ${limits.alpha}, β = ${limits.beta}, k = ${limits.k})`, header: ['limit', numberCell('value'), 'unit', 'definition'], rows });
+}
+
+function gasHeading(gas: GasCalibration): string {
+  const feature = gas.feature;
+  const where =
+    feature === undefined
+      ? 'from tabulated responses'
+      : `${feature.response === 'area' ? 'band area' : 'peak height'} over ${formatWindow(feature.band)}${feature.baseline.length > 0 ? `, baseline of order ${feature.baselineOrder} through ${feature.baseline.map(formatWindow).join(', ')}` : ', no baseline correction'}`;
+  return paragraph(`${where}; curve: ${CURVE_WORDS[gas.model.form]}, ${gas.model.weights === 'none' ? 'unweighted' : `weighted ${gas.model.weights}`}.`);
+}
+
+function standardsTable(calibration: Calibration, spectrumStatus: (index: number) => string): string {
+  const gases = calibration.gases;
+  const header: Cell[] = ['#', 'scan', 'lot', ...gases.map((g) => numberCell(`${g.gas} / ${unitLabel(g.unit)}`)), numberCell('path / m'), numberCell('T / K'), numberCell('P / kPa'), numberCell('φ'), ...gases.flatMap((g) => [numberCell(`${g.gas} response (scaled)`), numberCell(`${g.gas} residual`)]), 'spectrum'];
+  const rows = calibration.standards.map((standard, i): Cell[] => [
+    numberCell(String(i + 1)),
+    { text: standard.scan, className: 'hash' },
+    standard.lot ?? '',
+    ...gases.map((g) => numberCell(standard.concentrations[g.gas] === undefined ? '' : formatNumber(standard.concentrations[g.gas] as number, 5))),
+    numberCell(formatNumber(standard.conditions.pathLength_m, 4)),
+    numberCell(formatNumber(standard.conditions.temperature_K, 5)),
+    numberCell(formatNumber(standard.conditions.pressure_kPa, 5)),
+    numberCell(formatNumber(standard.phi, 5)),
+    ...gases.flatMap((g) => {
+      const response = standard.responses[g.gas];
+      const residual = g.model.residuals[i];
+      return [numberCell(response === undefined ? '' : formatNumber(response.scaled, 5)), numberCell(residual === undefined ? '' : formatNumber(residual, 3))];
+    }),
+    spectrumStatus(i),
+  ]);
+  return htmlTable({ caption: 'Standards (certified values, cell conditions, responses at reference conditions, residuals)', header, rows });
+}
+
+const STATUS_WORDS: Record<InputFileStatus, string> = {
+  unchanged: 'present, SHA-256 matches',
+  changed: 'CHANGED since the calibration was built (SHA-256 differs)',
+  missing: 'MISSING',
+  unreadable: 'cannot be read',
+};
+
+function provenance(input: CalibrationReportInput): string {
+  const { calibration } = input;
+  const rows = input.inputs.map((check): Cell[] => [
+    check.role,
+    { text: check.path, className: 'hash' },
+    { text: check.sha256, className: 'hash' },
+    `${STATUS_WORDS[check.status]}${check.currentSha256 === undefined ? '' : `; now ${check.currentSha256}`}${check.message === undefined ? '' : `; ${check.message}`}`,
+  ]);
+  const changed = input.inputs.filter((c) => c.status !== 'unchanged');
+  const sameTool = calibration.tool.name === input.tool.name && calibration.tool.version === input.tool.version;
+  return (
+    factList([
+      ['calibration file', { html: element('span', { class: 'hash' }, escapeText(input.calibrationFile)) }],
+      ['calibration SHA-256', { html: element('span', { class: 'hash' }, escapeText(calibration.sha256)) }],
+      ['content check', 'the recorded SHA-256 matches the calibration content (verified on load)'],
+      ['schema version', calibration.schemaVersion],
+      ['built', `${calibration.createdAt} by ${calibration.tool.name} ${calibration.tool.version}`],
+      ['report made', `${input.generatedAt} by ${input.tool.name} ${input.tool.version}${sameTool ? '' : ' (a different version from the one that built the calibration)'}`],
+      ...(input.history?.source === undefined ? [] : ([['recheck history', input.history.source]] as [string, string][])),
+    ]) +
+    (changed.length > 0 ? notice(`${changed.length} of ${input.inputs.length} recorded input file(s) are missing or no longer match their recorded SHA-256; the numbers above come from the calibration file itself, the plots leave out what could not be verified.`) : '') +
+    htmlTable({ caption: 'Input files (paths relative to the calibration file’s folder)', header: ['role', 'path', 'SHA-256 recorded', 'now'], rows })
+  );
+}
+
+function historySection(history: RecheckHistoryView | undefined, idPrefix: string): { html: string; plots: NamedPlot[] } {
+  if (history === undefined || history.chart.records.length === 0) {
+    return { html: paragraph('No rechecks are recorded for this calibration yet.'), plots: [] };
+  }
+  const plot = controlChartPlot(history.chart, { idPrefix });
+  const rows = [...history.chart.records]
+    .sort((a, b) => Date.parse(a.time) - Date.parse(b.time))
+    .map((record): Cell[] => [record.time, numberCell(formatNumber(record.recoveryPct, 5)), record.verdict, record.rules.join(', '), record.label ?? '']);
+  const html =
+    figure(plot.svg, `Control chart: recovery of the check standard against time, tolerance ±${formatNumber(history.chart.tolerancePct, 3)} %, warning (±2σ) and action (±3σ) limits; σ: ${history.chart.sigmaSource}.`) +
+    (history.notes === undefined || history.notes.length === 0 ? '' : bulletList(history.notes)) +
+    htmlTable({
+      caption: 'Rechecks',
+      header: ['time (UTC)', numberCell('recovery / %'), 'verdict', 'rules fired', 'scan'],
+      rows,
+      rowClasses: history.chart.records.map((r) => (r.verdict === 'fail' ? 'failed' : undefined)),
+    });
+  return { html, plots: [plot] };
+}
+
+/**
+ * The plots of a calibration report (curve, spectra, control chart), for `--plot <dir>`.
+ *
+ * @param input - the report input
+ * @param options - axis direction, level
+ * @returns named plots
+ */
+export function calibrationReportPlots(input: CalibrationReportInput, options: CalibrationReportOptions = {}): NamedPlot[] {
+  const plots = calibrationPlots(input.calibration, input.spectra, { ...options, idPrefix: 'plot', spectraNotes: input.spectraNotes });
+  return [...plots, ...historySection(input.history, 'plot').plots];
+}
+
+/**
+ * The calibration report page.
+ *
+ * @param input - calibration, what was found on disk, history
+ * @param options - wavenumber axis direction, band level
+ * @returns the HTML page
+ * @throws BandwrightError `INVALID_VALUE` for a level outside (0, 1) or a history with impossible values
+ */
+export function calibrationReportHtml(input: CalibrationReportInput, options: CalibrationReportOptions = {}): string {
+  const { calibration } = input;
+  const level = options.level ?? 0.95;
+  const title = calibration.title ?? input.calibrationFile.replace(/^.*[\\/]/, '');
+  const plots = calibrationPlots(calibration, input.spectra, { ...options, level, idPrefix: 'report', spectraNotes: input.spectraNotes });
+  const plotFor = (file: string): NamedPlot | undefined => plots.find((p) => p.file === file);
+  const loaded = new Set(input.spectra.map((s) => s.index));
+  const history = historySection(input.history, 'report');
+  const reference = calibration.reference;
+
+  const parts: string[] = [];
+  parts.push(element('header', {}, element('h1', {}, escapeText(`Calibration report: ${title}`)) + paragraph(`${calibration.gases.map((g) => g.gas).join(', ')} · ${calibration.method.model} method · ${calibration.standards.length} standards · built ${calibration.createdAt}`, 'subtitle')));
+  parts.push(cautionBox(calibration.cautions));
+  const gasLinks = calibration.gases.map((g) => element('li', {}, element('a', { href: `#gas-${slug(g.gas)}` }, escapeText(g.gas))));
+  parts.push(
+    element(
+      'nav',
+      {},
+      element(
+        'ol',
+        {},
+        [element('li', {}, element('a', { href: '#summary' }, 'Summary')), ...gasLinks, element('li', {}, element('a', { href: '#standards' }, 'Standards')), element('li', {}, element('a', { href: '#rechecks' }, 'Recheck history')), element('li', {}, element('a', { href: '#provenance' }, 'Provenance'))].join(''),
+      ),
+    ),
+  );
+
+  const summaryFacts: [string, string][] = [
+    ['gases', calibration.gases.map((g) => `${g.gas} (${unitLabel(g.unit)}, ${g.model.range[0]}–${g.model.range[1]})`).join('; ')],
+    ['method', `${calibration.method.model}${calibration.method.model === 'band' ? ' (baseline-corrected band per gas)' : ''}`],
+    ['standards', `${calibration.standards.length}`],
+    ['reference conditions', `path ${formatNumber(reference.pathLength_m, 4)} m, ${formatNumber(reference.temperature_K, 5)} K, ${formatNumber(reference.pressure_kPa, 6)} kPa; responses scaled by φ = (L/L_ref)(P/P_ref)(T_ref/T)`],
+    ['recheck', `every ${calibration.method.recheck.everyDays} days, tolerance ±${calibration.method.recheck.tolerancePct} %`],
+    ['bands drawn at', levelText(level)],
+  ];
+  const verdicts = calibration.gases.map((g) => `${g.gas}: ${g.model.mandel === null ? 'linearity not tested (too few standards or levels)' : g.model.mandel.recommendation}; LOD ${maybe(g.model.limits.detection.value, 3)} ${unitLabel(g.unit)}`);
+  parts.push(
+    element(
+      'section',
+      { id: 'summary' },
+      element('h2', {}, 'Summary') +
+        factList(summaryFacts) +
+        bulletList(verdicts) +
+        (calibration.warnings.length > 0 ? element('h3', {}, 'Warnings') + bulletList(calibration.warnings) : '') +
+        input.spectraNotes.map((n) => notice(n)).join(''),
+    ),
+  );
+
+  for (const gas of calibration.gases) {
+    const name = slug(gas.gas);
+    const curve = plotFor(`${name}-calibration-curve.svg`);
+    const spectra = plotFor(`${name}-standard-spectra.svg`);
+    const figures: string[] = [];
+    if (curve !== undefined) figures.push(figure(curve.svg, `${gas.gas}: standards (responses at reference conditions) and the fitted curve with its ${levelText(level)} confidence and prediction bands; detection (LOD) and determination (LOQ) limits as vertical lines; residuals below.`));
+    if (spectra !== undefined) figures.push(figure(spectra.svg, `${gas.gas}: the standards' absorbance spectra (grouped by certified concentration), band window shaded, baseline windows hatched, each standard's fitted baseline dotted.`));
+    else if (gas.feature !== undefined) figures.push(notice(`${gas.gas}: no standard spectrum could be read and verified, so the spectra plot is left out.`));
+    for (const warning of gas.model.warnings) figures.push(notice(warning));
+    parts.push(element('section', { id: `gas-${name}` }, element('h2', {}, escapeText(gas.gas)) + gasHeading(gas) + statisticsTable(gas) + linearityText(gas) + limitsTable(gas) + figures.join('')));
+  }
+
+  const spectrumStatus = (index: number): string => (loaded.has(index) ? 'read, hash matches' : calibration.method.model === 'responses' ? '—' : 'not drawn');
+  parts.push(element('section', { id: 'standards' }, element('h2', {}, 'Standards') + standardsTable(calibration, spectrumStatus)));
+  parts.push(element('section', { id: 'rechecks' }, element('h2', {}, 'Recheck history') + history.html));
+  parts.push(element('section', { id: 'provenance' }, element('h2', {}, 'Provenance') + provenance(input)));
+  parts.push(cautionBox(calibration.cautions, 'safety-end'));
+  parts.push(element('footer', {}, escapeText(`${input.tool.name} ${input.tool.version} · report made ${input.generatedAt} · calibration SHA-256 ${calibration.sha256}`)));
+  return htmlPage({ title: `Calibration report: ${title}`, body: parts.join('\n') });
+}
