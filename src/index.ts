@@ -64,6 +64,58 @@ export { formatSpectrumCsv } from './io/spectrum-csv-write.js';
 // Simulation
 export { simulateSpectrum, type SimulationOptions, type SimulationResult } from './simulate/index.js';
 
+// Drift
+export type { RecheckPolicy } from './calibration/method.js';
+export { recoveryPercent, deviationPercent, isZeroCheck, VERDICTS, CONTROL_RULE_NAMES, type CheckRecord, type Verdict, type ControlRuleName } from './drift/record.js';
+export { controlRulesAt, CONTROL_RULES, type RuleFiring, type RuleSeverity } from './drift/rules.js';
+export { fitDriftTrend, trendAt, DAY_MS, type DriftTrend, type TrendPoint, type TrendOptions, type TrendProjection } from './drift/trend.js';
+export {
+  evaluateHistory,
+  judgeCheck,
+  controlLimits,
+  DEFAULT_BASELINE_CHECKS,
+  DEFAULT_TREND_CHECKS,
+  DEFAULT_MINIMUM_TREND_CHECKS,
+  type DriftEvaluation,
+  type EvaluatedCheck,
+  type EvaluateOptions,
+  type SigmaChoice,
+  type Baseline,
+  type ControlLimits,
+  type CheckMeasurementRecord,
+  type JudgedCheck,
+} from './drift/evaluate.js';
+export { scheduleFor, type Schedule, type ScheduleState, type ScheduleOptions } from './drift/schedule.js';
+export { measureCheck, checkRecordOf, type CheckMeasurement, type MeasureCheckOptions } from './drift/recheck.js';
+export { calibrationStatus, statusExitCode, recheckExitCode, type GasStatus, type StatusOptions } from './drift/status.js';
+export {
+  historyPathFor,
+  readHistory,
+  readHistoryIfExists,
+  parseHistory,
+  formatHistoryHeader,
+  formatHistoryRecord,
+  appendHistoryRecord,
+  recordCheck,
+  findCalibrationFiles,
+  collectCalibrationFiles,
+  moveHistoryAside,
+  readCheckList,
+  HISTORY_COLUMNS,
+  HISTORY_FORMAT_VERSION,
+  type History,
+  type ReadHistoryOptions,
+  type AppendHistoryOptions,
+  type AppendedRecord,
+  type RecordCheckOptions,
+  type SkippedFile,
+  type CollectedCalibrations,
+  type CheckListEntry,
+} from './io/history.js';
+export { withFileLock, type LockOptions } from './io/lock.js';
+export { formatRecheckText, recheckDocument, formatStatusText, statusDocument, trendCell, type RecheckOutcome, type StatusReport, type StatusProblem } from './report/drift-text.js';
+
+
 // Reports
 export { formatResultsText, resultsDocument, resultsCsv, resultColumns, resultRow, isFailure, type BatchEntry, type ScanFailure } from './report/results.js';
 export { formatTextTable, formatNumber } from './report/table.js';

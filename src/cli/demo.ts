@@ -8,7 +8,7 @@
 import { join, relative } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import type { Command } from 'commander';
-import { BandwrightError, isNonEmptyFolder, writeFileAtomic } from '../index.js';
+import { BandwrightError, historyPathFor, isNonEmptyFolder, moveHistoryAside, readCheckList, writeFileAtomic } from '../index.js';
 import { note, raiseStatus, type CommandContext } from './context.js';
 
 /** The bundled examples folder, found from this file (works from src/ under tsx and from dist/). */
@@ -25,6 +25,15 @@ interface DemoStep {
   stdoutFile?: string;
   /** Exit statuses that count as the step working as intended. */
   expected?: number[];
+  /** Print one line made from the command's standard output instead of the step's block (the title, when not empty, is shown once). */
+  line?: (stdout: string) => string;
+}
+
+/** One line for a recheck from its `--json` output: date, recovery, verdict, rules fired. */
+function recheckLine(stdout: string): string {
+  const result = JSON.parse(stdout) as { time: string; recoveryPct: number | null; verdict: string; rules: { rule: string }[] };
+  const recovery = result.recoveryPct === null ? 'zero gas' : `recovery ${result.recoveryPct.toFixed(2)} %`;
+  return `${result.time.slice(0, 10)}  ${recovery}  ${result.verdict}${result.rules.length > 0 ? ` (${result.rules.map((r) => r.rule).join(', ')})` : ''}`;
 }
 
 /**
@@ -66,18 +75,42 @@ export function registerDemo(program: Command, context: CommandContext, run: (ar
           stdoutFile: 'lab-co.results.json',
         },
       ];
+      // Twelve weekly checks of the 100 ppm standard, recorded in order with the time each was measured.
+      const checks = readCheckList(join(lab, 'checks.csv'));
+      checks.forEach((check, k) => {
+        steps.push({
+          title: k === 0 ? `Recheck the ${checks.length} weekly check-standard scans in order (--at the time each was measured): recovery, control rules, trend` : '',
+          args: ['recheck', at('lab-co.calibration.json'), check.scan, '--certified', String(check.certified), '--unit', check.unit, '--at', check.measuredAt, '--json'],
+          expected: [0, 3, 4],
+          line: recheckLine,
+        });
+      });
+      steps.push({
+        title: 'Status of the calibrations three days after the last check (exit status 4: failed)',
+        args: ['status', out, '--now', '2026-11-20T12:00:00Z'],
+        stdoutFile: 'status.txt',
+        expected: [0, 3, 4],
+      });
+      // A rebuilt calibration starts a new history; keep the old one beside it.
+      if (flags.force) moveHistoryAside(historyPathFor(at('lab-co.calibration.json')));
       note(context, `bandwright demo: the example scenario is described in ${join(examples, 'README.md')}`);
-      for (const [i, step] of steps.entries()) {
+      let number = 0;
+      for (const step of steps) {
         const result = await run(step.args);
         const ok = (step.expected ?? [0]).includes(result.status);
         if (step.stdoutFile !== undefined) writeFileAtomic(at(step.stdoutFile), result.stdout, { overwrite: true, createFolder: true });
-        note(context, `\n${i + 1}. ${step.title}\n   $ bandwright ${step.args.join(' ')}${step.stdoutFile === undefined ? '' : `\n   → ${at(step.stdoutFile)}`}${ok ? '' : `\n   ! exit status ${result.status}:\n${result.stderr}`}`);
+        if (ok && step.line !== undefined) {
+          if (step.title !== '') note(context, `\n${++number}. ${step.title}\n   $ bandwright ${step.args.join(' ')}`);
+          note(context, `   ${step.line(result.stdout)}`);
+          continue;
+        }
+        note(context, `\n${step.title === '' ? number : ++number}. ${step.title || step.args.slice(0, 3).join(' ')}\n   $ bandwright ${step.args.join(' ')}${step.stdoutFile === undefined ? '' : `\n   → ${at(step.stdoutFile)}`}${ok ? '' : `\n   ! exit status ${result.status}:\n${result.stderr}`}`);
         if (!ok) {
           raiseStatus(context, 1);
           note(context, 'the demo stops here; the message above says why');
           return;
         }
-        if (step.args[0] === 'quantify' && step.stdoutFile?.endsWith('.txt')) context.stdout.write(`${result.stdout}\n`);
+        if ((step.args[0] === 'quantify' || step.args[0] === 'status') && step.stdoutFile?.endsWith('.txt')) context.stdout.write(`${result.stdout}\n`);
       }
       note(context, `\nEverything is in ${out}/. Each step above is an ordinary bandwright command you can run yourself.`);
     });

@@ -10,7 +10,10 @@ import { registerDemo } from './demo.js';
 import type { CommandContext, TextSink } from './context.js';
 import { registerInspect } from './inspect.js';
 import { registerQuantify } from './quantify.js';
+import { registerRecheck } from './recheck.js';
+import { registerReport } from './report.js';
 import { registerSimulate } from './simulate.js';
+import { registerStatus } from './status.js';
 
 /**
  * Builds the program. Each command's action stores its exit status in the context.
@@ -30,6 +33,9 @@ export function buildProgram(context: CommandContext): Command {
   registerQuantify(program, context);
   registerInspect(program, context);
   registerSimulate(program, context);
+  registerRecheck(program, context);
+  registerStatus(program, context);
+  registerReport(program, context);
   registerDemo(program, context, runCaptured);
   for (const command of program.commands) command.exitOverride().configureOutput({ writeOut: (s) => context.stdout.write(s), writeErr: (s) => context.stderr.write(s) });
   return program;
