@@ -11,7 +11,6 @@ import type { CommandContext, TextSink } from './context.js';
 import { registerInspect } from './inspect.js';
 import { registerQuantify } from './quantify.js';
 import { registerRecheck } from './recheck.js';
-import { registerReport } from './report.js';
 import { registerSimulate } from './simulate.js';
 import { registerStatus } from './status.js';
 
@@ -35,7 +34,6 @@ export function buildProgram(context: CommandContext): Command {
   registerSimulate(program, context);
   registerRecheck(program, context);
   registerStatus(program, context);
-  registerReport(program, context);
   registerDemo(program, context, runCaptured);
   for (const command of program.commands) command.exitOverride().configureOutput({ writeOut: (s) => context.stdout.write(s), writeErr: (s) => context.stderr.write(s) });
   return program;
