@@ -128,6 +128,9 @@ export function buildBandCalibration(method: BandMethod, standards: readonly Sta
       const features = measureBand(absorbances[i] as Spectrum, gasMethod.band, { windows: gasMethod.baseline, order: gasMethod.baselineOrder });
       const raw = gasMethod.response === 'area' ? features.area : features.height;
       const scaled = raw / (phis[i] as number);
+      if (!Number.isFinite(scaled)) {
+        throw new BandwrightError('INVALID_VALUE', `${where}: ${gasMethod.name} band ${gasMethod.band[0]}–${gasMethod.band[1]} cm⁻¹ gives ${gasMethod.response === 'area' ? 'an area' : 'a height'} of ${scaled}, must be finite: the absorbance values are too large to integrate`, { file: standard.scan, parameter: gasMethod.name });
+      }
       const record = records[i] as CalibrationStandard;
       record.concentrations[gasMethod.name] = value;
       record.responses[gasMethod.name] = { raw, scaled, peakAbsorbance: features.peakAbsorbance };

@@ -6,6 +6,7 @@
  */
 import { createHash } from 'node:crypto';
 import { BandwrightError } from '../errors.js';
+import { checkCalibrationShape } from './calibration-shape.js';
 import type { CellConditions } from '../gas/conditions.js';
 import type { ConcentrationUnit } from '../gas/units.js';
 import type { ClsModel } from '../models/cls.js';
@@ -165,7 +166,8 @@ export function sealCalibration(body: CalibrationBody): Calibration {
  * @param value - parsed JSON
  * @param source - file name for messages
  * @returns the calibration, typed
- * @throws BandwrightError `SCHEMA` (missing fields, newer major schema), `INTEGRITY` (hash mismatch)
+ * @throws BandwrightError `SCHEMA` (missing fields, newer major schema, a field of the wrong type
+ *   or out of range: see {@link checkCalibrationShape}), `INTEGRITY` (hash mismatch)
  */
 export function verifyCalibration(value: unknown, source: string): Calibration {
   if (typeof value !== 'object' || value === null || Array.isArray(value)) {
@@ -193,6 +195,7 @@ export function verifyCalibration(value: unknown, source: string): Calibration {
       { file: source, parameter: 'sha256' },
     );
   }
+  checkCalibrationShape(record, source);
   return record as unknown as Calibration;
 }
 

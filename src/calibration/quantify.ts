@@ -107,6 +107,9 @@ export function quantifyBandScan(calibration: Calibration, spectrum: Spectrum, o
     const measured = measureBand(absorbance, feature.band, { windows: feature.baseline, order: feature.baselineOrder });
     baselineRms = Math.max(baselineRms, measured.baseline.rms_AU);
     const raw = feature.response === 'area' ? measured.area : measured.height;
+    if (!Number.isFinite(raw / phi)) {
+      throw new BandwrightError('INVALID_VALUE', `${scan}: ${gas.gas} band ${feature.band[0]}–${feature.band[1]} cm⁻¹ gives ${feature.response === 'area' ? 'an area' : 'a height'} of ${raw / phi}, must be finite: the absorbance values are too large to integrate`, { file: scan, parameter: gas.gas });
+    }
     const result = estimate(gas, [raw / phi], level);
     if (measured.peakAbsorbance > calibration.method.saturationAbsorbance) {
       result.flags.push('saturated');

@@ -31,15 +31,16 @@ export const DEFAULT_MAX_ROWS = 1_000_000;
 /**
  * Parses CSV text with a header line. Comment lines starting with `#` before the header are skipped.
  *
- * @param text - the file's text (BOM already removed)
+ * @param input - the file's text (BOM already removed); LF, CRLF, CR or a mix of them end lines
  * @param source - file name for messages
  * @param options - `maxRows` (default 1,000,000)
  * @returns the table
  * @throws BandwrightError `PARSE` for an empty table, duplicate or empty column names, unbalanced
  *   quotes or a wrong number of cells; `LIMIT` beyond `maxRows`
  */
-export function parseTable(text: string, source: string, options: { maxRows?: number } = {}): Table {
+export function parseTable(input: string, source: string, options: { maxRows?: number } = {}): Table {
   const maxRows = options.maxRows ?? DEFAULT_MAX_ROWS;
+  const text = unifyLineEnds(input);
   const lineStarts = lineStartOffsets(text);
   const lineAt = (offset: number): number => {
     let lo = 0;
@@ -52,7 +53,7 @@ export function parseTable(text: string, source: string, options: { maxRows?: nu
     return lo + 1;
   };
 
-  const parsed = Papa.parse<string[]>(text, { header: false, skipEmptyLines: false, comments: false, delimiter: headerDelimiter(text) });
+  const parsed = Papa.parse<string[]>(text, { header: false, skipEmptyLines: false, comments: false, delimiter: headerDelimiter(text), newline: '\n' });
   const quoteError = parsed.errors.find((e) => e.type === 'Quotes');
   if (quoteError !== undefined) {
     throw new BandwrightError('PARSE', `${source} line ${(quoteError.row ?? 0) + 1}: ${quoteError.message}`, { file: source });
@@ -111,6 +112,29 @@ export function parseTable(text: string, source: string, options: { maxRows?: nu
     rows.push({ line, cells });
   }
   return { columns, rows, delimiter, decimalComma: sawDecimalComma };
+}
+
+/**
+ * Line ends outside quoted cells made LF: files edited on several systems mix CRLF and LF, and
+ * old exports end lines with CR alone; papaparse splits on one kind only, which turned a mixed
+ * file's rows into wrong cell counts and a CR-only file into "line 1" everywhere. Line breaks
+ * inside quoted cells are cell content and stay as written.
+ */
+function unifyLineEnds(text: string): string {
+  if (!text.includes('\r')) return text;
+  let out = '';
+  let quoted = false;
+  let from = 0;
+  for (let i = 0; i < text.length; i++) {
+    const c = text.charCodeAt(i);
+    if (c === 0x22) quoted = !quoted;
+    else if (c === 0x0d && !quoted) {
+      out += `${text.slice(from, i)}\n`;
+      if (text.charCodeAt(i + 1) === 0x0a) i++;
+      from = i + 1;
+    }
+  }
+  return out + text.slice(from);
 }
 
 /**

@@ -33,7 +33,7 @@
 import { BandwrightError } from '../errors.js';
 import { makeSpectrum, type ScanMetadata, type Spectrum, type YKind } from '../spectrum/spectrum.js';
 import { DECIMAL_POINT, DECIMAL_POINT_NO_EXPONENT, parseNumberText, scanNumber, type ScanCursor } from './number-parse.js';
-import { DEFAULT_MAX_POINTS, assertNotUtf16, assertTransmittanceFraction } from './spectrum-table.js';
+import { DEFAULT_MAX_POINTS, assertLineEnds, assertNotUtf16, assertTransmittanceFraction } from './spectrum-table.js';
 
 /** Options of {@link parseJcamp}. */
 export interface JcampOptions {
@@ -819,6 +819,7 @@ export function parseJcamp(input: Uint8Array | string, options: JcampOptions): S
   }
   const bytes = typeof input === 'string' ? new TextEncoder().encode(input) : input;
   assertNotUtf16(bytes, source);
+  assertLineEnds(bytes, source);
   const { records } = splitRecords(bytes, source);
   const header = readHeader(records, source);
   const xyData = records.find((r) => r.key === 'XYDATA');

@@ -9,7 +9,7 @@ import { dirname, isAbsolute, join, relative, resolve, sep } from 'node:path';
 import { BandwrightError } from '../errors.js';
 import type { PartialConditions } from '../gas/conditions.js';
 import { requireInfraredSpecies } from '../gas/species.js';
-import { parseConcentrationUnit, type ConcentrationUnit } from '../gas/units.js';
+import { parseConcentrationUnit, toPpm, type ConcentrationUnit } from '../gas/units.js';
 import { parseNumberCell, parseTable, type Table } from './csv-table.js';
 import { readText } from './text-file.js';
 
@@ -136,6 +136,10 @@ function parseEntry(row: Table['rows'][number], table: Table, gases: Manifest['g
       throw new BandwrightError('INVALID_VALUE', `${path} line ${row.line}: ${column} is empty; give the certified value (0 for a gas the standard does not contain)`, { file: path, line: row.line, parameter: column });
     }
     if (value < 0) throw new BandwrightError('INVALID_VALUE', `${path} line ${row.line}: ${column} = ${value}, must be >= 0`, { file: path, line: row.line, parameter: column });
+    // A mole fraction cannot exceed 1 (100 %, 10⁶ ppm): a larger value is a typing or unit error.
+    if (toPpm(value, unit) > 1e6) {
+      throw new BandwrightError('INVALID_VALUE', `${path} line ${row.line}: ${column} = ${value}, above 100 % by volume (10⁶ ppm); a concentration cannot exceed the whole gas`, { file: path, line: row.line, parameter: column });
+    }
     return { gas, unit, value };
   });
   const temperatureC = number('temperature_c', 'temperature_C');

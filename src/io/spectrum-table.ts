@@ -194,7 +194,8 @@ function readCommentLine(text: string, lineNumber: number, source: string, metad
   const value = parseNumberText(rawValue);
   const name = body.slice(0, equals).trim();
   const bad = (rule: string): never => {
-    throw new BandwrightError('INVALID_VALUE', `${source} line ${lineNumber}: ${name} = ${JSON.stringify(rawValue)}, ${rule}`, {
+    const shown = rawValue.length > 40 ? `${rawValue.slice(0, 40)}…` : rawValue;
+    throw new BandwrightError('INVALID_VALUE', `${source} line ${lineNumber}: ${name} = ${JSON.stringify(shown)}, ${rule}`, {
       file: source,
       line: lineNumber,
       parameter: name,
@@ -523,6 +524,20 @@ export function assertNotUtf16(bytes: Uint8Array, source: string): void {
 }
 
 /**
+ * Refuses text whose lines end with CR alone (classic Mac OS exports): read line by line at LF it
+ * would be one long line, and the messages would point at line 1 with the whole file as a value.
+ *
+ * @param bytes - file content
+ * @param source - label for the message
+ * @throws BandwrightError `PARSE` when the content holds CR but no LF
+ */
+export function assertLineEnds(bytes: Uint8Array, source: string): void {
+  if (bytes.indexOf(CR) >= 0 && bytes.indexOf(LF) < 0) {
+    throw new BandwrightError('PARSE', `${source}: lines end with CR alone (an old Mac OS export); save the file with LF or CRLF line ends`, { file: source });
+  }
+}
+
+/**
  * Refuses transmittance-fraction data that reach above {@link MAX_TRANSMITTANCE_FRACTION}.
  *
  * @param y - the ordinates as read
@@ -572,6 +587,7 @@ export function parseSpectrumTable(bytes: Uint8Array, options: SpectrumTableOpti
   }
   const length = bytes.length;
   assertNotUtf16(bytes, source);
+  assertLineEnds(bytes, source);
   let pos = length >= 3 && bytes[0] === 0xef && bytes[1] === 0xbb && bytes[2] === 0xbf ? 3 : 0;
   let lineNumber = 0;
   const metadata: ScanMetadata = { source, format: 'csv' };

@@ -36,6 +36,8 @@ export function loadStandards(manifest: Manifest, options: { yKind?: YKind } = {
       if (error instanceof BandwrightError && error.code === 'FILE_NOT_FOUND') {
         throw new BandwrightError('FILE_NOT_FOUND', `${manifest.path} line ${entry.line}: standard scan ${entry.scanPath} does not exist`, { file: manifest.path, line: entry.line });
       }
+      // A folder, an unreadable or an oversized file: say which manifest row named it.
+      if (error instanceof BandwrightError) throw new BandwrightError(error.code, `${manifest.path} line ${entry.line}: ${error.message}`, { file: manifest.path, line: entry.line }, { cause: error });
       throw error;
     }
     inputs.push({ role: 'standard', path: entry.scanPath, sha256: sha256OfBytes(bytes) });

@@ -225,9 +225,18 @@ function checkSeries(values: unknown, name: string): number[] {
     if (typeof value !== 'number' || !Number.isFinite(value)) {
       throw new BandwrightError('INVALID_VALUE', `${name}[${i}] = ${String(value)}, must be a finite number`, { parameter: `${name}[${i}]` });
     }
+    if (Math.abs(value) > MAX_MAGNITUDE) {
+      throw new BandwrightError('INVALID_VALUE', `${name}[${i}] = ${String(value)}, must be within ±${MAX_MAGNITUDE} (sums of squares must stay finite in double precision)`, { parameter: `${name}[${i}]` });
+    }
     return value;
   });
 }
+
+/**
+ * Largest magnitude of a concentration or response accepted by {@link fitUnivariate}: squares and
+ * sums of squares of n values stay far inside the double range (about 1.8e308).
+ */
+export const MAX_MAGNITUDE = 1e100;
 
 /** Linear interpolation of level SDs, held constant beyond the ends. */
 function interpolateSD(levels: readonly ReplicateLevel[], x: number): number {
@@ -689,7 +698,8 @@ function fiellerByBracketing(model: UnivariateModel, mean: number, m: number, t:
  * @returns value, standard error, interval (null ends when a Fieller interval is unbounded), df, and flags
  * @throws BandwrightError `INVALID_VALUE` for empty or non-finite responses, a level outside (0, 1),
  *   or `fieller` with a second-order model; `NO_SOLUTION` when a second-order curve cannot give the
- *   response (beyond its vertex) or gives it twice inside the calibrated range
+ *   response (beyond its vertex) or gives it twice inside the calibrated range, or when the
+ *   estimate or its standard error is not finite (overflow far outside the calibration)
  * @example
  * const estimate = predictConcentration(model, [6.02, 6.11], { level: 0.95 });
  * [estimate.low, estimate.value, estimate.high];
@@ -740,6 +750,15 @@ export function predictConcentration(model: UnivariateModel, responses: readonly
   }
   if (model.weights !== 'none') description += `; w0 = w(x̂0) = ${short(weightAt(model, value))} from the calibration's weighting`;
   const se = Math.sqrt(variance);
+  // A response far outside the calibration (or a damaged model) can overflow the arithmetic; a
+  // NaN or infinite estimate must never leave here looking like a result.
+  if (!Number.isFinite(value) || !Number.isFinite(se)) {
+    throw new BandwrightError(
+      'NO_SOLUTION',
+      `response ${short(mean)} gives concentration ${short(value)} with standard error ${short(se)}: not a finite estimate; the response is too far outside the calibrated responses (${short(model.meanResponse)} on average) or the model is damaged`,
+      { parameter: 'responses' },
+    );
+  }
   let low: number | null = value - t * se;
   let high: number | null = value + t * se;
   let unbounded = false;
