@@ -61,6 +61,9 @@ export { formatCsv, guardCell } from './io/csv-table.js';
 export { formatJcamp } from './io/jcamp-write.js';
 export { formatSpectrumCsv } from './io/spectrum-csv-write.js';
 
+// Integrity
+export { verifyInputs, checkInputs, recordedInputPath, type IntegrityReport, type RecordedInputCheck, type RecordedInputStatus } from './io/verify.js';
+
 // Simulation
 export { simulateSpectrum, type SimulationOptions, type SimulationResult } from './simulate/index.js';
 

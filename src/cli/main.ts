@@ -13,6 +13,7 @@ import { registerQuantify } from './quantify.js';
 import { registerRecheck } from './recheck.js';
 import { registerSimulate } from './simulate.js';
 import { registerStatus } from './status.js';
+import { registerVerify } from './verify.js';
 
 /**
  * Builds the program. Each command's action stores its exit status in the context.
@@ -34,6 +35,7 @@ export function buildProgram(context: CommandContext): Command {
   registerSimulate(program, context);
   registerRecheck(program, context);
   registerStatus(program, context);
+  registerVerify(program, context);
   registerDemo(program, context, runCaptured);
   for (const command of program.commands) command.exitOverride().configureOutput({ writeOut: (s) => context.stdout.write(s), writeErr: (s) => context.stderr.write(s) });
   return program;
