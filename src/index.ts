@@ -118,7 +118,20 @@ export {
 export { withFileLock, type LockOptions } from './io/lock.js';
 export { formatRecheckText, recheckDocument, formatStatusText, statusDocument, trendCell, type RecheckOutcome, type StatusReport, type StatusProblem } from './report/drift-text.js';
 
-
 // Reports
 export { formatResultsText, resultsDocument, resultsCsv, resultColumns, resultRow, isFailure, type BatchEntry, type ScanFailure } from './report/results.js';
 export { formatTextTable, formatNumber } from './report/table.js';
+
+// Plots and report
+export { escapeText, slug } from './report/svg/markup.js';
+export { SERIES_COLOURS, seriesStyle, type SeriesStyle } from './report/svg/palette.js';
+export { svgFile } from './report/svg/chart.js';
+export { calibrationCurveData, renderCalibrationCurve, type CalibrationCurvePlotInput, type CalibrationCurveOptions, type CurveStandardPoint, type CurveBandPoint, type CurveLimitLine } from './report/svg/calibration-curve.js';
+export { renderSpectra, gasSpectraData, thinForDrawing, concentrationGroup, type SpectraPlotInput, type SpectraOptions, type SpectrumSeries, type BaselineSeries, type LabelledSpectrum, type WavenumberAxis } from './report/svg/spectra.js';
+export { renderClsFit, type ClsFitPlotInput, type ClsFitOptions, type ClsContribution } from './report/svg/cls-fit.js';
+export { renderControlChart, type ControlChartInput, type ControlChartOptions, type ControlChartRecord, type ControlChartTrend, type CheckVerdict } from './report/svg/control-chart.js';
+export { controlChartFromEvaluation } from './report/svg/control-chart-data.js';
+export { clsFitData } from './report/svg/cls-data.js';
+export { calibrationPlots, samplePlots, controlChartPlot, uniqueFileNames, type NamedPlot, type PlotSetOptions, type StandardSpectrum } from './report/svg/plot-set.js';
+export { calibrationReportHtml, calibrationReportPlots, type CalibrationReportInput, type CalibrationReportOptions, type InputCheck, type InputFileStatus, type RecheckHistoryView, type RecheckRow } from './report/html.js';
+export { quantifyReportHtml, quantifyReportPlots, type QuantifyReportInput, type QuantifyReportOptions, type SampleSpectrum } from './report/html-quantify.js';

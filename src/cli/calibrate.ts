@@ -24,9 +24,12 @@ import {
   type CalibrationInput,
   type PartialConditions,
   type YKind,
+  calibrationPlots,
+  type StandardSpectrum,
 } from '../index.js';
 import { formatCalibrationSummary } from '../report/calibration-summary.js';
 import { note, type CommandContext } from './context.js';
+import { refuseExistingPlots, wavenumberAxisOption, writePlotFiles } from './report.js';
 import { parseNumberOption, parsePositiveOption, parseWindowListOption, parseWindowOption } from './parse.js';
 
 interface CalibrateOptions {
@@ -50,6 +53,8 @@ interface CalibrateOptions {
   everyDays?: string;
   tolerancePct?: string;
   json?: boolean;
+  plot?: string;
+  wavenumberAxis?: string;
 }
 
 /**
@@ -150,7 +155,11 @@ export function registerCalibrate(program: Command, context: CommandContext): vo
     .option('-o, --output <file>', 'calibration file to write (default: <manifest>.calibration.json beside it)')
     .option('--force', 'replace an existing calibration file')
     .option('--json', 'print the calibration as JSON on stdout instead of a summary')
+    .option('--plot <dir>', 'also write the calibration curve and the standards\' spectra as SVG files into this folder')
+    .option('--wavenumber-axis <order>', 'spectra plots with wavenumbers descending (high on the left, default) or ascending')
     .action((manifestPath: string | undefined, options: CalibrateOptions) => {
+      const wavenumberAxis = wavenumberAxisOption(options.wavenumberAxis);
+      let standardSpectra: StandardSpectrum[] = [];
       let calibration: Calibration;
       let output: string;
       const createdAt = creationTime();
@@ -170,6 +179,7 @@ export function registerCalibrate(program: Command, context: CommandContext): vo
         const manifest = readManifest(manifestPath);
         const yKind = yKindOption(options.yKind);
         const loaded = loadStandards(manifest, yKind === undefined ? {} : { yKind });
+        standardSpectra = loaded.standards.map((standard, index) => ({ index, spectrum: standard.spectrum }));
         const inputs: CalibrationInput[] = [
           { role: 'manifest', path: relativeTo(folder, manifestPath), sha256: sha256OfFile(manifestPath) },
           ...(options.method === undefined ? [] : [{ role: 'method' as const, path: relativeTo(folder, options.method), sha256: sha256OfFile(options.method) }]),
@@ -194,7 +204,10 @@ export function registerCalibrate(program: Command, context: CommandContext): vo
           throw new BandwrightError('USAGE', 'calibrate: a responses method needs --responses <table>', { parameter: '--method' });
         }
       }
+      const plots = options.plot === undefined ? [] : calibrationPlots(calibration, standardSpectra, { wavenumberAxis });
+      if (options.plot !== undefined) refuseExistingPlots(options.plot, plots, options.force === true);
       writeCalibration(output, calibration, { force: options.force === true });
+      if (options.plot !== undefined) note(context, `${writePlotFiles(options.plot, plots, { force: true }).length} plot(s) written to ${options.plot}`);
       if (options.json) context.stdout.write(`${JSON.stringify(calibration, null, 2)}\n`);
       else context.stdout.write(`${formatCalibrationSummary(calibration)}\n`);
       note(context, `calibration written to ${output} (sha256 ${calibration.sha256.slice(0, 16)}…)`);

@@ -91,6 +91,10 @@ export function registerDemo(program: Command, context: CommandContext, run: (ar
         stdoutFile: 'status.txt',
         expected: [0, 3, 4],
       });
+      steps.push({
+        title: 'Write the calibration report: one self-contained HTML page with statistics, limits, plots, the recheck history, provenance and cautions',
+        args: ['report', at('lab-co.calibration.json'), '-o', at('lab-co.report.html'), ...force],
+      });
       // A rebuilt calibration starts a new history; keep the old one beside it.
       if (flags.force) moveHistoryAside(historyPathFor(at('lab-co.calibration.json')));
       note(context, `bandwright demo: the example scenario is described in ${join(examples, 'README.md')}`);

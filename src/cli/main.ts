@@ -11,6 +11,7 @@ import type { CommandContext, TextSink } from './context.js';
 import { registerInspect } from './inspect.js';
 import { registerQuantify } from './quantify.js';
 import { registerRecheck } from './recheck.js';
+import { registerReport } from './report.js';
 import { registerSimulate } from './simulate.js';
 import { registerStatus } from './status.js';
 import { registerVerify } from './verify.js';
@@ -36,6 +37,7 @@ export function buildProgram(context: CommandContext): Command {
   registerRecheck(program, context);
   registerStatus(program, context);
   registerVerify(program, context);
+  registerReport(program, context);
   registerDemo(program, context, runCaptured);
   for (const command of program.commands) command.exitOverride().configureOutput({ writeOut: (s) => context.stdout.write(s), writeErr: (s) => context.stderr.write(s) });
   return program;

@@ -22,12 +22,17 @@ import {
   type BatchEntry,
   type Calibration,
   type QuantifyOptions,
+  type SampleSpectrum,
 } from '../index.js';
 import { conditionOptions, yKindOption } from './calibrate.js';
 import { note, raiseStatus, type CommandContext } from './context.js';
 import { collect, parseNumberOption, parsePositiveOption } from './parse.js';
+import { refuseExisting, wavenumberAxisOption, writeQuantifyOutputs } from './report.js';
 
 interface QuantifyFlags {
+  report?: string;
+  plot?: string;
+  wavenumberAxis?: string;
   json?: boolean;
   csv?: string;
   force?: boolean;
@@ -83,12 +88,14 @@ export function quantifyOptionsFrom(flags: QuantifyFlags): QuantifyOptions {
  * @param scans - scan paths (or `-`)
  * @param options - quantify options
  * @param yKind - y-kind for scans that do not declare one
+ * @param spectra - when given, every scan read is added to it (for plots and reports)
  */
-export function quantifyScans(calibration: Calibration, scans: readonly string[], options: QuantifyOptions, yKind?: string): BatchEntry[] {
+export function quantifyScans(calibration: Calibration, scans: readonly string[], options: QuantifyOptions, yKind?: string, spectra?: SampleSpectrum[]): BatchEntry[] {
   const kind = yKindOption(yKind);
   return scans.map((scan): BatchEntry => {
     try {
       const spectrum = readScan(scan, kind === undefined ? {} : { yKind: kind });
+      spectra?.push({ scan, spectrum });
       return quantifyScan(calibration, spectrum, options);
     } catch (error) {
       if (error instanceof BandwrightError) return { scan, error: error.message };
@@ -112,7 +119,7 @@ export function registerQuantify(program: Command, context: CommandContext): voi
     .option('--response <y>', 'a response at reference conditions instead of scans (repeat for replicates)', collect)
     .option('--json', 'print results as JSON on stdout')
     .option('--csv <file>', 'write one row per scan to a CSV file')
-    .option('--force', 'replace an existing --csv file')
+    .option('--force', 'replace an existing --csv file, --report file or --plot files')
     .option('--level <p>', 'prediction-interval level', '0.95')
     .option('--path-length <m>', 'path length for scans that do not state it, m')
     .option('--temperature <K>', 'gas temperature for scans that do not state it, K')
@@ -128,7 +135,13 @@ export function registerQuantify(program: Command, context: CommandContext): voi
     .option('--o2-air <pct>', 'O2 of air, %, in the correction', '20.9')
     .option('--limits <file>', 'CSV of exposure limits (gas,limit,unit,basis,source) for the over-limit flag')
     .option('--y-kind <kind>', 'y values of scans that do not declare them')
+    .option('--report <file>', 'write a self-contained HTML report: results table and one spectrum plot per sample')
+    .option('--plot <dir>', 'write each sample\'s plots as SVG files into this folder')
+    .option('--wavenumber-axis <order>', 'plots with wavenumbers descending (high on the left, default) or ascending')
     .action((calibrationPath: string, scanArguments: string[], flags: QuantifyFlags) => {
+      const wavenumberAxis = wavenumberAxisOption(flags.wavenumberAxis);
+      if (flags.report !== undefined) refuseExisting(flags.report, flags.force === true, '--report');
+      const spectra: SampleSpectrum[] = [];
       const calibration = readCalibration(calibrationPath);
       const options = quantifyOptionsFrom(flags);
       const level = options.level ?? 0.95;
@@ -139,12 +152,15 @@ export function registerQuantify(program: Command, context: CommandContext): voi
         entries = [quantifyResponses(calibration, responses, options)];
       } else {
         if (scanArguments.length === 0) throw new BandwrightError('USAGE', 'quantify: give at least one scan (file, folder, glob or -), or --response', { parameter: 'scans' });
-        entries = quantifyScans(calibration, expandScanArguments(scanArguments), options, flags.yKind);
+        entries = quantifyScans(calibration, expandScanArguments(scanArguments), options, flags.yKind, spectra);
       }
       const gases = reportedGases(calibration).map((g) => ({ gas: g.gas, unit: options.unit ?? g.unit }));
       if (flags.csv !== undefined) {
         writeFileAtomic(flags.csv, resultsCsv(entries, gases, calibration.sha256), { overwrite: flags.force === true, createFolder: true });
         note(context, `results written to ${flags.csv}`);
+      }
+      if (flags.report !== undefined || flags.plot !== undefined) {
+        writeQuantifyOutputs(context, { calibration, calibrationPath, entries, spectra, options, report: flags.report, plot: flags.plot, force: flags.force === true, wavenumberAxis });
       }
       if (flags.json) context.stdout.write(`${JSON.stringify(resultsDocument(entries, { file: calibrationPath, sha256: calibration.sha256 }, level), null, 2)}\n`);
       else context.stdout.write(`${formatResultsText(entries, level)}\n`);

@@ -23,6 +23,7 @@ import {
 import { conditionOptions, yKindOption } from './calibrate.js';
 import { raiseStatus, type CommandContext } from './context.js';
 import { parseNumberOption, parsePositiveOption } from './parse.js';
+import { writeRecheckPlot } from './report.js';
 
 interface RecheckFlags {
   certified: string;
@@ -37,6 +38,7 @@ interface RecheckFlags {
   temperature?: string;
   pressure?: string;
   yKind?: string;
+  plot?: string;
 }
 
 const ISO_TIME = /^\d{4}-\d{2}-\d{2}(?:T\d{2}:\d{2}(?::\d{2}(?:\.\d{1,9})?)?(Z|[+-]\d{2}:\d{2}))?$/;
@@ -109,6 +111,7 @@ export function registerRecheck(program: Command, context: CommandContext): void
     .option('--pressure <kPa>', 'gas pressure if the scan does not state it, kPa')
     .option('--y-kind <kind>', 'y values if the scan does not declare them')
     .option('--json', 'print the result as JSON on stdout')
+    .option('--plot <dir>', 'also write the control chart as <gas>-control-chart.svg into this folder (regenerated from the history, so replaced each time)')
     .action((calibrationPath: string, scan: string, flags: RecheckFlags) => {
       // Options first, so that a mistyped value fails before any file is read.
       const certified = parseNumberOption(flags.certified, '--certified', [(n) => n >= 0, 'must be a concentration >= 0 (0 for zero gas)']);
@@ -148,6 +151,7 @@ export function registerRecheck(program: Command, context: CommandContext): void
       const outcome = { calibration: { file: calibrationPath, sha256: calibration.sha256 }, history, created: judged.created, measurement, judged, schedule, level };
       if (flags.json) context.stdout.write(`${JSON.stringify(recheckDocument(outcome), null, 2)}\n`);
       else context.stdout.write(`${formatRecheckText(outcome)}\n`);
+      if (flags.plot !== undefined) writeRecheckPlot(context, flags.plot, judged.evaluation, schedule.nextDue);
       raiseStatus(context, recheckExitCode(judged.check.verdict));
     });
 }

@@ -6,7 +6,9 @@
  */
 import type { Calibration } from '../calibration/calibration.js';
 import type { Spectrum } from '../spectrum/spectrum.js';
+import type { CellConditions } from '../gas/conditions.js';
 import { unitLabel } from '../gas/units.js';
+import { BandwrightError } from '../errors.js';
 import { bulletList, cautionBox, factList, figure, htmlPage, htmlTable, notice, numberCell, paragraph, type Cell } from './html-page.js';
 import { isFailure, type BatchEntry } from './results.js';
 import type { ClsFitPlotInput } from './svg/cls-fit.js';
@@ -21,7 +23,9 @@ export interface SampleSpectrum {
   scan: string;
   /** The scan. */
   spectrum: Spectrum;
-  /** CLS fit data, when the calibration is CLS. */
+  /** Conditions the sample was quantified at (for the CLS fit plot). */
+  conditions?: CellConditions;
+  /** CLS fit data, when the caller has it already. */
   cls?: ClsFitPlotInput;
 }
 
@@ -62,7 +66,28 @@ function levelText(level: number): string {
  * @param options - axis direction
  */
 export function quantifyReportPlots(input: QuantifyReportInput, options: QuantifyReportOptions = {}): NamedPlot[] {
-  return uniqueFileNames(input.spectra.flatMap((sample, i) => samplePlots(input.calibration, sample, { ...options, idPrefix: `plot-${i}` })));
+  return uniqueFileNames(
+    input.spectra.flatMap((sample, i) => {
+      const entry = input.entries.find((e) => e.scan === sample.scan);
+      return plotsOf(input.calibration, entry === undefined ? sample : withConditions(sample, entry), { ...options, idPrefix: `plot-${i}` }).plots;
+    }),
+  );
+}
+
+/** The sample with the conditions its result was computed at, when it has a result. */
+function withConditions(sample: SampleSpectrum, entry: BatchEntry): SampleSpectrum {
+  if (sample.conditions !== undefined || isFailure(entry)) return sample;
+  return { ...sample, conditions: entry.conditions };
+}
+
+/** A sample's plots; a plot that cannot be drawn (scan outside the regions) becomes a note. */
+function plotsOf(calibration: Calibration, sample: SampleSpectrum, options: QuantifyReportOptions & { idPrefix: string }): { plots: NamedPlot[]; problems: string[] } {
+  try {
+    return { plots: samplePlots(calibration, sample, options), problems: [] };
+  } catch (error) {
+    if (error instanceof BandwrightError) return { plots: [], problems: [`plot not drawn: ${error.message}`] };
+    throw error;
+  }
 }
 
 /**
@@ -120,7 +145,9 @@ export function quantifyReportHtml(input: QuantifyReportInput, options: Quantify
       parts.push(bulletList(notes));
     }
     if (spectrum !== undefined) {
-      for (const plot of samplePlots(calibration, spectrum, { ...options, idPrefix: `sample-${i}` })) parts.push(figure(plot.svg, plot.title));
+      const drawn = plotsOf(calibration, withConditions(spectrum, entry), { ...options, idPrefix: `sample-${i}` });
+      for (const plot of drawn.plots) parts.push(figure(plot.svg, plot.title));
+      for (const problem of drawn.problems) parts.push(notice(problem));
     } else if (!isFailure(entry)) parts.push(paragraph('No spectrum to draw for this entry.', 'muted'));
     const flagged = isFailure(entry) ? ' — failed' : entry.gases.some((g) => g.flags.length > 0) ? ` — flags: ${[...new Set(entry.gases.flatMap((g) => g.flags))].join(', ')}` : '';
     return element('details', { id: `sample-${i + 1}` }, element('summary', {}, escapeText(`${entry.scan}${flagged}`)) + parts.join(''));

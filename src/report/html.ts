@@ -32,11 +32,35 @@ export interface InputCheck extends CalibrationInput {
   message?: string;
 }
 
-/** The recheck history as the report shows it: the control chart's records and limits, plus notes. */
+/** One recorded check in the history table (span and zero-gas checks alike). */
+export interface RecheckRow {
+  /** When it was measured, ISO 8601. */
+  time: string;
+  /** Certified concentration. */
+  certified: number;
+  /** Measured concentration. */
+  measured: number;
+  /** Unit of both. */
+  unit: string;
+  /** Recovery, % (absent for zero gas). */
+  recoveryPct?: number;
+  /** Verdict. */
+  verdict: string;
+  /** Rules that fired. */
+  rules: readonly string[];
+  /** Scan as named. */
+  scan: string;
+}
+
+/** The recheck history of one gas as the report shows it: the control chart, the table, notes. */
 export interface RecheckHistoryView {
+  /** Gas. */
+  gas: string;
   /** Control-chart input (records, tolerance, σ, trend). */
   chart: ControlChartInput;
-  /** Notes about the history (e.g. which σ was used and why, when the next check is due). */
+  /** Every check, for the table (default: the chart's records). */
+  rows?: readonly RecheckRow[];
+  /** Notes about the history (e.g. which σ was used and why, the trend, when the next check is due). */
   notes?: readonly string[];
   /** Where the history was read from (plain text), for the provenance. */
   source?: string;
@@ -58,8 +82,10 @@ export interface CalibrationReportInput {
   spectra: readonly StandardSpectrum[];
   /** Plain-words notes about spectra that could not be used (missing, changed, unreadable). */
   spectraNotes: readonly string[];
-  /** Recheck history, when one exists. */
-  history?: RecheckHistoryView;
+  /** Recheck history per gas, when one exists. */
+  histories?: readonly RecheckHistoryView[];
+  /** Notes about the history (e.g. it belongs to another calibration and was not used). */
+  historyNotes?: readonly string[];
 }
 
 /** Options of {@link calibrationReportHtml}. */
@@ -146,14 +172,20 @@ function gasHeading(gas: GasCalibration): string {
   return paragraph(`${where}; curve: ${CURVE_WORDS[gas.model.form]}, ${gas.model.weights === 'none' ? 'unweighted' : `weighted ${gas.model.weights}`}.`);
 }
 
+function concentrationColumns(calibration: Calibration): { gas: string; unit: string }[] {
+  if (calibration.cls !== undefined) return calibration.cls.model.components.map((c) => ({ gas: c.name, unit: c.unit }));
+  return calibration.gases.map((g) => ({ gas: g.gas, unit: unitLabel(g.unit) }));
+}
+
 function standardsTable(calibration: Calibration, spectrumStatus: (index: number) => string): string {
   const gases = calibration.gases;
-  const header: Cell[] = ['#', 'scan', 'lot', ...gases.map((g) => numberCell(`${g.gas} / ${unitLabel(g.unit)}`)), numberCell('path / m'), numberCell('T / K'), numberCell('P / kPa'), numberCell('φ'), ...gases.flatMap((g) => [numberCell(`${g.gas} response (scaled)`), numberCell(`${g.gas} residual`)]), 'spectrum'];
+  const columns = concentrationColumns(calibration);
+  const header: Cell[] = ['#', 'scan', 'lot', ...columns.map((g) => numberCell(`${g.gas} / ${g.unit}`)), numberCell('path / m'), numberCell('T / K'), numberCell('P / kPa'), numberCell('φ'), ...gases.flatMap((g) => [numberCell(`${g.gas} response (scaled)`), numberCell(`${g.gas} residual`)]), 'spectrum'];
   const rows = calibration.standards.map((standard, i): Cell[] => [
     numberCell(String(i + 1)),
     { text: standard.scan, className: 'hash' },
     standard.lot ?? '',
-    ...gases.map((g) => numberCell(standard.concentrations[g.gas] === undefined ? '' : formatNumber(standard.concentrations[g.gas] as number, 5))),
+    ...columns.map((g) => numberCell(standard.concentrations[g.gas] === undefined ? '' : formatNumber(standard.concentrations[g.gas] as number, 5))),
     numberCell(formatNumber(standard.conditions.pathLength_m, 4)),
     numberCell(formatNumber(standard.conditions.temperature_K, 5)),
     numberCell(formatNumber(standard.conditions.pressure_kPa, 5)),
@@ -165,7 +197,53 @@ function standardsTable(calibration: Calibration, spectrumStatus: (index: number
     }),
     spectrumStatus(i),
   ]);
-  return htmlTable({ caption: 'Standards (certified values, cell conditions, responses at reference conditions, residuals)', header, rows });
+  return htmlTable({ caption: gases.length > 0 ? 'Standards (certified values, cell conditions, responses at reference conditions, residuals)' : 'Standards (certified values and cell conditions)', header, rows });
+}
+
+function clsSection(calibration: Calibration): string {
+  const cls = calibration.cls;
+  if (cls === undefined || calibration.method.model !== 'cls') return '';
+  const model = cls.model;
+  const method = calibration.method;
+  const statistics = model.calibration;
+  const components = htmlTable({
+    caption: 'Components',
+    header: ['component', 'role', 'unit', numberCell('calibrated range (reference conditions)'), numberCell('RMSECV (leave one out)'), numberCell('interval inflation'), numberCell('detection limit (reference conditions)')],
+    rows: model.components.map((c, i): Cell[] => {
+      const range = model.ranges[i];
+      const rmsecv = model.crossValidation.rmsecv[i];
+      const limit = cls.detectionLimits[c.name];
+      return [
+        c.name,
+        c.reported ? 'reported' : 'interferent (modelled, not reported)',
+        c.unit,
+        numberCell(range === undefined ? '' : `${formatNumber(range.min)} – ${formatNumber(range.max)}`),
+        numberCell(rmsecv === undefined || rmsecv === null ? 'not available' : formatNumber(rmsecv, 3)),
+        numberCell(formatNumber(model.crossValidation.inflation[i] ?? 1, 3)),
+        numberCell(limit === undefined ? '—' : formatNumber(limit, 3)),
+      ];
+    }),
+  });
+  const facts = htmlTable({
+    caption: 'Fit statistics',
+    header: ['statistic', numberCell('value')],
+    rows: [
+      ['fit regions', cls.regions.map(formatWindow).join(', ')],
+      ['baseline polynomial order per region', numberCell(String(method.baselineOrder))],
+      ['background spectrum', method.background === undefined ? 'none' : String(method.background)],
+      ['channels', numberCell(String(model.channelCount))],
+      ['standards', numberCell(String(statistics.standards))],
+      ['residual RMS of the standards / AU', numberCell(formatNumber(statistics.residualRms, 3))],
+      ['residual degrees of freedom', numberCell(formatNumber(statistics.degreesOfFreedom, 4))],
+      ['condition number, concentrations', numberCell(formatNumber(statistics.conditionConcentrations, 3))],
+      ['condition number, pure spectra', numberCell(formatNumber(statistics.conditionPureSpectra, 3))],
+    ],
+  });
+  return (
+    paragraph(`Every component is fitted together over the regions (K-matrix classical least squares); the baseline polynomials are projected out of every spectrum. Detection limits are 3.3 × the prediction standard error of a blank at the reference conditions; a sample's limit is this ÷ its φ.`) +
+    components +
+    facts
+  );
 }
 
 const STATUS_WORDS: Record<InputFileStatus, string> = {
@@ -193,31 +271,39 @@ function provenance(input: CalibrationReportInput): string {
       ['schema version', calibration.schemaVersion],
       ['built', `${calibration.createdAt} by ${calibration.tool.name} ${calibration.tool.version}`],
       ['report made', `${input.generatedAt} by ${input.tool.name} ${input.tool.version}${sameTool ? '' : ' (a different version from the one that built the calibration)'}`],
-      ...(input.history?.source === undefined ? [] : ([['recheck history', input.history.source]] as [string, string][])),
+      ...(input.histories?.[0]?.source === undefined ? [] : ([['recheck history', input.histories[0].source]] as [string, string][])),
     ]) +
     (changed.length > 0 ? notice(`${changed.length} of ${input.inputs.length} recorded input file(s) are missing or no longer match their recorded SHA-256; the numbers above come from the calibration file itself, the plots leave out what could not be verified.`) : '') +
     htmlTable({ caption: 'Input files (paths relative to the calibration file’s folder)', header: ['role', 'path', 'SHA-256 recorded', 'now'], rows })
   );
 }
 
-function historySection(history: RecheckHistoryView | undefined, idPrefix: string): { html: string; plots: NamedPlot[] } {
-  if (history === undefined || history.chart.records.length === 0) {
-    return { html: paragraph('No rechecks are recorded for this calibration yet.'), plots: [] };
-  }
-  const plot = controlChartPlot(history.chart, { idPrefix });
-  const rows = [...history.chart.records]
-    .sort((a, b) => Date.parse(a.time) - Date.parse(b.time))
-    .map((record): Cell[] => [record.time, numberCell(formatNumber(record.recoveryPct, 5)), record.verdict, record.rules.join(', '), record.label ?? '']);
-  const html =
-    figure(plot.svg, `Control chart: recovery of the check standard against time, tolerance ±${formatNumber(history.chart.tolerancePct, 3)} %, warning (±2σ) and action (±3σ) limits; σ: ${history.chart.sigmaSource}.`) +
-    (history.notes === undefined || history.notes.length === 0 ? '' : bulletList(history.notes)) +
-    htmlTable({
-      caption: 'Rechecks',
-      header: ['time (UTC)', numberCell('recovery / %'), 'verdict', 'rules fired', 'scan'],
-      rows,
-      rowClasses: history.chart.records.map((r) => (r.verdict === 'fail' ? 'failed' : undefined)),
-    });
-  return { html, plots: [plot] };
+function historySection(histories: readonly RecheckHistoryView[] | undefined, notes: readonly string[], idPrefix: string): { html: string; plots: NamedPlot[] } {
+  const noteMarkup = notes.map((n) => notice(n)).join('');
+  const views = (histories ?? []).filter((h) => h.chart.records.length > 0 || (h.rows ?? []).length > 0);
+  if (views.length === 0) return { html: noteMarkup + paragraph('No rechecks are recorded for this calibration yet.'), plots: [] };
+  const plots: NamedPlot[] = [];
+  const parts = views.map((history, k) => {
+    const plot = controlChartPlot(history.chart, { idPrefix: `${idPrefix}-${k}`, file: `${history.gas}-control-chart` });
+    plots.push(plot);
+    const rows: RecheckRow[] = [
+      ...(history.rows ??
+        history.chart.records.map((r) => ({ time: r.time, certified: Number.NaN, measured: Number.NaN, unit: '', recoveryPct: r.recoveryPct, verdict: r.verdict, rules: r.rules, scan: r.label ?? '' }))),
+    ].sort((a, b) => Date.parse(a.time) - Date.parse(b.time));
+    const shown = (value: number, digits: number): string => (Number.isFinite(value) ? formatNumber(value, digits) : '');
+    return (
+      (views.length > 1 ? element('h3', {}, escapeText(history.gas)) : '') +
+      figure(plot.svg, `Control chart of ${history.gas}: recovery of the check standard against time, tolerance ±${formatNumber(history.chart.tolerancePct, 3)} %, warning (±2σ) and action (±3σ) limits with the σ in force for the next check (${history.chart.sigmaSource}); checks where a control rule fired are ringed and labelled.`) +
+      (history.notes === undefined || history.notes.length === 0 ? '' : bulletList(history.notes)) +
+      htmlTable({
+        caption: `Rechecks of ${history.gas}`,
+        header: ['time (UTC)', numberCell('certified'), numberCell('measured'), 'unit', numberCell('recovery / %'), 'verdict', 'rules fired', 'scan'],
+        rows: rows.map((r): Cell[] => [r.time, numberCell(shown(r.certified, 5)), numberCell(shown(r.measured, 5)), r.unit, numberCell(r.recoveryPct === undefined ? 'zero gas' : shown(r.recoveryPct, 5)), r.verdict, r.rules.join(', '), { text: r.scan, className: 'hash' }]),
+        rowClasses: rows.map((r) => (r.verdict === 'fail' ? 'failed' : undefined)),
+      })
+    );
+  });
+  return { html: noteMarkup + parts.join(''), plots };
 }
 
 /**
@@ -229,7 +315,7 @@ function historySection(history: RecheckHistoryView | undefined, idPrefix: strin
  */
 export function calibrationReportPlots(input: CalibrationReportInput, options: CalibrationReportOptions = {}): NamedPlot[] {
   const plots = calibrationPlots(input.calibration, input.spectra, { ...options, idPrefix: 'plot', spectraNotes: input.spectraNotes });
-  return [...plots, ...historySection(input.history, 'plot').plots];
+  return [...plots, ...historySection(input.histories, input.historyNotes ?? [], 'plot').plots];
 }
 
 /**
@@ -247,11 +333,11 @@ export function calibrationReportHtml(input: CalibrationReportInput, options: Ca
   const plots = calibrationPlots(calibration, input.spectra, { ...options, level, idPrefix: 'report', spectraNotes: input.spectraNotes });
   const plotFor = (file: string): NamedPlot | undefined => plots.find((p) => p.file === file);
   const loaded = new Set(input.spectra.map((s) => s.index));
-  const history = historySection(input.history, 'report');
+  const history = historySection(input.histories, input.historyNotes ?? [], 'report');
   const reference = calibration.reference;
 
   const parts: string[] = [];
-  parts.push(element('header', {}, element('h1', {}, escapeText(`Calibration report: ${title}`)) + paragraph(`${calibration.gases.map((g) => g.gas).join(', ')} · ${calibration.method.model} method · ${calibration.standards.length} standards · built ${calibration.createdAt}`, 'subtitle')));
+  parts.push(element('header', {}, element('h1', {}, escapeText(`Calibration report: ${title}`)) + paragraph(`${concentrationColumns(calibration).map((g) => g.gas).join(', ')} · ${calibration.method.model} method · ${calibration.standards.length} standards · built ${calibration.createdAt}`, 'subtitle')));
   parts.push(cautionBox(calibration.cautions));
   const gasLinks = calibration.gases.map((g) => element('li', {}, element('a', { href: `#gas-${slug(g.gas)}` }, escapeText(g.gas))));
   parts.push(
@@ -261,13 +347,13 @@ export function calibrationReportHtml(input: CalibrationReportInput, options: Ca
       element(
         'ol',
         {},
-        [element('li', {}, element('a', { href: '#summary' }, 'Summary')), ...gasLinks, element('li', {}, element('a', { href: '#standards' }, 'Standards')), element('li', {}, element('a', { href: '#rechecks' }, 'Recheck history')), element('li', {}, element('a', { href: '#provenance' }, 'Provenance'))].join(''),
+        [element('li', {}, element('a', { href: '#summary' }, 'Summary')), ...gasLinks, ...(calibration.cls === undefined ? [] : [element('li', {}, element('a', { href: '#cls' }, 'Classical least squares'))]), element('li', {}, element('a', { href: '#standards' }, 'Standards')), element('li', {}, element('a', { href: '#rechecks' }, 'Recheck history')), element('li', {}, element('a', { href: '#provenance' }, 'Provenance'))].join(''),
       ),
     ),
   );
 
   const summaryFacts: [string, string][] = [
-    ['gases', calibration.gases.map((g) => `${g.gas} (${unitLabel(g.unit)}, ${g.model.range[0]}–${g.model.range[1]})`).join('; ')],
+    ['gases', calibration.cls !== undefined ? calibration.cls.model.components.map((c) => `${c.name} (${c.unit}${c.reported ? '' : ', interferent'})`).join('; ') : calibration.gases.map((g) => `${g.gas} (${unitLabel(g.unit)}, ${g.model.range[0]}–${g.model.range[1]})`).join('; ')],
     ['method', `${calibration.method.model}${calibration.method.model === 'band' ? ' (baseline-corrected band per gas)' : ''}`],
     ['standards', `${calibration.standards.length}`],
     ['reference conditions', `path ${formatNumber(reference.pathLength_m, 4)} m, ${formatNumber(reference.temperature_K, 5)} K, ${formatNumber(reference.pressure_kPa, 6)} kPa; responses scaled by φ = (L/L_ref)(P/P_ref)(T_ref/T)`],
@@ -297,6 +383,19 @@ export function calibrationReportHtml(input: CalibrationReportInput, options: Ca
     else if (gas.feature !== undefined) figures.push(notice(`${gas.gas}: no standard spectrum could be read and verified, so the spectra plot is left out.`));
     for (const warning of gas.model.warnings) figures.push(notice(warning));
     parts.push(element('section', { id: `gas-${name}` }, element('h2', {}, escapeText(gas.gas)) + gasHeading(gas) + statisticsTable(gas) + linearityText(gas) + limitsTable(gas) + figures.join('')));
+  }
+
+  if (calibration.cls !== undefined) {
+    const spectra = plotFor('standard-spectra.svg');
+    parts.push(
+      element(
+        'section',
+        { id: 'cls' },
+        element('h2', {}, 'Classical least squares') +
+          clsSection(calibration) +
+          (spectra === undefined ? notice('No standard spectrum could be read and verified, so the spectra plot is left out.') : figure(spectra.svg, "The standards' absorbance spectra over the method's fit regions (shaded), grouped by their certified concentrations.")),
+      ),
+    );
   }
 
   const spectrumStatus = (index: number): string => (loaded.has(index) ? 'read, hash matches' : calibration.method.model === 'responses' ? '—' : 'not drawn');

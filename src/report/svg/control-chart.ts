@@ -83,6 +83,20 @@ export interface ControlChartOptions {
 }
 
 const MARGIN = { left: 78, right: 20, bottom: 50 } as const;
+
+/** Splits text into lines of at most `width` characters at spaces (a longer word stays whole). */
+export function wrapWords(text: string, width: number): string[] {
+  const lines: string[] = [];
+  let current = '';
+  for (const word of text.split(/\s+/)) {
+    if (current !== '' && current.length + 1 + word.length > width) {
+      lines.push(current);
+      current = word;
+    } else current = current === '' ? word : `${current} ${word}`;
+  }
+  if (current !== '') lines.push(current);
+  return lines;
+}
 const DAY_MS = 86_400_000;
 
 function timeOf(text: string, what: string): number {
@@ -141,8 +155,14 @@ export function renderControlChart(input: ControlChartInput, options: ControlCha
     legendEntries.push({ label: 'projection', colour: trendStyle.colour, dash: '3 3', line: true, lineWidth: 2 });
   }
   const legend = renderLegend(legendEntries, { x: MARGIN.left, y: 28, width: width - MARGIN.left - MARGIN.right });
-  const panel: Panel = { left: MARGIN.left, top: 28 + legend.height + 24, width: width - MARGIN.left - MARGIN.right, height: options.panelHeight ?? 280 };
-  const height = panelBottom(panel) + MARGIN.bottom + 18;
+  const panel: Panel = { left: MARGIN.left, top: 28 + legend.height + 36, width: width - MARGIN.left - MARGIN.right, height: options.panelHeight ?? 280 };
+  const footnotes: string[] = [];
+  const crossing = input.trend?.leavesToleranceAt;
+  const sigmaLines = [
+    ...wrapWords(`σ: ${input.sigmaSource}`, Math.floor((width - MARGIN.left - MARGIN.right) / 6.2)),
+    ...(crossing === undefined || crossing === null ? [] : ['']),
+  ];
+  const height = panelBottom(panel) + MARGIN.bottom + 8 + 14 * sigmaLines.length;
 
   const times = records.map((r) => r.at);
   if (input.trend !== undefined) times.push(timeOf(input.trend.projectUntil, 'trend.projectUntil'));
@@ -157,7 +177,11 @@ export function renderControlChart(input: ControlChartInput, options: ControlCha
   const time = scaleUtc()
     .domain([new Date(start - pad), new Date(end + pad)])
     .range([panel.left, panel.left + panel.width]);
-  const timeTicks = time.ticks(7);
+  // Date labels are about 70 px wide: keep every k-th tick so neighbours never touch.
+  const allTicks = time.ticks(6);
+  const spacing = allTicks.length > 1 ? (panel.width * (allTicks[1]!.getTime() - allTicks[0]!.getTime())) / (end - start + 2 * pad) : panel.width;
+  const every = Math.max(1, Math.ceil(84 / Math.max(spacing, 1)));
+  const timeTicks = allTicks.filter((_, i) => i % every === 0);
   const px = (t: number): number => time(new Date(t));
 
   const c = input.centrePct;
@@ -206,19 +230,20 @@ export function renderControlChart(input: ControlChartInput, options: ControlCha
       const leaves = timeOf(trend.leavesToleranceAt, 'trend.leavesToleranceAt');
       const lx = px(leaves);
       const ly = py(at(leaves));
-      const text = `trend leaves tolerance ${new Date(leaves).toISOString().slice(0, 10)}`;
+      const text = `projected trend leaves the tolerance on ${new Date(leaves).toISOString().slice(0, 10)}`;
       body.push(
         element(
           'g',
           { class: 'leaves-tolerance', 'data-time': new Date(leaves).toISOString() },
-          element('path', { d: markerPath(symbolDiamond, 70), transform: `translate(${coordinate(lx)},${coordinate(ly)})`, fill: '#ffffff', stroke: trendStyle.colour, 'stroke-width': 1.6 }) +
-            element('text', { x: Math.min(lx, panel.left + panel.width - 4), y: panel.top - 8, 'text-anchor': 'end', 'font-size': 11, fill: trendStyle.colour }, escapeText(text)),
+          element('path', { d: markerPath(symbolDiamond, 70), transform: `translate(${coordinate(lx)},${coordinate(ly)})`, fill: '#ffffff', stroke: trendStyle.colour, 'stroke-width': 1.6 }, element('title', {}, escapeText(text))),
         ),
       );
+      footnotes.push(text);
     }
   }
 
   const marks: string[] = [];
+  let violations = 0;
   for (const record of records) {
     const cx = px(record.at);
     const cy = py(record.recoveryPct);
@@ -227,7 +252,12 @@ export function renderControlChart(input: ControlChartInput, options: ControlCha
     const hover = `${record.time}: recovery ${formatNumber(record.recoveryPct, 4)} %, ${record.verdict}${record.rules.length > 0 ? `, rules ${record.rules.join(', ')}` : ''}${record.label === undefined ? '' : ` (${record.label})`}`;
     if (record.rules.length > 0) {
       marks.push(element('circle', { class: 'rule-violation', cx, cy, r: 8, fill: 'none', stroke: colour, 'stroke-width': 1.4 }));
-      marks.push(element('text', { class: 'rule-label', x: cx, y: cy - 12, 'text-anchor': 'middle', 'font-size': 10, fill: colour }, escapeText(record.rules.join(' '))));
+      // Labels sit in a strip above the panel, in two alternating rows, so they never cover data
+      // and neighbouring checks' labels do not run into each other; a dotted leader joins label and check.
+      const row = violations++ % 2;
+      const labelY = panel.top - 8 - 13 * row;
+      marks.push(element('line', { class: 'rule-leader', x1: cx, x2: cx, y1: labelY + 3, y2: cy - 8, stroke: colour, 'stroke-width': 0.6, 'stroke-dasharray': '1 2' }));
+      marks.push(element('text', { class: 'rule-label', x: cx, y: labelY, 'text-anchor': 'middle', 'font-size': 10, fill: colour }, escapeText(record.rules.join(' '))));
     }
     marks.push(
       element(
@@ -253,7 +283,8 @@ export function renderControlChart(input: ControlChartInput, options: ControlCha
     body.push(element('g', { class: 'next-due' }, element('line', { x1: dx, x2: dx, y1: panel.top, y2: panelBottom(panel), stroke: MUTED, 'stroke-width': 1, 'stroke-dasharray': '1 3' }) + element('text', { x: dx, y: panel.top + 12, 'text-anchor': 'middle', 'font-size': 10, fill: MUTED }, 'next due')));
   }
   if (records.length === 0) body.push(noteText(panel.left + 10, panel.top + 20, 'no rechecks recorded yet'));
-  body.push(noteText(panel.left, panelBottom(panel) + MARGIN.bottom + 10, `σ: ${input.sigmaSource}`));
+  const noteLines = [...sigmaLines.filter((l) => l !== ''), ...footnotes];
+  noteLines.forEach((text, i) => body.push(noteText(panel.left, panelBottom(panel) + MARGIN.bottom + 10 + 14 * i, text)));
   body.push(legend.svg);
 
   const fired = records.filter((r) => r.rules.length > 0).length;

@@ -5,11 +5,14 @@
  */
 import type { Calibration, GasCalibration } from '../../calibration/calibration.js';
 import type { Spectrum } from '../../spectrum/spectrum.js';
+import type { CellConditions } from '../../gas/conditions.js';
+import { clsFitData } from './cls-data.js';
 import { calibrationCurveData, renderCalibrationCurve } from './calibration-curve.js';
 import { renderClsFit, type ClsFitPlotInput } from './cls-fit.js';
 import { renderControlChart, type ControlChartInput } from './control-chart.js';
 import { slug } from './markup.js';
-import { concentrationGroup, gasSpectraData, renderSpectra, type WavenumberAxis } from './spectra.js';
+import { clsStandardsSpectraData, concentrationGroup, gasSpectraData, renderSpectra, type WavenumberAxis } from './spectra.js';
+import type { ConcentrationUnit } from '../../gas/units.js';
 
 /** One plot ready to inline or to write. */
 export interface NamedPlot {
@@ -41,7 +44,8 @@ export interface StandardSpectrum {
 
 /**
  * The plots of a calibration: per gas, the calibration curve with residuals and (band methods,
- * when spectra are given) the standards' spectra with windows and baselines.
+ * when spectra are given) the standards' spectra with windows and baselines; for classical least
+ * squares, the standards' spectra over the fit regions.
  *
  * @param calibration - the calibration
  * @param spectra - the standards' spectra that could be read, by standard index
@@ -68,6 +72,24 @@ export function calibrationPlots(calibration: Calibration, spectra: readonly Sta
       });
     }
   });
+  if (calibration.cls !== undefined && (spectra.length > 0 || (options.spectraNotes ?? []).length > 0)) {
+    const components = calibration.cls.model.components;
+    const labelled = spectra.map(({ index, spectrum }) => {
+      const standard = calibration.standards[index];
+      const group = components
+        .map((c) => `${c.name} ${concentrationGroup(standard?.concentrations[c.name] ?? Number.NaN, c.unit as ConcentrationUnit)}`)
+        .join(', ');
+      return { label: `${standard?.scan ?? `standard ${index + 1}`}${standard?.lot === undefined ? '' : `, lot ${standard.lot}`}`, spectrum, group };
+    });
+    plots.push({
+      file: 'standard-spectra.svg',
+      title: 'Standards: spectra over the fit regions',
+      svg: renderSpectra(clsStandardsSpectraData(calibration, labelled, { ...(options.spectraNotes === undefined ? {} : { notes: options.spectraNotes }) }), {
+        id: `${prefix}-cls-spectra`,
+        ...(options.wavenumberAxis === undefined ? {} : { wavenumberAxis: options.wavenumberAxis }),
+      }),
+    });
+  }
   return plots;
 }
 
@@ -89,17 +111,24 @@ function standardSeries(calibration: Calibration, gas: GasCalibration, spectra: 
  * given.
  *
  * @param calibration - the calibration used
- * @param sample - the scan's name (plain text) and spectrum; `cls` fit data when the method is CLS
+ * @param sample - the scan's name (plain text) and spectrum; for a CLS calibration its `conditions`
+ *   (as quantify resolved them) to build the fit plot, or the fit data itself as `cls`
  * @param options - axis direction, id prefix
  * @returns the plots
+ * @throws BandwrightError `WINDOW` when a CLS sample does not cover the regions
  */
-export function samplePlots(calibration: Calibration, sample: { scan: string; spectrum: Spectrum; cls?: ClsFitPlotInput }, options: PlotSetOptions = {}): NamedPlot[] {
+export function samplePlots(calibration: Calibration, sample: { scan: string; spectrum: Spectrum; conditions?: CellConditions; cls?: ClsFitPlotInput }, options: PlotSetOptions = {}): NamedPlot[] {
   const prefix = options.idPrefix ?? 'plot';
   const base = slug(sample.scan.replace(/^.*[\\/]/, '').replace(/\.[^.]*$/, ''));
   const axis = options.wavenumberAxis === undefined ? {} : { wavenumberAxis: options.wavenumberAxis };
   const plots: NamedPlot[] = [];
-  if (sample.cls !== undefined) {
-    plots.push({ file: `${base}-cls-fit.svg`, title: `${sample.scan}: classical-least-squares fit`, svg: renderClsFit(sample.cls, { id: `${prefix}-cls`, ...axis }) });
+  const cls =
+    sample.cls ??
+    (calibration.cls !== undefined && sample.conditions !== undefined
+      ? clsFitData(calibration, sample.spectrum, sample.conditions, { title: `${sample.scan}: classical-least-squares fit`, ...(options.level === undefined ? {} : { level: options.level }) })
+      : undefined);
+  if (cls !== undefined) {
+    plots.push({ file: `${base}-cls-fit.svg`, title: `${sample.scan}: classical-least-squares fit`, svg: renderClsFit(cls, { id: `${prefix}-cls`, ...axis }) });
   }
   calibration.gases.forEach((gas, g) => {
     if (gas.feature === undefined) return;

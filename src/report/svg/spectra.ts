@@ -11,7 +11,7 @@
 import { line } from 'd3-shape';
 import { evaluateBaseline, fitBaseline } from '../../bands/band.js';
 import type { Window } from '../../bands/windows.js';
-import type { GasCalibration } from '../../calibration/calibration.js';
+import type { Calibration, GasCalibration } from '../../calibration/calibration.js';
 import { formatWindow } from '../../bands/windows.js';
 import { unitLabel } from '../../gas/units.js';
 import { toAbsorbance, type Spectrum } from '../../spectrum/spectrum.js';
@@ -52,6 +52,8 @@ export interface SpectraPlotInput {
   band?: Window;
   /** Baseline windows, cm⁻¹, hatched. */
   baselineWindows: readonly Window[];
+  /** Fit regions of a classical-least-squares method, cm⁻¹, shaded lightly. */
+  regions?: readonly Window[];
   /** Fitted baselines. */
   baselines: readonly BaselineSeries[];
   /** Absorbance axis label. */
@@ -148,7 +150,7 @@ function windowSpan(band: Window | undefined, windows: readonly Window[]): [numb
 /**
  * Draws spectra with their windows and baselines.
  *
- * Classes: `spectrum` paths (`data-label`), `band-window` and `baseline-window` rectangles (with
+ * Classes: `spectrum` paths (`data-label`), `band-window`, `baseline-window` and `region` rectangles (with
  * `data-low`, `data-high` in cm⁻¹), `fitted-baseline` paths, `panel-frame`, axes with
  * `axis-label`, `legend`.
  *
@@ -171,6 +173,7 @@ export function renderSpectra(input: SpectraPlotInput, options: SpectraOptions =
   const legendEntries: LegendEntry[] = groups.map((group, i) => ({ label: group, colour: seriesStyle(i).colour, dash: seriesStyle(i).dash, line: true }));
   if (input.band !== undefined) legendEntries.push({ label: `band ${formatWindow(input.band)}`, colour: BAND_FILL, area: 0.16 });
   if (input.baselineWindows.length > 0) legendEntries.push({ label: 'baseline windows', colour: BASELINE_FILL, area: 1, pattern: `${id}-hatch` });
+  if ((input.regions ?? []).length > 0) legendEntries.push({ label: 'fit regions', colour: BASELINE_FILL, area: 0.12 });
   if (input.baselines.length > 0) legendEntries.push({ label: 'fitted baseline', colour: MUTED, dash: '1.5 2', line: true, lineWidth: 1.2 });
   const legend = renderLegend(legendEntries, { x: SPECTRA_MARGIN.left, y: 28, width: width - SPECTRA_MARGIN.left - SPECTRA_MARGIN.right });
   const panel: Panel = { left: SPECTRA_MARGIN.left, top: 28 + legend.height + 10, width: width - SPECTRA_MARGIN.left - SPECTRA_MARGIN.right, height: panelHeight };
@@ -180,7 +183,7 @@ export function renderSpectra(input: SpectraPlotInput, options: SpectraOptions =
   let range: [number, number];
   if (options.range !== undefined) range = [options.range[0], options.range[1]];
   else {
-    const span = windowSpan(input.band, input.baselineWindows);
+    const span = windowSpan(input.band, [...input.baselineWindows, ...(input.regions ?? [])]);
     if (span !== undefined) {
       const margin = 0.15 * (span[1] - span[0]);
       range = [span[0] - margin, span[1] + margin];
@@ -210,6 +213,7 @@ export function renderSpectra(input: SpectraPlotInput, options: SpectraOptions =
     );
   };
   const windows: string[] = [];
+  for (const region of input.regions ?? []) windows.push(windowRect(region, 'region', BASELINE_FILL, 0.12, `fit region ${formatWindow(region)}`));
   if (input.band !== undefined) windows.push(windowRect(input.band, 'band-window', BAND_FILL, 0.16, `band (integration window) ${formatWindow(input.band)}`));
   input.baselineWindows.forEach((w) => windows.push(windowRect(w, 'baseline-window', `url(#${id}-hatch)`, undefined, `baseline window ${formatWindow(w)}`)));
   body.push(element('g', { class: 'windows', 'clip-path': `url(#${clip})` }, windows.join('')));
@@ -301,4 +305,26 @@ export function gasSpectraData(gas: GasCalibration, spectra: readonly LabelledSp
  */
 export function concentrationGroup(value: number, unit: Parameters<typeof unitLabel>[0]): string {
   return `${formatNumber(value, 4).replace(/(\.\d*?)0+$/, '$1').replace(/\.$/, '')} ${unitLabel(unit)}`;
+}
+
+/**
+ * Plot input for the standards of a classical-least-squares calibration: each spectrum over the
+ * method's regions (shaded), grouped by the standard's certified concentrations.
+ *
+ * @param calibration - a CLS calibration
+ * @param spectra - labelled spectra (groups already set by the caller, e.g. `CO 50 ppm, NO 20 ppm`)
+ * @param options - `notes` printed under the plot
+ */
+export function clsStandardsSpectraData(calibration: Calibration, spectra: readonly LabelledSpectrum[], options: { notes?: readonly string[] } = {}): SpectraPlotInput {
+  return {
+    title: `Standards: spectra over the fit regions`,
+    series: spectra.map((item) => {
+      const absorbance = toAbsorbance(item.spectrum);
+      return { label: item.label, x: absorbance.x, y: absorbance.y, ...(item.group === undefined ? {} : { group: item.group }) };
+    }),
+    baselineWindows: [],
+    regions: calibration.cls?.regions ?? [],
+    baselines: [],
+    notes: [...(options.notes ?? [])],
+  };
 }
