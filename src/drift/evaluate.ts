@@ -336,7 +336,7 @@ function verdictNotes(checks: readonly EvaluatedCheck[], tolerance: number): str
     .filter((check) => check.verdict !== check.record.verdict)
     .map(
       (check) =>
-        `${label(check.record)}${check.record.line === undefined ? '' : ` (history line ${check.record.line})`} was recorded as ${check.record.verdict} (tolerance ±${check.record.tolerancePct} %) and is judged ${check.verdict} now (tolerance ±${tolerance} %${check.record.tolerancePct === tolerance ? '; a check recorded out of time order changes what the rules see' : ''})`,
+        `${label(check.record)}${check.record.line === undefined ? '' : ` (history line ${check.record.line})`} was recorded as ${check.record.verdict} (tolerance ±${check.record.tolerancePct} %) and is judged ${check.verdict} now (tolerance ±${tolerance} %${check.record.tolerancePct === tolerance ? '; the checks before it are not those it was judged with, e.g. one was recorded later for an earlier time' : ''})`,
     );
 }
 

@@ -113,7 +113,8 @@ function quote(cell: string): string {
 }
 
 function numberCell(value: number | undefined): string {
-  return value === undefined || !Number.isFinite(value) ? '' : String(value);
+  if (value === undefined || !Number.isFinite(value)) return '';
+  return Object.is(value, -0) ? '-0' : String(value);
 }
 
 function textCell(value: string): string {
@@ -253,7 +254,7 @@ export function parseHistory(text: string, source: string, options: ReadHistoryO
   const complete = text.endsWith('\n');
   if (complete) pieces.pop();
   const lines = pieces.map((line) => (line.endsWith('\r') ? line.slice(0, -1) : line));
-  if (!complete && lines.length > 0) {
+  if (!complete && text.length > 0) {
     const number = lines.length;
     const torn = lines[number - 1] as string;
     throw new BandwrightError(

@@ -158,7 +158,7 @@ export function withFileLock<T>(lockPath: string, action: () => T, options: Lock
       const who = seen.owner === undefined ? 'another process' : `process ${seen.owner.pid} on ${seen.owner.host} since ${seen.owner.time}`;
       throw new BandwrightError(
         'FILE_READ',
-        `${lockPath}: locked by ${who} for more than ${(timeoutMs / 1000).toFixed(0)} s; if no other bandwright command is writing this history, delete the lock file and retry`,
+        `${lockPath}: locked by ${who} for more than ${timeoutMs >= 1000 ? `${(timeoutMs / 1000).toFixed(0)} s` : `${timeoutMs} ms`}; if no other bandwright command is writing this history, delete the lock file and retry`,
         { file: lockPath },
       );
     }
