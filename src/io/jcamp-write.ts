@@ -151,7 +151,9 @@ export function formatJcamp(spectrum: Spectrum, options: JcampWriteOptions): str
     }
     yFactorText = String(yFactor);
   } else {
-    const exponent = maxAbs === 0 ? 0 : Math.ceil(Math.log10(maxAbs)) - 9;
+    // Below 1E-300 the factor itself would underflow to 0 for subnormal ordinates; such values
+    // (|y| < 1e-300) are written as 0, which no absorbance or transmittance can tell apart.
+    const exponent = maxAbs === 0 ? 0 : Math.max(-300, Math.ceil(Math.log10(maxAbs)) - 9);
     yFactorText = `1E${exponent}`;
     yFactor = Number(yFactorText);
   }

@@ -200,16 +200,29 @@ function stateOf(model: ClsModel): ClsState {
  *   conditions, the interferents likewise, the residual spectrum and its RMS (absorbance), and
  *   the `poor-fit` flag
  * @throws BandwrightError `INVALID_VALUE` for a spectrum of the wrong length or with non-finite
- *   values, φ ≤ 0, or a level outside (0, 1)
+ *   values, φ ≤ 0, or a level outside (0, 1); `NO_SOLUTION` when the estimates overflow (absorbances far beyond any calibration)
  * @example
  * const result = predictCls(model, sampleAbsorbance, { phi: 1 });
  * result.estimates[0]; // { name: 'CO', value: 71.3, se: 0.4, low: 70.5, high: 72.1, ... }
  */
 export function predictCls(model: ClsModel, spectrum: ArrayLike<number>, options: ClsPredictOptions): ClsPrediction {
-  return predictClsState(model, stateOf(model), spectrum, {
+  const prediction = predictClsState(model, stateOf(model), spectrum, {
     phi: options.phi,
     level: options.level ?? model.level,
     poorFitRatio: options.poorFitRatio ?? DEFAULT_POOR_FIT_RATIO,
     channelWord: 'channel',
   });
+  // Finite but huge absorbances (a corrupt or mis-scaled file) overflow the least squares; such an
+  // estimate must be an error, never a concentration.
+  const broken = [...prediction.estimates, ...prediction.interferents].find((e) => ![e.value, e.se, e.low, e.high].every(Number.isFinite));
+  if (broken !== undefined || !Number.isFinite(prediction.residualRms)) {
+    let largest = 0;
+    for (let j = 0; j < spectrum.length; j++) largest = Math.max(largest, Math.abs(spectrum[j] as number));
+    throw new BandwrightError(
+      'NO_SOLUTION',
+      `the sample spectrum gives ${broken === undefined ? `a residual RMS of ${prediction.residualRms}` : `${broken.name} = ${broken.value} ± ${broken.se}`}, not a finite estimate; its absorbance reaches ${largest}, far beyond any calibration`,
+      { parameter: 'spectrum' },
+    );
+  }
+  return prediction;
 }

@@ -781,7 +781,10 @@ export function predictConcentration(model: UnivariateModel, responses: readonly
         low = null;
         high = null;
       } else {
+        // With g < 1 the set holds x̂0, so the discriminant is >= 0; at tiny t (levels near 0) it
+        // can fall below 0 by rounding, which left both ends NaN: take the double root then.
         const roots = quadraticRoots(...quadratic);
+        if (roots.length === 0) roots.push(-quadratic[1] / (2 * quadratic[0]));
         low = shift + (roots[0] as number);
         high = shift + (roots[roots.length - 1] as number);
       }

@@ -171,3 +171,35 @@ describe('standards that are not files', () => {
     expect(thrown(() => loadStandards(manifest)).message).toMatch(/m\.csv line 2: .*d is a folder, expected a file/);
   });
 });
+
+describe('JCAMP-DX writer', () => {
+  it('writes a spectrum with subnormal ordinates (before: YFACTOR 1E-331 underflowed and the writer refused it)', async () => {
+    const { formatJcamp } = await import('../../src/io/jcamp-write.js');
+    const spectrum = makeSpectrum({ x: Float64Array.from([2000, 2001, 2002]), y: Float64Array.from([9e-323, 0, 0.5e-300]), yKind: 'absorbance', metadata: {} });
+    const text = formatJcamp(spectrum, { title: 'tiny', compression: 'affn' });
+    expect(text).toMatch(/##YFACTOR=1E-300/);
+    expect(Array.from(parseJcamp(text, { source: 'tiny.jdx' }).y)).toEqual([0, 0, 1e-300]);
+  });
+});
+
+describe('interval ends that were NaN or infinite', () => {
+  it('a Fieller interval at a level near 0 has finite ends (before: both NaN when the discriminant rounded below 0)', () => {
+    // The standards of the fuzz counterexample (seed 20261201): a nearly flat response.
+    const model = fitUnivariate({ concentration: [10, 0.5, 1, 5, 10, 100, 1e6, 1], response: [0.01, 0.01, 0.01, 0.010001874890664796, 0.01, 0.01, 0.01, 0.01] }, { form: 'linear' });
+    const estimate = predictConcentration(model, [-1, -0], { level: 8.890919915373989e-104, method: 'fieller' });
+    expect(estimate.unbounded || (Number.isFinite(estimate.low) && Number.isFinite(estimate.high))).toBe(true);
+    if (!estimate.unbounded) expect(estimate.low as number).toBeLessThanOrEqual(estimate.high as number);
+  });
+
+  it('a CLS sample with absorbances of 1e200 is NO_SOLUTION (before: an infinite concentration)', async () => {
+    const { fitCls, predictCls } = await import('../../src/models/cls.js');
+    // Invented pure spectrum: a Gaussian on 11 channels; standards at 2 and 5 ppm.
+    const pure = Array.from({ length: 11 }, (_, j) => Math.exp(-0.5 * ((j / 10) / 0.2) ** 2));
+    const model = fitCls({ channels: 11, spectra: [2, 5].map((c) => pure.map((v, j) => c * v + 1e-4 * Math.sin(7 * j + c))), concentrations: [[2], [5]], phi: [1, 1], components: [{ name: 'CO', reported: true, unit: 'ppm' }] }, { baselineOrder: 0 });
+    const sample = pure.map((v) => 10 * v);
+    sample[2] = 1e200;
+    const error = thrown(() => predictCls(model, sample, { phi: 1 }));
+    expect(error.code).toBe('NO_SOLUTION');
+    expect(error.message).toMatch(/not a finite estimate; its absorbance reaches 1e\+200/);
+  });
+});
