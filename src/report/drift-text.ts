@@ -69,10 +69,10 @@ export function formatRecheckText(outcome: RecheckOutcome): string {
     ['scan', `${record.scan} (sha256 ${record.scanSha256.slice(0, 12)}…)`],
     ['measured at', `${record.time}${record.time === record.recordedAt ? '' : ` (recorded ${record.recordedAt})`}`],
     ['certified', `${formatNumber(m.certified)} ${unit}${m.certified === 0 ? ' (zero gas)' : ''}`],
-    ['measured', `${formatNumber(m.measured)} ${unit}, ${level} interval ${formatNumber(m.low)}–${formatNumber(m.high)} ${unit} (se ${formatNumber(m.se, 3)})`],
+    ['measured', `${formatNumber(m.measured)} ${unit}, ${level} interval ${formatNumber(m.low)} to ${formatNumber(m.high)} ${unit} (se ${formatNumber(m.se, 3)})`],
   ];
   if (check.kind === 'span') {
-    rows.push(['recovery', `${percent(check.recoveryPct)} % (interval ${percent(check.recoveryLowPct)}–${percent(check.recoveryHighPct)} %); tolerance ${percent(100 - tolerance)}–${percent(100 + tolerance)} %`]);
+    rows.push(['recovery', `${percent(check.recoveryPct)} % (interval ${percent(check.recoveryLowPct)} to ${percent(check.recoveryHighPct)} %); tolerance ${percent(100 - tolerance)} to ${percent(100 + tolerance)} %`]);
   } else if (m.detectionLimit !== undefined) {
     rows.push(['zero gas', `judged against the detection limit ${formatNumber(m.detectionLimit)} ${unit}`]);
   }

@@ -213,7 +213,7 @@ describe('order, gases, recorded verdicts', () => {
   });
 
   it('judgeCheck completes the new record with its verdict, rules and σ, without a note about itself', () => {
-    const { record: _r, verdict: _v, rules: _rules, tolerancePct: _t, ...measurement } = check(14, 96.5);
+    const { verdict: _v, rules: _rules, tolerancePct: _t, ...measurement } = check(14, 96.5);
     const judged = judgeCheck([check(0, 100), check(7, 96.5, { verdict: 'warning', rules: ['1-2s'] })], measurement, { policy });
     expect(judged.record.verdict).toBe('fail');
     expect(judged.record.rules).toEqual(['1-2s', '2-2s']);
