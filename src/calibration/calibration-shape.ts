@@ -148,8 +148,8 @@ function checkCls(check: ShapeChecker, value: Json): void {
   let problem: string | undefined;
   try {
     const blank = predictCls(model as unknown as ClsModel, new Float64Array(grid.length), { phi: 1 });
-    const bad = blank.estimates.find((e) => !Number.isFinite(e.value) || !Number.isFinite(e.se));
-    if (bad !== undefined) problem = `a blank gives ${bad.name} = ${bad.value} ± ${bad.se}, not finite`;
+    const bad = [...blank.estimates, ...blank.interferents].find((e) => !Number.isFinite(e.value) || !(Number.isFinite(e.se) && e.se >= 0) || !(e.low <= e.high));
+    if (bad !== undefined) problem = `a blank gives ${bad.name} = ${bad.value} ± ${bad.se} (${bad.low} to ${bad.high}), not a finite estimate with a standard error >= 0`;
   } catch (error) {
     problem = error instanceof Error ? error.message : String(error);
   }

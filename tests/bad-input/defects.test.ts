@@ -203,3 +203,18 @@ describe('interval ends that were NaN or infinite', () => {
     expect(error.message).toMatch(/not a finite estimate; its absorbance reaches 1e\+200/);
   });
 });
+
+describe('a CLS calibration whose model is damaged but re-sealed', () => {
+  it('a negative interval inflation is a SCHEMA error (before: intervals with low above high, found by the calibration fuzz test)', async () => {
+    const { buildClsCalibration } = await import('../../src/calibration/build-cls.js');
+    const standards = [0, 50, 100, 200, 400].map((ppm, i) => ({ scan: `s${ppm}.csv`, line: i + 2, spectrum: bandScan(ppm, { metadata: conditions, step: 4, from: 1990, to: 2300 }), concentrations: [{ gas: 'CO', unit: 'ppm' as const, value: ppm }], conditions: {} }));
+    const method = parseMethod({ model: 'cls', gases: ['CO'], regions: [[2060, 2230]], baselineOrder: 1 }, 'method');
+    const good = buildClsCalibration(method as Parameters<typeof buildClsCalibration>[0], standards, { inputs: [], createdAt: '2026-01-01T00:00:00.000Z' });
+    const copy = JSON.parse(JSON.stringify(good)) as Record<string, any>;
+    delete copy.sha256;
+    copy.cls.model.crossValidation.inflation[0] = -2.8e165;
+    const error = thrown(() => verifyCalibration(JSON.parse(JSON.stringify(sealCalibration(copy as unknown as Calibration))), 'c.json'));
+    expect(error.code).toBe('SCHEMA');
+    expect(error.message).toMatch(/c.json: cls.model = .*cannot predict \(a blank gives CO = .*not a finite estimate with a standard error >= 0\)/);
+  });
+});
