@@ -42,6 +42,8 @@ export type ErrorCode =
   | 'INTEGRITY'
   /** A calibration file of a newer schema, or missing required fields. */
   | 'SCHEMA'
+  /** A file held by another process's lock for longer than the wait allows. */
+  | 'LOCKED'
   /** An input above a configured size or point limit. */
   | 'LIMIT'
   /** A unit conversion whose assumptions do not hold (for example O2 near the air value). */

@@ -120,8 +120,8 @@ function breakStale(path: string, judged: string): void {
  * @param action - the critical section (synchronous)
  * @param options - stale age, wait timeout and retry pause (ms)
  * @returns what `action` returns
- * @throws BandwrightError `FILE_READ` when the lock cannot be created (folder not writable) or is
- *   still held by a live process after `timeoutMs`; whatever `action` throws (the lock is released)
+ * @throws BandwrightError `FILE_READ` when the lock cannot be created (folder not writable), `LOCKED`
+ *   when it is still held by a live process after `timeoutMs`; whatever `action` throws (the lock is released)
  * @example
  * withFileLock('calibrations/lab-co.calibration.history.csv.lock', () => appendLine());
  */
@@ -157,7 +157,7 @@ export function withFileLock<T>(lockPath: string, action: () => T, options: Lock
     if (Date.now() - start > timeoutMs) {
       const who = seen.owner === undefined ? 'another process' : `process ${seen.owner.pid} on ${seen.owner.host} since ${seen.owner.time}`;
       throw new BandwrightError(
-        'FILE_READ',
+        'LOCKED',
         `${lockPath}: locked by ${who} for more than ${timeoutMs >= 1000 ? `${(timeoutMs / 1000).toFixed(0)} s` : `${timeoutMs} ms`}; if no other bandwright command is writing this history, delete the lock file and retry`,
         { file: lockPath },
       );
