@@ -120,7 +120,8 @@ class Checker {
   constructor(readonly source: string) {}
 
   fail(path: string, value: Json, rule: string, code: 'INVALID_VALUE' | 'PARSE' = 'INVALID_VALUE'): never {
-    const shown = JSON.stringify(value);
+    // JSON.parse reads 1e400 as Infinity, which JSON.stringify would show as null.
+    const shown = JSON.stringify(value, (_key, inner: unknown) => (typeof inner === 'number' && !Number.isFinite(inner) ? String(inner) : inner));
     throw new BandwrightError(code, `${this.source}: ${path} = ${shown === undefined ? 'missing' : shown}, ${rule}`, { file: this.source, parameter: path });
   }
 

@@ -218,3 +218,12 @@ describe('a CLS calibration whose model is damaged but re-sealed', () => {
     expect(error.message).toMatch(/c.json: cls.model = .*cannot predict \(a blank gives CO = .*not a finite estimate with a standard error >= 0\)/);
   });
 });
+
+describe('JSON numbers beyond the double range', () => {
+  it('1e400 in a method is refused where it is written (before: read as Infinity and shown as "[2040,null]")', async () => {
+    const { parseJson } = await import('../../src/io/json-file.js');
+    const error = thrown(() => parseJson('{\n "gases": [{"name": "CO",\n "band": [2040, 1e400]}]}', 'm.json'));
+    expect(error.message).toBe('m.json line 3: number 1e400 is too large for a double-precision number');
+    expect(parseJson('{"title": "1e400 in a string is text", "x": 1e300}', 'm.json')).toEqual({ title: '1e400 in a string is text', x: 1e300 });
+  });
+});
