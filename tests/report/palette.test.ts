@@ -75,6 +75,9 @@ describe('series palette', () => {
     expect(new Set(styles.map((s) => s.symbolName)).size).toBe(SERIES_COLOURS.length);
     expect(SERIES_DASHES).toHaveLength(SERIES_COLOURS.length);
     expect(SYMBOL_NAMES).toHaveLength(SERIES_COLOURS.length);
-    expect(seriesStyle(SERIES_COLOURS.length)).toEqual(seriesStyle(0));
+    // Beyond seven the colours repeat but the combination stays unique for 49 series.
+    const combos = new Set(Array.from({ length: 49 }, (_, i) => { const s = seriesStyle(i); return `${s.colour} ${s.dash} ${s.symbolName}`; }));
+    expect(combos.size).toBe(49);
+    expect(seriesStyle(SERIES_COLOURS.length).colour).toBe(seriesStyle(0).colour);
   });
 });

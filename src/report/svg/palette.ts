@@ -51,18 +51,24 @@ export interface SeriesStyle {
 }
 
 /**
- * The style of series number `index` (0-based). Colours, dashes and markers have the same count,
- * so a series differs from every other of the first seven in all three.
+ * The style of series number `index` (0-based). The first seven differ from each other in colour,
+ * dash and marker; from the eighth on the colours repeat, but the dash and the marker cycle with a
+ * shift per round of seven, so the first 49 series all have distinct combinations.
  *
- * @param index - series index, ≥ 0 (wraps around)
+ * @param index - series index, ≥ 0
  */
 export function seriesStyle(index: number): SeriesStyle {
-  const i = ((Math.trunc(index) % SERIES_COLOURS.length) + SERIES_COLOURS.length) % SERIES_COLOURS.length;
+  const count = SERIES_COLOURS.length;
+  const n = Math.max(0, Math.trunc(index));
+  const round = Math.floor(n / count);
+  const colour = n % count;
+  const dash = (n + round) % count;
+  const shape = (n + 2 * round) % count;
   return {
-    colour: SERIES_COLOURS[i] as string,
-    dash: SERIES_DASHES[i],
-    symbol: SERIES_SYMBOLS[i] as SymbolType,
-    symbolName: SYMBOL_NAMES[i] as string,
+    colour: SERIES_COLOURS[colour] as string,
+    dash: SERIES_DASHES[dash],
+    symbol: SERIES_SYMBOLS[shape] as SymbolType,
+    symbolName: SYMBOL_NAMES[shape] as string,
   };
 }
 
