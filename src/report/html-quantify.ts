@@ -4,7 +4,7 @@
  * collapsed section per sample with its spectrum plot, the calibration used, provenance and the
  * safety cautions. Pure: results and spectra come in memory.
  */
-import type { Calibration } from '../calibration/calibration.js';
+import { reportedGases, type Calibration } from '../calibration/calibration.js';
 import type { Spectrum } from '../spectrum/spectrum.js';
 import type { CellConditions } from '../gas/conditions.js';
 import { unitLabel } from '../gas/units.js';
@@ -53,6 +53,17 @@ export interface QuantifyReportInput {
 export interface QuantifyReportOptions {
   /** Wavenumber axis direction (default `descending`). */
   wavenumberAxis?: WavenumberAxis;
+}
+
+/** The calibration's reported gases with their units and calibrated ranges, in words. */
+function gasesOf(calibration: Calibration): string {
+  const cls = calibration.cls;
+  if (cls !== undefined) {
+    return cls.model.components
+      .map((c, i) => `${c.name} (${c.unit}${c.reported ? `, calibrated ${formatNumber(cls.model.ranges[i]?.min ?? 0)}–${formatNumber(cls.model.ranges[i]?.max ?? 0)} at reference conditions` : ', interferent'})`)
+      .join('; ');
+  }
+  return calibration.gases.map((g) => `${g.gas} (${unitLabel(g.unit)}, calibrated ${g.model.range[0]}–${g.model.range[1]})`).join('; ');
 }
 
 function levelText(level: number): string {
@@ -157,14 +168,14 @@ export function quantifyReportHtml(input: QuantifyReportInput, options: Quantify
     ['calibration', { html: element('span', { class: 'hash' }, escapeText(input.calibrationFile)) }],
     ['calibration SHA-256', { html: element('span', { class: 'hash' }, escapeText(calibration.sha256)) }],
     ['calibration built', `${calibration.createdAt} by ${calibration.tool.name} ${calibration.tool.version}`],
-    ['gases', calibration.gases.map((g) => `${g.gas} (${unitLabel(g.unit)}, calibrated ${g.model.range[0]}–${g.model.range[1]})`).join('; ')],
+    ['gases', gasesOf(calibration)],
     ['samples', `${entries.length}${failed > 0 ? `, ${failed} could not be quantified` : ''}`],
     ['interval level', level],
     ...((input.options ?? []).length > 0 ? ([['reporting', (input.options ?? []).join('; ')]] as [string, string][]) : []),
     ['report made', `${input.generatedAt} by ${input.tool.name} ${input.tool.version}`],
   ];
   const body = [
-    element('header', {}, element('h1', {}, escapeText(`Quantification report: ${calibration.title ?? input.calibrationFile.replace(/^.*[\\/]/, '')}`)) + paragraph(`${entries.length} sample(s) · ${calibration.gases.map((g) => g.gas).join(', ')} · ${level} prediction intervals`, 'subtitle')),
+    element('header', {}, element('h1', {}, escapeText(`Quantification report: ${calibration.title ?? input.calibrationFile.replace(/^.*[\\/]/, '')}`)) + paragraph(`${entries.length} sample(s) · ${reportedGases(calibration).map((g) => g.gas).join(', ')} · ${level} prediction intervals`, 'subtitle')),
     cautionBox([...cautions]),
     element('section', { id: 'results' }, element('h2', {}, 'Results') + table + paragraph('Flags: below-lod (report as "< LOD"), below-loq, extrapolated (outside the calibrated range), saturated, poor-fit, over-limit (upper end of the interval above a given limit), conditions-far (far from the calibration’s conditions). The notes under each sample say why.', 'muted')),
     element('section', { id: 'samples' }, element('h2', {}, 'Samples') + paragraph('Each sample’s notes and spectrum plot; open a sample to see them (all open when printed).', 'muted') + sampleSections.join('')),

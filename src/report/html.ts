@@ -208,14 +208,14 @@ function clsSection(calibration: Calibration): string {
   const statistics = model.calibration;
   const components = htmlTable({
     caption: 'Components',
-    header: ['component', 'role', 'unit', numberCell('calibrated range (reference conditions)'), numberCell('RMSECV (leave one out)'), numberCell('interval inflation'), numberCell('detection limit (reference conditions)')],
+    header: ['component', 'role', 'unit', numberCell('calibrated range'), numberCell('RMSECV'), numberCell('interval inflation'), numberCell('LOD')],
     rows: model.components.map((c, i): Cell[] => {
       const range = model.ranges[i];
       const rmsecv = model.crossValidation.rmsecv[i];
       const limit = cls.detectionLimits[c.name];
       return [
         c.name,
-        c.reported ? 'reported' : 'interferent (modelled, not reported)',
+        c.reported ? 'reported' : 'interferent',
         c.unit,
         numberCell(range === undefined ? '' : `${formatNumber(range.min)} – ${formatNumber(range.max)}`),
         numberCell(rmsecv === undefined || rmsecv === null ? 'not available' : formatNumber(rmsecv, 3)),
@@ -240,7 +240,7 @@ function clsSection(calibration: Calibration): string {
     ],
   });
   return (
-    paragraph(`Every component is fitted together over the regions (K-matrix classical least squares); the baseline polynomials are projected out of every spectrum. Detection limits are 3.3 × the prediction standard error of a blank at the reference conditions; a sample's limit is this ÷ its φ.`) +
+    paragraph(`Every component is fitted together over the regions (K-matrix classical least squares); the baseline polynomials are projected out of every spectrum. Interferents are modelled but not reported. Ranges and detection limits (LOD) are at the reference conditions: the LOD is 3.3 × the prediction standard error of a blank, and a sample's limit is this ÷ its φ. RMSECV is the root-mean-square error of leave-one-out cross-validation over the standards; the interval inflation is the factor the prediction intervals are widened by so that they cover those errors.`) +
     components +
     facts
   );

@@ -9,37 +9,12 @@
  * band's mean, scaled by its concentration.
  */
 import { describe, expect, it } from 'vitest';
-import { buildClsCalibration } from '../../src/calibration/build-cls.js';
-import type { StandardScan } from '../../src/calibration/build.js';
-import { parseMethod, type ClsMethod } from '../../src/calibration/method.js';
 import { renderClsFit } from '../../src/report/svg/cls-fit.js';
 import { clsFitData } from '../../src/report/svg/cls-data.js';
 import { makeSpectrum } from '../../src/spectrum/spectrum.js';
-import { gaussianBand, normalGenerator, uniformGrid } from '../helpers/synthetic-bands.js';
+import { uniformGrid } from '../helpers/synthetic-bands.js';
+import { calibration, co, conditions, grid, mixture, n2o } from './cls-calibration.js';
 import { byClass, parseMarkup, pathPoints, textOf } from './markup-tree.js';
-
-const grid = uniformGrid(2000, 2300, 0.5);
-const co = gaussianBand(grid, { centre: 2143, hwhm: 8, peak: 0.001 });
-const n2o = gaussianBand(grid, { centre: 2210, hwhm: 10, peak: 0.0008 });
-const conditions = { pathLength_m: 1, temperature_K: 296.15, pressure_kPa: 101.325 };
-
-function mixture(ppmCo: number, ppmN2o: number, noise: () => number): Float64Array {
-  return Float64Array.from(grid, (_, i) => ppmCo * (co[i] as number) + ppmN2o * (n2o[i] as number) + 0.01 + noise());
-}
-
-function calibration() {
-  const random = normalGenerator(7);
-  const levels: [number, number][] = [[0, 0], [100, 0], [0, 100], [100, 100], [50, 150], [150, 50], [200, 200], [200, 0], [0, 200]];
-  const standards: StandardScan[] = levels.map(([a, b], i) => ({
-    scan: `std-${i}.csv`,
-    line: i + 2,
-    spectrum: makeSpectrum({ x: grid, y: mixture(a, b, () => 1e-5 * random()), yKind: 'absorbance', metadata: { ...conditions } }),
-    concentrations: [{ gas: 'CO', unit: 'ppm', value: a }, { gas: 'N2O', unit: 'ppm', value: b }],
-    conditions: {},
-  }));
-  const method = parseMethod({ model: 'cls', gases: ['CO', 'N2O'], regions: [[2000, 2300]], baselineOrder: 0 }, 'method.json') as ClsMethod;
-  return buildClsCalibration(method, standards, { inputs: [], createdAt: '2026-12-01T00:00:00.000Z' });
-}
 
 const mean = (v: ArrayLike<number>): number => Array.from(v).reduce((a, b) => a + b, 0) / v.length;
 

@@ -76,9 +76,9 @@ export function calibrationPlots(calibration: Calibration, spectra: readonly Sta
     const components = calibration.cls.model.components;
     const labelled = spectra.map(({ index, spectrum }) => {
       const standard = calibration.standards[index];
-      const group = components
-        .map((c) => `${c.name} ${concentrationGroup(standard?.concentrations[c.name] ?? Number.NaN, c.unit as ConcentrationUnit)}`)
-        .join(', ');
+      // Name only what the standard contains; a standard of nothing but the matrix gas is zero gas.
+      const present = components.filter((c) => (standard?.concentrations[c.name] ?? 0) !== 0);
+      const group = present.length === 0 ? 'zero gas' : present.map((c) => `${c.name} ${concentrationGroup(standard?.concentrations[c.name] as number, c.unit as ConcentrationUnit)}`).join(', ');
       return { label: `${standard?.scan ?? `standard ${index + 1}`}${standard?.lot === undefined ? '' : `, lot ${standard.lot}`}`, spectrum, group };
     });
     plots.push({

@@ -193,7 +193,11 @@ export function renderSpectra(input: SpectraPlotInput, options: SpectraOptions =
   }
   const x = linearAxisScale(direction === 'descending' ? [range[1], range[0]] : range, [panel.left, panel.left + panel.width], { nice: false, tickCount: 8 });
   const thinned = input.series.map((s) => thinForDrawing(s.x, s.y, range[0], range[1], Math.ceil(panel.width)));
-  const y = linearAxisScale(options.absorbanceDomain ?? paddedExtent([...thinned.map((t) => t.y), ...input.baselines.map((b) => b.y)], { pad: 0.05 }), [panelBottom(panel), panel.top], {
+  // Scale absorbance to what lies inside the windows or regions, where the reader looks; strong
+  // absorption outside them (water, CO2) would otherwise flatten the bands of interest.
+  const focus = windowSpan(input.band, [...input.baselineWindows, ...(input.regions ?? [])]) ?? range;
+  const inFocus = thinned.map((t) => t.y.filter((_, k) => (t.x[k] as number) >= focus[0] && (t.x[k] as number) <= focus[1]));
+  const y = linearAxisScale(options.absorbanceDomain ?? paddedExtent([...inFocus, ...input.baselines.map((b) => b.y)], { pad: 0.05 }), [panelBottom(panel), panel.top], {
     nice: options.absorbanceDomain === undefined,
   });
   const px = (v: number): number => x.scale(v);
