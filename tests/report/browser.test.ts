@@ -12,6 +12,12 @@ import { mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { calibrationCurveData, renderCalibrationCurve } from '../../src/report/svg/calibration-curve.js';
+import { clsFitData } from '../../src/report/svg/cls-data.js';
+import { renderClsFit } from '../../src/report/svg/cls-fit.js';
+import { renderControlChart } from '../../src/report/svg/control-chart.js';
+import { gasSpectraData, renderSpectra } from '../../src/report/svg/spectra.js';
+import { makeSpectrum } from '../../src/spectrum/spectrum.js';
+import { calibration as clsCalibration, clsStandards, conditions, grid, mixture } from './cls-calibration.js';
 import { bandScan, writeScan } from '../helpers/band-scans.js';
 import { runCli, temporaryFolder } from '../helpers/cli.js';
 import { dumpDom, findChromium, screenshot } from './browser.js';
@@ -113,6 +119,58 @@ describe.skipIf(chromium.path === undefined)('HTML report in headless Chromium',
       for (const [text, width] of plot.labels) expect(width, text).toBeGreaterThan(5 * text.length);
       expect(plot.ticks).toBeGreaterThan(8);
       expect(plot.legend).toBeGreaterThan(3);
+    }
+  });
+
+  it('lays out all four kinds of plot with their own elements and measured axis labels', () => {
+    const standards = clsStandards();
+    const cls = clsCalibration(standards);
+    const sample = makeSpectrum({ x: grid, y: mixture(80, 120, () => 0), yKind: 'absorbance', metadata: { source: 'sample.csv', ...conditions } });
+    const svgs = [
+      renderCalibrationCurve(calibrationCurveData(dinGas()), { id: 'p1' }),
+      renderSpectra(gasSpectraData(dinGas(), [{ label: 's.csv', spectrum: bandScan(100) }]), { id: 'p2' }),
+      renderClsFit(clsFitData(cls, sample, conditions), { id: 'p3' }),
+      renderControlChart(
+        {
+          records: [0, 7, 14, 21].map((d, i) => ({ time: new Date(Date.UTC(2026, 8, 1 + d)).toISOString(), recoveryPct: 100 - i, verdict: i === 3 ? ('warning' as const) : ('pass' as const), rules: i === 3 ? ['1-2s'] : [] })),
+          centrePct: 100,
+          tolerancePct: 5,
+          sigmaPct: 1.5,
+          sigmaSource: 'tolerance/3',
+          trend: { slopePctPerDay: -1 / 7, interceptPct: 100, originTime: '2026-09-01T00:00:00.000Z', fittedFrom: '2026-09-01T00:00:00.000Z', fittedTo: '2026-09-22T00:00:00.000Z', projectUntil: '2026-10-20T00:00:00.000Z', leavesToleranceAt: '2026-10-06T00:00:00.000Z' },
+        },
+        { id: 'p4' },
+      ),
+    ];
+    const expected: Record<string, string[]> = {
+      'plot-calibration-curve': ['.standard', '.fitted-curve', '.prediction-band', '.confidence-band', '.limit-line line', '.residual'],
+      'plot-spectra': ['.spectrum', '.band-window', '.baseline-window', '.fitted-baseline'],
+      'plot-cls-fit': ['.measured', '.fitted', '.contribution', '.residual-spectrum', '.region'],
+      'plot-control-chart': ['.check', '.tolerance-line', '.warning-line', '.action-line', '.rule-violation', '.trend-line', '.trend-projection'],
+    };
+    const script = `
+      const expected = ${JSON.stringify(expected)};
+      const result = [...document.querySelectorAll('svg.plot')].map((svg) => {
+        const kind = [...svg.classList].find((c) => c.startsWith('plot-'));
+        const parts = Object.fromEntries(expected[kind].map((selector) => {
+          const elements = [...svg.querySelectorAll(selector)];
+          const visible = elements.filter((e) => { const r = e.getBoundingClientRect(); return r.width > 0 || r.height > 0; });
+          return [selector, [elements.length, visible.length]];
+        }));
+        const labels = [...svg.querySelectorAll('.axis-label')].map((t) => t.getComputedTextLength());
+        return { kind, parts, labels };
+      });
+      document.getElementById('probe').textContent = JSON.stringify(result);`;
+    writeFileSync(at('kinds.html'), `<!DOCTYPE html><html><body style="margin:0">${svgs.join('')}<pre id="probe"></pre><script>${script}</script></body></html>`);
+    const result = probeOf(dumpDom(browser, at('kinds.html'), { width: 760, height: 3000 })) as { kind: string; parts: Record<string, [number, number]>; labels: number[] }[];
+    expect(result.map((r) => r.kind)).toEqual(Object.keys(expected));
+    for (const plot of result) {
+      for (const [selector, [count, visible]] of Object.entries(plot.parts)) {
+        expect(count, `${plot.kind} ${selector}`).toBeGreaterThan(0);
+        expect(visible, `${plot.kind} ${selector} drawn with a size`).toBe(count);
+      }
+      expect(plot.labels.length, plot.kind).toBeGreaterThanOrEqual(2);
+      for (const width of plot.labels) expect(width, plot.kind).toBeGreaterThan(40);
     }
   });
 
