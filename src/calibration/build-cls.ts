@@ -129,6 +129,7 @@ export function buildClsCalibration(method: ClsMethod, standards: readonly Stand
       ...(background === undefined ? {} : { background }),
     },
   );
+  warnings.push(...model.warnings);
   const blank = predictCls(model, new Float64Array(grid.length), { phi: 1 });
   const detectionLimits: Record<string, number> = {};
   for (const estimate of blank.estimates) detectionLimits[estimate.name] = 3.3 * estimate.se;

@@ -107,6 +107,7 @@ export function fitBandCls(data: BandClsData, options: BandClsFitOptions = {}): 
       nuisance: [],
       segments: data.bands.map((_, k) => ({ start: k, end: k + 1, region: k })),
       estimateCorrelation: false,
+      localResidualWeights: false,
       channelWord: 'band',
     },
   );

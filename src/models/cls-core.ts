@@ -9,9 +9,34 @@
  *
  * Fit. Y = A − (A U) Uᵀ removes the nuisance. K = argmin ‖Y − X K‖ with X = [θ(u_i)ᵀ] by QR
  * (`solveLeastSquaresMany`, which refuses a rank-deficient or ill-conditioned X and names the
- * collinear components). Then the pure-spectrum matrix Kᵀ is checked: condition number of its
- * column-scaled form, and each component's "unique signal" (the part of its spectrum no
- * combination of the others explains) against the noise expected in it from the standards.
+ * collinear components).
+ *
+ * Separation checks. The pure-spectrum matrix Kᵀ must have a column-scaled condition number within
+ * the limit; then each component's spectrum, and the difference between each pair, must stand out
+ * of the error the calibration leaves in them. That error is not spread evenly over the channels
+ * when the residual is lack of fit (saturated lines, lines of different gases overlapping in
+ * transmittance) or when noise grows where the standards absorb; since K̂ is fitted channel by
+ * channel, its error at channel j is s² h_j (XᵀX)⁻¹, with h_j the residual energy of the
+ * standards in a 17-channel window around j relative to its mean (h ≡ 1 for bands). The signal
+ * ratio of a component with terms T is the Wald statistic Σ_j k_Tjᵀ [(XᵀX)⁻¹_TT]⁻¹ k_Tj / h_j over
+ * s² τ_B |T|: about 1 for a spectrum that is residual alone. A component with a second-order term
+ * is judged on both terms jointly: over standards that start at zero, u and u² are nearly
+ * collinear, so neither pure spectrum alone is well determined even when the pair is. The
+ * separation ratio of two components compares their response spectra v = k₁ + u_max k₂ (the
+ * secant over the calibrated range, the slope at mid-range; v = k₁ for a linear component) in the
+ * same weighted metric: energy of the part of v_a not parallel to v_b over the error expected in
+ * v_a − λ v_b. Both ratios must reach {@link MINIMUM_SEPARATION_RATIO}; with an even residual they
+ * reduce to unweighted energies against s² (XᵀX)⁻¹ τ_B.
+ *
+ * Lack of fit. The residual variance is compared with the noise of the zero-gas standards (blanks:
+ * every concentration zero, so their baseline-free spectra are noise) by an F test, and each
+ * component without a second-order term is refitted with one to see how much residual it removes
+ * (F test on the removed sum of squares, Satterthwaite degrees of freedom). When a separation
+ * check fails and the residual is lack of fit, the fit is repeated with the second-order terms
+ * that remove it: if the component then passes, the refusal says it is masked by lack of fit and
+ * names the terms to add; if it still fails, the refusal says it does not absorb measurably (or
+ * the bands coincide). Without lack of fit the refusal is the plain one (noise). A calibration
+ * that passes carries the diagnosis as a warning.
  *
  * Predict. θ̂ = M y with M = (Kᵀ)⁺ = R_K⁻¹ Q_Kᵀ precomputed (one matrix–vector product a scan).
  * With second-order terms, ĉ minimises ‖y − Kᵀθ(c)‖ by Gauss–Newton from θ̂'s linear part,
@@ -57,6 +82,23 @@ export const MINIMUM_SEPARATION_RATIO = 4;
 
 /** Default residual-RMS ratio (sample over calibration) above which a sample can be poor-fit. */
 export const DEFAULT_POOR_FIT_RATIO = 1.5;
+
+/**
+ * Share of the calibration residual sum of squares a second-order term must remove (besides
+ * being significant) for the residual to count as lack of fit: with hundreds of channels an F
+ * test finds curvature far too small to matter.
+ */
+export const SUBSTANTIAL_REDUCTION = 0.1;
+
+/**
+ * Half-width, in channels, of the moving window over which the calibration residual's energy is
+ * averaged to weight the separation checks (17 channels × the standards' residual degrees of
+ * freedom: enough for a stable local level, narrow enough to follow single lines' lack of fit).
+ */
+const RESIDUAL_PROFILE_HALF_WIDTH = 8;
+
+/** Smallest local residual level, relative to the mean, used as a weight (keeps weights finite). */
+const RESIDUAL_PROFILE_FLOOR = 1e-4;
 
 /** Probability of the F tests (poor fit, cross-validation inflation). */
 const TEST_PROBABILITY = 0.99;
@@ -104,16 +146,57 @@ export interface ClsCalibrationStatistics {
   /** Condition number of the column-scaled pure-spectrum matrix Kᵀ (prediction). */
   readonly conditionPureSpectra: number;
   /**
-   * Per term, energy of its pure spectrum over the noise energy the standards leave in it
-   * (s² (XᵀX)⁻¹_tt τ_B); null when the calibration has no residual.
+   * Per term, how far the fitted pure spectra stand out of the calibration residual where they
+   * lie (1 means residual alone; see the header's "Separation checks"). On a component's linear
+   * term: the joint ratio of all its terms (its linear and, if any, second-order pure spectrum);
+   * on a second-order term: that term's own ratio (is the curvature distinguishable). Null when
+   * the calibration has no residual.
    */
   readonly signalRatio: readonly (number | null)[];
   /**
-   * Per term, the smallest over the other linear terms of: energy of the part of this term's
-   * pure spectrum not parallel to the other's, over the noise expected in that difference
-   * (about 1 when the two bands have the same shape); null when not computed.
+   * On each component's linear term, the smallest over the other components of: weighted energy
+   * of the part of its response spectrum (its secant over the calibrated range) not parallel to
+   * the other's, over the residual expected in that difference (about 1 when the two bands have
+   * the same shape); null on second-order terms and when not computed.
    */
   readonly separationRatio: readonly (number | null)[];
+  /** Whether the residual is noise or lack of fit, and which second-order terms would reduce it. */
+  readonly lackOfFit: ClsLackOfFit;
+}
+
+/** What a second-order term for one component would do to the calibration residual. */
+export interface ClsSecondOrderGain {
+  /** Component name. */
+  readonly component: string;
+  /** Share of the calibration residual sum of squares the term would remove (0…1). */
+  readonly residualReduction: number;
+  /** F statistic of the added term (residual removed per channel over residual left). */
+  readonly fStatistic: number;
+  /** F(0.99; ν₁, ν₂) with Satterthwaite degrees of freedom for correlated channels. */
+  readonly fLimit: number;
+}
+
+/**
+ * Lack of fit of the calibration: the residual compared with the noise of the zero-gas
+ * standards (blanks), and the residual each missing second-order term would remove.
+ */
+export interface ClsLackOfFit {
+  /** Number of standards with every concentration zero; their spectra hold noise (and baseline) only. */
+  readonly blanks: number;
+  /** Noise variance per channel from the blanks, correlation-corrected (response units²), or null without blanks. */
+  readonly blankVariance: number | null;
+  /** Calibration residual variance over the blanks' noise variance, or null without blanks. */
+  readonly residualOverBlank: number | null;
+  /** F(0.99; ν_residual, ν_blanks): the ratio above which the residual is significantly above noise; null without blanks. */
+  readonly residualOverBlankLimit: number | null;
+  /** For each component without a second-order term whose standards allow one (at least three levels). */
+  readonly secondOrderGains: readonly ClsSecondOrderGain[];
+  /**
+   * True when the residual is lack of fit: significantly and substantially (variance over
+   * {@link DEFAULT_POOR_FIT_RATIO}²) above the blanks' noise, or reduced significantly and by at
+   * least {@link SUBSTANTIAL_REDUCTION} by a second-order term.
+   */
+  readonly detected: boolean;
 }
 
 /** Leave-one-out cross-validation over the standards. */
@@ -164,6 +247,8 @@ export interface ClsCoreModel {
   readonly crossValidation: ClsCrossValidation;
   /** Default confidence level of prediction intervals. */
   readonly level: number;
+  /** Things the person calibrating should know (lack of fit and what would remove it). */
+  readonly warnings: readonly string[];
 }
 
 /** A concentration estimate with its prediction interval. */
@@ -356,6 +441,11 @@ export interface ClsCoreOptions {
   readonly segments: readonly ChannelSegment[];
   /** Estimate channel-noise correlation from the residuals (spectra); false for independent bands. */
   readonly estimateCorrelation: boolean;
+  /**
+   * Weight the separation checks by the local level of the calibration residual (spectra, whose
+   * neighbouring channels share a level); false to pool it over all channels (bands).
+   */
+  readonly localResidualWeights: boolean;
   /** What to call a channel in messages (`channel`, `band`). */
   readonly channelWord: string;
 }
@@ -502,13 +592,58 @@ interface PureSpectrumChecks {
   separationRatio: (number | null)[];
 }
 
+/** What {@link checkPureSpectra} needs beyond the fitted state. */
+interface CheckInput {
+  fitted: FittedState;
+  projected: readonly Float64Array[];
+  nuisance: readonly Float64Array[];
+  design: readonly Float64Array[];
+  components: readonly ClsComponent[];
+  terms: readonly ClsTerm[];
+  segments: readonly ChannelSegment[];
+  conditionLimit: number;
+  channelWord: string;
+  localWeights: boolean;
+  lackOfFit: ClsLackOfFit;
+}
+
+/**
+ * Relative residual level h_j per channel: the standards' residual energy averaged over a window
+ * of ±{@link RESIDUAL_PROFILE_HALF_WIDTH} channels inside the channel's segment, divided by its
+ * mean over the channels; all ones when `local` is false.
+ */
+function residualProfile(residuals: readonly Float64Array[], segments: readonly ChannelSegment[], channels: number, local: boolean): Float64Array {
+  const profile = new Float64Array(channels).fill(1);
+  if (!local) return profile;
+  const energy = new Float64Array(channels);
+  for (const row of residuals) for (let j = 0; j < channels; j++) energy[j]! += row[j]! * row[j]!;
+  for (const segment of segments) {
+    for (let j = segment.start; j < segment.end; j++) {
+      const from = Math.max(segment.start, j - RESIDUAL_PROFILE_HALF_WIDTH);
+      const to = Math.min(segment.end - 1, j + RESIDUAL_PROFILE_HALF_WIDTH);
+      let sum = 0;
+      for (let k = from; k <= to; k++) sum += energy[k]!;
+      profile[j] = sum / (to - from + 1);
+    }
+  }
+  let mean = 0;
+  for (let j = 0; j < channels; j++) mean += profile[j]!;
+  mean /= channels;
+  if (!(mean > 0)) return profile.fill(1);
+  for (let j = 0; j < channels; j++) profile[j] = Math.max(profile[j]! / mean, RESIDUAL_PROFILE_FLOOR);
+  return profile;
+}
+
 /**
  * Refuses pure spectra that cannot be separated: an ill-conditioned column-scaled Kᵀ, a
- * component whose spectrum is noise, or two components whose spectra differ only by noise.
- * Works on R_K (Kᵀ = Q_K R_K, so column inner products of Kᵀ are those of R_K).
+ * component whose spectrum does not stand out of the calibration residual, or two components
+ * whose response spectra differ only by residual (see the header, "Separation checks"). When the
+ * residual is lack of fit, the message says so, and whether the second-order terms that would
+ * remove it also make the component distinguishable.
  */
-function checkPureSpectra(fitted: FittedState, components: readonly ClsComponent[], terms: readonly ClsTerm[], conditionLimit: number, channelWord: string): PureSpectrumChecks {
-  const { rFactor, state } = fitted;
+function checkPureSpectra(input: CheckInput): PureSpectrumChecks {
+  const { fitted, components, terms, conditionLimit, channelWord } = input;
+  const { rFactor } = fitted;
   const q = terms.length;
   const names = terms.map((term) => termName(components, term));
   const columnNorms = Array.from({ length: q }, (_, t) => Math.sqrt(rFactor.reduce((sum, row) => sum + row[t]! * row[t]!, 0)));
@@ -540,45 +675,298 @@ function checkPureSpectra(fitted: FittedState, components: readonly ClsComponent
     }
   }
 
+  const ratios = separationRatios(input);
+  const weak = ratios.components.find((entry) => entry.signal !== null && entry.signal < MINIMUM_SEPARATION_RATIO);
+  if (weak !== undefined) throw signalRefusal(input, weak.component, weak.signal!);
+  const alike = ratios.pairs.find((pair) => pair.ratio < MINIMUM_SEPARATION_RATIO);
+  if (alike !== undefined) throw shapeRefusal(input, alike.component, alike.other, alike.ratio);
+
   const signalRatio: (number | null)[] = new Array<number | null>(q).fill(null);
   const separationRatio: (number | null)[] = new Array<number | null>(q).fill(null);
+  for (const entry of ratios.components) {
+    const block = termsOf(terms, entry.component);
+    signalRatio[block[0]!] = entry.signal;
+    separationRatio[block[0]!] = entry.separation;
+    block.slice(1).forEach((t, k) => (signalRatio[t] = entry.secondOrderSignal[k] ?? null));
+  }
+  return { condition, signalRatio, separationRatio };
+}
+
+/** Indices of a component's terms: its linear term first, then its second-order term if any. */
+function termsOf(terms: readonly ClsTerm[], component: number): number[] {
+  return terms.map((term, t) => (term.component === component ? t : -1)).filter((t) => t >= 0);
+}
+
+/** Signal and separation ratios of every component (see the header); nothing is thrown. */
+interface SeparationRatios {
+  components: { component: number; signal: number | null; secondOrderSignal: (number | null)[]; separation: number | null }[];
+  /** Pairs (component, other) with their separation ratio, in the order they are checked. */
+  pairs: { component: number; other: number; ratio: number }[];
+}
+
+function separationRatios(input: Pick<CheckInput, 'fitted' | 'design' | 'components' | 'terms' | 'segments' | 'localWeights'>): SeparationRatios {
+  const { fitted, components, terms } = input;
+  const { state } = fitted;
+  const q = terms.length;
+  const p = components.length;
+  const channels = state.pureSpectra[0]!.length;
+  const n = fitted.residuals.length;
   const variance = state.calibrationResidualCount > 0 ? state.calibrationResidualSum / state.calibrationResidualCount : 0;
-  if (!(variance > 0)) return { condition, signalRatio, separationRatio };
-  const baseCount = state.sampleResidualCount + state.noiseGram.reduce((sum, row, t) => sum + row[t]!, 0);
+  if (!(variance > 0)) {
+    return { components: components.map((_, c) => ({ component: c, signal: null, secondOrderSignal: termsOf(terms, c).slice(1).map(() => null), separation: null })), pairs: [] };
+  }
+  const baseCount = state.calibrationResidualCount / (n - q);
   const gram = state.concentrationGramInverse;
-  const inner = (a: number, b: number): number => rFactor.reduce((sum, row) => sum + row[a]! * row[b]!, 0);
-  for (let t = 0; t < q; t++) {
-    const ratio = (columnNorms[t]! * columnNorms[t]!) / (variance * gram[t]![t]! * baseCount);
-    signalRatio[t] = ratio;
-    if (terms[t]!.power === 1 && ratio < MINIMUM_SEPARATION_RATIO) {
-      throw new BandwrightError(
+  // Weighted (1/h) inner products of the pure spectra, terms × terms.
+  const profile = residualProfile(fitted.residuals, input.segments, channels, input.localWeights);
+  const products = Array.from({ length: q }, () => new Array<number>(q).fill(0));
+  for (let a = 0; a < q; a++) {
+    const ka = state.pureSpectra[a]!;
+    for (let b = a; b < q; b++) {
+      const kb = state.pureSpectra[b]!;
+      let sum = 0;
+      for (let j = 0; j < channels; j++) sum += (ka[j]! * kb[j]!) / profile[j]!;
+      products[a]![b] = products[b]![a] = sum;
+    }
+  }
+  const bilinear = (a: readonly number[], matrix: readonly (readonly number[])[], b: readonly number[]): number => {
+    let sum = 0;
+    for (let i = 0; i < q; i++) if (a[i] !== 0) for (let k = 0; k < q; k++) sum += a[i]! * matrix[i]![k]! * b[k]!;
+    return sum;
+  };
+  // Response spectra as combinations of the term rows: k₁ + u_max k₂.
+  const combinations = components.map((_, c) => {
+    const a = new Array<number>(q).fill(0);
+    let top = 0;
+    for (const row of input.design) top = Math.max(top, row[c]!);
+    for (const t of termsOf(terms, c)) a[t] = terms[t]!.power === 1 ? 1 : top;
+    return a;
+  });
+  const pairs: SeparationRatios['pairs'] = [];
+  const entries = components.map((_, c) => {
+    const block = termsOf(terms, c);
+    // Wald energy Σ_j k_Tᵀ G_TT⁻¹ k_T / h_j per term.
+    const inverse = solveSmall(block.map((a) => block.map((b) => gram[a]![b]!)), identity(block.length));
+    let energy = 0;
+    block.forEach((a, i) => block.forEach((b, k) => (energy += inverse[i]![k]! * products[a]![b]!)));
+    const signal = energy / block.length / (variance * baseCount);
+    const secondOrderSignal = block.slice(1).map((t) => products[t]![t]! / (variance * gram[t]![t]! * baseCount));
+    let separation: number | null = null;
+    const va = combinations[c]!;
+    for (let other = 0; other < p; other++) {
+      if (other === c) continue;
+      // Part of v_a not parallel to v_b over the error expected in v_a − λ v_b.
+      const vb = combinations[other]!;
+      const lambda = bilinear(va, products, vb) / bilinear(vb, products, vb);
+      const difference = bilinear(va, products, va) - lambda * bilinear(va, products, vb);
+      const combined = va.map((value, i) => value - lambda * vb[i]!);
+      const noise = variance * baseCount * bilinear(combined, gram, combined);
+      if (!(noise > 0)) continue;
+      const ratio = difference / noise;
+      pairs.push({ component: c, other, ratio });
+      if (separation === null || ratio < separation) separation = ratio;
+    }
+    return { component: c, signal, secondOrderSignal, separation };
+  });
+  return { components: entries, pairs };
+}
+
+/**
+ * The same fit with second-order terms for the components whose curvature makes the lack of fit,
+ * and its separation ratios; null when there are none, too few standards, or the fit fails.
+ */
+function withHelpfulSecondOrder(input: CheckInput): { names: string[]; ratios: SeparationRatios } | null {
+  const helpful = helpfulGains(input.lackOfFit);
+  if (helpful.length === 0) return null;
+  const added = helpful.map((gain) => input.components.findIndex((component) => component.name === gain.component));
+  const terms: ClsTerm[] = [...input.terms, ...added.map((component) => ({ component, power: 2 as const }))];
+  const design = input.design.map((row) => Float64Array.from([...Array.from(row), ...added.map((component) => row[component]! * row[component]!)]));
+  if (input.projected.length < terms.length + 1) return null;
+  try {
+    const fitted = fitState({
+      projected: input.projected,
+      design,
+      components: input.components,
+      terms,
+      nuisance: input.nuisance,
+      segments: input.segments,
+      correlation: 'estimate',
+      conditionLimit: input.conditionLimit,
+      channelWord: input.channelWord,
+    });
+    return { names: helpful.map((gain) => gain.component), ratios: separationRatios({ ...input, fitted, design, terms }) };
+  } catch (error) {
+    if (isBandwrightError(error, 'SINGULAR') || isBandwrightError(error, 'INSUFFICIENT_DATA')) return null;
+    throw error;
+  }
+}
+
+/** The refusal of a component whose spectrum does not stand out of the calibration residual. */
+function signalRefusal(input: CheckInput, component: number, ratio: number): BandwrightError {
+  const { components, terms, channelWord, lackOfFit } = input;
+  const name = components[component]!.name;
+  const subject = `pure spectrum of ${name}${termsOf(terms, component).length > 1 ? ' (first and second order together)' : ''}`;
+  const measured = `signal ${formatNumber(ratio)} times the energy the calibration residual leaves in it where it absorbs, must be >= ${MINIMUM_SEPARATION_RATIO}`;
+  const absent = `it does not absorb measurably in the method's ${channelWord}s, or its standards are too weak`;
+  if (!lackOfFit.detected) {
+    return new BandwrightError('SINGULAR', `${subject} is not distinguishable from the calibration noise (${measured}): ${absent}`, { parameter: 'spectra' });
+  }
+  const diagnosis = describeLackOfFit(lackOfFit, input.fitted.state);
+  const remedy = withHelpfulSecondOrder(input);
+  if (remedy !== null) {
+    const after = remedy.ratios.components[component]!.signal;
+    if (after !== null && after >= MINIMUM_SEPARATION_RATIO) {
+      return new BandwrightError(
         'SINGULAR',
-        `pure spectrum of ${names[t]!} is not distinguishable from the calibration noise (signal ${formatNumber(ratio)} times the energy the calibration residual leaves in it, must be >= ${MINIMUM_SEPARATION_RATIO}): it does not absorb measurably in the method's ${channelWord}s, its standards are too weak, or the residual is lack of fit rather than noise (for saturating bands try a second-order term)`,
+        `${subject} cannot be told from the calibration's lack of fit (${measured}): ${diagnosis}; with a second-order term for ${listNames(remedy.names)} its signal ratio would be ${formatNumber(after)}: give ${listNames(remedy.names)} a second-order term (secondOrder)`,
         { parameter: 'spectra' },
       );
     }
+    return new BandwrightError(
+      'SINGULAR',
+      `${subject} is not distinguishable from the calibration residual (${measured}), not even after a second-order term for ${listNames(remedy.names)} removes the lack of fit (ratio ${after === null ? 'not available' : formatNumber(after)} then): ${absent}`,
+      { parameter: 'spectra' },
+    );
   }
-  for (let t = 0; t < q; t++) {
-    if (terms[t]!.power !== 1) continue;
-    for (let u = 0; u < q; u++) {
-      if (u === t || terms[u]!.power !== 1) continue;
-      // Part of k_t not parallel to k_u, against the noise in k_t − λ k_u.
-      const lambda = inner(t, u) / (columnNorms[u]! * columnNorms[u]!);
-      const difference = columnNorms[t]! * columnNorms[t]! - lambda * inner(t, u);
-      const noise = variance * baseCount * (gram[t]![t]! - 2 * lambda * gram[t]![u]! + lambda * lambda * gram[u]![u]!);
-      if (!(noise > 0)) continue;
-      const ratio = difference / noise;
-      if (separationRatio[t] === null || ratio < separationRatio[t]!) separationRatio[t] = ratio;
-      if (ratio < MINIMUM_SEPARATION_RATIO) {
-        throw new BandwrightError(
-          'SINGULAR',
-          `pure spectra of ${names[t]!} and ${names[u]!} have the same shape within the calibration noise (their difference carries ${formatNumber(ratio)} times the energy the calibration residual leaves in it, must be >= ${MINIMUM_SEPARATION_RATIO}): their bands coincide and cannot be separated; extend the regions to where their bands differ, or drop one of them (if the residual is lack of fit rather than noise, e.g. saturating bands, try a second-order term)`,
-          { parameter: 'spectra' },
-        );
-      }
+  return new BandwrightError(
+    'SINGULAR',
+    `${subject} is not distinguishable from the calibration residual (${measured}), and that residual is lack of fit: ${diagnosis}; ${lackOfFitAdvice(lackOfFit)}; then see whether ${name} absorbs measurably in the method's ${channelWord}s`,
+    { parameter: 'spectra' },
+  );
+}
+
+/** The refusal of two components whose response spectra differ only by residual. */
+function shapeRefusal(input: CheckInput, component: number, other: number, ratio: number): BandwrightError {
+  const { components, channelWord, lackOfFit } = input;
+  const pair = `${components[component]!.name} and ${components[other]!.name}`;
+  const measured = `their difference carries ${formatNumber(ratio)} times the energy the calibration residual leaves in it, must be >= ${MINIMUM_SEPARATION_RATIO}`;
+  const coincide = `their bands coincide and cannot be separated; extend the regions to where their bands differ, or drop one of them`;
+  if (!lackOfFit.detected) {
+    return new BandwrightError('SINGULAR', `pure spectra of ${pair} have the same shape within the calibration noise (${measured}): ${coincide}`, { parameter: 'spectra' });
+  }
+  const diagnosis = describeLackOfFit(lackOfFit, input.fitted.state);
+  const remedy = withHelpfulSecondOrder(input);
+  if (remedy !== null) {
+    const after = remedy.ratios.pairs.find((entry) => entry.component === component && entry.other === other)?.ratio;
+    if (after !== undefined && after >= MINIMUM_SEPARATION_RATIO) {
+      return new BandwrightError(
+        'SINGULAR',
+        `pure spectra of ${pair} cannot be told apart through the calibration's lack of fit (${measured}): ${diagnosis}; with a second-order term for ${listNames(remedy.names)} their separation ratio would be ${formatNumber(after)}: give ${listNames(remedy.names)} a second-order term (secondOrder)`,
+        { parameter: 'spectra' },
+      );
+    }
+    return new BandwrightError(
+      'SINGULAR',
+      `pure spectra of ${pair} have the same shape within the calibration residual (${measured}), even after a second-order term for ${listNames(remedy.names)} removes the lack of fit (ratio ${after === undefined ? 'not available' : formatNumber(after)} then): ${coincide}`,
+      { parameter: 'spectra' },
+    );
+  }
+  return new BandwrightError(
+    'SINGULAR',
+    `pure spectra of ${pair} have the same shape within the calibration residual (${measured}), and that residual is lack of fit: ${diagnosis}; ${lackOfFitAdvice(lackOfFit)}; then see whether their bands differ over the method's ${channelWord}s`,
+    { parameter: 'spectra' },
+  );
+}
+
+/** The lack of fit in words: the residual against the blanks' noise, and the second-order terms that would reduce it. */
+function describeLackOfFit(lackOfFit: ClsLackOfFit, state: ClsState): string {
+  const sd = Math.sqrt(state.calibrationResidualSum / state.calibrationResidualCount);
+  const parts: string[] = [];
+  if (lackOfFit.residualOverBlank !== null && lackOfFit.blankVariance !== null) {
+    parts.push(
+      `the calibration residual (SD ${formatNumber(sd)} a channel) is ${formatNumber(Math.sqrt(lackOfFit.residualOverBlank))} times the noise of the ${lackOfFit.blanks} zero-gas standard(s) (SD ${formatNumber(Math.sqrt(lackOfFit.blankVariance))}), so it is mostly lack of fit rather than noise`,
+    );
+  } else {
+    parts.push(`the calibration residual (SD ${formatNumber(sd)} a channel) is lack of fit rather than noise`);
+  }
+  const helpful = helpfulGains(lackOfFit);
+  if (helpful.length > 0) {
+    parts.push(`a second-order term would remove ${listNames(helpful.map((gain) => `${Math.round(100 * gain.residualReduction)} % of it for ${gain.component}`))} (significant at 99 %)`);
+  }
+  return parts.join('; ');
+}
+
+/** Second-order terms that would remove a significant and substantial part of the residual, largest first. */
+function helpfulGains(lackOfFit: ClsLackOfFit): ClsSecondOrderGain[] {
+  return lackOfFit.secondOrderGains
+    .filter((gain) => gain.fStatistic > gain.fLimit && gain.residualReduction >= SUBSTANTIAL_REDUCTION)
+    .sort((a, b) => b.residualReduction - a.residualReduction);
+}
+
+/** What to do about a lack of fit. */
+function lackOfFitAdvice(lackOfFit: ClsLackOfFit): string {
+  const helpful = helpfulGains(lackOfFit);
+  if (helpful.length > 0) return `give ${listNames(helpful.map((gain) => gain.component))} a second-order term (secondOrder), or choose regions with weaker lines`;
+  return 'no second-order term of a gas that lacks one removes it: look for curvature beyond second order (saturated lines: choose regions with weaker lines or a narrower calibrated range), lines of different gases that overlap (they multiply in transmittance), an absorber in the standards the method does not model, or a baseline the polynomial order does not follow';
+}
+
+/**
+ * Diagnoses lack of fit (see the header): blanks' noise against the residual, and the residual a
+ * second-order term would remove for each component that has none.
+ */
+function diagnoseLackOfFit(input: {
+  projected: readonly Float64Array[];
+  design: readonly Float64Array[];
+  components: readonly ClsComponent[];
+  terms: readonly ClsTerm[];
+  fitted: FittedState;
+  conditionLimit: number;
+}): ClsLackOfFit {
+  const { projected, design, components, terms, fitted } = input;
+  const { state } = fitted;
+  const n = projected.length;
+  const q = terms.length;
+  const p = components.length;
+  const baseCount = state.calibrationResidualCount / (n - q);
+  const squareSum = correlationSquareSum(fitted.correlation);
+  const residualVariance = state.calibrationResidualCount > 0 ? state.calibrationResidualSum / state.calibrationResidualCount : 0;
+
+  const blankRows = design.map((row, i) => (Array.from({ length: p }, (_, j) => row[j]!).every((value) => value === 0) ? i : -1)).filter((i) => i >= 0);
+  let blankVariance: number | null = null;
+  let residualOverBlank: number | null = null;
+  let residualOverBlankLimit: number | null = null;
+  if (blankRows.length > 0 && baseCount > 0) {
+    let energy = 0;
+    for (const i of blankRows) energy += dot(projected[i]!, projected[i]!);
+    blankVariance = energy / (blankRows.length * baseCount);
+    if (blankVariance > 0 && residualVariance > 0) {
+      residualOverBlank = residualVariance / blankVariance;
+      residualOverBlankLimit = fQuantile(TEST_PROBABILITY, state.calibrationDegreesOfFreedom, (blankRows.length * baseCount) / squareSum);
     }
   }
-  return { condition, signalRatio, separationRatio };
+
+  const secondOrderGains: ClsSecondOrderGain[] = [];
+  if (n - q - 1 >= 1 && state.calibrationResidualSum > 0) {
+    const responses = projected.map((row) => Array.from(row));
+    for (let c = 0; c < p; c++) {
+      if (terms.some((term) => term.component === c && term.power === 2)) continue;
+      const levels = new Set(design.map((row) => row[c]!));
+      if (levels.size < 3) continue;
+      let reduced: number;
+      try {
+        const fit = solveLeastSquaresMany(
+          design.map((row) => [...Array.from(row), row[c]! * row[c]!]),
+          responses,
+          { conditionLimit: input.conditionLimit },
+        );
+        reduced = fit.residualSumOfSquares.reduce((a, b) => a + b, 0);
+      } catch (error) {
+        if (isBandwrightError(error, 'SINGULAR') || isBandwrightError(error, 'INSUFFICIENT_DATA')) continue;
+        throw error;
+      }
+      const removed = Math.max(state.calibrationResidualSum - reduced, 0);
+      const fStatistic = reduced > 0 ? removed / baseCount / (reduced / ((n - q - 1) * baseCount)) : Number.POSITIVE_INFINITY;
+      secondOrderGains.push({
+        component: components[c]!.name,
+        residualReduction: removed / state.calibrationResidualSum,
+        fStatistic,
+        fLimit: fQuantile(TEST_PROBABILITY, baseCount / squareSum, ((n - q - 1) * baseCount) / squareSum),
+      });
+    }
+  }
+  const aboveNoise = residualOverBlank !== null && residualOverBlankLimit !== null && residualOverBlank > Math.max(residualOverBlankLimit, DEFAULT_POOR_FIT_RATIO ** 2);
+  const partial: ClsLackOfFit = { blanks: blankRows.length, blankVariance, residualOverBlank, residualOverBlankLimit, secondOrderGains, detected: false };
+  return { ...partial, detected: aboveNoise || helpfulGains(partial).length > 0 };
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -869,7 +1257,20 @@ export function fitClsCore(data: ClsCoreData, options: ClsCoreOptions): ClsCoreM
       { parameter: 'spectra' },
     );
   }
-  const checks = checkPureSpectra(fitted, components, terms, options.conditionLimit, options.channelWord);
+  const lackOfFit = diagnoseLackOfFit({ projected, design, components, terms, fitted, conditionLimit: options.conditionLimit });
+  const checks = checkPureSpectra({
+    fitted,
+    projected,
+    nuisance: options.nuisance,
+    design,
+    components,
+    terms,
+    segments: options.segments,
+    conditionLimit: options.conditionLimit,
+    channelWord: options.channelWord,
+    localWeights: options.localResidualWeights,
+    lackOfFit,
+  });
   const state = fitted.state;
 
   // Leave-one-out cross-validation.
@@ -958,11 +1359,24 @@ export function fitClsCore(data: ClsCoreData, options: ClsCoreOptions): ClsCoreM
       conditionPureSpectra: checks.condition,
       signalRatio: checks.signalRatio,
       separationRatio: checks.separationRatio,
+      lackOfFit,
       responseScale: state.responseScale,
     },
     crossValidation: { predictions, rmsecv, standardizedRms, inflation, threshold },
     level: options.level,
+    warnings: lackOfFitWarnings(lackOfFit, state, components, inflation),
   };
+}
+
+/** The warning a calibration that passes its checks carries when its residual is lack of fit. */
+function lackOfFitWarnings(lackOfFit: ClsLackOfFit, state: ClsState, components: readonly ClsComponent[], inflation: readonly number[]): string[] {
+  if (!lackOfFit.detected) return [];
+  const widened = components.map((component, j) => ({ name: component.name, factor: inflation[j]! })).filter((entry) => entry.factor > 1);
+  const consequence =
+    widened.length > 0
+      ? `cross-validation widens the intervals (${widened.map((entry) => `${entry.name} ×${entry.factor.toFixed(2)}`).join(', ')}) to cover it`
+      : 'cross-validation does not show it in the estimates, but results near the ends of the calibrated range may be biased';
+  return [`lack of fit: ${describeLackOfFit(lackOfFit, state)}; ${consequence}; ${lackOfFitAdvice(lackOfFit)}`];
 }
 
 /** Puts the shared engine's collinearity message in the words of a calibration. */

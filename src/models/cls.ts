@@ -15,8 +15,8 @@ import type { ClsComponent, ClsCoreModel, ClsPrediction, ClsState } from './cls-
 import { DEFAULT_POOR_FIT_RATIO, fitClsCore, prepareClsState, predictClsState } from './cls-core.js';
 import { validateClsInputs } from './cls-validate.js';
 
-export type { ClsComponent, ClsEstimate, ClsFlag, ClsPrediction, ClsCalibrationStatistics, ClsCrossValidation, ClsRange, ClsTerm } from './cls-core.js';
-export { DEFAULT_CLS_CONDITION_LIMIT, DEFAULT_POOR_FIT_RATIO, MINIMUM_SEPARATION_RATIO } from './cls-core.js';
+export type { ClsComponent, ClsEstimate, ClsFlag, ClsPrediction, ClsCalibrationStatistics, ClsCrossValidation, ClsLackOfFit, ClsRange, ClsSecondOrderGain, ClsTerm } from './cls-core.js';
+export { DEFAULT_CLS_CONDITION_LIMIT, DEFAULT_POOR_FIT_RATIO, MINIMUM_SEPARATION_RATIO, SUBSTANTIAL_REDUCTION } from './cls-core.js';
 
 /** Standards for a spectral CLS fit. Nothing here is modified. */
 export interface ClsData {
@@ -154,6 +154,7 @@ export function fitCls(data: ClsData, options: ClsFitOptions = {}): ClsModel {
       nuisance,
       segments,
       estimateCorrelation: true,
+      localResidualWeights: true,
       channelWord: 'channel',
     },
   );

@@ -66,7 +66,7 @@ describe('prediction-interval coverage (Monte Carlo, synthetic, known truth)', (
     for (let repeat = 0; repeat < repeats; repeat++) {
       const core = fitClsCore(
         { responses: concentrations.map(noisy), concentrations, phi: concentrations.map(() => 1), components },
-        { level: 0.95, conditionLimit: 1e3, secondOrder: [], nuisance, segments, estimateCorrelation: false, channelWord: 'channel' },
+        { level: 0.95, conditionLimit: 1e3, secondOrder: [], nuisance, segments, estimateCorrelation: false, localResidualWeights: false, channelWord: 'channel' },
       );
       const textbook = { ...core, crossValidation: { ...core.crossValidation, inflation: components.map(() => 1) } };
       const result = predictClsState(textbook, prepareClsState(textbook, nuisance), noisy(truth), { phi: 1, level: 0.95, poorFitRatio: 1.5, channelWord: 'channel' });
