@@ -246,7 +246,14 @@ export function calibrationReportInput(calibration: Calibration, calibrationPath
   const generatedAt = reportTime();
   const inputs = checkRecordedInputs(calibration, calibrationPath);
   const { spectra, notes } = loadRecordedStandards(calibration, calibrationPath, inputs);
-  const history = recheckHistoryViews(calibration, calibrationPath, generatedAt);
+  let history: { views: RecheckHistoryView[]; notes: string[] };
+  try {
+    history = recheckHistoryViews(calibration, calibrationPath, generatedAt);
+  } catch (error) {
+    // A damaged history must not hide the rest of the report: say so and draw what can be drawn.
+    if (!(error instanceof BandwrightError)) throw error;
+    history = { views: [], notes: [`the recheck history could not be read: ${error.message}`] };
+  }
   return {
     calibration,
     calibrationFile: calibrationPath,

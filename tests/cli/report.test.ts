@@ -177,6 +177,19 @@ describe('quantify --report and --plot, calibrate --plot, recheck --plot', () =>
   });
 });
 
+describe('report with a damaged recheck history', () => {
+  it('still writes the report and says the history could not be read', async () => {
+    writeFileSync(at('co.calibration.history.csv'), 'not a history\n');
+    try {
+      const run = await runCli('report', at('co.calibration.json'), '-o', at('damaged.html'));
+      expect(run.status, run.stderr).toBe(0);
+      has(readFileSync(at('damaged.html'), 'utf8'), 'the recheck history could not be read: ');
+    } finally {
+      rmSync(at('co.calibration.history.csv'));
+    }
+  });
+});
+
 describe('results CSV guarded against formulas', () => {
   it('writes a sample named =HYPERLINK(…) with a leading apostrophe, and shows it as text in the report', async () => {
     const name = '=HYPERLINK("http:evil","click").csv';
