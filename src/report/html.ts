@@ -13,7 +13,7 @@ import { formatWindow } from '../bands/windows.js';
 import type { Calibration, CalibrationInput, GasCalibration } from '../calibration/calibration.js';
 import { unitLabel } from '../gas/units.js';
 import { bulletList, cautionBox, factList, figure, htmlPage, htmlTable, notice, numberCell, paragraph, type Cell } from './html-page.js';
-import { element, escapeText, slug } from './svg/markup.js';
+import { element, escapeText, shortNumber, slug } from './svg/markup.js';
 import { calibrationPlots, controlChartPlot, type NamedPlot, type StandardSpectrum } from './svg/plot-set.js';
 import type { ControlChartInput } from './svg/control-chart.js';
 import type { WavenumberAxis } from './svg/spectra.js';
@@ -246,6 +246,12 @@ function clsSection(calibration: Calibration): string {
   );
 }
 
+/** An ISO time as `YYYY-MM-DD HH:MM` (UTC), or the text as given when it is not a time. */
+function minuteText(iso: string): string {
+  const ms = Date.parse(iso);
+  return Number.isFinite(ms) ? new Date(ms).toISOString().slice(0, 16).replace('T', ' ') : iso;
+}
+
 const STATUS_WORDS: Record<InputFileStatus, string> = {
   unchanged: 'present, SHA-256 matches',
   changed: 'CHANGED since the calibration was built (SHA-256 differs)',
@@ -293,12 +299,12 @@ function historySection(histories: readonly RecheckHistoryView[] | undefined, no
     const shown = (value: number, digits: number): string => (Number.isFinite(value) ? formatNumber(value, digits) : '');
     return (
       (views.length > 1 ? element('h3', {}, escapeText(history.gas)) : '') +
-      figure(plot.svg, `Control chart of ${history.gas}: recovery of the check standard against time, tolerance ±${formatNumber(history.chart.tolerancePct, 3)} %, warning (±2σ) and action (±3σ) limits with the σ in force for the next check (${history.chart.sigmaSource}); checks where a control rule fired are ringed and labelled.`) +
+      figure(plot.svg, `Control chart of ${history.gas}: recovery of the check standard against time, tolerance ±${shortNumber(history.chart.tolerancePct)} %, warning (±2σ) and action (±3σ) limits with the σ in force for the next check (σ = ${shortNumber(history.chart.sigmaPct)} %, why: below the chart); checks where a control rule fired are ringed and labelled above the chart.`) +
       (history.notes === undefined || history.notes.length === 0 ? '' : bulletList(history.notes)) +
       htmlTable({
         caption: `Rechecks of ${history.gas}`,
         header: ['time (UTC)', numberCell('certified'), numberCell('measured'), 'unit', numberCell('recovery / %'), 'verdict', 'rules fired', 'scan'],
-        rows: rows.map((r): Cell[] => [r.time, numberCell(shown(r.certified, 5)), numberCell(shown(r.measured, 5)), r.unit, numberCell(r.recoveryPct === undefined ? 'zero gas' : shown(r.recoveryPct, 5)), r.verdict, r.rules.join(', '), { text: r.scan, className: 'hash' }]),
+        rows: rows.map((r): Cell[] => [minuteText(r.time), numberCell(shown(r.certified, 5)), numberCell(shown(r.measured, 5)), r.unit, numberCell(r.recoveryPct === undefined ? 'zero gas' : shown(r.recoveryPct, 5)), r.verdict, r.rules.join(', '), { text: r.scan, className: 'hash' }]),
         rowClasses: rows.map((r) => (r.verdict === 'fail' ? 'failed' : undefined)),
       })
     );
