@@ -63,6 +63,7 @@ export { formatSpectrumCsv } from './io/spectrum-csv-write.js';
 
 // Integrity
 export { verifyInputs, checkInputs, recordedInputPath, type IntegrityReport, type RecordedInputCheck, type RecordedInputStatus } from './io/verify.js';
+export { resourceLimits, resourceLimitsHelp, RESOURCE_LIMIT_SETTINGS, type ResourceLimits } from './io/limits.js';
 
 // Simulation
 export { simulateSpectrum, type SimulationOptions, type SimulationResult } from './simulate/index.js';

@@ -4,7 +4,7 @@
  * use 3 and 4).
  */
 import { Command, CommanderError } from 'commander';
-import { BandwrightError, TOOL } from '../index.js';
+import { BandwrightError, TOOL, resourceLimits, resourceLimitsHelp } from '../index.js';
 import { registerCalibrate } from './calibrate.js';
 import { registerDemo } from './demo.js';
 import type { CommandContext, TextSink } from './context.js';
@@ -28,6 +28,7 @@ export function buildProgram(context: CommandContext): Command {
     .description('Gas-cell infrared quantification: calibrate from certified standards, quantify samples with prediction intervals, recheck drift.')
     .version(TOOL.version, '-V, --version')
     .showHelpAfterError('(run with --help for usage)')
+    .addHelpText('after', `\n${resourceLimitsHelp()}\n`)
     .configureOutput({ writeOut: (s) => context.stdout.write(s), writeErr: (s) => context.stderr.write(s) })
     .exitOverride();
   registerCalibrate(program, context);
@@ -76,6 +77,8 @@ export async function main(argv: readonly string[], streams: { stdout?: TextSink
   };
   const program = buildProgram(context);
   try {
+    // A mistyped limit variable is a usage error of every command, found before any file is read.
+    resourceLimits();
     await program.parseAsync([...argv]);
     return context.status;
   } catch (error) {

@@ -4,6 +4,7 @@
  */
 import Papa from 'papaparse';
 import { BandwrightError } from '../errors.js';
+import { resourceLimits } from './limits.js';
 
 /** One data row: cells by lower-cased, trimmed header name, and its 1-based line in the file. */
 export interface TableRow {
@@ -33,13 +34,13 @@ export const DEFAULT_MAX_ROWS = 1_000_000;
  *
  * @param input - the file's text (BOM already removed); LF, CRLF, CR or a mix of them end lines
  * @param source - file name for messages
- * @param options - `maxRows` (default 1,000,000)
+ * @param options - `maxRows` (default 1,000,000, or BANDWRIGHT_MAX_TABLE_ROWS)
  * @returns the table
  * @throws BandwrightError `PARSE` for an empty table, duplicate or empty column names, unbalanced
  *   quotes or a wrong number of cells; `LIMIT` beyond `maxRows`
  */
 export function parseTable(input: string, source: string, options: { maxRows?: number } = {}): Table {
-  const maxRows = options.maxRows ?? DEFAULT_MAX_ROWS;
+  const maxRows = options.maxRows ?? resourceLimits().maxTableRows;
   const text = unifyLineEnds(input);
   const lineStarts = lineStartOffsets(text);
   const lineAt = (offset: number): number => {
@@ -102,7 +103,7 @@ export function parseTable(input: string, source: string, options: { maxRows?: n
     if (record.length !== columns.length) {
       throw new BandwrightError('PARSE', `${source} line ${line}: ${record.length} cells, the header has ${columns.length} (${columns.join(delimiter)})`, { file: source, line });
     }
-    if (rows.length >= maxRows) throw new BandwrightError('LIMIT', `${source}: more than ${maxRows} data rows`, { file: source });
+    if (rows.length >= maxRows) throw new BandwrightError('LIMIT', `${source}: more than ${maxRows} data rows, the limit (BANDWRIGHT_MAX_TABLE_ROWS raises it)`, { file: source });
     const cells = new Map<string, string>();
     record.forEach((cell, k) => {
       const value = cell.trim();

@@ -698,7 +698,7 @@ function decodeXyData(bytes: Uint8Array, record: Record_, header: Header, source
           dataError(source, lineNumber, 'PARSE', `DUP count ${JSON.stringify(decode(bytes, tokenStart, p))} ${lastWasDup ? 'follows another DUP' : 'has no value before it to repeat'}`);
         }
         if (value < 1) dataError(source, lineNumber, 'PARSE', `DUP count ${value}, must be >= 1`);
-        if (stream.out.length + value - 1 > maxPoints) dataError(source, lineNumber, 'LIMIT', `DUP count ${value} gives more than ${maxPoints} data points, the limit (maxPoints)`);
+        if (stream.out.length + value - 1 > maxPoints) dataError(source, lineNumber, 'LIMIT', `DUP count ${value} gives more than ${maxPoints} data points, the limit (maxPoints; BANDWRIGHT_MAX_POINTS raises it)`);
         const repeated = stream.lastKind;
         for (let k = 1; k < value; k++) {
           const next = repeated === DIFFERENCE ? stream.previous + stream.lastDifference : stream.previous;
@@ -726,7 +726,7 @@ function emitError(stream: OrdinateStream, source: string, line: number): never 
       { file: source, line },
     );
   }
-  return dataError(source, line, 'LIMIT', `more than ${stream.maxPoints} data points, the limit (maxPoints)`);
+  return dataError(source, line, 'LIMIT', `more than ${stream.maxPoints} data points, the limit (maxPoints; BANDWRIGHT_MAX_POINTS raises it)`);
 }
 
 // ---------------------------------------------------------------- XYPOINTS (AFFN pairs)
@@ -782,7 +782,7 @@ function decodeXyPoints(bytes: Uint8Array, record: Record_, source: string, maxP
       p = cursor.end;
       if (count % 2 === 0) {
         if (xs.length >= maxPoints) {
-          throw new BandwrightError('LIMIT', `${source} line ${lineNumber}: more than ${maxPoints} data points, the limit (maxPoints)`, { file: source, line: lineNumber });
+          throw new BandwrightError('LIMIT', `${source} line ${lineNumber}: more than ${maxPoints} data points, the limit (maxPoints; BANDWRIGHT_MAX_POINTS raises it)`, { file: source, line: lineNumber });
         }
         xs.push(value);
         lines.push(lineNumber);
@@ -831,7 +831,7 @@ export function parseJcamp(input: Uint8Array | string, options: JcampOptions): S
     });
   }
   if (header.nPoints !== undefined && header.nPoints > maxPoints) {
-    throw new BandwrightError('LIMIT', `${source}: ##NPOINTS=${header.nPoints}, more than ${maxPoints} data points, the limit (maxPoints)`, { file: source });
+    throw new BandwrightError('LIMIT', `${source}: ##NPOINTS=${header.nPoints}, more than ${maxPoints} data points, the limit (maxPoints; BANDWRIGHT_MAX_POINTS raises it)`, { file: source });
   }
   let x: Float64Array;
   let y: Float64Array;

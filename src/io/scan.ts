@@ -9,6 +9,7 @@ import { closeSync, openSync, readSync, statSync } from 'node:fs';
 import { BandwrightError } from '../errors.js';
 import type { Spectrum, YKind } from '../spectrum/spectrum.js';
 import { parseJcamp } from './jcamp.js';
+import { resourceLimits } from './limits.js';
 import { parseSpectrumTable } from './spectrum-table.js';
 
 /** Options of {@link parseScan}. */
@@ -68,6 +69,7 @@ export function detectScanFormat(bytes: Uint8Array, source: string): 'csv' | 'jc
  */
 export function parseScan(bytes: Uint8Array, options: ParseScanOptions): Spectrum {
   const format = options.format ?? detectScanFormat(bytes, options.source);
+  if (options.maxPoints === undefined) options = { ...options, maxPoints: resourceLimits().maxPoints };
   if (format === 'jcamp') {
     const spectrum = parseJcamp(bytes, options.maxPoints === undefined ? { source: options.source } : { source: options.source, maxPoints: options.maxPoints });
     if (options.yKind !== undefined && options.yKind !== spectrum.yKind) {
@@ -108,7 +110,7 @@ function readAll(descriptor: number, label: string, maxBytes: number): Uint8Arra
     }
     if (count === 0) break;
     total += count;
-    if (total > maxBytes) throw new BandwrightError('LIMIT', `${label}: more than ${maxBytes} bytes, above the limit (maxBytes)`, { file: label });
+    if (total > maxBytes) throw new BandwrightError('LIMIT', `${label}: more than ${maxBytes} bytes, above the limit (BANDWRIGHT_MAX_SCAN_BYTES raises it)`, { file: label });
     chunks.push(Buffer.from(chunk.subarray(0, count)));
   }
   return new Uint8Array(Buffer.concat(chunks, total));
@@ -126,7 +128,7 @@ function readAll(descriptor: number, label: string, maxBytes: number): Uint8Arra
  * const spectrum = readScan('samples/stack-0930.jdx');
  */
 export function readScan(path: string, options: ReadScanOptions = {}): Spectrum {
-  const maxBytes = options.maxBytes ?? DEFAULT_MAX_SCAN_BYTES;
+  const maxBytes = options.maxBytes ?? resourceLimits().maxScanBytes;
   if (!(maxBytes > 0)) throw new BandwrightError('INVALID_VALUE', `maxBytes = ${maxBytes}, must be > 0`, { parameter: 'maxBytes' });
   const { maxBytes: _maxBytes, source: givenSource, ...parseOptions } = options;
   let bytes: Uint8Array;
@@ -140,7 +142,7 @@ export function readScan(path: string, options: ReadScanOptions = {}): Spectrum 
     try {
       const stats = statSync(path);
       if (stats.isDirectory()) throw new BandwrightError('FILE_READ', `${path} is a folder, expected a scan file`, { file: path });
-      if (stats.size > maxBytes) throw new BandwrightError('LIMIT', `${path}: ${stats.size} bytes, above the limit of ${maxBytes} bytes (maxBytes)`, { file: path });
+      if (stats.size > maxBytes) throw new BandwrightError('LIMIT', `${path}: ${stats.size} bytes, above the limit of ${maxBytes} bytes (BANDWRIGHT_MAX_SCAN_BYTES raises it)`, { file: path });
       descriptor = openSync(path, 'r');
     } catch (error) {
       if (error instanceof BandwrightError) throw error;

@@ -426,7 +426,7 @@ function readRows(
     if (blankLine !== 0) rowFail(context, 'PARSE', lineNumber, `data after the blank line ${blankLine}; the data lines of a table must be contiguous`);
     if (c === HASH) rowFail(context, 'PARSE', lineNumber, 'comment line inside the data; # comments are allowed only before the data');
     if (n === capacity) {
-      if (capacity >= maxPoints) rowFail(context, 'LIMIT', lineNumber, `more than ${maxPoints} data points, the limit (maxPoints)`);
+      if (capacity >= maxPoints) rowFail(context, 'LIMIT', lineNumber, `more than ${maxPoints} data points, the limit (maxPoints; BANDWRIGHT_MAX_POINTS raises it)`);
       capacity = Math.min(maxPoints, capacity * 2);
       xs = grown(xs, capacity);
       ys = grown(ys, capacity);

@@ -7,7 +7,8 @@ import type { YKind } from '../spectrum/spectrum.js';
 import { BandwrightError } from '../errors.js';
 import { sha256OfBytes } from './hash.js';
 import type { Manifest } from './manifest.js';
-import { DEFAULT_MAX_SCAN_BYTES, parseScan } from './scan.js';
+import { resourceLimits } from './limits.js';
+import { parseScan } from './scan.js';
 import { readBytes } from './text-file.js';
 
 /** Standards in memory plus the inputs to record in the calibration. */
@@ -31,7 +32,7 @@ export function loadStandards(manifest: Manifest, options: { yKind?: YKind } = {
   const standards = manifest.entries.map((entry): StandardScan => {
     let bytes: Uint8Array;
     try {
-      bytes = readBytes(entry.scanPath, { maxBytes: DEFAULT_MAX_SCAN_BYTES });
+      bytes = readBytes(entry.scanPath, { maxBytes: resourceLimits().maxScanBytes, limitVariable: 'BANDWRIGHT_MAX_SCAN_BYTES' });
     } catch (error) {
       if (error instanceof BandwrightError && error.code === 'FILE_NOT_FOUND') {
         throw new BandwrightError('FILE_NOT_FOUND', `${manifest.path} line ${entry.line}: standard scan ${entry.scanPath} does not exist`, { file: manifest.path, line: entry.line });

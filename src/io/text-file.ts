@@ -3,6 +3,7 @@
  */
 import { readFileSync, statSync } from 'node:fs';
 import { BandwrightError } from '../errors.js';
+import { resourceLimits } from './limits.js';
 
 /** Default largest file read whole, bytes (manifests, methods, calibrations, tables). */
 export const DEFAULT_MAX_TABLE_BYTES = 64 * 1024 * 1024;
@@ -11,11 +12,12 @@ export const DEFAULT_MAX_TABLE_BYTES = 64 * 1024 * 1024;
  * Reads a file as bytes.
  *
  * @param path - file path
- * @param options - `maxBytes`: refuse larger files (default 64 MiB)
- * @throws BandwrightError `FILE_NOT_FOUND`, `FILE_READ` (folder, permissions), `LIMIT` (too large)
+ * @param options - `maxBytes`: refuse larger files (default 64 MiB, or BANDWRIGHT_MAX_TABLE_BYTES);
+ *   `limitVariable`: the environment variable named in the message (default BANDWRIGHT_MAX_TABLE_BYTES)
+ * @throws BandwrightError `FILE_NOT_FOUND`, `FILE_READ` (folder, permissions), `LIMIT` (too large); `USAGE` for a bad limit variable
  */
-export function readBytes(path: string, options: { maxBytes?: number } = {}): Uint8Array {
-  const maxBytes = options.maxBytes ?? DEFAULT_MAX_TABLE_BYTES;
+export function readBytes(path: string, options: { maxBytes?: number; limitVariable?: string } = {}): Uint8Array {
+  const maxBytes = options.maxBytes ?? resourceLimits().maxTableBytes;
   let size: number;
   try {
     const stats = statSync(path);
@@ -28,7 +30,7 @@ export function readBytes(path: string, options: { maxBytes?: number } = {}): Ui
     throw new BandwrightError('FILE_READ', `${path}: cannot read: ${(error as Error).message}`, { file: path }, { cause: error });
   }
   if (size > maxBytes) {
-    throw new BandwrightError('LIMIT', `${path}: ${size} bytes, above the limit of ${maxBytes} bytes`, { file: path });
+    throw new BandwrightError('LIMIT', `${path}: ${size} bytes, above the limit of ${maxBytes} bytes${options.limitVariable === undefined && options.maxBytes !== undefined ? '' : ` (${options.limitVariable ?? 'BANDWRIGHT_MAX_TABLE_BYTES'} raises it)`}`, { file: path });
   }
   try {
     return readFileSync(path);
