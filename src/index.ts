@@ -136,3 +136,9 @@ export { clsFitData } from './report/svg/cls-data.js';
 export { calibrationPlots, samplePlots, controlChartPlot, uniqueFileNames, type NamedPlot, type PlotSetOptions, type StandardSpectrum } from './report/svg/plot-set.js';
 export { calibrationReportHtml, calibrationReportPlots, type CalibrationReportInput, type CalibrationReportOptions, type InputCheck, type InputFileStatus, type RecheckHistoryView, type RecheckRow } from './report/html.js';
 export { quantifyReportHtml, quantifyReportPlots, type QuantifyReportInput, type QuantifyReportOptions, type SampleSpectrum } from './report/html-quantify.js';
+
+// Batch and watch
+export { openResultsWriter, partialResultsPath, assertAppendable, type ResultsWriter, type ResultsWriterOptions } from './io/results-writer.js';
+export { createScanReader, type ScanReader } from './io/scan-reader.js';
+export { readScanList, parseScanList, MAX_SCAN_LIST_BYTES } from './io/scan-list.js';
+export { createFolderWatcher, readProcessedRecord, openProcessedRecord, type FolderWatcher, type FolderWatcherOptions, type FileStamp, type ReadyFile, type ProcessedRecordFile } from './io/watch-folder.js';

@@ -15,6 +15,7 @@ import { registerReport } from './report.js';
 import { registerSimulate } from './simulate.js';
 import { registerStatus } from './status.js';
 import { registerVerify } from './verify.js';
+import { registerWatch } from './watch.js';
 
 /**
  * Builds the program. Each command's action stores its exit status in the context.
@@ -33,6 +34,7 @@ export function buildProgram(context: CommandContext): Command {
     .exitOverride();
   registerCalibrate(program, context);
   registerQuantify(program, context);
+  registerWatch(program, context);
   registerInspect(program, context);
   registerSimulate(program, context);
   registerRecheck(program, context);

@@ -23,7 +23,11 @@ import {
   type Calibration,
   type QuantifyOptions,
   type SampleSpectrum,
+  readScanList,
 } from '../index.js';
+import { QUANTIFY_BATCH_HELP, runQuantifyBatch } from './batch-command.js';
+import { resultsJsonLine } from './batch-output.js';
+import { workersOption } from './batch.js';
 import { conditionOptions, yKindOption } from './calibrate.js';
 import { note, raiseStatus, type CommandContext } from './context.js';
 import { collect, parseNumberOption, parsePositiveOption } from './parse.js';
@@ -35,6 +39,10 @@ interface QuantifyFlags {
   wavenumberAxis?: string;
   json?: boolean;
   csv?: string;
+  jsonl?: string;
+  from?: string;
+  quiet?: boolean;
+  workers?: string;
   force?: boolean;
   level: string;
   pathLength?: string;
@@ -119,7 +127,11 @@ export function registerQuantify(program: Command, context: CommandContext): voi
     .option('--response <y>', 'a response at reference conditions instead of scans (repeat for replicates)', collect)
     .option('--json', 'print results as JSON on stdout')
     .option('--csv <file>', 'write one row per scan to a CSV file')
-    .option('--force', 'replace an existing --csv file, --report file or --plot files')
+    .option('--jsonl <file>', 'write one JSON line per scan (a results element with calibrationSha256) to a file')
+    .option('--from <list>', 'also quantify the scans listed in a file, one path per line (- for stdin)')
+    .option('--quiet', 'print no results on stdout (with --csv or --jsonl)')
+    .option('--workers <n>', 'worker threads reading and quantifying scans: auto, or a count (0: none)', 'auto')
+    .option('--force', 'replace an existing --csv or --jsonl file, --report file or --plot files')
     .option('--level <p>', 'prediction-interval level', '0.95')
     .option('--path-length <m>', 'path length for scans that do not state it, m')
     .option('--temperature <K>', 'gas temperature for scans that do not state it, K')
@@ -138,7 +150,8 @@ export function registerQuantify(program: Command, context: CommandContext): voi
     .option('--report <file>', 'write a self-contained HTML report: results table and one spectrum plot per sample')
     .option('--plot <dir>', 'write each sample\'s plots as SVG files into this folder')
     .option('--wavenumber-axis <order>', 'plots with wavenumbers descending (high on the left, default) or ascending')
-    .action((calibrationPath: string, scanArguments: string[], flags: QuantifyFlags) => {
+    .addHelpText('after', QUANTIFY_BATCH_HELP)
+    .action(async (calibrationPath: string, scanArguments: string[], flags: QuantifyFlags) => {
       const wavenumberAxis = wavenumberAxisOption(flags.wavenumberAxis);
       if (flags.report !== undefined) refuseExisting(flags.report, flags.force === true, '--report');
       const spectra: SampleSpectrum[] = [];
@@ -147,17 +160,42 @@ export function registerQuantify(program: Command, context: CommandContext): voi
       const level = options.level ?? 0.95;
       let entries: BatchEntry[];
       if (flags.response !== undefined) {
-        if (scanArguments.length > 0) throw new BandwrightError('USAGE', 'quantify: give scans or --response values, not both', { parameter: '--response' });
+        if (scanArguments.length > 0 || flags.from !== undefined) throw new BandwrightError('USAGE', 'quantify: give scans or --response values, not both', { parameter: '--response' });
         const responses = flags.response.map((text, i) => parseNumberOption(text, `--response ${i + 1}`));
         entries = [quantifyResponses(calibration, responses, options)];
       } else {
-        if (scanArguments.length === 0) throw new BandwrightError('USAGE', 'quantify: give at least one scan (file, folder, glob or -), or --response', { parameter: 'scans' });
-        entries = quantifyScans(calibration, expandScanArguments(scanArguments), options, flags.yKind, spectra);
+        if (scanArguments.length === 0 && flags.from === undefined) throw new BandwrightError('USAGE', 'quantify: give at least one scan (file, folder, glob or -), --from <list>, or --response', { parameter: 'scans' });
+        if (flags.json && flags.quiet) throw new BandwrightError('USAGE', 'quantify: --json prints results on stdout and --quiet prints none; give one', { parameter: '--quiet' });
+        const workers = workersOption(flags.workers ?? 'auto');
+        const paths = [...(scanArguments.length === 0 ? [] : expandScanArguments(scanArguments)), ...(flags.from === undefined ? [] : readScanList(flags.from))];
+        if (paths.length === 0) throw new BandwrightError('USAGE', `quantify: ${flags.from} lists no scans`, { parameter: '--from' });
+        if (flags.report === undefined && flags.plot === undefined) {
+          // Streaming batch: entries go to the outputs as they come (batch-command.ts).
+          await runQuantifyBatch(context, {
+            calibration,
+            calibrationPath,
+            options,
+            ...(flags.yKind === undefined ? {} : { yKind: yKindOption(flags.yKind) }),
+            paths,
+            json: flags.json === true,
+            quiet: flags.quiet === true,
+            ...(flags.csv === undefined ? {} : { csv: flags.csv }),
+            ...(flags.jsonl === undefined ? {} : { jsonl: flags.jsonl }),
+            force: flags.force === true,
+            workers,
+          });
+          return;
+        }
+        entries = quantifyScans(calibration, paths, options, flags.yKind, spectra);
       }
       const gases = reportedGases(calibration).map((g) => ({ gas: g.gas, unit: options.unit ?? g.unit }));
       if (flags.csv !== undefined) {
         writeFileAtomic(flags.csv, resultsCsv(entries, gases, calibration.sha256), { overwrite: flags.force === true, createFolder: true });
         note(context, `results written to ${flags.csv}`);
+      }
+      if (flags.jsonl !== undefined) {
+        writeFileAtomic(flags.jsonl, entries.map((entry) => resultsJsonLine(entry, calibration.sha256)).join(''), { overwrite: flags.force === true, createFolder: true });
+        note(context, `results written to ${flags.jsonl}`);
       }
       if (flags.report !== undefined || flags.plot !== undefined) {
         writeQuantifyOutputs(context, { calibration, calibrationPath, entries, spectra, options, report: flags.report, plot: flags.plot, force: flags.force === true, wavenumberAxis });

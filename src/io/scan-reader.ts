@@ -1,0 +1,70 @@
+/**
+ * Scan reading for long batches: the same checks, messages and parsers as {@link readScan}, but
+ * every file is read into one buffer that is reused (grown when a larger file comes), so a batch of
+ * tens of thousands of scans allocates no file-sized buffers and copies each file's bytes once.
+ * The parsed spectrum never refers to the buffer (the readers copy what they keep).
+ */
+import { closeSync, openSync, readSync, statSync } from 'node:fs';
+import { BandwrightError } from '../errors.js';
+import type { Spectrum } from '../spectrum/spectrum.js';
+import { DEFAULT_MAX_SCAN_BYTES, parseScan, readScan, type ReadScanOptions } from './scan.js';
+
+/** Reads one scan; see {@link createScanReader}. */
+export type ScanReader = (path: string) => Spectrum;
+
+/**
+ * Makes a scan reader with its own reusable buffer (one per thread).
+ *
+ * @param options - y-kind, format, point and byte limits, as for {@link readScan} (`source` is
+ *   ignored: each spectrum's source is the path it was read from)
+ * @returns a function reading a path (or `-` for standard input) into a spectrum
+ * @throws BandwrightError (from the returned function) as {@link readScan}: `FILE_NOT_FOUND`,
+ *   `FILE_READ`, `LIMIT`, and the parse errors
+ * @example
+ * const read = createScanReader({ yKind: 'absorbance' });
+ * for (const path of paths) quantifyScan(calibration, read(path));
+ */
+export function createScanReader(options: Omit<ReadScanOptions, 'source'> = {}): ScanReader {
+  const maxBytes = options.maxBytes ?? DEFAULT_MAX_SCAN_BYTES;
+  if (!(maxBytes > 0)) throw new BandwrightError('INVALID_VALUE', `maxBytes = ${maxBytes}, must be > 0`, { parameter: 'maxBytes' });
+  const { maxBytes: _maxBytes, ...parseOptions } = options;
+  let buffer = Buffer.allocUnsafe(1 << 20);
+  return (path: string): Spectrum => {
+    if (path === '-') return readScan(path, options);
+    let descriptor: number;
+    let size: number;
+    try {
+      const stats = statSync(path);
+      if (stats.isDirectory()) throw new BandwrightError('FILE_READ', `${path} is a folder, expected a scan file`, { file: path });
+      if (stats.size > maxBytes) throw new BandwrightError('LIMIT', `${path}: ${stats.size} bytes, above the limit of ${maxBytes} bytes (maxBytes)`, { file: path });
+      size = stats.size;
+      descriptor = openSync(path, 'r');
+    } catch (error) {
+      if (error instanceof BandwrightError) throw error;
+      if ((error as NodeJS.ErrnoException).code === 'ENOENT') throw new BandwrightError('FILE_NOT_FOUND', `${path}: no such file`, { file: path });
+      throw new BandwrightError('FILE_READ', `${path}: cannot read: ${(error as Error).message}`, { file: path }, { cause: error });
+    }
+    let length = 0;
+    try {
+      // One spare byte shows whether the file grew after the stat; keep reading to its end.
+      if (buffer.length < size + 1) buffer = Buffer.allocUnsafe(Math.max(size + 1, buffer.length * 2));
+      for (;;) {
+        if (length === buffer.length) {
+          const bigger = Buffer.allocUnsafe(buffer.length * 2);
+          buffer.copy(bigger, 0, 0, length);
+          buffer = bigger;
+        }
+        const count = readSync(descriptor, buffer, length, buffer.length - length, null);
+        if (count === 0) break;
+        length += count;
+        if (length > maxBytes) throw new BandwrightError('LIMIT', `${path}: more than ${maxBytes} bytes, above the limit (maxBytes)`, { file: path });
+      }
+    } catch (error) {
+      if (error instanceof BandwrightError) throw error;
+      throw new BandwrightError('FILE_READ', `${path}: cannot read: ${(error as Error).message}`, { file: path }, { cause: error });
+    } finally {
+      closeSync(descriptor);
+    }
+    return parseScan(buffer.subarray(0, length), { ...parseOptions, source: path });
+  };
+}
