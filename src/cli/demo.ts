@@ -27,6 +27,24 @@ interface DemoStep {
   expected?: number[];
   /** Print one line made from the command's standard output instead of the step's block (the title, when not empty, is shown once). */
   line?: (stdout: string) => string;
+  /** Creation time for a calibrate step, seconds since 1970 (as SOURCE_DATE_EPOCH). */
+  createdAt?: string;
+}
+
+/** When the demo's lab calibration is dated: 2026-08-31T08:00:00Z, the day before its first weekly check. */
+const LAB_CALIBRATION_DATE = String(Date.UTC(2026, 7, 31, 8) / 1000);
+
+/** Runs `action` with SOURCE_DATE_EPOCH set (seconds), restoring the previous value after. */
+async function withCreationTime<T>(epochSeconds: string | undefined, action: () => Promise<T>): Promise<T> {
+  if (epochSeconds === undefined) return action();
+  const previous = process.env.SOURCE_DATE_EPOCH;
+  process.env.SOURCE_DATE_EPOCH = epochSeconds;
+  try {
+    return await action();
+  } finally {
+    if (previous === undefined) delete process.env.SOURCE_DATE_EPOCH;
+    else process.env.SOURCE_DATE_EPOCH = previous;
+  }
 }
 
 /** One line for a recheck from its `--json` output: date, recovery, verdict, rules fired. */
@@ -63,6 +81,8 @@ export function registerDemo(program: Command, context: CommandContext, run: (ar
           title: 'Calibrate CO from 14 standards (zero gas and six levels in duplicate), second-order band-area curve',
           args: ['calibrate', join(lab, 'standards.csv'), '--method', join(lab, 'method.json'), '-o', at('lab-co.calibration.json'), ...force],
           stdoutFile: 'lab-co.calibration.txt',
+          // Dated the day before the first weekly check, as it would have been built.
+          createdAt: LAB_CALIBRATION_DATE,
         },
         {
           title: 'Quantify five samples with 95 % prediction intervals (table, CSV and JSON)',
@@ -100,7 +120,7 @@ export function registerDemo(program: Command, context: CommandContext, run: (ar
       note(context, `bandwright demo: the example scenario is described in ${join(examples, 'README.md')}`);
       let number = 0;
       for (const step of steps) {
-        const result = await run(step.args);
+        const result = await withCreationTime(step.createdAt, () => run(step.args));
         const ok = (step.expected ?? [0]).includes(result.status);
         if (step.stdoutFile !== undefined) writeFileAtomic(at(step.stdoutFile), result.stdout, { overwrite: true, createFolder: true });
         if (ok && step.line !== undefined) {
