@@ -78,7 +78,7 @@ describe('verify', () => {
 });
 
 describe('results carry the calibration hash', () => {
-  it('quantify --json gives it once for the document, --csv on every row, failed scans included', async () => {
+  it('quantify --json gives it once for the document, --csv and --jsonl on every row, failed scans included', async () => {
     const recorded = JSON.parse(readFileSync(at('cal/co.json'), 'utf8')).sha256 as string;
     const json = await runCli('quantify', at('cal/co.json'), at('s50.csv'), at('s200.csv'), '--json');
     expect(json.status).toBe(0);
@@ -91,5 +91,10 @@ describe('results carry the calibration hash', () => {
     expect(column).toBeGreaterThan(0);
     expect(rows).toHaveLength(2);
     for (const row of rows) expect(row.split(',')[column]).toBe(recorded);
+    const jsonl = await runCli('quantify', at('cal/co.json'), at('s50.csv'), at('broken.csv'), '--jsonl', at('r.jsonl'));
+    expect(jsonl.status).toBe(1);
+    const lines = readFileSync(at('r.jsonl'), 'utf8').trimEnd().split('\n').map((line) => JSON.parse(line) as { calibrationSha256: string });
+    expect(lines).toHaveLength(2);
+    for (const line of lines) expect(line.calibrationSha256).toBe(recorded);
   });
 });
