@@ -30,7 +30,7 @@ import {
 import { formatCalibrationSummary } from '../report/calibration-summary.js';
 import { note, type CommandContext } from './context.js';
 import { refuseExistingPlots, wavenumberAxisOption, writePlotFiles } from './report.js';
-import { parseNumberOption, parsePositiveOption, parseWindowListOption, parseWindowOption } from './parse.js';
+import { creationTime, parsePositiveOption, parseWindowListOption, parseWindowOption } from './parse.js';
 
 interface CalibrateOptions {
   method?: string;
@@ -102,17 +102,6 @@ function methodFromFlags(options: CalibrateOptions): BandMethod {
   };
   if (options.baselineOrder !== undefined) gas.baselineOrder = Number(options.baselineOrder);
   return parseMethod({ model: 'band', gases: [gas], recheck: recheckFromFlags(options) }, 'options') as BandMethod;
-}
-
-/**
- * Creation time to stamp: now, or SOURCE_DATE_EPOCH (seconds since 1970, the reproducible-builds
- * convention) when set, so regenerated example calibrations are byte-for-byte the same.
- */
-function creationTime(): string {
-  const epoch = process.env.SOURCE_DATE_EPOCH;
-  if (epoch === undefined || epoch === '') return new Date().toISOString();
-  const seconds = parseNumberOption(epoch, 'SOURCE_DATE_EPOCH', [(n) => Number.isInteger(n) && n >= 0, 'must be whole seconds since 1970']);
-  return new Date(seconds * 1000).toISOString();
 }
 
 function defaultOutput(input: string): string {

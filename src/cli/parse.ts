@@ -56,3 +56,17 @@ export function parseWindowListOption(text: string, option: string): [number, nu
 export function collect(value: string, previous: string[] = []): string[] {
   return [...previous, value];
 }
+
+/**
+ * The time to stamp into calibrations and reports: now, or SOURCE_DATE_EPOCH (seconds since 1970,
+ * the reproducible-builds convention) when set, so regenerated files are byte-for-byte the same.
+ *
+ * @returns ISO 8601 time
+ * @throws BandwrightError `USAGE` when SOURCE_DATE_EPOCH is not whole seconds
+ */
+export function creationTime(): string {
+  const epoch = process.env.SOURCE_DATE_EPOCH;
+  if (epoch === undefined || epoch === '') return new Date().toISOString();
+  const seconds = parseNumberOption(epoch, 'SOURCE_DATE_EPOCH', [(n) => Number.isInteger(n) && n >= 0, 'must be whole seconds since 1970']);
+  return new Date(seconds * 1000).toISOString();
+}

@@ -4,7 +4,7 @@
  * recorded inputs against their SHA-256, re-reading the standards' spectra that still match,
  * writing plots as SVG files and reports atomically.
  */
-import { basename, dirname, extname, isAbsolute, join, resolve } from 'node:path';
+import { basename, dirname, extname, join, resolve } from 'node:path';
 import type { Command } from 'commander';
 import {
   BandwrightError,
@@ -13,7 +13,8 @@ import {
   calibrationReportPlots,
   readCalibration,
   readScan,
-  sha256OfFile,
+  checkInputs,
+  recordedInputPath,
   svgFile,
   TOOL,
   writeFileAtomic,
@@ -38,12 +39,7 @@ import {
   type WavenumberAxis,
 } from '../index.js';
 import { note, type CommandContext } from './context.js';
-import { parseNumberOption } from './parse.js';
-
-/** True when something exists at `path` (a file, or a folder with entries): only `src/io` looks at the disk. */
-function occupied(path: string): boolean {
-  return isNonEmptyFolder(path);
-}
+import { creationTime, parseNumberOption } from './parse.js';
 
 /** Values of `--wavenumber-axis`. */
 export const WAVENUMBER_AXIS_CHOICES: readonly WavenumberAxis[] = ['descending', 'ascending'];
@@ -63,54 +59,12 @@ export function wavenumberAxisOption(text: string | undefined): WavenumberAxis {
 }
 
 /**
- * The time a report is made: now, or SOURCE_DATE_EPOCH (seconds since 1970, the reproducible-builds
- * convention) when set, so regenerated reports are byte-for-byte the same.
- */
-export function reportTime(): string {
-  const epoch = process.env.SOURCE_DATE_EPOCH;
-  if (epoch === undefined || epoch === '') return new Date().toISOString();
-  const seconds = parseNumberOption(epoch, 'SOURCE_DATE_EPOCH', [(n) => Number.isInteger(n) && n >= 0, 'must be whole seconds since 1970']);
-  return new Date(seconds * 1000).toISOString();
-}
-
-/**
- * Where a recorded input is now: paths in a calibration are relative to its own folder.
- *
- * @param calibrationPath - the calibration file as named
- * @param recorded - recorded path (relative to the calibration's folder, or absolute)
- */
-export function recordedInputPath(calibrationPath: string, recorded: string): string {
-  return isAbsolute(recorded) ? recorded : join(dirname(calibrationPath), recorded);
-}
-
-/**
- * Checks every recorded input of a calibration against its SHA-256.
- *
- * @param calibration - the calibration
- * @param calibrationPath - its file as named
- * @returns one check per input, in order
- */
-export function checkRecordedInputs(calibration: Calibration, calibrationPath: string): InputCheck[] {
-  return calibration.inputs.map((input): InputCheck => {
-    const path = recordedInputPath(calibrationPath, input.path);
-    try {
-      const current = sha256OfFile(path);
-      return current === input.sha256 ? { ...input, status: 'unchanged' } : { ...input, status: 'changed', currentSha256: current };
-    } catch (error) {
-      if (error instanceof BandwrightError && error.code === 'FILE_NOT_FOUND') return { ...input, status: 'missing' };
-      if (error instanceof BandwrightError) return { ...input, status: 'unreadable', message: error.message };
-      throw error;
-    }
-  });
-}
-
-/**
  * Re-reads the standards' spectra whose files still match their recorded SHA-256. The i-th
  * `standard` input belongs to the i-th standard (the order calibrate records them in).
  *
  * @param calibration - the calibration
  * @param calibrationPath - its file as named
- * @param checks - the input checks from {@link checkRecordedInputs}
+ * @param checks - the input checks from `checkInputs`
  * @returns spectra by standard index, and notes about those that could not be used
  */
 export function loadRecordedStandards(calibration: Calibration, calibrationPath: string, checks: readonly InputCheck[]): { spectra: StandardSpectrum[]; notes: string[] } {
@@ -166,7 +120,7 @@ export function writePlotFiles(folder: string, plots: readonly NamedPlot[], opti
  */
 export function refuseExistingPlots(folder: string, plots: readonly NamedPlot[], force: boolean): void {
   if (force) return;
-  const existing = plots.map((plot) => join(folder, plot.file)).find((path) => occupied(path));
+  const existing = plots.map((plot) => join(folder, plot.file)).find((path) => isNonEmptyFolder(path));
   if (existing !== undefined) throw new BandwrightError('FILE_EXISTS', `${existing} exists; use --force to replace the plots in ${folder}`, { file: existing, parameter: '--plot' });
 }
 
@@ -178,7 +132,7 @@ export function refuseExistingPlots(folder: string, plots: readonly NamedPlot[],
  * @param option - option name for the message
  */
 export function refuseExisting(path: string, force: boolean, option: string): void {
-  if (!force && occupied(path)) throw new BandwrightError('FILE_EXISTS', `${path} exists; use --force to replace it`, { file: path, parameter: option });
+  if (!force && isNonEmptyFolder(path)) throw new BandwrightError('FILE_EXISTS', `${path} exists; use --force to replace it`, { file: path, parameter: option });
 }
 
 /**
@@ -243,8 +197,8 @@ export function recheckHistoryViews(calibration: Calibration, calibrationPath: s
  * @param calibrationPath - its file as named
  */
 export function calibrationReportInput(calibration: Calibration, calibrationPath: string): CalibrationReportInput {
-  const generatedAt = reportTime();
-  const inputs = checkRecordedInputs(calibration, calibrationPath);
+  const generatedAt = creationTime();
+  const inputs = checkInputs(calibration, calibrationPath);
   const { spectra, notes } = loadRecordedStandards(calibration, calibrationPath, inputs);
   let history: { views: RecheckHistoryView[]; notes: string[] };
   try {
@@ -382,7 +336,7 @@ export function writeQuantifyOutputs(context: CommandContext, outputs: QuantifyO
     entries: outputs.entries,
     level: outputs.options.level ?? 0.95,
     spectra: outputs.spectra,
-    generatedAt: reportTime(),
+    generatedAt: creationTime(),
     tool: { name: TOOL.name, version: TOOL.version },
     options: reportingWords(outputs.options),
   };
