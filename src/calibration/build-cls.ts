@@ -2,8 +2,16 @@
  * Building classical-least-squares calibrations from mixture or pure-gas standards. Pure.
  *
  * The channel grid is the first standard's grid points inside the method's regions; every other
- * standard (and later every sample) is resampled onto it by linear interpolation, so scans from
- * instruments with slightly different grids can be combined. Concentrations of every component
+ * standard (and later every sample) is taken onto it, so scans from instruments with slightly
+ * different grids can be combined. Where a scan's points coincide with the channels their values
+ * are used as they are. Otherwise a scan on a uniform grid is interpolated in transmittance with a
+ * Lanczos kernel (windowed sinc, a = 8 samples; Duchon, J. Appl. Meteorol. 18 (1979) 1016, from
+ * memory): the instrument line shape acts on transmittance (DESIGN §3), so transmittance is
+ * band-limited by the maximum path difference and, sampled at Δν/2 or finer as FTIR software
+ * does, is recovered between its samples, whereas absorbance is its logarithm and is not, and
+ * linear interpolation flattens lines a few samples wide (a sample on a grid offset by 0.05 cm⁻¹
+ * at 0.5 cm⁻¹ resolution read CO 8 % low that way). A scan on a non-uniform grid falls back to
+ * linear interpolation. Concentrations of every component
  * (reported gases and interferents) come from the manifest, each multiplied by the standard's φ
  * inside the model (DESIGN §3).
  */
@@ -13,7 +21,7 @@ import { densityPathFactor, resolveConditions, type CellConditions } from '../ga
 import { cautionsFor } from '../gas/safety.js';
 import { fromPpm, toPpm } from '../gas/units.js';
 import { fitCls, predictCls } from '../models/cls.js';
-import { lowerBound, resample, toAbsorbance, type Spectrum } from '../spectrum/spectrum.js';
+import { interpolateAt, lowerBound, resample, toAbsorbance, type Spectrum } from '../spectrum/spectrum.js';
 import { TOOL } from '../version.js';
 import { referenceConditions, titleOf, type BuildContext, type StandardScan } from './build.js';
 import { SCHEMA_VERSION, sealCalibration, type Calibration, type CalibrationStandard } from './calibration.js';
@@ -66,7 +74,9 @@ function assertCovers(spectrum: Spectrum, region: Window): void {
 }
 
 /**
- * A scan's absorbance on the calibration's channels.
+ * A scan's absorbance on the calibration's channels: its own values where its points coincide
+ * with the channels; otherwise Lanczos interpolation of its transmittance (uniform grid) or
+ * linear interpolation (non-uniform grid), as the module header explains.
  *
  * @param spectrum - any y-kind
  * @param channels - the calibration's grid
@@ -76,7 +86,64 @@ function assertCovers(spectrum: Spectrum, region: Window): void {
  */
 export function onChannels(spectrum: Spectrum, channels: Float64Array, regions: readonly Window[]): Float64Array {
   for (const region of regions) assertCovers(spectrum, region);
-  return resample(toAbsorbance(spectrum), channels).y;
+  const absorbance = toAbsorbance(spectrum);
+  const { x, y } = absorbance;
+  const n = x.length;
+  const step = n > 1 ? ((x[n - 1] as number) - (x[0] as number)) / (n - 1) : 0;
+  const tolerance = 1e-6 * Math.abs(step);
+  const out = new Float64Array(channels.length);
+  let coincide = n > 1;
+  for (let i = 0; i < channels.length && coincide; i++) {
+    const value = channels[i] as number;
+    const k = lowerBound(x, value - tolerance);
+    if (k < n && Math.abs((x[k] as number) - value) <= tolerance) out[i] = y[k] as number;
+    else coincide = false;
+  }
+  if (coincide) return out;
+  if (!isUniform(x, step)) return resample(absorbance, channels).y;
+  const transmittance = Float64Array.from(y, (value) => 10 ** -value);
+  const first = x[0] as number;
+  for (let i = 0; i < channels.length; i++) {
+    const t = lanczosAt(transmittance, ((channels[i] as number) - first) / step);
+    // A point so opaque that the kernel's ripple reaches zero keeps the linear value.
+    out[i] = t > 0 ? -Math.log10(t) : interpolateAt(x, y, channels[i] as number);
+  }
+  return out;
+}
+
+/** Half-width of the Lanczos kernel, in samples. */
+const LANCZOS_HALF_WIDTH = 8;
+
+/** True when the grid's steps all equal `step` within 1e-6 of it. */
+function isUniform(x: Float64Array, step: number): boolean {
+  if (x.length < 2 || !(step > 0)) return false;
+  const first = x[0] as number;
+  for (let i = 1; i < x.length; i++) if (Math.abs((x[i] as number) - (first + i * step)) > 1e-6 * step) return false;
+  return true;
+}
+
+function sinc(t: number): number {
+  if (t === 0) return 1;
+  const angle = Math.PI * t;
+  return Math.sin(angle) / angle;
+}
+
+/**
+ * Lanczos interpolation of uniformly sampled values at fractional sample position u; the weights
+ * are renormalised where the kernel runs past either end of the samples.
+ */
+function lanczosAt(values: Float64Array, u: number): number {
+  const base = Math.floor(u);
+  let sum = 0;
+  let weights = 0;
+  for (let k = base - LANCZOS_HALF_WIDTH + 1; k <= base + LANCZOS_HALF_WIDTH; k++) {
+    if (k < 0 || k >= values.length) continue;
+    const d = u - k;
+    const weight = sinc(d) * sinc(d / LANCZOS_HALF_WIDTH);
+    sum += weight * (values[k] as number);
+    weights += weight;
+  }
+  return sum / weights;
 }
 
 /**

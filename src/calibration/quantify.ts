@@ -11,7 +11,7 @@ import { measureBand } from '../bands/band.js';
 import { BandwrightError } from '../errors.js';
 import { conditionsFarReasons, densityPathFactor, resolveConditions, type CellConditions, type PartialConditions } from '../gas/conditions.js';
 import { cautionsFor } from '../gas/safety.js';
-import { toPpm } from '../gas/units.js';
+import { toPpm, unitLabel, type ConcentrationUnit } from '../gas/units.js';
 import { predictCls } from '../models/cls.js';
 import { predictConcentration } from '../models/univariate.js';
 import { toAbsorbance, type Spectrum } from '../spectrum/spectrum.js';
@@ -165,6 +165,27 @@ export function quantifyClsScan(calibration: Calibration, spectrum: Spectrum, op
   for (const v of values) peak = Math.max(peak, v);
   const prediction = predictCls(cls.model, values, { phi, level });
   const warnings = [...prediction.warnings];
+  // Interferents are not reported, so their range flags would go unseen: say which are outside
+  // the standards' range, and name them among the possible causes of a poor fit. Under a poor
+  // fit the standard error reflects the misfit itself, so any value above the range counts
+  // (more absorber than any standard held; a small negative value is no cause of misfit).
+  const poorFit = prediction.flags.includes('poor-fit');
+  const rangeIndex = (name: string): number => cls.model.components.findIndex((c) => c.name === name);
+  const outside = [...prediction.estimates, ...prediction.interferents].filter((estimate) => {
+    const range = cls.model.ranges[rangeIndex(estimate.name)];
+    const scaled = estimate.value * phi;
+    return estimate.flags.includes('extrapolated') || (poorFit && range !== undefined && scaled > range.max);
+  });
+  const rangeOf = (name: string): string => {
+    const index = rangeIndex(name);
+    const range = cls.model.ranges[index];
+    const unit = unitLabel(cls.model.components[index]!.unit as ConcentrationUnit);
+    return range === undefined ? '' : `${Number((range.min / phi).toPrecision(4))}–${Number((range.max / phi).toPrecision(4))} ${unit}`;
+  };
+  const poorFitCause =
+    outside.length > 0
+      ? `${listWords(outside.map((e) => e.name))} outside the standards' range (the model was not fitted there), or an absorber the method does not model`
+      : 'an absorber the method does not model may be present, or the instrument is not as it was at calibration';
   const gases = prediction.estimates.map((estimate): GasResult => {
     const flags: ResultFlag[] = [...estimate.flags];
     const notes: string[] = [];
@@ -180,7 +201,7 @@ export function quantifyClsScan(calibration: Calibration, spectrum: Spectrum, op
     }
     if (prediction.flags.includes('poor-fit')) {
       flags.push('poor-fit');
-      notes.push(`the fit leaves a residual ${prediction.fitRatio.toFixed(2)}× the calibration's (limit ${prediction.fitRatioLimit.toFixed(2)}): an absorber the method does not model may be present`);
+      notes.push(`the fit leaves a residual ${prediction.fitRatio.toFixed(2)}× the calibration's (limit ${prediction.fitRatioLimit.toFixed(2)}): ${poorFitCause}`);
     }
     if (peak > calibration.method.saturationAbsorbance) {
       flags.push('saturated');
@@ -193,7 +214,14 @@ export function quantifyClsScan(calibration: Calibration, spectrum: Spectrum, op
     return result;
   });
   const water = prediction.interferents.find((e) => e.name === 'H2O') ?? prediction.estimates.find((e) => e.name === 'H2O');
-  for (const interferent of prediction.interferents) warnings.push(`interferent ${interferent.name} modelled at ${interferent.value.toPrecision(4)} ${interferent.unit} (not reported)`);
+  for (const interferent of prediction.interferents) {
+    const label = unitLabel(interferent.unit as ConcentrationUnit);
+    warnings.push(
+      outside.includes(interferent)
+        ? `interferent ${interferent.name} modelled at ${interferent.value.toPrecision(4)} ${label} (not reported), outside the standards' ${rangeOf(interferent.name)} at this scan's conditions: the reported gases may be biased`
+        : `interferent ${interferent.name} modelled at ${interferent.value.toPrecision(4)} ${label} (not reported)`,
+    );
+  }
   const reporting: ReportingOptions =
     options.dryBasis !== undefined && options.dryBasis.waterFraction === undefined && water !== undefined
       ? { ...options, dryBasis: { waterFraction: toPpm(water.value, water.unit as GasResult['unit']) * 1e-6, measuredInScan: true } }
@@ -206,6 +234,11 @@ export function quantifyClsScan(calibration: Calibration, spectrum: Spectrum, op
     cautions: cautionsFor(cls.model.components.map((c) => c.name)),
     warnings,
   };
+}
+
+/** "H2O", "CO2 and H2O" */
+function listWords(words: readonly string[]): string {
+  return words.length <= 1 ? words.join('') : `${words.slice(0, -1).join(', ')} and ${words[words.length - 1]!}`;
 }
 
 /**
