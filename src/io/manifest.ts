@@ -106,6 +106,13 @@ export function parseManifest(text: string, path: string): Manifest {
   }
   if (table.rows.length === 0) throw new BandwrightError('PARSE', `${path}: no standards listed below the header`, { file: path });
   const entries = table.rows.map((row) => parseEntry(row, table, gases, path, folder));
+  const firstLine = new Map<string, number>();
+  for (const entry of entries) {
+    const earlier = firstLine.get(entry.scanPath);
+    if (earlier === undefined) firstLine.set(entry.scanPath, entry.line);
+    // One scan listed twice counts one measurement as two standards and understates the scatter.
+    else warnings.push(`${path} line ${entry.line}: scan ${entry.scan} is already listed at line ${earlier}; it counts as a second standard, which understates the calibration's scatter`);
+  }
   return { path, gases, entries, warnings };
 }
 

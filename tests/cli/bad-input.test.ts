@@ -121,3 +121,12 @@ describe('quantify refuses bad input', () => {
     await expectFailure(['quantify', at('co.json'), at('s100.csv'), '--o2', '20.8', '--o2-ref', '7'], /measured O2 = 20.8 % is within 0.5 % points of the O2 of air/);
   });
 });
+
+describe('manifest warnings', () => {
+  it('warns when one scan is listed twice (one measurement counted as two standards)', async () => {
+    manifest('m-twice.csv', ['s0.csv,0', 's50.csv,50', 's50.csv,50', 's100.csv,100', 's200.csv,200', 's400.csv,400']);
+    const run = await runCli('calibrate', at('m-twice.csv'), ...bandArgs, '-o', at('twice.json'));
+    expect(run.status).toBe(0);
+    expect(run.stdout).toMatch(/m-twice.csv line 4: scan s50.csv is already listed at line 3/);
+  });
+});
