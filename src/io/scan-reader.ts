@@ -7,7 +7,8 @@
 import { closeSync, openSync, readSync, statSync } from 'node:fs';
 import { BandwrightError } from '../errors.js';
 import type { Spectrum } from '../spectrum/spectrum.js';
-import { DEFAULT_MAX_SCAN_BYTES, parseScan, readScan, type ReadScanOptions } from './scan.js';
+import { resourceLimits } from './limits.js';
+import { parseScan, readScan, type ReadScanOptions } from './scan.js';
 
 /** Reads one scan; see {@link createScanReader}. */
 export type ScanReader = (path: string) => Spectrum;
@@ -25,18 +26,21 @@ export type ScanReader = (path: string) => Spectrum;
  * for (const path of paths) quantifyScan(calibration, read(path));
  */
 export function createScanReader(options: Omit<ReadScanOptions, 'source'> = {}): ScanReader {
-  const maxBytes = options.maxBytes ?? DEFAULT_MAX_SCAN_BYTES;
+  // The limits are read once, not per scan (BANDWRIGHT_MAX_SCAN_BYTES, BANDWRIGHT_MAX_POINTS).
+  const limits = resourceLimits();
+  const maxBytes = options.maxBytes ?? limits.maxScanBytes;
   if (!(maxBytes > 0)) throw new BandwrightError('INVALID_VALUE', `maxBytes = ${maxBytes}, must be > 0`, { parameter: 'maxBytes' });
-  const { maxBytes: _maxBytes, ...parseOptions } = options;
+  const { maxBytes: _maxBytes, ...rest } = options;
+  const parseOptions = { ...rest, maxPoints: options.maxPoints ?? limits.maxPoints };
   let buffer = Buffer.allocUnsafe(1 << 20);
   return (path: string): Spectrum => {
-    if (path === '-') return readScan(path, options);
+    if (path === '-') return readScan(path, { ...parseOptions, maxBytes });
     let descriptor: number;
     let size: number;
     try {
       const stats = statSync(path);
       if (stats.isDirectory()) throw new BandwrightError('FILE_READ', `${path} is a folder, expected a scan file`, { file: path });
-      if (stats.size > maxBytes) throw new BandwrightError('LIMIT', `${path}: ${stats.size} bytes, above the limit of ${maxBytes} bytes (maxBytes)`, { file: path });
+      if (stats.size > maxBytes) throw new BandwrightError('LIMIT', `${path}: ${stats.size} bytes, above the limit of ${maxBytes} bytes (BANDWRIGHT_MAX_SCAN_BYTES raises it)`, { file: path });
       size = stats.size;
       descriptor = openSync(path, 'r');
     } catch (error) {
@@ -57,7 +61,7 @@ export function createScanReader(options: Omit<ReadScanOptions, 'source'> = {}):
         const count = readSync(descriptor, buffer, length, buffer.length - length, null);
         if (count === 0) break;
         length += count;
-        if (length > maxBytes) throw new BandwrightError('LIMIT', `${path}: more than ${maxBytes} bytes, above the limit (maxBytes)`, { file: path });
+        if (length > maxBytes) throw new BandwrightError('LIMIT', `${path}: more than ${maxBytes} bytes, above the limit (BANDWRIGHT_MAX_SCAN_BYTES raises it)`, { file: path });
       }
     } catch (error) {
       if (error instanceof BandwrightError) throw error;

@@ -12,7 +12,7 @@
  * files processed (name, size, modification time) makes each version of a file processed once;
  * it can be kept in a JSON-lines file so a later run (cron with `watch --once`) goes on from there.
  */
-import { closeSync, existsSync, openSync, readFileSync, readdirSync, statSync, watch, writeSync, type FSWatcher } from 'node:fs';
+import { closeSync, existsSync, openSync, readFileSync, readdirSync, statSync, truncateSync, watch, writeSync, type FSWatcher } from 'node:fs';
 import { resolve } from 'node:path';
 import { BandwrightError } from '../errors.js';
 import { SCAN_EXTENSIONS } from './scan-paths.js';
@@ -249,7 +249,7 @@ export interface ProcessedRecordFile {
 
 /**
  * Opens a processed-files record for appending (created when missing; a last line cut short is
- * ended first so the next record starts on its own line).
+ * removed first, so the next record starts on its own line).
  *
  * @param path - the record file
  * @throws BandwrightError `FILE_READ` when it cannot be opened
@@ -257,9 +257,12 @@ export interface ProcessedRecordFile {
 export function openProcessedRecord(path: string): ProcessedRecordFile {
   let descriptor: number;
   try {
-    const cutShort = existsSync(path) && statSync(path).size > 0 && !readFileSync(path).subarray(-1).equals(Buffer.from('\n'));
+    if (existsSync(path) && statSync(path).size > 0) {
+      const bytes = readFileSync(path);
+      // A record cut short by a kill is dropped, so the next one starts on its own line.
+      if (bytes[bytes.length - 1] !== 0x0a) truncateSync(path, bytes.lastIndexOf(0x0a) + 1);
+    }
     descriptor = openSync(path, 'a');
-    if (cutShort) writeSync(descriptor, '\n');
   } catch (error) {
     throw new BandwrightError('FILE_READ', `${path}: cannot write: ${(error as Error).message}`, { file: path }, { cause: error });
   }
