@@ -115,6 +115,19 @@ export function registerDemo(program: Command, context: CommandContext, run: (ar
         title: 'Write the calibration report: one self-contained HTML page with statistics, limits, plots, the recheck history, provenance and cautions',
         args: ['report', at('lab-co.calibration.json'), '-o', at('lab-co.report.html'), ...force],
       });
+      const stack = join(examples, 'stack-mixture');
+      steps.push(
+        {
+          title: 'Calibrate the stack method by classical least squares: CO and N2O under CO2 and water vapour, 26 standards, second-order terms for the saturating CO, N2O and water lines',
+          args: ['calibrate', join(stack, 'standards.csv'), '--method', join(stack, 'method.json'), '-o', at('stack-k2.calibration.json'), ...force],
+          stdoutFile: 'stack-k2.calibration.txt',
+        },
+        {
+          title: 'Quantify the six stack samples on a dry basis (water from the same scan) and in mg/m³ at 273.15 K and 101.325 kPa; the sample taken during a water-spray upset is flagged poor-fit',
+          args: ['quantify', at('stack-k2.calibration.json'), join(stack, 'samples'), '--dry', '--mg-m3', '--csv', at('stack-k2.results.csv'), ...force],
+          stdoutFile: 'stack-k2.results.txt',
+        },
+      );
       // A rebuilt calibration starts a new history; keep the old one beside it.
       if (flags.force) moveHistoryAside(historyPathFor(at('lab-co.calibration.json')));
       note(context, `bandwright demo: the example scenario is described in ${join(examples, 'README.md')}`);
