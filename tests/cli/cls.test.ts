@@ -267,6 +267,9 @@ describe('stack reporting: each conversion printed with its assumptions', () => 
     }
     const chained = await quantifyJson(at('k2-a.jdx'), '--dry', '--mg-m3');
     expect(chained[0]!.gases[0]!.conversions![1]!.assumption).toMatch(/of the dry value/);
+    const text = await runCli('quantify', at('stack.json'), at('k2-a.jdx'), '--mg-m3');
+    expect(text.stdout).toMatch(/^\s+mg\/m3\s+[\d.]+\s+[\d.]+ – [\d.]+\s+mg\/m3/m);
+    expect(text.stdout).toMatch(/k2-a\.jdx CO mg\/m3: mass concentration at 273.15 K and 101.325 kPa \(ideal gas, M = 28.010 g\/mol\)/);
   });
 });
 
