@@ -17,7 +17,7 @@
  */
 import { spawn, spawnSync } from 'node:child_process';
 import { closeSync, existsSync, mkdirSync, openSync, readFileSync, readdirSync, renameSync, rmSync, statSync, writeFileSync, writeSync } from 'node:fs';
-import { cpus, totalmem } from 'node:os';
+import { cpus, loadavg, totalmem } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 import { workerCount } from '../src/cli/batch.js';
@@ -383,81 +383,95 @@ async function watchRun(data: BenchData): Promise<string> {
   return `watch, four-gas CLS, ${count} JCAMP-DX scans arriving at 10 scans/s (renamed into place): ${seen.length} of ${files} quantified in ${elapsed.toFixed(1)} s; result ${median.toFixed(0)} ms after arrival (median), ${worst.toFixed(0)} ms at worst; stopped by SIGTERM with exit status ${code}${seen.length < count ? `; stderr: ${stderr.slice(-500)}` : ''}`;
 }
 
+/** Parts of the batch benchmark. */
+export type BatchBenchPart = 'table' | 'workers' | 'numpy' | 'watch';
+
 /**
  * Runs the batch benchmark.
  *
- * @returns the lines it reports (also printed as it goes when `log` prints)
+ * @param log - receives each line as it is made
+ * @param parts - which parts to run (default all; `numpy` needs `table` for its comparison)
+ * @returns the lines it reports
  */
-export async function run(log: (line: string) => void = () => undefined): Promise<string[]> {
+export async function run(log: (line: string) => void = () => undefined, parts: readonly BatchBenchPart[] = ['table', 'workers', 'numpy', 'watch']): Promise<string[]> {
   const lines: string[] = [];
   const say = (line: string): void => {
     lines.push(line);
     log(line);
   };
   const cpu = cpus()[0]?.model ?? 'unknown CPU';
-  say(`machine: ${cpus().length} × ${cpu}, ${(totalmem() / 2 ** 30).toFixed(0)} GiB, node ${process.version}, ${new Date().toISOString().slice(0, 10)}`);
+  const load = (): string => loadavg().map((l) => l.toFixed(2)).join(' ');
+  say(`machine: ${cpus().length} × ${cpu}, ${(totalmem() / 2 ** 30).toFixed(0)} GiB, node ${process.version}, ${new Date().toISOString().slice(0, 10)}; load average at start ${load()}`);
   const data = await prepareData(say);
   buildProgram(say);
   const results = join(DATA, 'results');
   mkdirSync(results, { recursive: true });
-  say('');
-  say(row(['format', 'calibration', 'N', 'workers', 'batch s', 'scans/s', 'MB/s', 'peak RSS MB', 'process s']));
-  say(row(['---', '---', '---:', '---', '---:', '---:', '---:', '---:', '---:']));
   const ours: Record<string, RunResult> = {};
-  for (const format of ['csv', 'jcamp'] as const) {
-    for (const calibration of ['band', 'cls'] as const) {
-      for (const n of SIZES) {
-        const paths = data[format].slice(0, n);
-        const list = listFile(paths, `list-${format}-${n}.txt`);
-        const out = join(results, `${format}-${calibration}-${n}.csv`);
-        const result = runCli(['quantify', data[calibration], '--from', list, '--csv', out, '--force', '--quiet']);
-        if (result.failed > 0 || result.scans !== n) throw new Error(`${format} ${calibration} ${n}: ${result.failed} failed of ${result.scans}`);
-        ours[`${format}-${calibration}-${n}`] = result;
-        const megabytes = bytesOf(paths) / 1e6;
-        say(
-          row([
-            format === 'csv' ? 'CSV' : 'JCAMP-DX',
-            calibration === 'band' ? 'CO band' : 'four-gas CLS',
-            n.toLocaleString('en-US'),
-            `auto (${workerCount('auto', n, false)})`,
-            result.seconds.toFixed(2),
-            (n / result.seconds).toFixed(0),
-            (megabytes / result.seconds).toFixed(0),
-            result.maxRss_MB.toFixed(0),
-            result.wallSeconds.toFixed(2),
-          ]),
-        );
+  if (parts.includes('table')) {
+    say('');
+    say(row(['format', 'calibration', 'N', 'workers', 'batch s', 'scans/s', 'MB/s', 'peak RSS MB', 'process s']));
+    say(row(['---', '---', '---:', '---', '---:', '---:', '---:', '---:', '---:']));
+    for (const format of ['csv', 'jcamp'] as const) {
+      for (const calibration of ['band', 'cls'] as const) {
+        for (const n of SIZES) {
+          const paths = data[format].slice(0, n);
+          const list = listFile(paths, `list-${format}-${n}.txt`);
+          const out = join(results, `${format}-${calibration}-${n}.csv`);
+          const result = runCli(['quantify', data[calibration], '--from', list, '--csv', out, '--force', '--quiet']);
+          if (result.failed > 0 || result.scans !== n) throw new Error(`${format} ${calibration} ${n}: ${result.failed} failed of ${result.scans}`);
+          ours[`${format}-${calibration}-${n}`] = result;
+          const megabytes = bytesOf(paths) / 1e6;
+          say(
+            row([
+              format === 'csv' ? 'CSV' : 'JCAMP-DX',
+              calibration === 'band' ? 'CO band' : 'four-gas CLS',
+              n.toLocaleString('en-US'),
+              `auto (${workerCount('auto', n, false)})`,
+              result.seconds.toFixed(2),
+              (n / result.seconds).toFixed(0),
+              (megabytes / result.seconds).toFixed(0),
+              result.maxRss_MB.toFixed(0),
+              result.wallSeconds.toFixed(2),
+            ]),
+          );
+        }
       }
     }
   }
-  say('');
-  say('worker threads, four-gas CLS, N = 10,000:');
-  for (const format of ['csv', 'jcamp'] as const) {
-    const list = join(DATA, `list-${format}-10000.txt`);
-    const parts: string[] = [];
-    for (const workers of [0, 1, 2]) {
-      const result = runCli(['quantify', data.cls, '--from', list, '--csv', join(results, `${format}-workers-${workers}.csv`), '--force', '--quiet', '--workers', String(workers)]);
-      parts.push(`${workers} → ${(result.scans / result.seconds).toFixed(0)} scans/s (${result.maxRss_MB.toFixed(0)} MB)`);
-      if (workers > 0 && readFileSync(join(results, `${format}-workers-${workers}.csv`), 'utf8') !== readFileSync(join(results, `${format}-workers-0.csv`), 'utf8')) {
-        throw new Error(`${format}: results with ${workers} workers differ from those without`);
+  if (parts.includes('workers')) {
+    say('');
+    say('worker threads besides the main thread (which quantifies too), four-gas CLS, N = 10,000:');
+    for (const format of ['csv', 'jcamp'] as const) {
+      const list = join(DATA, `list-${format}-10000.txt`);
+      const speeds: string[] = [];
+      for (const workers of [0, 1, 2]) {
+        const result = runCli(['quantify', data.cls, '--from', list, '--csv', join(results, `${format}-workers-${workers}.csv`), '--force', '--quiet', '--workers', String(workers)]);
+        speeds.push(`${workers} → ${(result.scans / result.seconds).toFixed(0)} scans/s (${result.maxRss_MB.toFixed(0)} MB)`);
+        if (workers > 0 && readFileSync(join(results, `${format}-workers-${workers}.csv`), 'utf8') !== readFileSync(join(results, `${format}-workers-0.csv`), 'utf8')) {
+          throw new Error(`${format}: results with ${workers} workers differ from those without`);
+        }
       }
+      say(`  ${format === 'csv' ? 'CSV' : 'JCAMP-DX'}: ${speeds.join(', ')}; results identical with and without workers`);
     }
-    say(`  ${format === 'csv' ? 'CSV' : 'JCAMP-DX'}: ${parts.join(', ')}; results identical with and without workers`);
   }
-  say('');
-  const numpy = numpyBatch(join(DATA, 'list-csv-1000.txt'), data.projection, join(results, 'numpy-1000.csv'));
-  if (typeof numpy === 'string') say(numpy);
-  else {
-    const mine = ours['csv-cls-1000'] as RunResult;
-    const difference = compareResults(join(results, 'csv-cls-1000.csv'), join(results, 'numpy-1000.csv'));
-    say(
-      `numpy (np.loadtxt + np.interp + matrix projection), same 1,000 CSV scans, four gases: ${numpy.seconds.toFixed(2)} s (${(1000 / numpy.seconds).toFixed(0)} scans/s; ${numpy.wallSeconds.toFixed(2)} s with interpreter start); bandwright ${mine.seconds.toFixed(2)} s (${mine.wallSeconds.toFixed(2)} s with start): ${(numpy.seconds / mine.seconds).toFixed(1)}× faster (${(numpy.wallSeconds / mine.wallSeconds).toFixed(1)}× counting process start); concentrations agree within ${difference.toExponential(1)} (relative)`,
-    );
+  if (parts.includes('numpy') && ours['csv-cls-1000'] !== undefined) {
+    say('');
+    const numpy = numpyBatch(join(DATA, 'list-csv-1000.txt'), data.projection, join(results, 'numpy-1000.csv'));
+    if (typeof numpy === 'string') say(numpy);
+    else {
+      const mine = ours['csv-cls-1000'] as RunResult;
+      const difference = compareResults(join(results, 'csv-cls-1000.csv'), join(results, 'numpy-1000.csv'));
+      say(
+        `numpy (np.loadtxt + np.interp + matrix projection), same 1,000 CSV scans, four gases: ${numpy.seconds.toFixed(2)} s (${(1000 / numpy.seconds).toFixed(0)} scans/s; ${numpy.wallSeconds.toFixed(2)} s with interpreter start); bandwright ${mine.seconds.toFixed(2)} s (${mine.wallSeconds.toFixed(2)} s with start): ${(numpy.seconds / mine.seconds).toFixed(1)}× faster (${(numpy.wallSeconds / mine.wallSeconds).toFixed(1)}× counting process start); concentrations agree within ${difference.toExponential(1)} (relative)`,
+      );
+    }
   }
-  say(await watchRun(data));
+  if (parts.includes('watch')) say(await watchRun(data));
+  say(`load average at the end ${load()} (other work on the machine lowers the figures)`);
   return lines;
 }
 
 if (process.argv[1] !== undefined && import.meta.url === pathToFileURL(process.argv[1]).href) {
-  await run((line) => console.log(line));
+  const asked = process.argv.slice(2) as BatchBenchPart[];
+  await run((line) => console.log(line), asked.length > 0 ? asked : undefined);
 }

@@ -23,7 +23,7 @@ export type WorkerReply = { first: number; entries: BatchEntry[] } | { first: nu
 
 /** Options of {@link runBatch}. */
 export interface RunBatchOptions {
-  /** Worker threads to use; 0 quantifies in this thread. */
+  /** Worker threads besides this one (which quantifies too); 0 quantifies in this thread alone. */
   workers: number;
   /** Paths per message to a worker (default 8). */
   chunkSize?: number;
@@ -45,11 +45,11 @@ export interface BatchOutcome {
 export const MIN_SCANS_FOR_WORKERS = 64;
 
 /**
- * How many worker threads a batch uses.
+ * How many worker threads a batch uses besides this thread (which quantifies as well).
  *
- * `auto` takes one worker per core when there are at least two cores and the batch has at least
- * {@link MIN_SCANS_FOR_WORKERS} scans (measured in `bench/batch.ts`: on a 2-core machine two
- * workers beat this thread alone); a scan from standard input keeps the batch in this thread.
+ * `auto` takes one worker per core beyond the first when there are at least two cores and the
+ * batch has at least {@link MIN_SCANS_FOR_WORKERS} scans (measured in `bench/batch.ts`); a scan
+ * from standard input keeps the batch in this thread.
  *
  * @param requested - `auto` or a count (0 = this thread)
  * @param scans - number of scans
@@ -60,7 +60,7 @@ export function workerCount(requested: 'auto' | number, scans: number, fromStdin
   if (fromStdin || scans === 0) return 0;
   if (requested !== 'auto') return Math.min(requested, scans);
   if (cores < 2 || scans < MIN_SCANS_FOR_WORKERS) return 0;
-  return Math.min(cores, 8);
+  return Math.min(cores - 1, 7);
 }
 
 /**
@@ -79,7 +79,8 @@ function workerStart(setup: BatchSetup): { script: URL | string; options: Worker
 }
 
 /**
- * Quantifies every path, delivering entries in input order.
+ * Quantifies every path, delivering entries in input order. With workers, this thread quantifies
+ * chunks as well, between the workers' replies, so `workers` = 1 keeps two cores busy.
  *
  * @param setup - calibration, options, y-kind (sent to each worker)
  * @param paths - scan paths in input order
@@ -121,6 +122,7 @@ function runInWorkers(
   shouldStop: () => boolean,
 ): Promise<BatchOutcome> {
   const start = workerStart(setup);
+  const quantifyHere = createScanQuantifier(setup);
   return new Promise<BatchOutcome>((resolve, reject) => {
     const workers: Worker[] = [];
     const ready = new Map<number, BatchEntry[]>();
@@ -129,6 +131,7 @@ function runInWorkers(
     let inFlight = 0;
     let stopped = false;
     let settled = false;
+    let workingHere = true;
     const finish = (error?: unknown): void => {
       if (settled) return;
       settled = true;
@@ -136,17 +139,23 @@ function runInWorkers(
       if (error === undefined) resolve({ delivered: nextToDeliver, stopped });
       else reject(error);
     };
-    const dispatch = (worker: Worker): void => {
-      if (next >= paths.length) return;
+    /** The next chunk of paths, or undefined when there is none or a stop was asked. */
+    const take = (): { first: number; paths: string[] } | undefined => {
+      if (next >= paths.length || stopped) return undefined;
       if (shouldStop()) {
         stopped = true;
-        return;
+        return undefined;
       }
       const first = next;
       const chunk = paths.slice(first, first + chunkSize);
       next += chunk.length;
+      return { first, paths: chunk };
+    };
+    const dispatch = (worker: Worker): void => {
+      const task = take();
+      if (task === undefined) return;
       inFlight++;
-      worker.postMessage({ first, paths: chunk } satisfies WorkerTask);
+      worker.postMessage(task satisfies WorkerTask);
     };
     const deliver = (): void => {
       for (let entries = ready.get(nextToDeliver); entries !== undefined; entries = ready.get(nextToDeliver)) {
@@ -154,8 +163,11 @@ function runInWorkers(
         for (const entry of entries) onEntry(entry, nextToDeliver++);
       }
     };
+    const finishWhenDone = (): void => {
+      if (!workingHere && inFlight === 0) finish();
+    };
     for (let w = 0; w < count; w++) {
-      const worker = new Worker(start.script, start.options);
+      const worker = new Worker(start.script, { ...start.options, resourceLimits: WORKER_RESOURCE_LIMITS });
       workers.push(worker);
       worker.on('message', (reply: WorkerReply) => {
         if (settled) return;
@@ -172,21 +184,43 @@ function runInWorkers(
           return;
         }
         dispatch(worker);
-        if (inFlight === 0) {
-          if (next < paths.length) stopped = true;
-          finish();
-        }
+        finishWhenDone();
       });
       worker.on('error', (error) => finish(error));
       worker.on('exit', (code) => {
         if (!settled) finish(new Error(`worker thread stopped with exit code ${code} before the batch was done`));
       });
     }
-    // Two chunks per worker in flight, so a worker never waits for the main thread.
+    // Two chunks per worker in flight, so a worker never waits for this thread.
     for (let round = 0; round < 2; round++) for (const worker of workers) dispatch(worker);
-    if (inFlight === 0) finish();
+    // This thread takes chunks too, between the workers' replies (it also writes the outputs).
+    const workHere = (): void => {
+      if (settled) return;
+      const task = take();
+      if (task === undefined) {
+        workingHere = false;
+        finishWhenDone();
+        return;
+      }
+      try {
+        ready.set(task.first, task.paths.map(quantifyHere));
+        deliver();
+      } catch (error) {
+        finish(error);
+        return;
+      }
+      setImmediate(workHere);
+    };
+    setImmediate(workHere);
   });
 }
+
+/**
+ * Heap limits of a worker thread: a small young generation makes scavenges frequent, so the
+ * spectra of finished scans (held outside the JavaScript heap) are freed soon and the process
+ * stays small; measured in `bench/batch.ts`.
+ */
+const WORKER_RESOURCE_LIMITS = { maxYoungGenerationSizeMb: 4 } as const;
 
 /**
  * Parses `--workers`: `auto` or a whole number ≥ 0.

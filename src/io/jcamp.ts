@@ -33,7 +33,7 @@
 import { BandwrightError } from '../errors.js';
 import { makeSpectrum, type ScanMetadata, type Spectrum, type YKind } from '../spectrum/spectrum.js';
 import { DECIMAL_POINT, DECIMAL_POINT_NO_EXPONENT, parseNumberText, scanNumber, type ScanCursor } from './number-parse.js';
-import { DEFAULT_MAX_POINTS, assertLineEnds, assertNotUtf16, assertTransmittanceFraction } from './spectrum-table.js';
+import { DEFAULT_MAX_POINTS, asBuffer, assertLineEnds, assertNotUtf16, assertTransmittanceFraction } from './spectrum-table.js';
 
 /** Options of {@link parseJcamp}. */
 export interface JcampOptions {
@@ -462,8 +462,9 @@ const DIFFERENCE = 1;
 class Ordinates {
   values: Float64Array;
   length = 0;
-  constructor(capacity: number) {
-    this.values = new Float64Array(Math.max(16, capacity));
+  /** @param reuse - a buffer to start in when long enough (its content is overwritten) */
+  constructor(capacity: number, reuse?: Float64Array) {
+    this.values = reuse !== undefined && reuse.length >= capacity ? reuse : new Float64Array(Math.max(16, capacity));
   }
   push(value: number): void {
     if (this.length === this.values.length) {
@@ -491,8 +492,8 @@ class OrdinateStream {
   ordinatesOnLine = 0;
   /** Set when a Y-check value disagrees: [found, expected]. */
   mismatch: [number, number] | undefined;
-  constructor(capacity: number, maxPoints: number) {
-    this.out = new Ordinates(capacity);
+  constructor(capacity: number, maxPoints: number, reuse?: Float64Array) {
+    this.out = new Ordinates(capacity, reuse);
     this.maxPoints = maxPoints;
   }
   startLine(): void {
@@ -555,8 +556,19 @@ function printedUnitOf(bytes: Uint8Array, start: number, end: number): number {
       break;
     } else if (fraction >= 0 && c >= 0x30 && c <= 0x39) fraction++;
   }
-  return 10 ** ((Number.isFinite(exponent) ? exponent : 0) - Math.max(0, fraction));
+  const power = (Number.isFinite(exponent) ? exponent : 0) - Math.max(0, fraction);
+  // Plain decimals (once per data line): a table of 10^-k instead of a pow call.
+  return power <= 0 && power > -NEGATIVE_POWERS_OF_TEN.length ? (NEGATIVE_POWERS_OF_TEN[-power] as number) : 10 ** power;
 }
+
+/** 10^0 … 10^-22 as correctly rounded literals. */
+const NEGATIVE_POWERS_OF_TEN: readonly number[] = Array.from({ length: 23 }, (_, k) => Number(`1e-${k}`));
+
+/**
+ * Ordinate buffer reused by the next `##XYDATA` table (a batch reads thousands of files); the
+ * decoded values are copied out, scaled, before the parse returns. Not kept above 2^18 points.
+ */
+let xyDataScratch: Float64Array = new Float64Array(0);
 
 interface LineStart {
   line: number;
@@ -570,12 +582,17 @@ function decodeXyData(bytes: Uint8Array, record: Record_, header: Header, source
   if (format !== '(X++(Y..Y))') {
     throw new BandwrightError('PARSE', `${source} line ${record.line}: ##XYDATA=${record.value} not supported; only (X++(Y..Y))`, { file: source, line: record.line });
   }
-  const stream = new OrdinateStream(header.nPoints ?? 1024, maxPoints);
+  const stream = new OrdinateStream(header.nPoints ?? 1024, maxPoints, xyDataScratch);
   const lineStarts: LineStart[] = [];
   const cursor: ScanCursor = { end: 0 };
   let lineNumber = record.line;
   let pos = record.dataStart;
   const stop = record.dataEnd;
+  // Next `$`, `e` and `E` at or after the current line (-1: none left), found by indexOf so that
+  // lines without them are not scanned byte by byte for a comment or an exponent.
+  let nextDollar = bytes.indexOf(DOLLAR, pos);
+  let nextLowerE = bytes.indexOf(0x65, pos);
+  let nextUpperE = bytes.indexOf(0x45, pos);
   while (pos < stop) {
     lineNumber++;
     let lineEnd = bytes.indexOf(LF, pos);
@@ -584,7 +601,8 @@ function decodeXyData(bytes: Uint8Array, record: Record_, header: Header, source
     if (end > pos && bytes[end - 1] === CR) end--;
     const lineStart = pos;
     pos = lineEnd + 1;
-    const hash = commentStart(bytes, lineStart, end);
+    if (nextDollar >= 0 && nextDollar < lineStart) nextDollar = bytes.indexOf(DOLLAR, lineStart);
+    const hash = nextDollar >= 0 && nextDollar < end ? commentStart(bytes, nextDollar, end) : -1;
     if (hash >= 0) end = hash;
     let p = lineStart;
     while (p < end && (bytes[p] === SPACE || bytes[p] === TAB)) p++;
@@ -596,7 +614,10 @@ function decodeXyData(bytes: Uint8Array, record: Record_, header: Header, source
     let tokenCount = 0;
     let lastWasDup = false;
 
-    if (isExponentAffnLine(bytes, p, end, cursor)) {
+    if (nextLowerE >= 0 && nextLowerE < p) nextLowerE = bytes.indexOf(0x65, p);
+    if (nextUpperE >= 0 && nextUpperE < p) nextUpperE = bytes.indexOf(0x45, p);
+    const mayHaveExponent = (nextLowerE >= 0 && nextLowerE < end) || (nextUpperE >= 0 && nextUpperE < end);
+    if (mayHaveExponent && isExponentAffnLine(bytes, p, end, cursor)) {
       while (p < end) {
         const c = bytes[p];
         if (c === SPACE || c === TAB || c === 0x2c) {
@@ -710,7 +731,9 @@ function decodeXyData(bytes: Uint8Array, record: Record_, header: Header, source
     if (stream.ordinatesOnLine === 0) dataError(source, lineNumber, 'PARSE', 'a data line needs an X value and at least one ordinate');
     stream.yCheckPending = stream.lastKind === DIFFERENCE;
   }
-  return { y: stream.out.values.slice(0, stream.out.length), lineStarts };
+  if (stream.out.values.length <= 1 << 18) xyDataScratch = stream.out.values;
+  // A view on the reused buffer: assembleXyData copies it (scaled) before the parse returns.
+  return { y: stream.out.values.subarray(0, stream.out.length), lineStarts };
 }
 
 function dataError(source: string, line: number, code: 'PARSE' | 'LIMIT', message: string): never {
@@ -817,7 +840,7 @@ export function parseJcamp(input: Uint8Array | string, options: JcampOptions): S
   if (!Number.isInteger(maxPoints) || maxPoints < 2) {
     throw new BandwrightError('INVALID_VALUE', `maxPoints = ${maxPoints}, must be an integer >= 2`, { parameter: 'maxPoints' });
   }
-  const bytes = typeof input === 'string' ? new TextEncoder().encode(input) : input;
+  const bytes = asBuffer(typeof input === 'string' ? new TextEncoder().encode(input) : input);
   assertNotUtf16(bytes, source);
   assertLineEnds(bytes, source);
   const { records } = splitRecords(bytes, source);
