@@ -139,6 +139,6 @@ export { quantifyReportHtml, quantifyReportPlots, type QuantifyReportInput, type
 
 // Batch and watch
 export { openResultsWriter, partialResultsPath, assertAppendable, type ResultsWriter, type ResultsWriterOptions } from './io/results-writer.js';
-export { createScanReader, type ScanReader } from './io/scan-reader.js';
+export { createScanReader, type ScanReader, type ScanReaderOptions } from './io/scan-reader.js';
 export { readScanList, parseScanList, MAX_SCAN_LIST_BYTES } from './io/scan-list.js';
 export { createFolderWatcher, readProcessedRecord, openProcessedRecord, type FolderWatcher, type FolderWatcherOptions, type FileStamp, type ReadyFile, type ProcessedRecordFile } from './io/watch-folder.js';

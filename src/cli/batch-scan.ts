@@ -33,7 +33,8 @@ export type ScanQuantifier = (path: string) => BatchEntry;
  * @throws Error (from the returned function) only for faults that are not about the scan (bugs)
  */
 export function createScanQuantifier(setup: BatchSetup): ScanQuantifier {
-  const read: ScanReader = createScanReader(setup.yKind === undefined ? {} : { yKind: setup.yKind });
+  // Each spectrum is quantified before the next is read, so the readers' buffers can be reused.
+  const read: ScanReader = createScanReader({ reuseOutput: true, ...(setup.yKind === undefined ? {} : { yKind: setup.yKind }) });
   return (path: string): BatchEntry => {
     try {
       return quantifyScan(setup.calibration, read(path), setup.options);

@@ -23,7 +23,7 @@ export type WorkerReply = { first: number; entries: BatchEntry[] } | { first: nu
 
 /** Options of {@link runBatch}. */
 export interface RunBatchOptions {
-  /** Worker threads besides this one (which quantifies too); 0 quantifies in this thread alone. */
+  /** Worker threads that quantify (this thread then only writes); 0 quantifies in this thread. */
   workers: number;
   /** Paths per message to a worker (default 8). */
   chunkSize?: number;
@@ -45,11 +45,13 @@ export interface BatchOutcome {
 export const MIN_SCANS_FOR_WORKERS = 64;
 
 /**
- * How many worker threads a batch uses besides this thread (which quantifies as well).
+ * How many worker threads a batch uses (0: this thread quantifies).
  *
- * `auto` takes one worker per core beyond the first when there are at least two cores and the
- * batch has at least {@link MIN_SCANS_FOR_WORKERS} scans (measured in `bench/batch.ts`); a scan
- * from standard input keeps the batch in this thread.
+ * `auto` takes one worker per core when there are at least two cores and the batch has at least
+ * {@link MIN_SCANS_FOR_WORKERS} scans: on the 2-core machine of `bench/batch.ts`, two workers with
+ * this thread only writing kept the peak RSS near that of one thread, where this thread
+ * quantifying beside one worker cost some 40 MB more for the same work. A scan from standard
+ * input keeps the batch in this thread.
  *
  * @param requested - `auto` or a count (0 = this thread)
  * @param scans - number of scans
@@ -60,7 +62,7 @@ export function workerCount(requested: 'auto' | number, scans: number, fromStdin
   if (fromStdin || scans === 0) return 0;
   if (requested !== 'auto') return Math.min(requested, scans);
   if (cores < 2 || scans < MIN_SCANS_FOR_WORKERS) return 0;
-  return Math.min(cores - 1, 7);
+  return Math.min(cores, 8);
 }
 
 /**
@@ -79,8 +81,8 @@ function workerStart(setup: BatchSetup): { script: URL | string; options: Worker
 }
 
 /**
- * Quantifies every path, delivering entries in input order. With workers, this thread quantifies
- * chunks as well, between the workers' replies, so `workers` = 1 keeps two cores busy.
+ * Quantifies every path, delivering entries in input order. With workers, this thread only hands
+ * out chunks and passes the entries on (it writes the outputs); the workers quantify.
  *
  * @param setup - calibration, options, y-kind (sent to each worker)
  * @param paths - scan paths in input order
@@ -122,7 +124,6 @@ function runInWorkers(
   shouldStop: () => boolean,
 ): Promise<BatchOutcome> {
   const start = workerStart(setup);
-  const quantifyHere = createScanQuantifier(setup);
   return new Promise<BatchOutcome>((resolve, reject) => {
     const workers: Worker[] = [];
     const ready = new Map<number, BatchEntry[]>();
@@ -131,7 +132,6 @@ function runInWorkers(
     let inFlight = 0;
     let stopped = false;
     let settled = false;
-    let workingHere = true;
     const finish = (error?: unknown): void => {
       if (settled) return;
       settled = true;
@@ -164,7 +164,7 @@ function runInWorkers(
       }
     };
     const finishWhenDone = (): void => {
-      if (!workingHere && inFlight === 0) finish();
+      if (inFlight === 0) finish();
     };
     for (let w = 0; w < count; w++) {
       const worker = new Worker(start.script, { ...start.options, resourceLimits: WORKER_RESOURCE_LIMITS });
@@ -193,25 +193,7 @@ function runInWorkers(
     }
     // Two chunks per worker in flight, so a worker never waits for this thread.
     for (let round = 0; round < 2; round++) for (const worker of workers) dispatch(worker);
-    // This thread takes chunks too, between the workers' replies (it also writes the outputs).
-    const workHere = (): void => {
-      if (settled) return;
-      const task = take();
-      if (task === undefined) {
-        workingHere = false;
-        finishWhenDone();
-        return;
-      }
-      try {
-        ready.set(task.first, task.paths.map(quantifyHere));
-        deliver();
-      } catch (error) {
-        finish(error);
-        return;
-      }
-      setImmediate(workHere);
-    };
-    setImmediate(workHere);
+    finishWhenDone();
   });
 }
 

@@ -41,6 +41,12 @@ export interface JcampOptions {
   source: string;
   /** Most data points accepted before a `LIMIT` error; default 2,000,000. */
   maxPoints?: number;
+  /**
+   * Return x and y of an `##XYDATA` table as views on buffers that the next parse in this thread
+   * overwrites (default false: arrays of their own). For callers done with a spectrum before
+   * they parse the next, such as a batch, it saves two allocations a file.
+   */
+  reuseOutput?: boolean;
 }
 
 interface Record_ {
@@ -858,7 +864,7 @@ export function parseJcamp(input: Uint8Array | string, options: JcampOptions): S
   }
   let x: Float64Array;
   let y: Float64Array;
-  if (xyData !== undefined) ({ x, y } = assembleXyData(bytes, xyData, header, source, maxPoints));
+  if (xyData !== undefined) ({ x, y } = assembleXyData(bytes, xyData, header, source, maxPoints, options.reuseOutput === true));
   else if (xyPoints !== undefined) ({ x, y } = assembleXyPoints(bytes, xyPoints, header, source, maxPoints));
   else {
     const peaks = records.find((r) => r.key === 'PEAKTABLE');
@@ -890,7 +896,10 @@ export function parseJcamp(input: Uint8Array | string, options: JcampOptions): S
   return makeSpectrum({ x, y, yKind: header.yKind, metadata: header.metadata });
 }
 
-function assembleXyData(bytes: Uint8Array, record: Record_, header: Header, source: string, maxPoints: number): { x: Float64Array; y: Float64Array } {
+/** x buffer reused by `reuseOutput` parses (see {@link JcampOptions.reuseOutput}). */
+let xOutputScratch: Float64Array = new Float64Array(0);
+
+function assembleXyData(bytes: Uint8Array, record: Record_, header: Header, source: string, maxPoints: number, reuseOutput: boolean): { x: Float64Array; y: Float64Array } {
   const { y, lineStarts } = decodeXyData(bytes, record, header, source, maxPoints);
   const n = y.length;
   if (header.nPoints !== undefined && header.nPoints !== n) {
@@ -935,7 +944,8 @@ function assembleXyData(bytes: Uint8Array, record: Record_, header: Header, sour
     }
   }
   const yFactor = header.yFactor;
-  const yOut = new Float64Array(n);
+  // y is a view on the decoder's reused buffer: scaled in place when the output may reuse it.
+  const yOut = reuseOutput ? y : new Float64Array(n);
   for (let i = 0; i < n; i++) yOut[i] = (y[i] as number) * yFactor;
   if (header.firstY !== undefined) {
     const tolerance = Math.abs(yFactor) + 0.5 * header.firstY.unit + 1e-9 * Math.abs(header.firstY.value);
@@ -947,7 +957,8 @@ function assembleXyData(bytes: Uint8Array, record: Record_, header: Header, sour
       );
     }
   }
-  const xOut = new Float64Array(n);
+  if (reuseOutput && xOutputScratch.length < n) xOutputScratch = new Float64Array(n);
+  const xOut = reuseOutput ? xOutputScratch.subarray(0, n) : new Float64Array(n);
   for (let i = 0; i < n; i++) xOut[i] = firstX + i * step;
   if (header.lastX !== undefined) xOut[n - 1] = header.lastX.value;
   return { x: xOut, y: yOut };
