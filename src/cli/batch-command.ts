@@ -109,8 +109,13 @@ export async function runQuantifyBatch(context: CommandContext, request: Quantif
     process.off('SIGINT', onInterrupt);
     process.off('SIGTERM', onTerminate);
   };
-  process.on('SIGINT', onInterrupt);
-  process.on('SIGTERM', onTerminate);
+  // Reading standard input blocks this thread, so a handler could not run: Ctrl-C keeps its
+  // usual meaning there.
+  const handleSignals = !request.paths.includes('-');
+  if (handleSignals) {
+    process.on('SIGINT', onInterrupt);
+    process.on('SIGTERM', onTerminate);
+  }
 
   const setup: BatchSetup = { calibration, options, ...(request.yKind === undefined ? {} : { yKind: request.yKind }) };
   const started = performance.now();
