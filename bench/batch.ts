@@ -440,7 +440,7 @@ export async function run(log: (line: string) => void = () => undefined, parts: 
   }
   if (parts.includes('workers')) {
     say('');
-    say('worker threads besides the main thread (which quantifies too), four-gas CLS, N = 10,000:');
+    say('worker threads (--workers; the main thread then writes, and quantifies only while they start), four-gas CLS, N = 10,000:');
     for (const format of ['csv', 'jcamp'] as const) {
       const list = join(DATA, `list-${format}-10000.txt`);
       const speeds: string[] = [];

@@ -13,7 +13,7 @@
 import { isFailure, reportedGases, type BatchEntry, type Calibration, type QuantifyOptions, type YKind } from '../index.js';
 import { csvFileSink, jsonDocumentSink, jsonLinesFileSink, TABLE_PAGE_SCANS, textTableSink, type EntrySink } from './batch-output.js';
 import type { BatchSetup } from './batch-scan.js';
-import { runBatch, workerCount } from './batch.js';
+import { MIN_SCANS_FOR_WORKERS, runBatch, workerCount } from './batch.js';
 import { note, raiseStatus, type CommandContext } from './context.js';
 import { createProgress } from './progress.js';
 
@@ -169,7 +169,9 @@ Batches:
   --quiet prints nothing on stdout. With --report or --plot the whole batch is kept in memory
   for the report and quantified in this thread.
   On an interactive terminal a progress bar is drawn on stderr; a summary (scans, failures,
-  time, scans/s) ends every batch.
+  time, scans/s) ends every batch. Worker threads (--workers auto: one per core, for batches
+  of ${MIN_SCANS_FOR_WORKERS} scans or more) read and quantify while the main thread writes; the
+  results are the same, in the same order, as with --workers 0.
 
 Result files (--csv, --jsonl):
   Rows stream into .<name>.partial-<pid> beside the file, which is renamed into place when the

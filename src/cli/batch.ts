@@ -41,17 +41,22 @@ export interface BatchOutcome {
   stopped: boolean;
 }
 
-/** Batches smaller than this run in this thread whatever is asked: starting workers costs more than it saves. */
-export const MIN_SCANS_FOR_WORKERS = 64;
+/**
+ * `auto` uses workers only for batches of at least this many scans: each worker loads its modules
+ * and warms up its compiled code on its own, some 0.5 s of processor time for two workers, which a
+ * batch of 1,000 scans of 14,000 points does not win back on two cores (bench/batch.ts).
+ */
+export const MIN_SCANS_FOR_WORKERS = 2_000;
 
 /**
  * How many worker threads a batch uses (0: this thread quantifies).
  *
  * `auto` takes one worker per core when there are at least two cores and the batch has at least
- * {@link MIN_SCANS_FOR_WORKERS} scans: on the 2-core machine of `bench/batch.ts`, two workers with
- * this thread only writing kept the peak RSS near that of one thread, where this thread
- * quantifying beside one worker cost some 40 MB more for the same work. A scan from standard
- * input keeps the batch in this thread.
+ * {@link MIN_SCANS_FOR_WORKERS} scans. On the 2-core machine of `bench/batch.ts`, two workers with
+ * this thread only writing used about 10 % more processor time than this thread alone (so close
+ * to half the wall time on idle cores) and kept the peak RSS under 150 MB, where this thread
+ * quantifying beside one worker cost some 40 MB more. A scan from standard input keeps the
+ * batch in this thread.
  *
  * @param requested - `auto` or a count (0 = this thread)
  * @param scans - number of scans
