@@ -254,6 +254,8 @@ async function prepareData(log: (line: string) => void): Promise<BenchData> {
 // ---------------------------------------------------------------- runs
 
 interface RunResult {
+  /** Processor time of the whole process (all threads), s. */
+  cpuSeconds: number;
   scans: number;
   failed: number;
   seconds: number;
@@ -275,7 +277,8 @@ function buildProgram(log: (line: string) => void): void {
     [
       "import { main } from './dist/cli/main.js';",
       "const status = await main(['node', 'bandwright', ...process.argv.slice(2)], { stdout: { write: () => true }, interactive: false });",
-      "process.stderr.write(`\\nBENCH ${JSON.stringify({ status, maxRss_kB: process.resourceUsage().maxRSS })}\\n`);",
+      "const usage = process.resourceUsage();",
+      "process.stderr.write(`\\nBENCH ${JSON.stringify({ status, maxRss_kB: usage.maxRSS, cpu_us: usage.userCPUTime + usage.systemCPUTime })}\\n`);",
       '',
     ].join('\n'),
   );
@@ -290,8 +293,8 @@ function runCli(args: string[]): RunResult {
   const bench = /BENCH (\{.*\})/.exec(stderr);
   const summary = /(\d+) scan\(s\), (\d+) failed, in ([\d.]+) s/.exec(stderr);
   if (bench === null || summary === null) throw new Error(`bandwright ${args.join(' ')}: no summary; stderr: ${stderr.slice(-2000)}`);
-  const report = JSON.parse(bench[1] as string) as { status: number; maxRss_kB: number };
-  return { scans: Number(summary[1]), failed: Number(summary[2]), seconds: Number(summary[3]), wallSeconds, maxRss_MB: report.maxRss_kB / 1024, status: report.status };
+  const report = JSON.parse(bench[1] as string) as { status: number; maxRss_kB: number; cpu_us: number };
+  return { cpuSeconds: report.cpu_us / 1e6, scans: Number(summary[1]), failed: Number(summary[2]), seconds: Number(summary[3]), wallSeconds, maxRss_MB: report.maxRss_kB / 1024, status: report.status };
 }
 
 function listFile(paths: readonly string[], name: string): string {
@@ -440,13 +443,13 @@ export async function run(log: (line: string) => void = () => undefined, parts: 
   }
   if (parts.includes('workers')) {
     say('');
-    say('worker threads (--workers; the main thread then writes, and quantifies only while they start), four-gas CLS, N = 10,000:');
+    say('worker threads (--workers; with workers the main thread only writes), four-gas CLS, N = 10,000, with the processor time used (user + system, all threads):');
     for (const format of ['csv', 'jcamp'] as const) {
       const list = join(DATA, `list-${format}-10000.txt`);
       const speeds: string[] = [];
       for (const workers of [0, 1, 2]) {
         const result = runCli(['quantify', data.cls, '--from', list, '--csv', join(results, `${format}-workers-${workers}.csv`), '--force', '--quiet', '--workers', String(workers)]);
-        speeds.push(`${workers} → ${(result.scans / result.seconds).toFixed(0)} scans/s (${result.maxRss_MB.toFixed(0)} MB)`);
+        speeds.push(`${workers} → ${(result.scans / result.seconds).toFixed(0)} scans/s, ${result.cpuSeconds.toFixed(1)} CPU s, ${result.maxRss_MB.toFixed(0)} MB`);
         if (workers > 0 && readFileSync(join(results, `${format}-workers-${workers}.csv`), 'utf8') !== readFileSync(join(results, `${format}-workers-0.csv`), 'utf8')) {
           throw new Error(`${format}: results with ${workers} workers differ from those without`);
         }

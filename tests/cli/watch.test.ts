@@ -37,7 +37,7 @@ describe('watch in a separate process', () => {
     mkdirSync(at('incoming'));
     const tsx = pathToFileURL(createRequire(import.meta.url).resolve('tsx')).href;
     const cli = join(import.meta.dirname, '..', '..', 'src', 'cli', 'main.ts');
-    const child = spawn(process.execPath, ['--import', tsx, cli, 'watch', at('co.json'), at('incoming'), '--csv', at('watched.csv'), '--settle', '400', '--poll', '100'], { stdio: ['ignore', 'ignore', 'pipe'] });
+    const child = spawn(process.execPath, ['--import', tsx, cli, 'watch', at('co.json'), at('incoming'), '--csv', at('watched.csv'), '--settle', '1500', '--poll', '100'], { stdio: ['ignore', 'ignore', 'pipe'] });
     let stderr = '';
     child.stderr.on('data', (chunk: Buffer) => (stderr += chunk.toString()));
     const exited = new Promise<number | null>((resolve) => child.on('exit', (code) => resolve(code)));
@@ -45,8 +45,8 @@ describe('watch in a separate process', () => {
       if (waited > 30_000) throw new Error(`watch did not start; stderr: ${stderr}`);
       await pause(20);
     }
-    // 137 ppm written in five pieces, 80 ms apart (each shorter than the 400 ms settle time);
-    // any piece read on its own would fail to parse or give another value.
+    // 137 ppm written in five pieces, 80 ms apart (far shorter than the 1.5 s settle time, even on
+    // a busy machine); any piece read on its own would fail to parse or give another value.
     const text = formatSpectrumCsv(bandScan(137, { metadata: reference }));
     const cut = [0, 0.2, 0.4, 0.6, 0.8, 1].map((f) => Math.round(f * text.length));
     for (let k = 0; k < 5; k++) {
@@ -61,7 +61,7 @@ describe('watch in a separate process', () => {
       if (waited > 30_000) throw new Error(`no results; stderr: ${stderr}`);
       await pause(20);
     }
-    await pause(800); // long enough for a second reading, if there were one
+    await pause(2000); // long enough for a second reading, if there were one
     child.kill('SIGTERM');
     expect(await exited).toBe(0);
     const rows = rowsOf(at('watched.csv'));
