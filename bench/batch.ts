@@ -20,7 +20,6 @@ import { closeSync, existsSync, mkdirSync, openSync, readFileSync, readdirSync, 
 import { cpus, loadavg, totalmem } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
-import { workerCount } from '../src/cli/batch.js';
 import { main } from '../src/cli/main.js';
 import { readCalibration } from '../src/io/calibration-file.js';
 import { formatJcamp } from '../src/io/jcamp-write.js';
@@ -254,6 +253,8 @@ async function prepareData(log: (line: string) => void): Promise<BenchData> {
 // ---------------------------------------------------------------- runs
 
 interface RunResult {
+  /** Worker threads the batch used. */
+  workers: number;
   /** Processor time of the whole process (all threads), s. */
   cpuSeconds: number;
   scans: number;
@@ -291,10 +292,10 @@ function runCli(args: string[]): RunResult {
   const wallSeconds = (performance.now() - started) / 1000;
   const stderr = child.stderr;
   const bench = /BENCH (\{.*\})/.exec(stderr);
-  const summary = /(\d+) scan\(s\), (\d+) failed, in ([\d.]+) s/.exec(stderr);
+  const summary = /(\d+) scan\(s\), (\d+) failed, in ([\d.]+) s \(\d+ scans\/s(?:, (\d+) worker threads)?\)/.exec(stderr);
   if (bench === null || summary === null) throw new Error(`bandwright ${args.join(' ')}: no summary; stderr: ${stderr.slice(-2000)}`);
   const report = JSON.parse(bench[1] as string) as { status: number; maxRss_kB: number; cpu_us: number };
-  return { cpuSeconds: report.cpu_us / 1e6, scans: Number(summary[1]), failed: Number(summary[2]), seconds: Number(summary[3]), wallSeconds, maxRss_MB: report.maxRss_kB / 1024, status: report.status };
+  return { workers: Number(summary[4] ?? 0), cpuSeconds: report.cpu_us / 1e6, scans: Number(summary[1]), failed: Number(summary[2]), seconds: Number(summary[3]), wallSeconds, maxRss_MB: report.maxRss_kB / 1024, status: report.status };
 }
 
 function listFile(paths: readonly string[], name: string): string {
@@ -387,7 +388,7 @@ async function watchRun(data: BenchData): Promise<string> {
 }
 
 /** Parts of the batch benchmark. */
-export type BatchBenchPart = 'table' | 'workers' | 'numpy' | 'watch';
+export type BatchBenchPart = 'table' | 'workers' | 'memory' | 'numpy' | 'watch';
 
 /**
  * Runs the batch benchmark.
@@ -396,7 +397,7 @@ export type BatchBenchPart = 'table' | 'workers' | 'numpy' | 'watch';
  * @param parts - which parts to run (default all; `numpy` needs `table` for its comparison)
  * @returns the lines it reports
  */
-export async function run(log: (line: string) => void = () => undefined, parts: readonly BatchBenchPart[] = ['table', 'workers', 'numpy', 'watch']): Promise<string[]> {
+export async function run(log: (line: string) => void = () => undefined, parts: readonly BatchBenchPart[] = ['table', 'workers', 'memory', 'numpy', 'watch']): Promise<string[]> {
   const lines: string[] = [];
   const say = (line: string): void => {
     lines.push(line);
@@ -429,7 +430,7 @@ export async function run(log: (line: string) => void = () => undefined, parts: 
               format === 'csv' ? 'CSV' : 'JCAMP-DX',
               calibration === 'band' ? 'CO band' : 'four-gas CLS',
               n.toLocaleString('en-US'),
-              `auto (${workerCount('auto', n, false)})`,
+              `auto (${result.workers})`,
               result.seconds.toFixed(2),
               (n / result.seconds).toFixed(0),
               (megabytes / result.seconds).toFixed(0),
@@ -456,6 +457,16 @@ export async function run(log: (line: string) => void = () => undefined, parts: 
       }
       say(`  ${format === 'csv' ? 'CSV' : 'JCAMP-DX'}: ${speeds.join(', ')}; results identical with and without workers`);
     }
+  }
+  if (parts.includes('memory')) {
+    // Peak RSS against N beyond the table: the 10,000 JCAMP-DX scans three times over.
+    const list = listFile([...data.jcamp, ...data.jcamp, ...data.jcamp], 'list-jcamp-30000.txt');
+    const parts30: string[] = [];
+    for (const workers of ['0', 'auto']) {
+      const result = runCli(['quantify', data.cls, '--from', list, '--csv', join(results, `jcamp-30000-${workers}.csv`), '--force', '--quiet', '--workers', workers]);
+      parts30.push(`--workers ${workers}: ${result.maxRss_MB.toFixed(0)} MB at ${(result.scans / result.seconds).toFixed(0)} scans/s`);
+    }
+    say(`peak RSS at N = 30,000 (four-gas CLS, JCAMP-DX): ${parts30.join('; ')}`);
   }
   if (parts.includes('numpy') && ours['csv-cls-1000'] !== undefined) {
     say('');

@@ -119,9 +119,10 @@ export async function runQuantifyBatch(context: CommandContext, request: Quantif
 
   const setup: BatchSetup = { calibration, options, ...(request.yKind === undefined ? {} : { yKind: request.yKind }) };
   const started = performance.now();
+  const workers = workerCount(request.workers, total, request.paths.includes('-'));
   try {
     await runBatch(setup, request.paths, {
-      workers: workerCount(request.workers, total, request.paths.includes('-')),
+      workers,
       shouldStop: () => interruptedBy !== undefined,
       onEntry: (entry) => {
         for (const sink of sinks) sink.add(entry);
@@ -150,7 +151,7 @@ export async function runQuantifyBatch(context: CommandContext, request: Quantif
     raiseStatus(context, 1);
   }
   const rate = seconds > 0 ? done / seconds : Number.POSITIVE_INFINITY;
-  note(context, `${done} scan(s), ${failed} failed, in ${seconds.toFixed(2)} s (${Number.isFinite(rate) ? rate.toFixed(0) : '—'} scans/s)`);
+  note(context, `${done} scan(s), ${failed} failed, in ${seconds.toFixed(2)} s (${Number.isFinite(rate) ? rate.toFixed(0) : '—'} scans/s${workers > 0 ? `, ${workers} worker threads` : ''})`);
   if (interruptedBy !== undefined) {
     note(context, `bandwright: interrupted by ${interruptedBy} after ${done} of ${total} scans; the results of those ${done} are complete`);
     raiseStatus(context, SIGNAL_EXIT_STATUS[interruptedBy]);
@@ -169,9 +170,9 @@ Batches:
   --quiet prints nothing on stdout. With --report or --plot the whole batch is kept in memory
   for the report and quantified in this thread.
   On an interactive terminal a progress bar is drawn on stderr; a summary (scans, failures,
-  time, scans/s) ends every batch. Worker threads (--workers auto: one per core, for batches
-  of ${MIN_SCANS_FOR_WORKERS} scans or more) read and quantify while the main thread writes; the
-  results are the same, in the same order, as with --workers 0.
+  time, scans/s) ends every batch. Worker threads (--workers auto: one per idle core when two
+  or more are idle, for batches of ${MIN_SCANS_FOR_WORKERS} scans or more) read and quantify while the
+  main thread writes; the results are the same, in the same order, as with --workers 0.
 
 Result files (--csv, --jsonl):
   Rows stream into .<name>.partial-<pid> beside the file, which is renamed into place when the

@@ -6,7 +6,7 @@
  * new chunks; the chunks already handed out are finished and delivered, then the engine returns.
  */
 import { createRequire } from 'node:module';
-import { availableParallelism } from 'node:os';
+import { availableParallelism, loadavg } from 'node:os';
 import { pathToFileURL } from 'node:url';
 import { Worker, type WorkerOptions } from 'node:worker_threads';
 import { BandwrightError, type BatchEntry } from '../index.js';
@@ -51,23 +51,28 @@ export const MIN_SCANS_FOR_WORKERS = 2_000;
 /**
  * How many worker threads a batch uses (0: this thread quantifies).
  *
- * `auto` takes one worker per core when there are at least two cores and the batch has at least
- * {@link MIN_SCANS_FOR_WORKERS} scans. On the 2-core machine of `bench/batch.ts`, two workers with
- * this thread only writing used about 10 % more processor time than this thread alone (so close
- * to half the wall time on idle cores) and kept the peak RSS under 150 MB, where this thread
- * quantifying beside one worker cost some 40 MB more. A scan from standard input keeps the
- * batch in this thread.
+ * `auto` takes one worker per idle core — cores less the 1-minute load average, rounded — when at
+ * least two are idle and the batch has at least {@link MIN_SCANS_FOR_WORKERS} scans; otherwise
+ * none. Measured in `bench/batch.ts` on a 2-core machine: two workers, with this thread only
+ * writing, use some 10 % more processor time than this thread alone, so they pay only when two
+ * cores are free (close to half the wall time then); with one core busy elsewhere they were
+ * slower than this thread alone, and they add 20–40 MB to the peak RSS. One worker never pays
+ * (it does this thread's work at the same speed). A scan from standard input keeps the batch
+ * in this thread.
  *
  * @param requested - `auto` or a count (0 = this thread)
  * @param scans - number of scans
  * @param fromStdin - whether a path is `-`
- * @param cores - cores available (default `os.availableParallelism()`)
+ * @param machine - cores (default `os.availableParallelism()`) and 1-minute load average
+ *   (default `os.loadavg()[0]`; 0 where the system does not report one)
  */
-export function workerCount(requested: 'auto' | number, scans: number, fromStdin: boolean, cores: number = availableParallelism()): number {
+export function workerCount(requested: 'auto' | number, scans: number, fromStdin: boolean, machine: { cores?: number; load?: number } = {}): number {
   if (fromStdin || scans === 0) return 0;
   if (requested !== 'auto') return Math.min(requested, scans);
-  if (cores < 2 || scans < MIN_SCANS_FOR_WORKERS) return 0;
-  return Math.min(cores, 8);
+  const cores = machine.cores ?? availableParallelism();
+  const idle = Math.round(cores - (machine.load ?? loadavg()[0] ?? 0));
+  if (cores < 2 || scans < MIN_SCANS_FOR_WORKERS || idle < 2) return 0;
+  return Math.min(idle, cores, 8);
 }
 
 /**
