@@ -89,6 +89,17 @@ export function onChannels(spectrum: Spectrum, channels: Float64Array, regions: 
   const absorbance = toAbsorbance(spectrum);
   const { x, y } = absorbance;
   const n = x.length;
+  // Channels outside the scan (possible only in a damaged calibration) would make the kernel
+  // index run far past the data; refuse them here, naming the scan and the channels' span.
+  const lowChannel = channels[0] as number;
+  const highChannel = channels[channels.length - 1] as number;
+  if (channels.length > 0 && (!(lowChannel >= (x[0] as number)) || !(highChannel <= (x[n - 1] as number)))) {
+    throw new BandwrightError(
+      'WINDOW',
+      `${spectrum.metadata.source ?? 'scan'}: covers ${x[0]}–${x[n - 1]} cm⁻¹, which does not contain the calibration's channels ${lowChannel}–${highChannel} cm⁻¹`,
+      { file: spectrum.metadata.source },
+    );
+  }
   const step = n > 1 ? ((x[n - 1] as number) - (x[0] as number)) / (n - 1) : 0;
   const tolerance = 1e-6 * Math.abs(step);
   const out = new Float64Array(channels.length);

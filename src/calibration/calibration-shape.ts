@@ -62,9 +62,10 @@ class ShapeChecker {
     return list as number[];
   }
 
-  window(value: Json, path: string): void {
+  window(value: Json, path: string): [number, number] {
     const [low, high] = this.numbers(value, path, 2);
     if (this.array(value, path).length !== 2 || !((low as number) < (high as number))) this.fail(path, value, 'must be [low, high] in cm⁻¹ with low < high');
+    return [low as number, high as number];
   }
 }
 
@@ -140,7 +141,10 @@ function checkCls(check: ShapeChecker, value: Json): void {
     check.choice(component.unit, `cls.model.components[${i}].unit`, UNITS);
     if (typeof component.reported !== 'boolean') check.fail(`cls.model.components[${i}].reported`, component.reported, 'must be true or false');
   });
-  check.array(cls.regions, 'cls.regions').forEach((window, i) => check.window(window, `cls.regions[${i}]`));
+  const regions = check.array(cls.regions, 'cls.regions').map((window, i) => check.window(window, `cls.regions[${i}]`));
+  grid.forEach((channel, i) => {
+    if (!regions.some((region) => channel >= region[0] && channel <= region[1])) check.fail(`cls.model.grid[${i}]`, channel, 'must lie inside one of cls.regions');
+  });
   const limits = check.object(cls.detectionLimits, 'cls.detectionLimits');
   for (const [name, limit] of Object.entries(limits)) check.finite(limit, `cls.detectionLimits.${name}`, (n) => n >= 0, 'must be a number >= 0');
   // The model's matrices are many and internal: a blank prediction exercises all of them, and a

@@ -3,7 +3,7 @@
  * the certified value in the gas's unit. Pure (the scan is already read).
  */
 import { BandwrightError } from '../errors.js';
-import type { Calibration } from '../calibration/calibration.js';
+import { reportedGases, type Calibration } from '../calibration/calibration.js';
 import { quantifyScan, type QuantifyOptions } from '../calibration/quantify.js';
 import type { ScanResult } from '../calibration/result.js';
 import { fromPpm, toPpm, type ConcentrationUnit } from '../gas/units.js';
@@ -67,13 +67,14 @@ export interface CheckMeasurement {
  * measurement.recoveryPct; // e.g. 100.7
  */
 export function measureCheck(calibration: Calibration, spectrum: Spectrum, options: MeasureCheckOptions): CheckMeasurement {
-  const names = calibration.gases.map((g) => g.gas);
+  const gases = reportedGases(calibration);
+  const names = gases.map((g) => g.gas);
   let gasName = options.gas;
   if (gasName === undefined) {
     if (names.length !== 1) throw new BandwrightError('INVALID_VALUE', `the calibration has ${names.length} gases (${names.join(', ')}); choose the gas of the check standard with --gas`, { parameter: '--gas' });
     gasName = names[0] as string;
   }
-  const gas = calibration.gases.find((g) => g.gas.toLowerCase() === (gasName as string).toLowerCase());
+  const gas = gases.find((g) => g.gas.toLowerCase() === (gasName as string).toLowerCase());
   if (gas === undefined) throw new BandwrightError('INVALID_VALUE', `--gas = ${JSON.stringify(gasName)}, the calibration has ${names.join(', ')}`, { parameter: '--gas' });
   if (!Number.isFinite(options.certified) || options.certified < 0) {
     throw new BandwrightError('INVALID_VALUE', `--certified = ${options.certified}, must be a concentration >= 0 (0 for zero gas)`, { parameter: '--certified' });

@@ -2,7 +2,7 @@
  * Where each gas of a calibration stands: latest check, verdict, next due date, trend. Pure: the
  * calibration and its history records are read by the caller.
  */
-import type { Calibration } from '../calibration/calibration.js';
+import { reportedGases, type Calibration } from '../calibration/calibration.js';
 import type { RecheckPolicy } from '../calibration/method.js';
 import type { ConcentrationUnit } from '../gas/units.js';
 import { evaluateHistory, type DriftEvaluation, type EvaluateOptions } from './evaluate.js';
@@ -61,7 +61,7 @@ export interface StatusOptions extends Omit<EvaluateOptions, 'policy' | 'gas'> {
 export function calibrationStatus(calibration: Calibration, file: string, records: readonly CheckRecord[], options: StatusOptions = {}): GasStatus[] {
   const policy: RecheckPolicy = { ...calibration.method.recheck, ...options.policy };
   const { policy: _override, now, dueWithinDays, ...evaluateOptions } = options;
-  return calibration.gases.map((gas) => {
+  return reportedGases(calibration).map((gas) => {
     const evaluation = evaluateHistory(records, { ...evaluateOptions, policy, gas: gas.gas });
     const schedule = scheduleFor(
       evaluation.checks.map((c) => ({ time: c.record.time, verdict: c.verdict })),

@@ -14,20 +14,21 @@ export const GENERAL_CAUTION =
   'bandwright is not a life-safety monitor. Compare results with the exposure limits that apply where you work, follow licensed industrial-hygiene practice, vent the gas cell to a safe place, and handle standards\' cylinders (high pressure, toxic contents) as their safety data sheets say.';
 
 /**
- * The caution for one gas, or undefined when the gas needs none.
+ * The hazard statement for one gas, or undefined when the gas needs none.
  *
  * @param species - the gas
- * @returns plain-words caution naming the hazards
+ * @returns plain words naming the hazards, e.g. `CO (carbon monoxide) is toxic. CO is colourless and odourless.`
  */
 export function cautionFor(species: Species): string | undefined {
   if (!needsCaution(species)) return undefined;
   const hazards = species.hazards.filter((h) => h === 'toxic' || h === 'asphyxiant').join(' and ');
   const note = species.cautionNote === undefined ? '' : ` ${species.cautionNote}`;
-  return `${species.name} (${species.commonName}) is ${hazards}.${note} ${GENERAL_CAUTION}`;
+  return `${species.name} (${species.commonName}) is ${hazards}.${note}`;
 }
 
 /**
- * Cautions for a set of gas names: one line per hazardous gas, without repeats.
+ * Cautions for a set of gas names: one hazard line per hazardous gas, without repeats, then the
+ * general caution once (nothing when no gas needs a caution).
  *
  * @param gases - gas names (unknown names are ignored here; they are refused elsewhere)
  */
@@ -41,7 +42,7 @@ export function cautionsFor(gases: readonly string[]): string[] {
     const caution = cautionFor(species);
     if (caution !== undefined) out.push(caution);
   }
-  return out;
+  return out.length === 0 ? out : [...out, GENERAL_CAUTION];
 }
 
 /** Units an exposure limit may be given in. */

@@ -217,6 +217,23 @@ describe('a CLS calibration whose model is damaged but re-sealed', () => {
     expect(error.code).toBe('SCHEMA');
     expect(error.message).toMatch(/c.json: cls.model = .*cannot predict \(a blank gives CO = .*not a finite estimate with a standard error >= 0\)/);
   });
+
+  it('a channel moved far outside the regions is a SCHEMA error, and a scan that does not reach the channels is WINDOW (before: the resampling kernel looped forever, found by the calibration fuzz test)', async () => {
+    const { buildClsCalibration, onChannels } = await import('../../src/calibration/build-cls.js');
+    const standards = [0, 50, 100, 200, 400].map((ppm, i) => ({ scan: `s${ppm}.csv`, line: i + 2, spectrum: bandScan(ppm, { metadata: conditions, step: 4, from: 1990, to: 2300 }), concentrations: [{ gas: 'CO', unit: 'ppm' as const, value: ppm }], conditions: {} }));
+    const method = parseMethod({ model: 'cls', gases: ['CO'], regions: [[2060, 2230]], baselineOrder: 1 }, 'method');
+    const good = buildClsCalibration(method as Parameters<typeof buildClsCalibration>[0], standards, { inputs: [], createdAt: '2026-01-01T00:00:00.000Z' });
+    const copy = JSON.parse(JSON.stringify(good)) as Record<string, any>;
+    delete copy.sha256;
+    const grid = copy.cls.model.grid as number[];
+    grid[grid.length - 1] = 2.2278701032325086e74;
+    const error = thrown(() => verifyCalibration(JSON.parse(JSON.stringify(sealCalibration(copy as unknown as Calibration))), 'c.json'));
+    expect(error.code).toBe('SCHEMA');
+    expect(error.message).toMatch(/cls.model.grid\[\d+\] = 2.22787\d*e\+74, must lie inside one of cls.regions/);
+    const offset = bandScan(100, { metadata: { ...conditions, source: 'short.csv' }, step: 3, from: 1990, to: 2300 });
+    const channels = Float64Array.from([2060, 2100, 2400]);
+    expect(thrown(() => onChannels(offset, channels, [[2060, 2230]])).message).toMatch(/short.csv: covers 1990–2299 cm⁻¹, which does not contain the calibration's channels 2060–2400 cm⁻¹/);
+  });
 });
 
 describe('JSON numbers beyond the double range', () => {

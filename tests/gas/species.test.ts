@@ -37,12 +37,13 @@ describe('species table', () => {
 });
 
 describe('cautions and limits', () => {
-  it('gives one caution per toxic gas, saying CO is odourless, and none for water', () => {
-    const cautions = cautionsFor(['CO', 'H2O', 'co']);
-    expect(cautions).toHaveLength(1);
-    expect(cautions[0]).toMatch(/CO \(carbon monoxide\) is toxic/);
-    expect(cautions[0]).toMatch(/odourless/);
-    expect(cautions[0]).toMatch(/not a life-safety monitor/);
+  it('gives one hazard line per toxic or asphyxiant gas, saying CO is odourless, then the general caution once', () => {
+    const cautions = cautionsFor(['CO', 'H2O', 'co', 'CO2']);
+    expect(cautions).toHaveLength(3);
+    expect(cautions[0]).toMatch(/CO \(carbon monoxide\) is toxic\. CO is colourless and odourless\./);
+    expect(cautions[1]).toMatch(/CO2 \(carbon dioxide\) is asphyxiant/);
+    expect(cautions[2]).toMatch(/not a life-safety monitor/);
+    expect(cautionsFor(['H2O'])).toEqual([]);
   });
 
   const niosh = { gas: 'CO', limit: 35, unit: 'ppm' as const, basis: 'TWA', source: 'NIOSH Pocket Guide (REL)' };
