@@ -97,9 +97,22 @@ export async function main(argv: readonly string[], streams: { stdout?: TextSink
   }
 }
 
-const invokedDirectly = process.argv[1] !== undefined && import.meta.url === new URL(`file://${process.argv[1]}`).href;
-if (invokedDirectly) {
-  main(process.argv).then((status) => {
+/**
+ * Runs the program as the process's command: exit status from {@link main}, and a reader that
+ * closes the pipe early (`bandwright quantify … | head`) ends the program quietly instead of
+ * with a stack trace.
+ *
+ * @param argv - `process.argv`
+ */
+export function runAsProcess(argv: readonly string[]): void {
+  process.stdout.on('error', (error: NodeJS.ErrnoException) => {
+    if (error.code === 'EPIPE') process.exit(process.exitCode ?? 0);
+    throw error;
+  });
+  main(argv).then((status) => {
     process.exitCode = status;
   });
 }
+
+const invokedDirectly = process.argv[1] !== undefined && import.meta.url === new URL(`file://${process.argv[1]}`).href;
+if (invokedDirectly) runAsProcess(process.argv);
