@@ -128,12 +128,18 @@ describe('targets, options and output', () => {
     expect(missing.stderr).toMatch(/nope\.calibration\.json: no such file/);
   });
 
-  it('looks in ./calibrations when given nothing (the bundled calibration, never checked)', async () => {
-    const bundled = JSON.parse(readFileSync('calibrations/lab-co.calibration.json', 'utf8')) as { createdAt: string; method: { recheck: { everyDays: number } } };
-    const soon = new Date(Date.parse(bundled.createdAt) + 86_400_000).toISOString();
+  it('looks in ./calibrations when given nothing (the bundled calibrations, never checked)', async () => {
+    type Bundled = { createdAt: string; method: { recheck: { everyDays: number } } };
+    const lab = JSON.parse(readFileSync('calibrations/lab-co.calibration.json', 'utf8')) as Bundled;
+    const stack = JSON.parse(readFileSync('calibrations/stack-k2.calibration.json', 'utf8')) as Bundled;
+    const soon = new Date(Date.parse(lab.createdAt) + 86_400_000).toISOString();
     const run = await runCli('status', '--now', soon);
     expect(run.stdout).toMatch(/calibrations\/lab-co\.calibration\.json\s+CO\s+—\s+never checked/);
-    expect(run.status).toBe(bundled.method.recheck.everyDays > 2 ? 0 : 3);
+    expect(run.stdout).toMatch(/calibrations\/stack-k2\.calibration\.json\s+CO\s+—\s+never checked/);
+    expect(run.stdout).toMatch(/calibrations\/stack-k2\.calibration\.json\s+N2O\s+—\s+never checked/);
+    // A day after the build, a calibration is due within a day when its interval is two days or less.
+    const dueSoon = [lab, stack].some((c) => c.method.recheck.everyDays <= 2 && c.createdAt === lab.createdAt);
+    expect(run.status).toBe(dueSoon ? 3 : 0);
   });
 
   it('applies --every-days and --tolerance-pct to every calibration, noting verdicts that change', async () => {
