@@ -22,9 +22,8 @@ import { cautionsFor } from '../gas/safety.js';
 import { fromPpm, toPpm } from '../gas/units.js';
 import { fitCls, predictCls } from '../models/cls.js';
 import { interpolateAt, lowerBound, resample, toAbsorbance, type Spectrum } from '../spectrum/spectrum.js';
-import { TOOL } from '../version.js';
-import { referenceConditions, titleOf, type BuildContext, type StandardScan } from './build.js';
-import { SCHEMA_VERSION, sealCalibration, type Calibration, type CalibrationStandard } from './calibration.js';
+import { provenanceHeader, referenceConditions, type BuildContext, type StandardScan } from './build.js';
+import { sealCalibration, type Calibration, type CalibrationStandard } from './calibration.js';
 import type { ClsMethod } from './method.js';
 
 /** The channels of a CLS calibration: wavenumbers and the region each belongs to. */
@@ -222,10 +221,7 @@ export function buildClsCalibration(method: ClsMethod, standards: readonly Stand
     ...(standard.lot === undefined ? {} : { lot: standard.lot }),
   }));
   return sealCalibration({
-    schemaVersion: SCHEMA_VERSION,
-    tool: { name: TOOL.name, version: TOOL.version },
-    createdAt: context.createdAt ?? new Date().toISOString(),
-    ...titleOf(context, method),
+    ...provenanceHeader(context, method),
     method,
     reference,
     gases: [],

@@ -14,7 +14,7 @@ import { fromPpm, toPpm, type ConcentrationUnit } from '../gas/units.js';
 import { fitUnivariate } from '../models/univariate.js';
 import { toAbsorbance, type Spectrum } from '../spectrum/spectrum.js';
 import { TOOL } from '../version.js';
-import { SCHEMA_VERSION, sealCalibration, type Calibration, type CalibrationInput, type CalibrationStandard, type GasCalibration, type ZeroGasLimit } from './calibration.js';
+import { SCHEMA_VERSION, sealCalibration, type Calibration, type CalibrationBody, type CalibrationInput, type CalibrationStandard, type GasCalibration, type ZeroGasLimit } from './calibration.js';
 import type { BandMethod, ResponseMethod } from './method.js';
 
 /** A standard ready for calibration: its scan in memory and its manifest row. */
@@ -155,10 +155,7 @@ export function buildBandCalibration(method: BandMethod, standards: readonly Sta
   });
 
   return sealCalibration({
-    schemaVersion: SCHEMA_VERSION,
-    tool: { name: TOOL.name, version: TOOL.version },
-    createdAt: context.createdAt ?? new Date().toISOString(),
-    ...titleOf(context, method),
+    ...provenanceHeader(context, method),
     method,
     reference,
     gases,
@@ -170,14 +167,20 @@ export function buildBandCalibration(method: BandMethod, standards: readonly Sta
 }
 
 /**
- * The calibration's title: the command line's, else the method's, else none.
+ * The fields every calibration starts with: schema and tool version, creation time, and the title
+ * (the command line's, else the method's, else none).
  *
  * @param context - build context
  * @param method - the method
  */
-export function titleOf(context: BuildContext, method: { title?: string }): { title?: string } {
+export function provenanceHeader(context: BuildContext, method: { title?: string }): Pick<CalibrationBody, 'schemaVersion' | 'tool' | 'createdAt' | 'title'> {
   const title = context.title ?? method.title;
-  return title === undefined ? {} : { title };
+  return {
+    schemaVersion: SCHEMA_VERSION,
+    tool: { name: TOOL.name, version: TOOL.version },
+    createdAt: context.createdAt ?? new Date().toISOString(),
+    ...(title === undefined ? {} : { title }),
+  };
 }
 
 /** One row of a responses table. */
@@ -215,10 +218,7 @@ export function buildResponseCalibration(method: ResponseMethod, rows: readonly 
   const blank = zeroGasLimit(response, concentration, model.coefficients.b);
   if (blank !== undefined) gas.zeroGasLimit = blank;
   return sealCalibration({
-    schemaVersion: SCHEMA_VERSION,
-    tool: { name: TOOL.name, version: TOOL.version },
-    createdAt: context.createdAt ?? new Date().toISOString(),
-    ...titleOf(context, method),
+    ...provenanceHeader(context, method),
     method,
     reference,
     gases: [gas],

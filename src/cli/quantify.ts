@@ -113,25 +113,14 @@ export function quantifyScans(calibration: Calibration, scans: readonly string[]
 }
 
 /**
- * Registers `quantify` on the program.
+ * Adds the options every quantifying command shares (quantify, watch): interval level, default
+ * conditions, reporting unit and conversions, exposure limits, y-kind.
  *
- * @param program - the commander program
- * @param context - output and status
+ * @param command - the command to extend
+ * @returns the same command
  */
-export function registerQuantify(program: Command, context: CommandContext): void {
-  program
-    .command('quantify')
-    .description('quantify sample scans (files, folders, globs, - for stdin) or given responses with a calibration')
-    .argument('<calibration>', 'calibration file (JSON) made by calibrate')
-    .argument('[scans...]', 'sample scans: files, folders, globs, or - for standard input')
-    .option('--response <y>', 'a response at reference conditions instead of scans (repeat for replicates)', collect)
-    .option('--json', 'print results as JSON on stdout')
-    .option('--csv <file>', 'write one row per scan to a CSV file')
-    .option('--jsonl <file>', 'write one JSON line per scan (a results element with calibrationSha256) to a file')
-    .option('--from <list>', 'also quantify the scans listed in a file, one path per line (- for stdin)')
-    .option('--quiet', 'print no results on stdout (with --csv or --jsonl)')
-    .option('--workers <n>', 'worker threads reading and quantifying scans: auto, or a count (0: none)', 'auto')
-    .option('--force', 'replace an existing --csv or --jsonl file, --report file or --plot files')
+export function withReportingOptions(command: Command): Command {
+  return command
     .option('--level <p>', 'prediction-interval level', '0.95')
     .option('--path-length <m>', 'path length for scans that do not state it, m')
     .option('--temperature <K>', 'gas temperature for scans that do not state it, K')
@@ -146,7 +135,30 @@ export function registerQuantify(program: Command, context: CommandContext): voi
     .option('--o2-ref <pct>', 'reference O2, %, to correct to')
     .option('--o2-air <pct>', 'O2 of air, %, in the correction', '20.9')
     .option('--limits <file>', 'CSV of exposure limits (gas,limit,unit,basis,source) for the over-limit flag')
-    .option('--y-kind <kind>', 'y values of scans that do not declare them')
+    .option('--y-kind <kind>', 'y values of scans that do not declare them');
+}
+
+/**
+ * Registers `quantify` on the program.
+ *
+ * @param program - the commander program
+ * @param context - output and status
+ */
+export function registerQuantify(program: Command, context: CommandContext): void {
+  const command = program
+    .command('quantify')
+    .description('quantify sample scans (files, folders, globs, - for stdin) or given responses with a calibration')
+    .argument('<calibration>', 'calibration file (JSON) made by calibrate')
+    .argument('[scans...]', 'sample scans: files, folders, globs, or - for standard input')
+    .option('--response <y>', 'a response at reference conditions instead of scans (repeat for replicates)', collect)
+    .option('--json', 'print results as JSON on stdout')
+    .option('--csv <file>', 'write one row per scan to a CSV file')
+    .option('--jsonl <file>', 'write one JSON line per scan (a results element with calibrationSha256) to a file')
+    .option('--from <list>', 'also quantify the scans listed in a file, one path per line (- for stdin)')
+    .option('--quiet', 'print no results on stdout (with --csv or --jsonl)')
+    .option('--workers <n>', 'worker threads reading and quantifying scans: auto, or a count (0: none)', 'auto')
+    .option('--force', 'replace an existing --csv or --jsonl file, --report file or --plot files');
+  withReportingOptions(command)
     .option('--report <file>', 'write a self-contained HTML report: results table and one spectrum plot per sample')
     .option('--plot <dir>', 'write each sample\'s plots as SVG files into this folder')
     .option('--wavenumber-axis <order>', 'plots with wavenumbers descending (high on the left, default) or ascending')

@@ -23,7 +23,7 @@ import { createScanQuantifier } from './batch-scan.js';
 import { yKindOption } from './calibrate.js';
 import { note, raiseStatus, type CommandContext } from './context.js';
 import { parseNumberOption } from './parse.js';
-import { quantifyOptionsFrom } from './quantify.js';
+import { quantifyOptionsFrom, withReportingOptions } from './quantify.js';
 
 interface WatchFlags {
   csv?: string;
@@ -89,7 +89,7 @@ function millisecondsOption(text: string, option: string, minimum: number): numb
  * @param context - output and status
  */
 export function registerWatch(program: Command, context: CommandContext): void {
-  program
+  const command = program
     .command('watch')
     .description('quantify each new complete scan written into a folder, appending results; --once for cron')
     .argument('<calibration>', 'calibration file (JSON) made by calibrate')
@@ -100,22 +100,8 @@ export function registerWatch(program: Command, context: CommandContext): void {
     .option('--once', 'quantify the complete scans present and exit')
     .option('--settle <ms>', 'a file is complete when unchanged this long, ms', '500')
     .option('--poll <ms>', 'look at the folder at least this often, ms (besides file-system events)', '1000')
-    .option('--quiet', 'print no result lines on stdout')
-    .option('--level <p>', 'prediction-interval level', '0.95')
-    .option('--path-length <m>', 'path length for scans that do not state it, m')
-    .option('--temperature <K>', 'gas temperature for scans that do not state it, K')
-    .option('--pressure <kPa>', 'gas pressure for scans that do not state it, kPa')
-    .option('--unit <unit>', "report in ppm, ppb or pct (default: the calibration's unit)")
-    .option('--mg-m3', 'also report mg/m³ at the reference temperature and pressure')
-    .option('--ref-temperature <K>', 'reference temperature for --mg-m3, K', '273.15')
-    .option('--ref-pressure <kPa>', 'reference pressure for --mg-m3, kPa', '101.325')
-    .option('--dry', 'also report on a dry basis (H2O from the same scan, or --h2o)')
-    .option('--h2o <pct>', 'water vapour in the sample, % by volume, for --dry')
-    .option('--o2 <pct>', 'measured O2, %, for the oxygen reference correction')
-    .option('--o2-ref <pct>', 'reference O2, %, to correct to')
-    .option('--o2-air <pct>', 'O2 of air, %, in the correction', '20.9')
-    .option('--limits <file>', 'CSV of exposure limits (gas,limit,unit,basis,source) for the over-limit flag')
-    .option('--y-kind <kind>', 'y values of scans that do not declare them')
+    .option('--quiet', 'print no result lines on stdout');
+  withReportingOptions(command)
     .addHelpText('after', WATCH_HELP)
     .action(async (calibrationPath: string, folder: string, flags: WatchFlags) => {
       const settleMs = millisecondsOption(flags.settle, '--settle', 0);
