@@ -33,17 +33,8 @@ import { note, raiseStatus, type CommandContext } from './context.js';
 import { collect, parseNumberOption, parsePositiveOption } from './parse.js';
 import { refuseExisting, wavenumberAxisOption, writeQuantifyOutputs } from './report.js';
 
-interface QuantifyFlags {
-  report?: string;
-  plot?: string;
-  wavenumberAxis?: string;
-  json?: boolean;
-  csv?: string;
-  jsonl?: string;
-  from?: string;
-  quiet?: boolean;
-  workers?: string;
-  force?: boolean;
+/** The flags {@link withReportingOptions} adds, as commander parses them. */
+export interface ReportingFlags {
   level: string;
   pathLength?: string;
   temperature?: string;
@@ -59,6 +50,19 @@ interface QuantifyFlags {
   limits?: string;
   unit?: string;
   yKind?: string;
+}
+
+interface QuantifyFlags extends ReportingFlags {
+  report?: string;
+  plot?: string;
+  wavenumberAxis?: string;
+  json?: boolean;
+  csv?: string;
+  jsonl?: string;
+  from?: string;
+  quiet?: boolean;
+  workers?: string;
+  force?: boolean;
   response?: string[];
 }
 
@@ -69,7 +73,7 @@ interface QuantifyFlags {
  * @returns options for the quantify functions
  * @throws BandwrightError `USAGE` for bad values or incomplete combinations
  */
-export function quantifyOptionsFrom(flags: QuantifyFlags): QuantifyOptions {
+export function quantifyOptionsFrom(flags: ReportingFlags): QuantifyOptions {
   const percent = (text: string, option: string): number => parseNumberOption(text, option, [(n) => n >= 0 && n <= 100, 'must be a percentage from 0 to 100']);
   const options: QuantifyOptions = {
     level: parseNumberOption(flags.level, '--level', [(n) => n > 0 && n < 1, 'must be between 0 and 1, e.g. 0.95']),

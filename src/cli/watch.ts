@@ -23,9 +23,9 @@ import { createScanQuantifier } from './batch-scan.js';
 import { yKindOption } from './calibrate.js';
 import { note, raiseStatus, type CommandContext } from './context.js';
 import { parseNumberOption } from './parse.js';
-import { quantifyOptionsFrom, withReportingOptions } from './quantify.js';
+import { quantifyOptionsFrom, withReportingOptions, type ReportingFlags } from './quantify.js';
 
-interface WatchFlags {
+interface WatchFlags extends ReportingFlags {
   csv?: string;
   jsonl?: string;
   state?: string;
@@ -33,21 +33,6 @@ interface WatchFlags {
   settle: string;
   poll: string;
   quiet?: boolean;
-  level: string;
-  pathLength?: string;
-  temperature?: string;
-  pressure?: string;
-  mgM3?: boolean;
-  refTemperature: string;
-  refPressure: string;
-  dry?: boolean;
-  h2o?: string;
-  o2?: string;
-  o2Ref?: string;
-  o2Air: string;
-  limits?: string;
-  unit?: string;
-  yKind?: string;
 }
 
 const WATCH_HELP = `

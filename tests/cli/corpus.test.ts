@@ -2,7 +2,7 @@
  * The broken-input corpus (tests/fixtures/bad): every case of cases.json runs its command on a
  * temporary copy of lab/ and must end with its exit status and message fragment, writing and
  * changing no file. The files are described in tests/fixtures/bad/README.md; generate.ts writes
- * them. The failures are what the formats' own rules make of each file (RFC 4180 for tables,
+ * them. The source of each expected failure is the format's own rule for the file (RFC 4180 for tables,
  * JCAMP-DX 4.24/5.01 for XYDATA, NPOINTS, line X values and Y checks, DESIGN §4 for manifests,
  * methods and calibrations).
  */
