@@ -31,7 +31,7 @@
  * dashes, slashes and underscores.
  */
 import { BandwrightError } from '../errors.js';
-import { makeSpectrum, type ScanMetadata, type Spectrum, type YKind } from '../spectrum/spectrum.js';
+import { makeSpectrum, spectrumFromCheckedArrays, type ScanMetadata, type Spectrum, type YKind } from '../spectrum/spectrum.js';
 import { DECIMAL_POINT, DECIMAL_POINT_NO_EXPONENT, parseNumberText, scanNumber, type ScanCursor } from './number-parse.js';
 import { DEFAULT_MAX_POINTS, asBuffer, assertLineEnds, assertNotUtf16, assertTransmittanceFraction } from './spectrum-table.js';
 
@@ -576,6 +576,143 @@ const NEGATIVE_POWERS_OF_TEN: readonly number[] = Array.from({ length: 23 }, (_,
  */
 let xyDataScratch: Float64Array = new Float64Array(0);
 
+/** What {@link decodeAsdfLineFast} read as the X of a line. */
+interface FastLineX {
+  x: number;
+  printedUnit: number;
+}
+const fastLineX: FastLineX = { x: 0, printedUnit: 0 };
+const TWO_TO_53 = 2 ** 53;
+
+// One table entry per byte for the line decoder below: bits 0–3 the first digit a lead
+// character stands for, bits 4–5 its kind, bit 6 a negative sign; 0x80 and above: no lead.
+const CODE_SQZ = 0x00;
+const CODE_DIF = 0x10;
+const CODE_DUP = 0x20;
+const CODE_SEPARATOR = 0x30;
+const CODE_KIND = 0x30;
+const CODE_NEGATIVE = 0x40;
+const CODE_OTHER = 0x80;
+const ASDF_CODE: Uint8Array = new Uint8Array(256).fill(CODE_OTHER);
+{
+  const lead = (text: string, code: number, firstDigit: number): void => {
+    for (let k = 0; k < text.length; k++) ASDF_CODE[text.charCodeAt(k)] = code | (firstDigit + k);
+  };
+  // JCAMP-DX 5.01 ASDF tables: SQZ @A–I (0…9) a–i (−1…−9), DIF %J–R (0…9) j–r (−1…−9), DUP S–Z s (1…9).
+  lead('@ABCDEFGHI', CODE_SQZ, 0);
+  lead('abcdefghi', CODE_SQZ | CODE_NEGATIVE, 1);
+  lead('%JKLMNOPQR', CODE_DIF, 0);
+  lead('jklmnopqr', CODE_DIF | CODE_NEGATIVE, 1);
+  lead('STUVWXYZs', CODE_DUP, 1);
+  for (const c of [SPACE, TAB, 0x2c]) ASDF_CODE[c] = CODE_SEPARATOR;
+}
+
+/**
+ * Decodes one ordinary ASDF data line — an AFFN X followed only by SQZ, DIF and DUP tokens — in
+ * one pass over its bytes, straight into the ordinate buffer. It gives the same values as the
+ * general token loop (the same integer arithmetic in the same order) but never reports an error:
+ * at anything unusual (AFFN ordinates, exponents, '?', a decimal point, a DIF or DUP opening the
+ * line, DUP after DUP, a failed Y check, the point limit, an overflow) it returns false without
+ * changing the stream, and the general loop decodes the line again and words the error. A line it
+ * accepts has only letter-led tokens after the X, so it can never be an AFFN line with exponents.
+ *
+ * @returns true when the line was decoded (X in `lineX`), false to leave it to the general loop
+ */
+function decodeAsdfLineFast(bytes: Uint8Array, start: number, end: number, stream: OrdinateStream, cursor: ScanCursor, lineX: FastLineX): boolean {
+  const c0 = bytes[start] as number;
+  if (!((c0 >= 0x30 && c0 <= 0x39) || c0 === 0x2e || c0 === 0x2b || c0 === 0x2d)) return false;
+  const x = scanNumber(bytes, start, end, DECIMAL_POINT_NO_EXPONENT, cursor);
+  const xEnd = cursor.end;
+  if (xEnd === start || !Number.isFinite(x)) return false;
+  if (end >= bytes.length || ((bytes[end] as number) - 0x30) >>> 0 <= 9) return false;
+  const out = stream.out;
+  const maxPoints = stream.maxPoints;
+  let values = out.values;
+  let length = out.length;
+  // Every token but a DUP adds at most one ordinate and takes at least one byte.
+  if (values.length < length + (end - xEnd)) {
+    const bigger = new Float64Array(Math.max(values.length * 2, length + (end - xEnd)));
+    bigger.set(values.subarray(0, length));
+    values = bigger;
+  }
+  let previous = stream.previous;
+  let lastKind = stream.lastKind;
+  let lastDifference = stream.lastDifference;
+  const yCheck = stream.yCheckPending;
+  let count = 0;
+  let lastWasDup = false;
+  let i = xEnd;
+  while (i < end) {
+    const code = ASDF_CODE[bytes[i] as number] as number;
+    if (code >= CODE_OTHER) return false;
+    i++;
+    const kind = code & CODE_KIND;
+    if (kind === CODE_SEPARATOR) continue;
+    let magnitude = code & 0x0f;
+    // bytes[end] is a non-digit (checked above), so the digits stop by themselves. A decimal
+    // point after the digits is a byte of class other and ends the fast decoding below.
+    for (;;) {
+      const digit = (bytes[i] as number) - 0x30;
+      if (digit >>> 0 > 9) break;
+      magnitude = magnitude * 10 + digit;
+      i++;
+    }
+    // Beyond 2^53 the general loop decodes the same arithmetic and checks for overflow.
+    if (magnitude > TWO_TO_53) return false;
+    // A negative lead's magnitude is at least 1, so no −0 arises.
+    const value = (code & CODE_NEGATIVE) === 0 ? magnitude : -magnitude;
+    if (kind === CODE_DIF) {
+      if (count === 0 || length >= maxPoints) return false;
+      lastDifference = value;
+      previous = previous + value;
+      values[length++] = previous;
+      lastKind = DIFFERENCE;
+      lastWasDup = false;
+      count++;
+    } else if (kind === CODE_SQZ) {
+      if (count === 0 && yCheck) {
+        if (value !== values[length - 1]) return false;
+      } else {
+        if (length >= maxPoints) return false;
+        values[length++] = value;
+      }
+      previous = value;
+      lastKind = ABSOLUTE;
+      lastWasDup = false;
+      count++;
+    } else {
+      if (count === 0 || lastWasDup || value < 1 || length + value - 1 > maxPoints) return false;
+      const needed = length + value - 1 + (end - i);
+      if (values.length < needed) {
+        const bigger = new Float64Array(Math.max(values.length * 2, needed));
+        bigger.set(values.subarray(0, length));
+        values = bigger;
+      }
+      if (lastKind === DIFFERENCE) {
+        for (let k = 1; k < value; k++) {
+          previous = previous + lastDifference;
+          values[length++] = previous;
+        }
+      } else {
+        for (let k = 1; k < value; k++) values[length++] = previous;
+      }
+      count += value - 1;
+      lastWasDup = true;
+    }
+  }
+  if (count === 0) return false;
+  out.values = values;
+  out.length = length;
+  stream.previous = previous;
+  stream.lastKind = lastKind;
+  stream.lastDifference = lastDifference;
+  stream.ordinatesOnLine = count;
+  stream.yCheckPending = lastKind === DIFFERENCE;
+  lineX.x = x;
+  lineX.printedUnit = printedUnitOf(bytes, start, xEnd);
+  return true;
+}
+
 interface LineStart {
   line: number;
   x: number;
@@ -617,6 +754,10 @@ function decodeXyData(bytes: Uint8Array, record: Record_, header: Header, source
     stream.startLine();
     const lineBase = stream.out.length;
     const lineIndex = stream.yCheckPending ? lineBase - 1 : lineBase;
+    if (decodeAsdfLineFast(bytes, p, end, stream, cursor, fastLineX)) {
+      lineStarts.push({ line: lineNumber, x: fastLineX.x, index: lineIndex, printedUnit: fastLineX.printedUnit });
+      continue;
+    }
     let tokenCount = 0;
     let lastWasDup = false;
 
@@ -864,7 +1005,9 @@ export function parseJcamp(input: Uint8Array | string, options: JcampOptions): S
   }
   let x: Float64Array;
   let y: Float64Array;
-  if (xyData !== undefined) ({ x, y } = assembleXyData(bytes, xyData, header, source, maxPoints, options.reuseOutput === true));
+  // Set when the XYDATA assembly has already seen finite, strictly monotonic x and finite y.
+  let checked = false;
+  if (xyData !== undefined) ({ x, y, checked } = assembleXyData(bytes, xyData, header, source, maxPoints, options.reuseOutput === true));
   else if (xyPoints !== undefined) ({ x, y } = assembleXyPoints(bytes, xyPoints, header, source, maxPoints));
   else {
     const peaks = records.find((r) => r.key === 'PEAKTABLE');
@@ -877,6 +1020,7 @@ export function parseJcamp(input: Uint8Array | string, options: JcampOptions): S
     );
   }
   if (header.xUnit !== 'cm-1') {
+    checked = false;
     const scale = header.xUnit === 'um' ? 1e4 : 1e7;
     for (let i = 0; i < x.length; i++) {
       const lambda = x[i] as number;
@@ -893,13 +1037,16 @@ export function parseJcamp(input: Uint8Array | string, options: JcampOptions): S
     y.reverse();
   }
   if (header.yKind === 'transmittance') assertTransmittanceFraction(y, source, 'declare ##YUNITS=% TRANSMITTANCE if they are percent');
-  return makeSpectrum({ x, y, yKind: header.yKind, metadata: header.metadata });
+  const init: Spectrum = { x, y, yKind: header.yKind, metadata: header.metadata };
+  // Reversal keeps x strictly monotonic; anything the assembly did not vouch for, and every
+  // failure message, goes through makeSpectrum's full checks.
+  return checked && header.yKind !== 'single-beam' ? spectrumFromCheckedArrays(init) : makeSpectrum(init);
 }
 
 /** x buffer reused by `reuseOutput` parses (see {@link JcampOptions.reuseOutput}). */
 let xOutputScratch: Float64Array = new Float64Array(0);
 
-function assembleXyData(bytes: Uint8Array, record: Record_, header: Header, source: string, maxPoints: number, reuseOutput: boolean): { x: Float64Array; y: Float64Array } {
+function assembleXyData(bytes: Uint8Array, record: Record_, header: Header, source: string, maxPoints: number, reuseOutput: boolean): { x: Float64Array; y: Float64Array; checked: boolean } {
   const { y, lineStarts } = decodeXyData(bytes, record, header, source, maxPoints);
   const n = y.length;
   if (header.nPoints !== undefined && header.nPoints !== n) {
@@ -946,7 +1093,13 @@ function assembleXyData(bytes: Uint8Array, record: Record_, header: Header, sour
   const yFactor = header.yFactor;
   // y is a view on the decoder's reused buffer: scaled in place when the output may reuse it.
   const yOut = reuseOutput ? y : new Float64Array(n);
-  for (let i = 0; i < n; i++) yOut[i] = (y[i] as number) * yFactor;
+  let yFinite = true;
+  for (let i = 0; i < n; i++) {
+    const value = (y[i] as number) * yFactor;
+    yOut[i] = value;
+    // value − value is 0 exactly for finite values, NaN for ±Infinity and NaN.
+    if (value - value !== 0) yFinite = false;
+  }
   if (header.firstY !== undefined) {
     const tolerance = Math.abs(yFactor) + 0.5 * header.firstY.unit + 1e-9 * Math.abs(header.firstY.value);
     if (!(Math.abs((yOut[0] as number) - header.firstY.value) <= tolerance)) {
@@ -959,10 +1112,38 @@ function assembleXyData(bytes: Uint8Array, record: Record_, header: Header, sour
   }
   if (reuseOutput && xOutputScratch.length < n) xOutputScratch = new Float64Array(n);
   const xOut = reuseOutput ? xOutputScratch.subarray(0, n) : new Float64Array(n);
-  for (let i = 0; i < n; i++) xOut[i] = firstX + i * step;
-  if (header.lastX !== undefined) xOut[n - 1] = header.lastX.value;
-  return { x: xOut, y: yOut };
+  // x is checked for strict monotony as it is made (firstX + i·step can repeat a value when the
+  // step is below the rounding of firstX), so makeSpectrum need not pass over it again.
+  let monotonic = true;
+  let previous = firstX;
+  xOut[0] = firstX;
+  if (step > 0) {
+    for (let i = 1; i < n; i++) {
+      const value = firstX + i * step;
+      xOut[i] = value;
+      if (!(value > previous)) monotonic = false;
+      previous = value;
+    }
+  } else {
+    for (let i = 1; i < n; i++) {
+      const value = firstX + i * step;
+      xOut[i] = value;
+      if (!(value < previous)) monotonic = false;
+      previous = value;
+    }
+  }
+  if (header.lastX !== undefined) {
+    const last = header.lastX.value;
+    xOut[n - 1] = last;
+    const before = xOut[n - 2] as number;
+    if (!(step > 0 ? last > before : last < before)) monotonic = false;
+  }
+  // Strictly monotonic with finite ends means every x is finite.
+  const last = xOut[n - 1] as number;
+  const checked = yFinite && monotonic && firstX - firstX === 0 && last - last === 0;
+  return { x: xOut, y: yOut, checked };
 }
+
 
 function assembleXyPoints(bytes: Uint8Array, record: Record_, header: Header, source: string, maxPoints: number): { x: Float64Array; y: Float64Array } {
   const { x, y, lines } = decodeXyPoints(bytes, record, source, maxPoints);

@@ -108,6 +108,23 @@ export function makeSpectrum(init: Spectrum): Spectrum {
 }
 
 /**
+ * Builds a spectrum from arrays whose invariants the caller has already established while
+ * making them (equal lengths, at least two points, finite values, strictly ascending x, no
+ * background unless single-beam), so a reader does not pass over 10⁴ points a second time. Any
+ * caller that has not checked all of these must use {@link makeSpectrum}, which also words the
+ * errors.
+ *
+ * @param init - the fields of the spectrum; arrays are taken, not copied
+ * @returns the same data as a `Spectrum`
+ * @throws BandwrightError `INVALID_VALUE` when the lengths differ or there are fewer than two
+ *   points (cheap checks kept as a guard against misuse)
+ */
+export function spectrumFromCheckedArrays(init: Spectrum): Spectrum {
+  if (init.x.length !== init.y.length || init.x.length < 2 || (init.yKind === 'single-beam') !== (init.background !== undefined)) return makeSpectrum(init);
+  return init;
+}
+
+/**
  * Converts a spectrum to decadic absorbance.
  *
  * Transmittance T ≤ 0 (or a non-positive single-beam intensity) has no absorbance; such a
