@@ -103,9 +103,12 @@ export function onChannels(spectrum: Spectrum, channels: Float64Array, regions: 
   const tolerance = 1e-6 * Math.abs(step);
   const out = new Float64Array(channels.length);
   let coincide = n > 1;
+  // Channels and scan are both ascending: one forward walk finds each channel's point (a binary
+  // search per channel cost most of this function in long batches).
+  let k = lowerBound(x, (channels[0] as number) - tolerance);
   for (let i = 0; i < channels.length && coincide; i++) {
     const value = channels[i] as number;
-    const k = lowerBound(x, value - tolerance);
+    while (k < n && (x[k] as number) < value - tolerance) k++;
     if (k < n && Math.abs((x[k] as number) - value) <= tolerance) out[i] = y[k] as number;
     else coincide = false;
   }
