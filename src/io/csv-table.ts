@@ -26,9 +26,6 @@ export interface Table {
   decimalComma: boolean;
 }
 
-/** Default limit on data rows in a table. */
-export const DEFAULT_MAX_ROWS = 1_000_000;
-
 /**
  * Parses CSV text with a header line. Comment lines starting with `#` before the header are skipped.
  *

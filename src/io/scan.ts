@@ -34,9 +34,6 @@ export interface ReadScanOptions extends Omit<ParseScanOptions, 'source'> {
   maxBytes?: number;
 }
 
-/** Default of {@link ReadScanOptions.maxBytes}: 200 MB. */
-export const DEFAULT_MAX_SCAN_BYTES = 200_000_000;
-
 /** Name given to standard input in messages and metadata. */
 export const STDIN_SOURCE = '<stdin>';
 

@@ -26,6 +26,7 @@
  */
 import { BandwrightError } from '../errors.js';
 import { makeSpectrum, type ScanMetadata, type Spectrum, type YKind } from '../spectrum/spectrum.js';
+import { RESOURCE_LIMIT_SETTINGS } from './limits.js';
 import { DECIMAL_COMMA, DECIMAL_POINT, parseNumberText, scanNumber, type NumberSyntax, type ScanCursor } from './number-parse.js';
 
 /** Options of {@link parseSpectrumTable}. */
@@ -50,8 +51,8 @@ export interface SpectrumTableOptions {
   reuseOutput?: boolean;
 }
 
-/** Default of {@link SpectrumTableOptions.maxPoints}. */
-export const DEFAULT_MAX_POINTS = 2_000_000;
+/** Default of {@link SpectrumTableOptions.maxPoints} (the BANDWRIGHT_MAX_POINTS default). */
+export const DEFAULT_MAX_POINTS = RESOURCE_LIMIT_SETTINGS.maxPoints.default;
 
 /**
  * The largest transmittance-fraction value accepted. A fraction cannot exceed 1 beyond noise;

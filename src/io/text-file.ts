@@ -5,9 +5,6 @@ import { readFileSync, statSync } from 'node:fs';
 import { BandwrightError } from '../errors.js';
 import { resourceLimits } from './limits.js';
 
-/** Default largest file read whole, bytes (manifests, methods, calibrations, tables). */
-export const DEFAULT_MAX_TABLE_BYTES = 64 * 1024 * 1024;
-
 /**
  * Reads a file as bytes.
  *

@@ -15,7 +15,7 @@ import Papa from 'papaparse';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { jsonDocumentSink, resultsCsvRow, textTableSink } from '../../src/cli/batch-output.js';
 import { formatResultsText, resultsCsv, resultsDocument, type BatchEntry } from '../../src/index.js';
-import { bandScan, writeScan } from '../helpers/band-scans.js';
+import { BAND_OPTIONS, bandScan, writeScan, writeStandardSeries } from '../helpers/band-scans.js';
 import { runCli, temporaryFolder } from '../helpers/cli.js';
 
 const folder = temporaryFolder('bandwright-batch-');
@@ -32,14 +32,8 @@ const names = Array.from({ length: SCANS }, (_, i) => `scans/s${String(i).padSta
 const csvRows = (path: string) => Papa.parse<Record<string, string>>(readFileSync(path, 'utf8'), { header: true, skipEmptyLines: true });
 
 beforeAll(async () => {
-  const rows = ['scan,CO_ppm'];
-  [0, 0, 50, 50, 100, 100, 200, 200, 400, 400].forEach((ppm, i) => {
-    // ±0.2 % scatter so the residual SD is not zero.
-    writeScan(at(`std-${i}.csv`), bandScan(ppm * (1 + 0.002 * Math.sin(7 * i + 1)), { metadata: reference }));
-    rows.push(`std-${i}.csv,${ppm}`);
-  });
-  writeFileSync(at('standards.csv'), `${rows.join('\n')}\n`);
-  const calibrated = await runCli('calibrate', at('standards.csv'), '--gas', 'CO', '--band', '2040:2245', '--baseline', '2000:2030,2255:2290', '-o', at('co.json'));
+  writeStandardSeries(at, reference);
+  const calibrated = await runCli('calibrate', at('standards.csv'), ...BAND_OPTIONS, '-o', at('co.json'));
   expect(calibrated.status).toBe(0);
   // Small scans (4 cm⁻¹ spacing, 101 points) keep 2,000 of them quick to write and read.
   mkdirSync(at('scans'));

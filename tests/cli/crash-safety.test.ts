@@ -16,6 +16,7 @@ import { join, resolve } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { readCalibration } from '../../src/io/calibration-file.js';
 import { readHistory } from '../../src/io/history.js';
+import { createRandom } from '../../src/simulate/random.js';
 import { temporaryFolder } from '../helpers/cli.js';
 
 /** Seed of the kill delays; printed in the test names. */
@@ -29,18 +30,6 @@ const at = (name: string): string => join(folder.path, name);
 const band = ['--gas', 'CO', '--band', '2040:2245', '--baseline', '2000:2030,2255:2290'];
 // Fixed creation time (reproducible-builds convention), so a completed run's output is known byte for byte.
 const environment = { ...process.env, SOURCE_DATE_EPOCH: '1793520000' };
-
-/** mulberry32: a small seeded generator for the kill delays. */
-function generator(seed: number): () => number {
-  let state = seed >>> 0;
-  return () => {
-    state = (state + 0x6d2b79f5) >>> 0;
-    let t = state;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 interface ChildRun {
   status: number | null;
@@ -87,7 +76,7 @@ afterAll(() => {
 
 /** Kills the same command KILLS times at seeded moments over [0, 1.5 × its full run time]; checks after each. */
 async function killRepeatedly(name: string, seed: number, fullMs: number, args: (i: number) => string[], check: (i: number, run: ChildRun) => void): Promise<void> {
-  const random = generator(seed);
+  const random = createRandom(seed);
   let killed = 0;
   let completed = 0;
   for (let i = 0; i < KILLS; i++) {

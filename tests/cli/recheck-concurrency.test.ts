@@ -12,7 +12,7 @@ import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { readHistory } from '../../src/io/history.js';
-import { bandScan, writeScan } from '../helpers/band-scans.js';
+import { BAND_OPTIONS, bandScan, writeScan, writeStandardSeries } from '../helpers/band-scans.js';
 import { runCli, temporaryFolder } from '../helpers/cli.js';
 
 const folder = temporaryFolder('bandwright-concurrency-');
@@ -36,14 +36,9 @@ function runProcess(args: string[]): Promise<{ status: number | null; stdout: st
 }
 
 beforeAll(async () => {
-  const rows = ['scan,CO_ppm'];
-  [0, 0, 50, 50, 100, 100, 200, 200, 400, 400].forEach((ppm, i) => {
-    writeScan(at(`std-${i}.csv`), bandScan(ppm * (1 + 0.002 * Math.sin(7 * i + 1)), { metadata: reference }));
-    rows.push(`std-${i}.csv,${ppm}`);
-  });
-  writeFileSync(at('standards.csv'), `${rows.join('\n')}\n`);
+  writeStandardSeries(at, reference);
   for (let k = 0; k < PROCESSES; k++) writeScan(at(`check-${k}.csv`), bandScan(99.5 + 0.2 * k, { metadata: reference }));
-  const run = await runCli('calibrate', at('standards.csv'), '--gas', 'CO', '--band', '2040:2245', '--baseline', '2000:2030,2255:2290', '-o', at('co.json'));
+  const run = await runCli('calibrate', at('standards.csv'), ...BAND_OPTIONS, '-o', at('co.json'));
   expect(run.status, run.stderr).toBe(0);
 });
 afterAll(() => folder.cleanup());

@@ -12,13 +12,13 @@ import { createHash } from 'node:crypto';
 import { existsSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { bandScan, writeScan } from '../helpers/band-scans.js';
+import { BAND_OPTIONS, bandScan, writeScan, writeStandardSeries } from '../helpers/band-scans.js';
 import { runCli, temporaryFolder } from '../helpers/cli.js';
 
 const folder = temporaryFolder('bandwright-recheck-');
 const at = (name: string) => join(folder.path, name);
 const reference = { pathLength_m: 1, temperature_K: 296.15, pressure_kPa: 101.325 };
-const bandArgs = ['--gas', 'CO', '--band', '2040:2245', '--baseline', '2000:2030,2255:2290'];
+const bandArgs = BAND_OPTIONS;
 
 async function calibrate(name: string): Promise<string> {
   const run = await runCli('calibrate', at('standards.csv'), ...bandArgs, '-o', at(name));
@@ -27,13 +27,7 @@ async function calibrate(name: string): Promise<string> {
 }
 
 beforeAll(async () => {
-  const rows = ['scan,CO_ppm'];
-  [0, 0, 50, 50, 100, 100, 200, 200, 400, 400].forEach((ppm, i) => {
-    // ±0.2 % scatter so the residual SD, and the prediction interval, are not zero.
-    writeScan(at(`std-${i}.csv`), bandScan(ppm * (1 + 0.002 * Math.sin(7 * i + 1)), { metadata: reference }));
-    rows.push(`std-${i}.csv,${ppm}`);
-  });
-  writeFileSync(at('standards.csv'), `${rows.join('\n')}\n`);
+  writeStandardSeries(at, reference);
   for (const ppm of [0, 93, 96.5, 99.6, 100, 100.4]) writeScan(at(`check-${ppm}.csv`), bandScan(ppm, { metadata: reference }));
   writeScan(at('bare.csv'), bandScan(100, { metadata: {} }));
 });

@@ -12,7 +12,7 @@ import { pathToFileURL } from 'node:url';
 import Papa from 'papaparse';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { formatSpectrumCsv } from '../../src/io/spectrum-csv-write.js';
-import { bandScan, writeScan } from '../helpers/band-scans.js';
+import { BAND_OPTIONS, bandScan, writeScan, writeStandardSeries } from '../helpers/band-scans.js';
 import { runCli, temporaryFolder } from '../helpers/cli.js';
 
 const folder = temporaryFolder('bandwright-watch-');
@@ -22,13 +22,8 @@ const rowsOf = (path: string) => Papa.parse<Record<string, string>>(readFileSync
 const pause = (ms: number) => new Promise((resolve) => setTimeout(resolve, ms));
 
 beforeAll(async () => {
-  const rows = ['scan,CO_ppm'];
-  [0, 0, 50, 50, 100, 100, 200, 200, 400, 400].forEach((ppm, i) => {
-    writeScan(at(`std-${i}.csv`), bandScan(ppm * (1 + 0.002 * Math.sin(7 * i + 1)), { metadata: reference }));
-    rows.push(`std-${i}.csv,${ppm}`);
-  });
-  writeFileSync(at('standards.csv'), `${rows.join('\n')}\n`);
-  expect((await runCli('calibrate', at('standards.csv'), '--gas', 'CO', '--band', '2040:2245', '--baseline', '2000:2030,2255:2290', '-o', at('co.json'))).status).toBe(0);
+  writeStandardSeries(at, reference);
+  expect((await runCli('calibrate', at('standards.csv'), ...BAND_OPTIONS, '-o', at('co.json'))).status).toBe(0);
 });
 afterAll(() => folder.cleanup());
 

@@ -42,3 +42,25 @@ export function bandScan(ppm: number, options: { phi?: number; metadata?: ScanMe
 export function writeScan(path: string, spectrum: Spectrum): void {
   writeFileSync(path, path.endsWith('.jdx') ? formatJcamp(spectrum, { title: 'test band' }) : formatSpectrumCsv(spectrum));
 }
+
+/** Command-line options for a CO band calibration on {@link bandScan} scans. */
+export const BAND_OPTIONS = ['--gas', 'CO', '--band', '2040:2245', '--baseline', '2000:2030,2255:2290'] as const;
+
+/**
+ * Writes the ten-standard series the CLI tests calibrate from — 0, 50, 100, 200, 400 ppm in
+ * duplicate with ±0.2 % scatter (so the residual SD and the intervals are not zero) — as
+ * `std-<i>.csv` plus `standards.csv` (columns scan, CO_ppm) in a folder.
+ *
+ * @param at - maps a file name to its path in the folder
+ * @param metadata - the scans' conditions
+ * @returns the manifest's path
+ */
+export function writeStandardSeries(at: (name: string) => string, metadata: ScanMetadata): string {
+  const rows = ['scan,CO_ppm'];
+  [0, 0, 50, 50, 100, 100, 200, 200, 400, 400].forEach((ppm, i) => {
+    writeScan(at(`std-${i}.csv`), bandScan(ppm * (1 + 0.002 * Math.sin(7 * i + 1)), { metadata }));
+    rows.push(`std-${i}.csv,${ppm}`);
+  });
+  writeFileSync(at('standards.csv'), `${rows.join('\n')}\n`);
+  return at('standards.csv');
+}

@@ -4,7 +4,7 @@
 import { mkdtempSync, readdirSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { main } from '../../src/cli/main.js';
+import { runCaptured } from '../../src/cli/main.js';
 
 /** What a command printed and returned. */
 export interface CliRun {
@@ -18,15 +18,8 @@ export interface CliRun {
  *
  * @param args - arguments after the program name
  */
-export async function runCli(...args: string[]): Promise<CliRun> {
-  let stdout = '';
-  let stderr = '';
-  const status = await main(['node', 'bandwright', ...args], {
-    stdout: { write: (s: string) => (stdout += s) },
-    stderr: { write: (s: string) => (stderr += s) },
-    interactive: false,
-  });
-  return { status, stdout, stderr };
+export function runCli(...args: string[]): Promise<CliRun> {
+  return runCaptured(args);
 }
 
 /** A fresh temporary folder; `cleanup` removes it. */

@@ -6,6 +6,7 @@
  * instrument kernel applied to transmittance). These are shape generators only; physical line
  * lists, partition functions and instrument line shapes belong to `src/simulate/`.
  */
+import { createRandom } from '../../src/simulate/random.js';
 
 /** A uniform ascending grid from `start` to `end` (inclusive) with spacing `step`, cm⁻¹. */
 export function uniformGrid(start: number, end: number, step: number): Float64Array {
@@ -54,14 +55,8 @@ export function withLinearBaseline(spectrum: Float64Array, grid: Float64Array, o
 
 /** A seeded generator of standard normal deviates (mulberry32 uniforms, Box–Muller). */
 export function normalGenerator(seed: number): () => number {
-  let state = seed >>> 0;
-  const uniform = (): number => {
-    state = (state + 0x6d2b79f5) >>> 0;
-    let t = state;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
+  // The project's mulberry32 generator; the Box–Muller pairing below is this helper's own.
+  const uniform = createRandom(seed);
   let spare: number | undefined;
   return () => {
     if (spare !== undefined) {

@@ -13,6 +13,7 @@ import {
   type UnivariateModel,
   type WeightScheme,
 } from '../../src/models/univariate.js';
+import { createRandom } from '../../src/simulate/random.js';
 import { leastSquares } from '../../src/stats/least-squares.js';
 import { expectAbsolute, expectRelative, loadDataset } from '../fixtures/nist-strd/nist.js';
 
@@ -42,14 +43,8 @@ function expectError(action: () => unknown, code: string, fragment: RegExp): voi
 
 /** Seeded uniform generator (mulberry32) and Box–Muller normal deviates, for reproducible noise. */
 function seededNormal(seed: number): { uniform: () => number; normal: () => number } {
-  let state = seed >>> 0;
-  const uniform = (): number => {
-    state = (state + 0x6d2b79f5) >>> 0;
-    let t = state;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
+  // The project's mulberry32 generator; the Box–Muller pairing below is this helper's own.
+  const uniform = createRandom(seed);
   const normal = (): number => {
     let u = 0;
     while (u === 0) u = uniform();
