@@ -10,9 +10,9 @@
  * SIGKILL, ends the process at once: any earlier file of that name is left untouched and the
  * partial file holds the rows written so far.
  */
-import { isFailure, reportedGases, type BatchEntry, type Calibration, type QuantifyOptions, type YKind } from '../index.js';
+import { reportedGases, type BatchEntry, type Calibration, type QuantifyOptions, type YKind } from '../index.js';
 import { csvFileSink, jsonDocumentSink, jsonLinesFileSink, TABLE_PAGE_SCANS, textTableSink, type EntrySink } from './batch-output.js';
-import type { BatchSetup } from './batch-scan.js';
+import type { BatchSetup, LineFormat } from './batch-scan.js';
 import { MIN_SCANS_FOR_WORKERS, runBatch, workerCount } from './batch.js';
 import { note, raiseStatus, type CommandContext } from './context.js';
 import { createProgress } from './progress.js';
@@ -77,15 +77,24 @@ export async function runQuantifyBatch(context: CommandContext, request: Quantif
   const level = options.level ?? 0.95;
   const gases = reportedGases(calibration).map((g) => ({ gas: g.gas, unit: options.unit ?? g.unit }));
   const sinks: EntrySink[] = [];
+  const lineFormats: LineFormat[] = [];
   try {
-    if (request.csv !== undefined) sinks.push(csvFileSink(request.csv, gases, calibration.sha256, { mode: 'replace', overwrite: request.force === true }));
-    if (request.jsonl !== undefined) sinks.push(jsonLinesFileSink(request.jsonl, calibration.sha256, { mode: 'replace', overwrite: request.force === true }));
+    if (request.csv !== undefined) {
+      sinks.push(csvFileSink(request.csv, gases, lineFormats.length, { mode: 'replace', overwrite: request.force === true }));
+      lineFormats.push({ kind: 'csv', gases, sha256: calibration.sha256 });
+    }
+    if (request.jsonl !== undefined) {
+      sinks.push(jsonLinesFileSink(request.jsonl, lineFormats.length, { mode: 'replace', overwrite: request.force === true }));
+      lineFormats.push({ kind: 'jsonl', sha256: calibration.sha256 });
+    }
   } catch (error) {
     for (const sink of sinks) sink.abort();
     throw error;
   }
   if (request.json) sinks.push(jsonDocumentSink(context.stdout, { file: request.calibrationPath, sha256: calibration.sha256 }, level));
   else if (!request.quiet) sinks.push(textTableSink(context.stdout, level));
+  // Whole entries travel only when an output needs more than its lines.
+  const keepEntries = request.json || !request.quiet || request.keepEntries === true;
 
   const total = request.paths.length;
   const progress = createProgress(context, { total });
@@ -117,24 +126,25 @@ export async function runQuantifyBatch(context: CommandContext, request: Quantif
     process.on('SIGTERM', onTerminate);
   }
 
-  const setup: BatchSetup = { calibration, options, ...(request.yKind === undefined ? {} : { yKind: request.yKind }) };
+  const setup: BatchSetup = { calibration, options, lineFormats, keepEntries, ...(request.yKind === undefined ? {} : { yKind: request.yKind }) };
   const started = performance.now();
   const workers = workerCount(request.workers, total, request.paths.includes('-'));
   try {
-    await runBatch(setup, request.paths, {
+    const outcome = await runBatch(setup, request.paths, {
       workers,
       shouldStop: () => interruptedBy !== undefined,
-      onEntry: (entry) => {
-        for (const sink of sinks) sink.add(entry);
-        if (request.keepEntries) entries.push(entry);
+      onItem: (item) => {
+        for (const sink of sinks) sink.add(item);
+        if (request.keepEntries && item.entry !== undefined) entries.push(item.entry);
         done++;
-        if (isFailure(entry)) {
+        if (item.error !== undefined) {
           failed++;
-          progress.note(`bandwright: ${entry.error}`);
+          progress.note(`bandwright: ${item.error}`);
         }
         progress.update(done, failed);
       },
     });
+    if (outcome.workersOutOfMemory > 0) progress.note(`bandwright: ${outcome.workersOutOfMemory} worker thread(s) ran out of heap; their scans were quantified in the main thread`);
     progress.finish();
     for (const sink of sinks) sink.finish();
   } catch (error) {

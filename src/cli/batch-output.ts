@@ -1,16 +1,18 @@
 /**
  * Where the entries of a batch go, one at a time as they come: a results CSV or JSON-lines file
- * (through the streaming results writer), the terminal table, or the `--json` document on stdout.
+ * (rows made by `batch-scan.ts` where the scan was quantified, written through the streaming
+ * results writer), the terminal table, or the `--json` document on stdout.
  * Each output holds at most one page of entries, so memory stays flat in the number of scans,
  * and each gives the same text as the whole-batch formatters of `report/results.ts`.
  */
-import { formatCsv, formatResultsText, openResultsWriter, resultColumns, resultRow, resultsDocument, type BatchEntry, type ResultsWriter } from '../index.js';
+import { formatCsv, formatResultsText, openResultsWriter, resultColumns, resultsDocument, type BatchEntry, type ResultsWriter } from '../index.js';
+import type { BatchItem, ResultGases } from './batch-scan.js';
 import type { TextSink } from './context.js';
 
 /** One output of a batch. */
 export interface EntrySink {
-  /** Takes the next entry (input order). */
-  add(entry: BatchEntry): void;
+  /** Takes the next scan's item (input order). */
+  add(item: BatchItem): void;
   /** Completes the output (closing text, rename into place). */
   finish(): void;
   /** Gives up (removes a temporary file); safe to call after a failed finish. */
@@ -19,35 +21,15 @@ export interface EntrySink {
   readonly doneMessage?: string;
 }
 
-/** Gases as result columns: name and unit, in calibration order. */
-export type ResultGases = readonly { gas: string; unit: string }[];
-
 /** The header line of a results CSV for these gases. */
 export function resultsCsvHeader(gases: ResultGases): string {
   return formatCsv(resultColumns(gases), []);
 }
 
-/**
- * One results CSV row, exactly as `resultsCsv` writes it.
- *
- * @param entry - result or failure
- * @param gases - gases in column order
- * @param sha256 - the calibration's hash
- */
-export function resultsCsvRow(entry: BatchEntry, gases: ResultGases, sha256: string): string {
-  // formatCsv with no columns writes an empty header line; the rest is the row as resultsCsv writes it.
-  return formatCsv([], [resultRow(entry, gases, sha256)]).slice(1);
-}
-
-/**
- * One JSON-lines record: the entry of `quantify --json`'s `results` with the calibration's hash,
- * so a line can be traced on its own.
- *
- * @param entry - result or failure
- * @param sha256 - the calibration's hash
- */
-export function resultsJsonLine(entry: BatchEntry, sha256: string): string {
-  return `${JSON.stringify({ ...entry, calibrationSha256: sha256 })}\n`;
+/** The entry of an item, for the outputs that need it (the batch keeps entries for them). */
+function entryOf(item: BatchItem): BatchEntry {
+  if (item.entry === undefined) throw new Error('batch output needs entries but the batch was set up without keepEntries');
+  return item.entry;
 }
 
 /** Options shared by the file outputs. */
@@ -59,19 +41,19 @@ export interface FileSinkOptions {
 }
 
 /**
- * A results CSV written as entries come.
+ * A results CSV written as rows come.
  *
  * @param path - the CSV file
- * @param gases - gases in column order
- * @param sha256 - the calibration's hash
+ * @param gases - gases in column order (for the header)
+ * @param line - which of the batch's line formats holds this file's rows (a `csv` one for these gases)
  * @param options - mode and overwrite
  * @throws BandwrightError from {@link openResultsWriter}
  */
-export function csvFileSink(path: string, gases: ResultGases, sha256: string, options: FileSinkOptions): EntrySink & { writer: ResultsWriter } {
+export function csvFileSink(path: string, gases: ResultGases, line: number, options: FileSinkOptions): EntrySink & { writer: ResultsWriter } {
   const writer = openResultsWriter(path, { mode: options.mode, header: resultsCsvHeader(gases), overwrite: options.overwrite === true, createFolder: true });
   return {
     writer,
-    add: (entry) => writer.write(resultsCsvRow(entry, gases, sha256)),
+    add: (item) => writer.write(item.lines[line] as string),
     finish: () => writer.commit(),
     abort: () => writer.abort(),
     doneMessage: `results written to ${path}`,
@@ -79,18 +61,18 @@ export function csvFileSink(path: string, gases: ResultGases, sha256: string, op
 }
 
 /**
- * A JSON-lines results file written as entries come.
+ * A JSON-lines results file written as records come.
  *
  * @param path - the file
- * @param sha256 - the calibration's hash
+ * @param line - which of the batch's line formats holds this file's records (a `jsonl` one)
  * @param options - mode and overwrite
  * @throws BandwrightError from {@link openResultsWriter}
  */
-export function jsonLinesFileSink(path: string, sha256: string, options: FileSinkOptions): EntrySink & { writer: ResultsWriter } {
+export function jsonLinesFileSink(path: string, line: number, options: FileSinkOptions): EntrySink & { writer: ResultsWriter } {
   const writer = openResultsWriter(path, { mode: options.mode, overwrite: options.overwrite === true, createFolder: true });
   return {
     writer,
-    add: (entry) => writer.write(resultsJsonLine(entry, sha256)),
+    add: (item) => writer.write(item.lines[line] as string),
     finish: () => writer.commit(),
     abort: () => writer.abort(),
     doneMessage: `results written to ${path}`,
@@ -101,7 +83,7 @@ export function jsonLinesFileSink(path: string, sha256: string, options: FileSin
 export const TABLE_PAGE_SCANS = 500;
 
 /**
- * The terminal table, printed a page at a time; a batch of at most `pageScans` scans prints exactly
+ * The terminal table, printed a page at a time (needs the batch to keep entries); a batch of at most `pageScans` scans prints exactly
  * the one table `formatResultsText` gives for all of it, longer batches one such table per page,
  * separated by a blank line.
  *
@@ -119,8 +101,8 @@ export function textTableSink(out: TextSink, level: number, pageScans: number = 
     page = [];
   };
   return {
-    add(entry) {
-      page.push(entry);
+    add(item) {
+      page.push(entryOf(item));
       if (page.length >= pageScans) print();
     },
     finish: print,
@@ -131,7 +113,7 @@ export function textTableSink(out: TextSink, level: number, pageScans: number = 
 }
 
 /**
- * The `quantify --json` document streamed entry by entry; the text is byte for byte what
+ * The `quantify --json` document streamed entry by entry (needs the batch to keep entries); the text is byte for byte what
  * `JSON.stringify(resultsDocument(entries, calibration, level), null, 2)` gives, plus a line break.
  *
  * @param out - standard output
@@ -151,8 +133,8 @@ export function jsonDocumentSink(out: TextSink, calibration: { file: string; sha
     out.write(count === 0 ? `${empty}\n` : '\n  ]\n}\n');
   };
   return {
-    add(entry) {
-      const text = JSON.stringify(entry, null, 2).replace(/\n/g, '\n    ');
+    add(item) {
+      const text = JSON.stringify(entryOf(item), null, 2).replace(/\n/g, '\n    ');
       out.write(`${count === 0 ? `${head}\n` : ',\n'}    ${text}`);
       count++;
     },

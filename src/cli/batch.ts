@@ -1,16 +1,18 @@
 /**
  * The batch engine behind `quantify` on many scans: scans are read and quantified one after
  * another in this thread, or in worker threads (`batch-worker.ts`) that each take chunks of paths;
- * either way entries come back to the caller strictly in input order, a few chunks at a time, so
- * memory stays flat in the number of scans. A stop request (Ctrl-C, SIGTERM) ends the dispatch of
+ * either way items (a scan's result lines, its failure, its entry if kept) come back to the
+ * caller strictly in input order, a few chunks at a time, so memory stays flat in the number of
+ * scans. A stop request (Ctrl-C, SIGTERM) ends the dispatch of
  * new chunks; the chunks already handed out are finished and delivered, then the engine returns.
  */
 import { createRequire } from 'node:module';
 import { availableParallelism, loadavg } from 'node:os';
 import { pathToFileURL } from 'node:url';
 import { Worker, type WorkerOptions } from 'node:worker_threads';
-import { BandwrightError, type BatchEntry } from '../index.js';
-import { createScanQuantifier, type BatchSetup } from './batch-scan.js';
+import { BandwrightError } from '../index.js';
+import { computedQuantiles } from '../stats/distributions.js';
+import { createScanQuantifier, type BatchItem, type BatchSetup, type ScanQuantifier } from './batch-scan.js';
 
 /** A chunk of paths sent to a worker; `first` is the input index of the chunk's first path. */
 export interface WorkerTask {
@@ -18,8 +20,20 @@ export interface WorkerTask {
   paths: string[];
 }
 
-/** A worker's answer: the chunk's entries in order, or the text of a fault that is not about a scan. */
-export type WorkerReply = { first: number; entries: BatchEntry[] } | { first: number; fault: string };
+/** What a worker starts from: the batch setup and the t and F quantiles this thread has computed. */
+export interface WorkerStart {
+  setup: BatchSetup;
+  quantiles: [string, number][];
+}
+
+/** A worker's answer: the chunk's items in order, or the text of a fault that is not about a scan. */
+export type WorkerReply = { first: number; items: BatchItem[] } | { first: number; fault: string };
+
+/** Heap limits of a worker thread, MB (see {@link WORKER_HEAP_LIMITS}). */
+export interface WorkerHeapLimits {
+  maxYoungGenerationSizeMb: number;
+  maxOldGenerationSizeMb: number;
+}
 
 /** Options of {@link runBatch}. */
 export interface RunBatchOptions {
@@ -27,18 +41,22 @@ export interface RunBatchOptions {
   workers: number;
   /** Paths per message to a worker (default 8). */
   chunkSize?: number;
-  /** Receives every entry, in input order, with its index. */
-  onEntry: (entry: BatchEntry, index: number) => void;
+  /** Receives every scan's item, in input order, with its index. */
+  onItem: (item: BatchItem, index: number) => void;
   /** Asked between scans (this thread) or chunks (workers): true stops the batch early. */
   shouldStop?: () => boolean;
+  /** Heap limits of each worker (default {@link WORKER_HEAP_LIMITS}). */
+  workerHeap?: WorkerHeapLimits;
 }
 
 /** What a batch did. */
 export interface BatchOutcome {
-  /** Entries delivered (results and failures). */
+  /** Items delivered (results and failures). */
   delivered: number;
   /** Whether the batch stopped before its last path. */
   stopped: boolean;
+  /** Workers that ran out of heap; their chunks were quantified in this thread instead. */
+  workersOutOfMemory: number;
 }
 
 /**
@@ -81,76 +99,94 @@ export function workerCount(requested: 'auto' | number, scans: number, fromStdin
  * new thread (a loader given in `execArgv` does not reach worker threads on Node 20) and then
  * imports `batch-worker.ts`.
  */
-function workerStart(setup: BatchSetup): { script: URL | string; options: WorkerOptions } {
+function workerStart(data: WorkerStart): { script: URL | string; options: WorkerOptions } {
   const here = import.meta.url;
-  if (!here.endsWith('.ts')) return { script: new URL('./batch-worker.js', here), options: { workerData: setup } };
+  if (!here.endsWith('.ts')) return { script: new URL('./batch-worker.js', here), options: { workerData: data } };
   const api = pathToFileURL(createRequire(here).resolve('tsx/esm/api').replace(/\.cjs$/, '.mjs')).href;
   const target = new URL('./batch-worker.ts', here).href;
   const code = `import(${JSON.stringify(api)}).then((tsx) => { tsx.register(); return import(${JSON.stringify(target)}); }).catch((error) => { setImmediate(() => { throw error; }); });`;
-  return { script: code, options: { eval: true, workerData: setup } };
+  return { script: code, options: { eval: true, workerData: data } };
 }
 
 /**
- * Quantifies every path, delivering entries in input order. With workers, this thread only hands
- * out chunks and passes the entries on (it writes the outputs); the workers quantify.
+ * Quantifies every path, delivering items in input order. With workers, this thread only hands
+ * out chunks and passes the items on (it writes the outputs); the workers quantify. A worker that
+ * runs out of heap (a scan far larger than usual) is stopped and its chunks are quantified in
+ * this thread, so such a batch still completes with the same results.
  *
- * @param setup - calibration, options, y-kind (sent to each worker)
+ * @param setup - calibration, options, y-kind, line formats (sent to each worker)
  * @param paths - scan paths in input order
- * @param options - worker count, chunk size, the entry callback, the stop test
- * @returns how many entries were delivered and whether the batch stopped early
- * @throws Error when a worker fails for a reason that is not about a scan, or when `onEntry`
+ * @param options - worker count, chunk size, the item callback, the stop test
+ * @returns how many items were delivered, whether the batch stopped early, workers lost to heap
+ * @throws Error when a worker fails for a reason that is not about a scan, or when `onItem`
  *   throws (the workers are stopped first)
  */
 export async function runBatch(setup: BatchSetup, paths: readonly string[], options: RunBatchOptions): Promise<BatchOutcome> {
   const shouldStop = options.shouldStop ?? (() => false);
-  if (options.workers <= 0 || paths.length === 0) return runHere(setup, paths, options.onEntry, shouldStop);
-  return runInWorkers(setup, paths, options.workers, options.chunkSize ?? 8, options.onEntry, shouldStop);
-}
-
-async function runHere(setup: BatchSetup, paths: readonly string[], onEntry: RunBatchOptions['onEntry'], shouldStop: () => boolean): Promise<BatchOutcome> {
   const quantify = createScanQuantifier(setup);
-  let lastYield = performance.now();
-  let delivered = 0;
-  for (let i = 0; i < paths.length; i++) {
-    if (shouldStop()) return { delivered, stopped: true };
-    onEntry(quantify(paths[i] as string), i);
-    delivered++;
-    // Let signals, timers and progress output through now and then.
-    const now = performance.now();
-    if (now - lastYield > 25) {
-      await new Promise<void>((resolve) => setImmediate(resolve));
-      lastYield = performance.now();
-    }
+  if (options.workers <= 0 || paths.length === 0) return runHere(quantify, paths, 0, options.onItem, shouldStop);
+  // This thread quantifies scans until one gives a result: the t and F quantiles it needed are
+  // then handed to the workers, which so need not load the distribution kernels (about 10 MB of
+  // memory each; `stats/distributions.ts`).
+  let first = 0;
+  for (let quantified = false; first < paths.length && !quantified; first++) {
+    if (shouldStop()) return { delivered: first, stopped: true, workersOutOfMemory: 0 };
+    const item = quantify(paths[first] as string);
+    options.onItem(item, first);
+    quantified = item.error === undefined;
   }
-  return { delivered, stopped: false };
+  if (first === paths.length) return { delivered: first, stopped: false, workersOutOfMemory: 0 };
+  const rest = await runInWorkers({ setup, quantiles: computedQuantiles() }, quantify, paths, first, options, shouldStop);
+  return { ...rest, delivered: first + rest.delivered };
 }
 
-function runInWorkers(
-  setup: BatchSetup,
-  paths: readonly string[],
-  count: number,
-  chunkSize: number,
-  onEntry: RunBatchOptions['onEntry'],
-  shouldStop: () => boolean,
-): Promise<BatchOutcome> {
-  const start = workerStart(setup);
+/** Lets signals, timers and progress output through now and then during work in this thread. */
+function createBreather(): () => Promise<void> | undefined {
+  let lastYield = performance.now();
+  return () => {
+    const now = performance.now();
+    if (now - lastYield <= 25) return undefined;
+    return new Promise<void>((resolve) =>
+      setImmediate(() => {
+        lastYield = performance.now();
+        resolve();
+      }),
+    );
+  };
+}
+
+async function runHere(quantify: ScanQuantifier, paths: readonly string[], from: number, onItem: RunBatchOptions['onItem'], shouldStop: () => boolean): Promise<BatchOutcome> {
+  const breathe = createBreather();
+  for (let i = from; i < paths.length; i++) {
+    if (shouldStop()) return { delivered: i - from, stopped: true, workersOutOfMemory: 0 };
+    onItem(quantify(paths[i] as string), i);
+    await breathe();
+  }
+  return { delivered: paths.length - from, stopped: false, workersOutOfMemory: 0 };
+}
+
+function runInWorkers(start: WorkerStart, quantifyHere: ScanQuantifier, paths: readonly string[], from: number, options: RunBatchOptions, shouldStop: () => boolean): Promise<BatchOutcome> {
+  const launch = workerStart(start);
+  const chunkSize = options.chunkSize ?? 8;
+  const resourceLimits = options.workerHeap ?? WORKER_HEAP_LIMITS;
   return new Promise<BatchOutcome>((resolve, reject) => {
-    const workers: Worker[] = [];
-    const ready = new Map<number, BatchEntry[]>();
-    let next = 0;
-    let nextToDeliver = 0;
-    let inFlight = 0;
+    /** Each running worker with the chunks it holds, oldest first (a worker answers in order). */
+    const running = new Map<Worker, WorkerTask[]>();
+    const ready = new Map<number, BatchItem[]>();
+    let next = from;
+    let nextToDeliver = from;
     let stopped = false;
     let settled = false;
+    let outOfMemory = 0;
     const finish = (error?: unknown): void => {
       if (settled) return;
       settled = true;
-      for (const worker of workers) void worker.terminate();
-      if (error === undefined) resolve({ delivered: nextToDeliver, stopped });
+      for (const worker of running.keys()) void worker.terminate();
+      if (error === undefined) resolve({ delivered: nextToDeliver - from, stopped, workersOutOfMemory: outOfMemory });
       else reject(error);
     };
     /** The next chunk of paths, or undefined when there is none or a stop was asked. */
-    const take = (): { first: number; paths: string[] } | undefined => {
+    const take = (): WorkerTask | undefined => {
       if (next >= paths.length || stopped) return undefined;
       if (shouldStop()) {
         stopped = true;
@@ -164,29 +200,59 @@ function runInWorkers(
     const dispatch = (worker: Worker): void => {
       const task = take();
       if (task === undefined) return;
-      inFlight++;
-      worker.postMessage(task satisfies WorkerTask);
+      running.get(worker)?.push(task);
+      worker.postMessage(task);
     };
     const deliver = (): void => {
-      for (let entries = ready.get(nextToDeliver); entries !== undefined; entries = ready.get(nextToDeliver)) {
+      for (let items = ready.get(nextToDeliver); items !== undefined; items = ready.get(nextToDeliver)) {
         ready.delete(nextToDeliver);
-        for (const entry of entries) onEntry(entry, nextToDeliver++);
+        for (const item of items) options.onItem(item, nextToDeliver++);
       }
     };
-    const finishWhenDone = (): void => {
-      if (inFlight === 0) finish();
+    const inFlight = (): number => {
+      let count = 0;
+      for (const tasks of running.values()) count += tasks.length;
+      return count;
     };
-    for (let w = 0; w < count; w++) {
-      const worker = new Worker(start.script, { ...start.options, resourceLimits: WORKER_RESOURCE_LIMITS });
-      workers.push(worker);
+    let finishingHere = false;
+    const finishWhenDone = (): void => {
+      if (running.size > 0) {
+        if (inFlight() === 0) finish();
+        return;
+      }
+      // Every worker ran out of heap: the rest of the batch is done here.
+      if (finishingHere) return;
+      finishingHere = true;
+      const deliverHere = (item: BatchItem, index: number): void => {
+        ready.set(index, [item]);
+        deliver();
+      };
+      runHere(quantifyHere, paths, next, deliverHere, () => stopped || shouldStop()).then((outcome) => {
+        stopped = stopped || outcome.stopped;
+        finish();
+      }, finish);
+    };
+    /** A worker ran out of heap: its chunks are quantified here, the others go on. */
+    const retire = (worker: Worker): void => {
+      const tasks = running.get(worker) ?? [];
+      running.delete(worker);
+      void worker.terminate();
+      outOfMemory++;
+      for (const task of tasks) ready.set(task.first, task.paths.map(quantifyHere));
+      deliver();
+      finishWhenDone();
+    };
+    for (let w = 0; w < options.workers; w++) {
+      const worker = new Worker(launch.script, { ...launch.options, resourceLimits });
+      running.set(worker, []);
       worker.on('message', (reply: WorkerReply) => {
         if (settled) return;
-        inFlight--;
+        running.get(worker)?.shift();
         if ('fault' in reply) {
           finish(new Error(`worker thread: ${reply.fault}`));
           return;
         }
-        ready.set(reply.first, reply.entries);
+        ready.set(reply.first, reply.items);
         try {
           deliver();
         } catch (error) {
@@ -196,25 +262,38 @@ function runInWorkers(
         dispatch(worker);
         finishWhenDone();
       });
-      worker.on('error', (error) => finish(error));
+      worker.on('error', (error: Error & { code?: string }) => {
+        if (settled || !running.has(worker)) return;
+        if (error.code !== 'ERR_WORKER_OUT_OF_MEMORY') {
+          finish(error);
+          return;
+        }
+        try {
+          retire(worker);
+        } catch (failure) {
+          finish(failure);
+        }
+      });
       worker.on('exit', (code) => {
-        if (!settled) finish(new Error(`worker thread stopped with exit code ${code} before the batch was done`));
+        if (!settled && running.has(worker)) finish(new Error(`worker thread stopped with exit code ${code} before the batch was done`));
       });
     }
     // Two chunks per worker in flight, so a worker never waits for this thread.
-    for (let round = 0; round < 2; round++) for (const worker of workers) dispatch(worker);
+    for (let round = 0; round < 2; round++) for (const worker of running.keys()) dispatch(worker);
     finishWhenDone();
   });
 }
 
 /**
- * Heap limits of a worker thread: a bounded young generation makes scavenges frequent enough that
- * the spectra of finished scans (held outside the JavaScript heap) are freed soon and the process
- * stays small. 16 MB rather than 4: with two workers on 14,000-point scans it quantified 12 %
- * more scans per second (fewer scavenges) at the same or lower peak RSS (measured with
- * `bench/batch.ts`).
+ * Heap limits of a worker thread. The young generation: 8 MB rather than 16 gave the same speed
+ * with two workers on 14,000-point scans and a smaller process. The old generation: without a
+ * limit V8 lets each worker's promoted garbage grow for tens of thousands of scans before a full
+ * collection (the process grew from 150 MB at 10,000 scans to over 200 MB at 30,000); 32 MB, some
+ * four times a worker's live heap (calibration, code, one scan in hand; typed arrays are outside
+ * it), keeps it flat at the same speed (bench/batch.ts). A worker that still runs out (a scan far
+ * larger than usual) hands its chunks back to this thread.
  */
-const WORKER_RESOURCE_LIMITS = { maxYoungGenerationSizeMb: 16 } as const;
+export const WORKER_HEAP_LIMITS: WorkerHeapLimits = { maxYoungGenerationSizeMb: 8, maxOldGenerationSizeMb: 32 };
 
 /**
  * Parses `--workers`: `auto` or a whole number ≥ 0.

@@ -26,7 +26,7 @@ import {
   readScanList,
 } from '../index.js';
 import { QUANTIFY_BATCH_HELP, runQuantifyBatch } from './batch-command.js';
-import { resultsJsonLine } from './batch-output.js';
+import { resultsJsonLine } from './batch-scan.js';
 import { workersOption } from './batch.js';
 import { conditionOptions, yKindOption } from './calibrate.js';
 import { note, raiseStatus, type CommandContext } from './context.js';

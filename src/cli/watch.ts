@@ -19,7 +19,7 @@ import {
   type ProcessedRecordFile,
 } from '../index.js';
 import { csvFileSink, jsonLinesFileSink, type EntrySink } from './batch-output.js';
-import { createScanQuantifier } from './batch-scan.js';
+import { createScanQuantifier, type LineFormat } from './batch-scan.js';
 import { yKindOption } from './calibrate.js';
 import { note, raiseStatus, type CommandContext } from './context.js';
 import { parseNumberOption } from './parse.js';
@@ -100,16 +100,23 @@ export function registerWatch(program: Command, context: CommandContext): void {
       const processed = statePath === undefined ? new Map<string, FileStamp>() : readProcessedRecord(statePath);
       const watcher = createFolderWatcher(folder, { settleMs, pollMs, processed, ignore: [flags.csv, flags.jsonl, statePath].filter((p): p is string => p !== undefined) });
       const sinks: EntrySink[] = [];
+      const lineFormats: LineFormat[] = [];
       let record: ProcessedRecordFile | undefined;
       try {
-        if (flags.csv !== undefined) sinks.push(csvFileSink(flags.csv, gases, calibration.sha256, { mode: 'append' }));
-        if (flags.jsonl !== undefined) sinks.push(jsonLinesFileSink(flags.jsonl, calibration.sha256, { mode: 'append' }));
+        if (flags.csv !== undefined) {
+          sinks.push(csvFileSink(flags.csv, gases, lineFormats.length, { mode: 'append' }));
+          lineFormats.push({ kind: 'csv', gases, sha256: calibration.sha256 });
+        }
+        if (flags.jsonl !== undefined) {
+          sinks.push(jsonLinesFileSink(flags.jsonl, lineFormats.length, { mode: 'append' }));
+          lineFormats.push({ kind: 'jsonl', sha256: calibration.sha256 });
+        }
         if (statePath !== undefined) record = openProcessedRecord(statePath);
       } catch (error) {
         for (const sink of sinks) sink.abort();
         throw error;
       }
-      const quantify = createScanQuantifier({ calibration, options, ...(yKind === undefined ? {} : { yKind }) });
+      const quantify = createScanQuantifier({ calibration, options, lineFormats, keepEntries: true, ...(yKind === undefined ? {} : { yKind }) });
 
       let stopping: string | undefined;
       let wake: (() => void) | undefined;
@@ -160,11 +167,12 @@ export function registerWatch(program: Command, context: CommandContext): void {
         for (const file of ready) {
           if (stopping !== undefined) return;
           if (file.previously !== undefined) note(context, `bandwright: ${file.path} changed after it was quantified (size ${file.previously.size} → ${file.stamp.size} bytes); quantified again`);
-          const entry = quantify(file.path);
-          for (const sink of sinks) sink.add(entry);
+          const item = quantify(file.path);
+          for (const sink of sinks) sink.add(item);
           record?.add(file.name, file.stamp);
           watcher.markProcessed(file);
           done++;
+          const entry = item.entry as BatchEntry;
           if (isFailure(entry)) {
             failed++;
             note(context, `bandwright: ${entry.error}`);

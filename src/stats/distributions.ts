@@ -4,12 +4,73 @@
  * Thin wrappers around the @stdlib kernels (no tables, no home-made series). These are scalar
  * numeric kernels: outside their domain they return NaN rather than throw, so callers that
  * feed them user input check the result (see {@link criticalT}, which throws).
+ *
+ * The kernels are loaded on first use, and quantiles are remembered: the @stdlib packages are
+ * some 200 small modules, about 10 MB of memory in every thread that loads them, while a batch
+ * worker quantifying scans needs only the few quantiles its calibration's degrees of freedom
+ * give. The batch hands a worker the quantiles already computed ({@link computedQuantiles},
+ * {@link adoptQuantiles}), so a worker loads the kernels only if it meets a new one.
  */
-import tCdfKernel from '@stdlib/stats-base-dists-t-cdf';
-import tQuantileKernel from '@stdlib/stats-base-dists-t-quantile';
-import fCdfKernel from '@stdlib/stats-base-dists-f-cdf';
-import fQuantileKernel from '@stdlib/stats-base-dists-f-quantile';
+import { createRequire } from 'node:module';
 import { BandwrightError } from '../errors.js';
+
+interface Kernels {
+  tCdf: typeof import('@stdlib/stats-base-dists-t-cdf');
+  tQuantile: typeof import('@stdlib/stats-base-dists-t-quantile');
+  fCdf: typeof import('@stdlib/stats-base-dists-f-cdf');
+  fQuantile: typeof import('@stdlib/stats-base-dists-f-quantile');
+}
+
+let kernels: Kernels | undefined;
+
+function loadKernels(): Kernels {
+  if (kernels === undefined) {
+    const require = createRequire(import.meta.url);
+    kernels = {
+      tCdf: require('@stdlib/stats-base-dists-t-cdf') as Kernels['tCdf'],
+      tQuantile: require('@stdlib/stats-base-dists-t-quantile') as Kernels['tQuantile'],
+      fCdf: require('@stdlib/stats-base-dists-f-cdf') as Kernels['fCdf'],
+      fQuantile: require('@stdlib/stats-base-dists-f-quantile') as Kernels['fQuantile'],
+    };
+  }
+  return kernels;
+}
+
+/**
+ * Quantiles computed so far, by their arguments. Bounded: a fit with fractional (Satterthwaite)
+ * degrees of freedom asks for many one-off values, and a long `watch` must not grow with them.
+ */
+const quantiles = new Map<string, number>();
+const MAX_REMEMBERED_QUANTILES = 512;
+
+function remembered(key: string, compute: () => number): number {
+  const known = quantiles.get(key);
+  if (known !== undefined) return known;
+  const value = compute();
+  if (quantiles.size >= MAX_REMEMBERED_QUANTILES) quantiles.clear();
+  quantiles.set(key, value);
+  return value;
+}
+
+/**
+ * The t and F quantiles this thread has computed, as plain data another thread can adopt.
+ *
+ * @returns pairs of (arguments key, quantile)
+ */
+export function computedQuantiles(): [string, number][] {
+  return [...quantiles];
+}
+
+/**
+ * Takes over quantiles computed by another thread (from {@link computedQuantiles}), so this
+ * thread need not load the kernels for them. The values are the kernels' own, so results are
+ * identical either way.
+ *
+ * @param entries - pairs of (arguments key, quantile)
+ */
+export function adoptQuantiles(entries: readonly (readonly [string, number])[]): void {
+  for (const [key, value] of entries) if (quantiles.size < MAX_REMEMBERED_QUANTILES) quantiles.set(key, value);
+}
 
 /**
  * Quantile of Student's t distribution: the value t with P(T ≤ t) = p.
@@ -24,7 +85,7 @@ import { BandwrightError } from '../errors.js';
  * tQuantile(0.975, 8); // 2.306004135204166, the two-sided 95 % value for 8 degrees of freedom
  */
 export function tQuantile(p: number, df: number): number {
-  return tQuantileKernel(p, df);
+  return remembered(`t ${p} ${df}`, () => loadKernels().tQuantile(p, df));
 }
 
 /**
@@ -37,7 +98,7 @@ export function tQuantile(p: number, df: number): number {
  * @returns probability 0…1, or NaN outside the domain
  */
 export function tCdf(x: number, df: number): number {
-  return tCdfKernel(x, df);
+  return loadKernels().tCdf(x, df);
 }
 
 /**
@@ -53,7 +114,7 @@ export function tCdf(x: number, df: number): number {
  * fQuantile(0.99, 1, 7); // 12.246…, the Mandel test's critical value for 10 standards
  */
 export function fQuantile(p: number, d1: number, d2: number): number {
-  return fQuantileKernel(p, d1, d2);
+  return remembered(`F ${p} ${d1} ${d2}`, () => loadKernels().fQuantile(p, d1, d2));
 }
 
 /**
@@ -67,7 +128,7 @@ export function fQuantile(p: number, d1: number, d2: number): number {
  * @returns probability 0…1, or NaN outside the domain
  */
 export function fCdf(x: number, d1: number, d2: number): number {
-  return fCdfKernel(x, d1, d2);
+  return loadKernels().fCdf(x, d1, d2);
 }
 
 /**

@@ -13,7 +13,10 @@ import { join } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import Papa from 'papaparse';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { jsonDocumentSink, resultsCsvRow, textTableSink } from '../../src/cli/batch-output.js';
+import { jsonDocumentSink, textTableSink } from '../../src/cli/batch-output.js';
+import { resultsCsvRow, type BatchItem, type BatchSetup } from '../../src/cli/batch-scan.js';
+import { runBatch, type WorkerHeapLimits } from '../../src/cli/batch.js';
+import { readCalibration } from '../../src/io/calibration-file.js';
 import { formatResultsText, resultsCsv, resultsDocument, type BatchEntry } from '../../src/index.js';
 import { BAND_OPTIONS, bandScan, writeScan, writeStandardSeries } from '../helpers/band-scans.js';
 import { runCli, temporaryFolder } from '../helpers/cli.js';
@@ -71,7 +74,31 @@ describe('a 2,000-scan batch with 3 corrupt files', () => {
     expect(readFileSync(at('workers.jsonl'), 'utf8')).toBe(readFileSync(at('thread.jsonl'), 'utf8'));
     const threadJson = await runCli('quantify', at('co.json'), at('scans'), '--workers', '0', '--json');
     expect(run.stdout).toBe(threadJson.stdout);
+    // Without --json the workers send only the result lines, not the entries: same files.
+    const quiet = await runCli('quantify', at('co.json'), at('scans'), '--csv', at('workers-quiet.csv'), '--jsonl', at('workers-quiet.jsonl'), '--workers', '2', '--quiet');
+    expect(quiet.status).toBe(1);
+    expect(quiet.stderr).toMatch(/2 worker threads/);
+    expect(readFileSync(at('workers-quiet.csv'), 'utf8')).toBe(inThread);
+    expect(readFileSync(at('workers-quiet.jsonl'), 'utf8')).toBe(readFileSync(at('thread.jsonl'), 'utf8'));
   });
+
+  it('finishes in this thread, with the same items, when the workers run out of heap', async () => {
+    const calibration = readCalibration(at('co.json'));
+    const paths = names.slice(0, 120).map((name) => at(name));
+    const setup: BatchSetup = { calibration, options: {}, lineFormats: [{ kind: 'csv', gases: [{ gas: 'CO', unit: 'ppm' }], sha256: calibration.sha256 }], keepEntries: true };
+    const collect = async (workers: number, workerHeap?: WorkerHeapLimits) => {
+      const items: { item: BatchItem; index: number }[] = [];
+      const outcome = await runBatch(setup, paths, { workers, onItem: (item, index) => items.push({ item, index }), ...(workerHeap === undefined ? {} : { workerHeap }) });
+      return { items, outcome };
+    };
+    const here = await collect(0);
+    // A heap far too small for the worker to even load its modules.
+    const starved = await collect(2, { maxYoungGenerationSizeMb: 1, maxOldGenerationSizeMb: 2 });
+    expect(starved.outcome).toEqual({ delivered: 120, stopped: false, workersOutOfMemory: 2 });
+    expect(starved.items.map((entry) => entry.index)).toEqual(paths.map((_, i) => i));
+    expect(starved.items).toEqual(here.items);
+    expect(here.items[17]?.item.error).toMatch(/s0017\.jdx/);
+  }, 60_000);
 
   it('writes one results element per JSON line, each with the calibration hash', () => {
     const calibrationSha256 = JSON.parse(readFileSync(at('co.json'), 'utf8')).sha256;
@@ -99,7 +126,7 @@ describe('streamed outputs give the whole-batch text', () => {
     for (const count of [0, 1, 3]) {
       const out = collect();
       const sink = jsonDocumentSink(out.sink, calibration, 0.95);
-      for (const entry of entries.slice(0, count)) sink.add(entry);
+      for (const entry of entries.slice(0, count)) sink.add({ lines: [], entry });
       sink.finish();
       expect(out.text()).toBe(`${JSON.stringify(resultsDocument(entries.slice(0, count), calibration, 0.95), null, 2)}\n`);
     }
@@ -108,12 +135,12 @@ describe('streamed outputs give the whole-batch text', () => {
   it('the table of a batch within one page equals formatResultsText; longer batches come in pages', () => {
     const out = collect();
     const sink = textTableSink(out.sink, 0.9);
-    for (const entry of entries) sink.add(entry);
+    for (const entry of entries) sink.add({ lines: [], entry });
     sink.finish();
     expect(out.text()).toBe(`${formatResultsText(entries, 0.9)}\n`);
     const paged = collect();
     const pages = textTableSink(paged.sink, 0.95, 2);
-    for (const entry of entries) pages.add(entry);
+    for (const entry of entries) pages.add({ lines: [], entry });
     pages.finish();
     expect(paged.text()).toBe(`${formatResultsText(entries.slice(0, 2), 0.95)}\n\n${formatResultsText(entries.slice(2), 0.95)}\n`);
   });

@@ -1,7 +1,7 @@
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { BandwrightError } from '../../src/errors.js';
-import { criticalT, fCdf, fQuantile, tCdf, tQuantile } from '../../src/stats/distributions.js';
+import { adoptQuantiles, computedQuantiles, criticalT, fCdf, fQuantile, tCdf, tQuantile } from '../../src/stats/distributions.js';
 
 interface Fixture {
   generator: { scipy: string };
@@ -97,5 +97,28 @@ describe('closed forms and printed tables', () => {
   it('criticalT gives two- and one-sided values', () => {
     expect(criticalT(0.95, 8)).toBe(tQuantile(0.975, 8));
     expect(criticalT(0.99, 8, { sides: 1 })).toBe(tQuantile(0.99, 8));
+  });
+});
+
+describe('remembered quantiles (handed from the batch thread to its workers)', () => {
+  it('lists each quantile computed with its arguments, and a value taken over is the one returned', () => {
+    // t(0.975, 8) = 2.306004135204166, the two-sided 95 % value for 8 degrees of freedom (SciPy
+    // stats.t.ppf; printed tables give 2.306).
+    const value = tQuantile(0.975, 8);
+    expect(value).toBeCloseTo(2.306004135204166, 14);
+    expect(computedQuantiles()).toContainEqual(['t 0.975 8', value]);
+    const f = fQuantile(0.99, 1, 7);
+    expect(computedQuantiles()).toContainEqual(['F 0.99 1 7', f]);
+    // Another thread's list adopted here answers without the kernels; a key is the exact arguments.
+    adoptQuantiles([['t 0.9 123.25', 1.5]]);
+    expect(tQuantile(0.9, 123.25)).toBe(1.5);
+    // Printed t tables give 1.289 for 120 degrees of freedom at 90 % one-sided (from memory).
+    expect(tQuantile(0.9, 123.5)).toBeCloseTo(1.2884, 3);
+  });
+
+  it('stays bounded when many one-off quantiles are asked for', () => {
+    for (let i = 0; i < 2_000; i++) fQuantile(0.99, 1 + i / 7, 30);
+    expect(computedQuantiles().length).toBeLessThanOrEqual(512);
+    expect(fQuantile(0.99, 1, 7)).toBeCloseTo(12.246, 3);
   });
 });
