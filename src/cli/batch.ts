@@ -74,7 +74,7 @@ export const MIN_SCANS_FOR_WORKERS = 2_000;
  * none. Measured in `bench/batch.ts` on a 2-core machine: two workers, with this thread only
  * writing, use some 10 % more processor time than this thread alone, so they pay only when two
  * cores are free (close to half the wall time then); with one core busy elsewhere they were
- * slower than this thread alone, and they add 20–40 MB to the peak RSS. One worker never pays
+ * slower than this thread alone, and they add some 20 MB to the peak RSS. One worker never pays
  * (it does this thread's work at the same speed). A scan from standard input keeps the batch
  * in this thread.
  *
