@@ -140,27 +140,17 @@ export async function runBatch(setup: BatchSetup, paths: readonly string[], opti
   return { ...rest, delivered: first + rest.delivered };
 }
 
-/** Lets signals, timers and progress output through now and then during work in this thread. */
-function createBreather(): () => Promise<void> | undefined {
-  let lastYield = performance.now();
-  return () => {
-    const now = performance.now();
-    if (now - lastYield <= 25) return undefined;
-    return new Promise<void>((resolve) =>
-      setImmediate(() => {
-        lastYield = performance.now();
-        resolve();
-      }),
-    );
-  };
-}
-
 async function runHere(quantify: ScanQuantifier, paths: readonly string[], from: number, onItem: RunBatchOptions['onItem'], shouldStop: () => boolean): Promise<BatchOutcome> {
-  const breathe = createBreather();
+  let lastYield = performance.now();
   for (let i = from; i < paths.length; i++) {
     if (shouldStop()) return { delivered: i - from, stopped: true, workersOutOfMemory: 0 };
     onItem(quantify(paths[i] as string), i);
-    await breathe();
+    // Let signals, timers and progress output through now and then.
+    const now = performance.now();
+    if (now - lastYield > 25) {
+      await new Promise<void>((resolve) => setImmediate(resolve));
+      lastYield = performance.now();
+    }
   }
   return { delivered: paths.length - from, stopped: false, workersOutOfMemory: 0 };
 }
@@ -246,7 +236,8 @@ function runInWorkers(start: WorkerStart, quantifyHere: ScanQuantifier, paths: r
       const worker = new Worker(launch.script, { ...launch.options, resourceLimits });
       running.set(worker, []);
       worker.on('message', (reply: WorkerReply) => {
-        if (settled) return;
+        // A retired worker's late answer: its chunks were redone here.
+        if (settled || !running.has(worker)) return;
         running.get(worker)?.shift();
         if ('fault' in reply) {
           finish(new Error(`worker thread: ${reply.fault}`));
