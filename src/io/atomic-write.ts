@@ -1,10 +1,56 @@
 /**
  * Atomic file output: write to a temporary name in the same folder, flush, then rename into
- * place, so a reader (or a crash) never sees a half-written file.
+ * place, so a reader (or a crash) never sees a half-written file. A temporary left by a process
+ * killed outright (SIGKILL, power loss) is never a file anyone needs: the target is either the
+ * old or the new one. The next write of the same target removes such leftovers.
  */
-import { closeSync, existsSync, fsyncSync, openSync, renameSync, unlinkSync, writeSync, mkdirSync } from 'node:fs';
+import { closeSync, existsSync, fsyncSync, openSync, readdirSync, renameSync, statSync, unlinkSync, writeSync, mkdirSync } from 'node:fs';
 import { basename, dirname, join } from 'node:path';
 import { BandwrightError } from '../errors.js';
+import { processRuns } from './lock.js';
+
+/**
+ * How old a temporary of a process that no longer runs must be before it is removed: an hour,
+ * so that a write in progress from another machine sharing the folder (whose process id means
+ * nothing here) is never touched; such a write takes milliseconds.
+ */
+export const LEFT_TEMPORARY_AGE_MS = 3_600_000;
+
+/**
+ * Removes the temporaries {@link writeFileAtomic} left beside `path` in processes that were killed
+ * outright: named `.<name>.tmp-<pid>-<stamp>`, the process no longer running, and older than
+ * {@link LEFT_TEMPORARY_AGE_MS}. Errors are ignored (a leftover is harmless).
+ *
+ * @param path - the target file whose leftovers are removed
+ * @param now - the time, ms since the epoch (default now)
+ * @returns the paths removed
+ */
+export function removeLeftTemporaries(path: string, now: number = Date.now()): string[] {
+  const folder = dirname(path);
+  const prefix = `.${basename(path)}.tmp-`;
+  const removed: string[] = [];
+  let names: string[];
+  try {
+    names = readdirSync(folder);
+  } catch {
+    return removed;
+  }
+  for (const name of names) {
+    if (!name.startsWith(prefix)) continue;
+    const owner = /^(\d+)-[0-9a-z]+$/.exec(name.slice(prefix.length));
+    if (owner === null) continue;
+    const pid = Number(owner[1]);
+    const temporary = join(folder, name);
+    try {
+      if (pid === process.pid || processRuns(pid) || now - statSync(temporary).mtimeMs < LEFT_TEMPORARY_AGE_MS) continue;
+      unlinkSync(temporary);
+      removed.push(temporary);
+    } catch {
+      // gone meanwhile, or not ours to remove: leave it
+    }
+  }
+  return removed;
+}
 
 /** Options for {@link writeFileAtomic}. */
 export interface AtomicWriteOptions {
@@ -43,6 +89,7 @@ export function writeFileAtomic(path: string, content: string | Uint8Array, opti
       throw new BandwrightError('FILE_EXISTS', `${path} appeared while writing; use --force to replace it`, { file: path });
     }
     renameSync(temporary, path);
+    removeLeftTemporaries(path);
   } catch (error) {
     if (descriptor !== undefined) closeSync(descriptor);
     try {

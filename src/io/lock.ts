@@ -52,7 +52,12 @@ function readOwner(path: string): { text: string; owner?: LockOwner } | undefine
   return { text };
 }
 
-function processRuns(pid: number): boolean {
+/**
+ * Whether a process with this id runs on this machine (one we may not signal counts as running).
+ *
+ * @param pid - process id
+ */
+export function processRuns(pid: number): boolean {
   try {
     process.kill(pid, 0);
     return true;
