@@ -2,35 +2,15 @@ import { readFileSync } from 'node:fs';
 import fc from 'fast-check';
 import { convert } from 'jcampconverter';
 import { describe, expect, it } from 'vitest';
-import { BandwrightError, isBandwrightError } from '../../src/errors.js';
+import { isBandwrightError } from '../../src/errors.js';
 import { parseJcamp } from '../../src/io/jcamp.js';
 import { difference, duplicate, formatJcamp, squeeze } from '../../src/io/jcamp-write.js';
 import { makeSpectrum, type Spectrum, type YKind } from '../../src/spectrum/spectrum.js';
+import { expectError, expectSameDoubles } from '../helpers/expect.js';
 
 const SEED = 20240517;
 const fixturePath = (name: string): URL => new URL(`../fixtures/spectra/${name}`, import.meta.url);
 const fixtureText = (name: string): string => readFileSync(fixturePath(name), 'utf8');
-
-function expectError(run: () => unknown, code: string, ...fragments: string[]): BandwrightError {
-  let caught: unknown;
-  try {
-    run();
-  } catch (error) {
-    caught = error;
-  }
-  expect(caught, 'expected a BandwrightError').toBeInstanceOf(BandwrightError);
-  const error = caught as BandwrightError;
-  expect(error.code, error.message).toBe(code);
-  for (const fragment of fragments) expect(error.message).toContain(fragment);
-  return error;
-}
-
-function expectSameDoubles(actual: ArrayLike<number>, expected: ArrayLike<number>, label: string): void {
-  expect(actual.length, `${label}: length`).toBe(expected.length);
-  for (let i = 0; i < expected.length; i++) {
-    if (!Object.is(actual[i], expected[i])) expect.fail(`${label}[${i}]: expected ${expected[i]}, got ${actual[i]} (exact)`);
-  }
-}
 
 function expectClose(actual: ArrayLike<number>, expected: ArrayLike<number>, relative: number, label: string): void {
   expect(actual.length, `${label}: length`).toBe(expected.length);

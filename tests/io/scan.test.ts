@@ -4,9 +4,9 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { BandwrightError } from '../../src/errors.js';
 import { sha256OfBytes, sha256OfFile } from '../../src/io/hash.js';
 import { detectScanFormat, parseScan, readScan } from '../../src/io/scan.js';
+import { expectError } from '../helpers/expect.js';
 
 const fixture = (name: string): string => fileURLToPath(new URL(`../fixtures/spectra/${name}`, import.meta.url));
 const bytesOf = (text: string): Uint8Array => new TextEncoder().encode(text);
@@ -15,18 +15,6 @@ beforeAll(() => {
   folder = mkdtempSync(join(tmpdir(), 'bandwright-scan-'));
 });
 afterAll(() => rmSync(folder, { recursive: true, force: true }));
-
-function expectError(run: () => unknown, code: string, ...fragments: string[]): void {
-  let caught: unknown;
-  try {
-    run();
-  } catch (error) {
-    caught = error;
-  }
-  expect(caught, 'expected a BandwrightError').toBeInstanceOf(BandwrightError);
-  expect((caught as BandwrightError).code, (caught as Error).message).toBe(code);
-  for (const fragment of fragments) expect((caught as Error).message).toContain(fragment);
-}
 
 describe('parseScan: format by content, then extension', () => {
   const jcamp = readFileSync(fixture('absorbance-sqz.jdx'));

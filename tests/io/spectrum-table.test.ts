@@ -2,41 +2,17 @@ import { readFileSync } from 'node:fs';
 import fc from 'fast-check';
 import Papa from 'papaparse';
 import { describe, expect, it } from 'vitest';
-import { BandwrightError, isBandwrightError } from '../../src/errors.js';
+import { isBandwrightError } from '../../src/errors.js';
 import { DECIMAL_COMMA, DECIMAL_POINT, parseNumberText, scanNumber } from '../../src/io/number-parse.js';
 import { formatSpectrumCsv } from '../../src/io/spectrum-csv-write.js';
 import { parseSpectrumTable, type SpectrumTableOptions } from '../../src/io/spectrum-table.js';
 import { makeSpectrum, type Spectrum, type YKind } from '../../src/spectrum/spectrum.js';
+import { expectError, expectSameDoubles } from '../helpers/expect.js';
 
 const SEED = 20240517;
 const fixture = (name: string): Uint8Array => readFileSync(new URL(`../fixtures/spectra/${name}`, import.meta.url));
 const bytesOf = (text: string): Uint8Array => new TextEncoder().encode(text);
 const parse = (text: string, options: Partial<SpectrumTableOptions> = {}): Spectrum => parseSpectrumTable(bytesOf(text), { source: 't.csv', ...options });
-
-/** Expects a BandwrightError with this code whose message contains every fragment. */
-function expectError(run: () => unknown, code: string, ...fragments: string[]): BandwrightError {
-  let caught: unknown;
-  try {
-    run();
-  } catch (error) {
-    caught = error;
-  }
-  expect(caught, 'expected a BandwrightError').toBeInstanceOf(BandwrightError);
-  const error = caught as BandwrightError;
-  expect(error.code, error.message).toBe(code);
-  for (const fragment of fragments) expect(error.message).toContain(fragment);
-  return error;
-}
-
-/** Same doubles, bit for bit (Object.is tells -0 from 0), with the first difference shown. */
-function expectSameDoubles(actual: ArrayLike<number>, expected: ArrayLike<number>, label: string): void {
-  expect(actual.length, `${label}: length`).toBe(expected.length);
-  for (let i = 0; i < expected.length; i++) {
-    if (!Object.is(actual[i], expected[i])) {
-      expect.fail(`${label}[${i}]: expected ${expected[i]}, got ${actual[i]} (exact comparison)`);
-    }
-  }
-}
 
 /**
  * Independent reading of a table: papaparse (a general-purpose CSV library) splits the text,

@@ -3,7 +3,6 @@ import fc from 'fast-check';
 import { PolynomialRegression } from 'ml-regression-polynomial';
 import { SimpleLinearRegression } from 'ml-regression-simple-linear';
 import { describe, expect, it } from 'vitest';
-import { BandwrightError } from '../../src/errors.js';
 import {
   fitUnivariate,
   predictConcentration,
@@ -16,6 +15,7 @@ import {
 import { createRandom } from '../../src/simulate/random.js';
 import { leastSquares } from '../../src/stats/least-squares.js';
 import { expectAbsolute, expectRelative, loadDataset } from '../fixtures/nist-strd/nist.js';
+import { expectError } from '../helpers/expect.js';
 
 // Source: DIN 32645 worked example (tests/fixtures/din32645/worked-example.json).
 const din = JSON.parse(readFileSync(new URL('../fixtures/din32645/worked-example.json', import.meta.url), 'utf8')) as {
@@ -28,18 +28,6 @@ const din = JSON.parse(readFileSync(new URL('../fixtures/din32645/worked-example
     mandel: { testValue: number };
   };
 };
-
-function expectError(action: () => unknown, code: string, fragment: RegExp): void {
-  try {
-    action();
-  } catch (error) {
-    expect(error).toBeInstanceOf(BandwrightError);
-    expect((error as BandwrightError).code).toBe(code);
-    expect((error as BandwrightError).message).toMatch(fragment);
-    return;
-  }
-  throw new Error(`expected BandwrightError ${code} matching ${fragment}, nothing was thrown`);
-}
 
 /** Seeded uniform generator (mulberry32) and Box–Muller normal deviates, for reproducible noise. */
 function seededNormal(seed: number): { uniform: () => number; normal: () => number } {

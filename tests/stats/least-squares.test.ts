@@ -1,21 +1,9 @@
 import fc from 'fast-check';
 import { Matrix } from 'ml-matrix';
 import { describe, expect, it } from 'vitest';
-import { BandwrightError } from '../../src/errors.js';
 import { leastSquares, solveLeastSquaresMany } from '../../src/stats/least-squares.js';
 import { expectRelative, loadDataset } from '../fixtures/nist-strd/nist.js';
-
-function expectError(action: () => unknown, code: string, fragment: RegExp): void {
-  try {
-    action();
-  } catch (error) {
-    expect(error).toBeInstanceOf(BandwrightError);
-    expect((error as BandwrightError).code).toBe(code);
-    expect((error as BandwrightError).message).toMatch(fragment);
-    return;
-  }
-  throw new Error(`expected BandwrightError ${code} matching ${fragment}, nothing was thrown`);
-}
+import { expectError } from '../helpers/expect.js';
 
 describe('leastSquares against NIST StRD certified values', () => {
   // Source: NIST StRD, Norris (straight line with intercept). Tolerance 1e-9 relative.
