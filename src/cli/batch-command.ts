@@ -11,8 +11,8 @@
  * partial file holds the rows written so far.
  */
 import { reportedGases, type BatchEntry, type Calibration, type QuantifyOptions, type YKind } from '../index.js';
-import { csvFileSink, jsonDocumentSink, jsonLinesFileSink, TABLE_PAGE_SCANS, textTableSink, type EntrySink } from './batch-output.js';
-import type { BatchSetup, LineFormat } from './batch-scan.js';
+import { jsonDocumentSink, openResultFiles, resultFiles, TABLE_PAGE_SCANS, textTableSink } from './batch-output.js';
+import type { BatchSetup } from './batch-scan.js';
 import { MIN_SCANS_FOR_WORKERS, runBatch, workerCount } from './batch.js';
 import { note, raiseStatus, type CommandContext } from './context.js';
 import { createProgress } from './progress.js';
@@ -76,21 +76,8 @@ export async function runQuantifyBatch(context: CommandContext, request: Quantif
   const { calibration, options } = request;
   const level = options.level ?? 0.95;
   const gases = reportedGases(calibration).map((g) => ({ gas: g.gas, unit: options.unit ?? g.unit }));
-  const sinks: EntrySink[] = [];
-  const lineFormats: LineFormat[] = [];
-  try {
-    if (request.csv !== undefined) {
-      sinks.push(csvFileSink(request.csv, gases, lineFormats.length, { mode: 'replace', overwrite: request.force === true }));
-      lineFormats.push({ kind: 'csv', gases, sha256: calibration.sha256 });
-    }
-    if (request.jsonl !== undefined) {
-      sinks.push(jsonLinesFileSink(request.jsonl, lineFormats.length, { mode: 'replace', overwrite: request.force === true }));
-      lineFormats.push({ kind: 'jsonl', sha256: calibration.sha256 });
-    }
-  } catch (error) {
-    for (const sink of sinks) sink.abort();
-    throw error;
-  }
+  const files = resultFiles(request, gases, calibration.sha256);
+  const { sinks, lineFormats } = openResultFiles(files, { mode: 'replace', overwrite: request.force === true });
   if (request.json) sinks.push(jsonDocumentSink(context.stdout, { file: request.calibrationPath, sha256: calibration.sha256 }, level));
   else if (!request.quiet) sinks.push(textTableSink(context.stdout, level));
   // Whole entries travel only when an output needs more than its lines.

@@ -5,8 +5,8 @@
  * Each output holds at most one page of entries, so memory stays flat in the number of scans,
  * and each gives the same text as the whole-batch formatters of `report/results.ts`.
  */
-import { formatCsv, formatResultsText, openResultsWriter, resultColumns, resultsDocument, type BatchEntry, type ResultsWriter } from '../index.js';
-import type { BatchItem, ResultGases } from './batch-scan.js';
+import { formatCsv, formatResultsText, openResultsWriter, resultColumns, resultsDocument, type BatchEntry } from '../index.js';
+import type { BatchItem, LineFormat, ResultGases } from './batch-scan.js';
 import type { TextSink } from './context.js';
 
 /** One output of a batch. */
@@ -22,7 +22,7 @@ export interface EntrySink {
 }
 
 /** The header line of a results CSV for these gases. */
-export function resultsCsvHeader(gases: ResultGases): string {
+function resultsCsvHeader(gases: ResultGases): string {
   return formatCsv(resultColumns(gases), []);
 }
 
@@ -40,43 +40,53 @@ export interface FileSinkOptions {
   overwrite?: boolean;
 }
 
-/**
- * A results CSV written as rows come.
- *
- * @param path - the CSV file
- * @param gases - gases in column order (for the header)
- * @param line - which of the batch's line formats holds this file's rows (a `csv` one for these gases)
- * @param options - mode and overwrite
- * @throws BandwrightError from {@link openResultsWriter}
- */
-export function csvFileSink(path: string, gases: ResultGases, line: number, options: FileSinkOptions): EntrySink & { writer: ResultsWriter } {
-  const writer = openResultsWriter(path, { mode: options.mode, header: resultsCsvHeader(gases), overwrite: options.overwrite === true, createFolder: true });
-  return {
-    writer,
-    add: (item) => writer.write(item.lines[line] as string),
-    finish: () => writer.commit(),
-    abort: () => writer.abort(),
-    doneMessage: `results written to ${path}`,
-  };
+/** A result file of a batch: where it goes and what each scan's line in it is. */
+export interface ResultFile {
+  path: string;
+  format: LineFormat;
 }
 
 /**
- * A JSON-lines results file written as records come.
+ * The result files asked for by `--csv` and `--jsonl`, in that order.
  *
- * @param path - the file
- * @param line - which of the batch's line formats holds this file's records (a `jsonl` one)
- * @param options - mode and overwrite
- * @throws BandwrightError from {@link openResultsWriter}
+ * @param paths - the options' values
+ * @param gases - result columns of the CSV
+ * @param sha256 - the calibration's hash, written in every line
  */
-export function jsonLinesFileSink(path: string, line: number, options: FileSinkOptions): EntrySink & { writer: ResultsWriter } {
-  const writer = openResultsWriter(path, { mode: options.mode, overwrite: options.overwrite === true, createFolder: true });
-  return {
-    writer,
-    add: (item) => writer.write(item.lines[line] as string),
-    finish: () => writer.commit(),
-    abort: () => writer.abort(),
-    doneMessage: `results written to ${path}`,
-  };
+export function resultFiles(paths: { csv?: string | undefined; jsonl?: string | undefined }, gases: ResultGases, sha256: string): ResultFile[] {
+  const files: ResultFile[] = [];
+  if (paths.csv !== undefined) files.push({ path: paths.csv, format: { kind: 'csv', gases, sha256 } });
+  if (paths.jsonl !== undefined) files.push({ path: paths.jsonl, format: { kind: 'jsonl', sha256 } });
+  return files;
+}
+
+/**
+ * Opens the result files of a batch (CSV with its header, JSON lines), each written as its lines
+ * come. The returned `lineFormats` go into the batch setup: file k writes `item.lines[k]`.
+ *
+ * @param files - the files and their formats
+ * @param options - mode and overwrite
+ * @returns one sink per file, and the line formats in the same order
+ * @throws BandwrightError from {@link openResultsWriter} (the files opened before are abandoned)
+ */
+export function openResultFiles(files: readonly ResultFile[], options: FileSinkOptions): { sinks: EntrySink[]; lineFormats: LineFormat[] } {
+  const sinks: EntrySink[] = [];
+  try {
+    files.forEach(({ path, format }, line) => {
+      const header = format.kind === 'csv' ? { header: resultsCsvHeader(format.gases) } : {};
+      const writer = openResultsWriter(path, { mode: options.mode, ...header, overwrite: options.overwrite === true, createFolder: true });
+      sinks.push({
+        add: (item) => writer.write(item.lines[line] as string),
+        finish: () => writer.commit(),
+        abort: () => writer.abort(),
+        doneMessage: `results written to ${path}`,
+      });
+    });
+  } catch (error) {
+    for (const sink of sinks) sink.abort();
+    throw error;
+  }
+  return { sinks, lineFormats: files.map((file) => file.format) };
 }
 
 /** Scans per page of the terminal table: a batch up to this size prints one table, as before. */

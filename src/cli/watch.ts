@@ -18,8 +18,8 @@ import {
   type FileStamp,
   type ProcessedRecordFile,
 } from '../index.js';
-import { csvFileSink, jsonLinesFileSink, type EntrySink } from './batch-output.js';
-import { createScanQuantifier, type LineFormat } from './batch-scan.js';
+import { openResultFiles, resultFiles } from './batch-output.js';
+import { createScanQuantifier } from './batch-scan.js';
 import { yKindOption } from './calibrate.js';
 import { note, raiseStatus, type CommandContext } from './context.js';
 import { parseNumberOption } from './parse.js';
@@ -99,18 +99,9 @@ export function registerWatch(program: Command, context: CommandContext): void {
       const statePath = flags.state ?? (resultsFile === undefined ? undefined : join(dirname(resultsFile), `.${basename(resultsFile)}.watch-state`));
       const processed = statePath === undefined ? new Map<string, FileStamp>() : readProcessedRecord(statePath);
       const watcher = createFolderWatcher(folder, { settleMs, pollMs, processed, ignore: [flags.csv, flags.jsonl, statePath].filter((p): p is string => p !== undefined) });
-      const sinks: EntrySink[] = [];
-      const lineFormats: LineFormat[] = [];
+      const { sinks, lineFormats } = openResultFiles(resultFiles(flags, gases, calibration.sha256), { mode: 'append' });
       let record: ProcessedRecordFile | undefined;
       try {
-        if (flags.csv !== undefined) {
-          sinks.push(csvFileSink(flags.csv, gases, lineFormats.length, { mode: 'append' }));
-          lineFormats.push({ kind: 'csv', gases, sha256: calibration.sha256 });
-        }
-        if (flags.jsonl !== undefined) {
-          sinks.push(jsonLinesFileSink(flags.jsonl, lineFormats.length, { mode: 'append' }));
-          lineFormats.push({ kind: 'jsonl', sha256: calibration.sha256 });
-        }
         if (statePath !== undefined) record = openProcessedRecord(statePath);
       } catch (error) {
         for (const sink of sinks) sink.abort();
