@@ -10,7 +10,7 @@ import { fromPpm, toPpm, type ConcentrationUnit } from '../gas/units.js';
 import type { Spectrum } from '../spectrum/spectrum.js';
 import { TOOL } from '../version.js';
 import type { CheckMeasurementRecord } from './evaluate.js';
-import { recoveryPercent } from './record.js';
+import { recoveryPercent, type CheckRecord } from './record.js';
 
 /** Options of {@link measureCheck}. */
 export interface MeasureCheckOptions {
@@ -26,27 +26,12 @@ export interface MeasureCheckOptions {
   defaultConditions?: QuantifyOptions['defaultConditions'];
 }
 
-/** A check standard as measured, before it is judged. */
-export interface CheckMeasurement {
-  /** Gas checked. */
-  gas: string;
-  /** The gas's calibration unit; every concentration here is in it. */
-  unit: ConcentrationUnit;
-  /** Certified value, converted to `unit`. */
-  certified: number;
-  /** Measured concentration. */
-  measured: number;
-  /** Prediction interval of `measured`. */
-  low: number;
-  high: number;
-  /** Standard error of `measured`. */
-  se: number;
-  /** Detection limit of the calibration for the gas, when it has one. */
-  detectionLimit?: number;
-  /** Recovery, % (absent for zero gas). */
-  recoveryPct?: number;
-  /** (measured − certified)/se (absent when se is 0). */
-  z?: number;
+/**
+ * A check standard as measured, before it is judged: the figures a history record keeps (every
+ * concentration in the gas's calibration unit, the certified value converted to it), with the
+ * flag notes and the full quantification result of the scan.
+ */
+export interface CheckMeasurement extends Pick<CheckRecord, 'gas' | 'unit' | 'certified' | 'measured' | 'low' | 'high' | 'se' | 'detectionLimit' | 'recoveryPct' | 'z'> {
   /** Flag notes of the quantification (extrapolated, saturated, conditions far …). */
   notes: string[];
   /** The full quantification result of the scan. */
