@@ -16,7 +16,19 @@
  * Run with `npm run bench` (through `bench/run.ts`) or alone with `npx tsx bench/batch.ts`.
  */
 import { spawn, spawnSync } from 'node:child_process';
-import { closeSync, existsSync, mkdirSync, openSync, readFileSync, readdirSync, renameSync, rmSync, statSync, writeFileSync, writeSync } from 'node:fs';
+import {
+  closeSync,
+  existsSync,
+  mkdirSync,
+  openSync,
+  readFileSync,
+  readdirSync,
+  renameSync,
+  rmSync,
+  statSync,
+  writeFileSync,
+  writeSync,
+} from 'node:fs';
 import { cpus, loadavg, totalmem } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
@@ -53,8 +65,17 @@ const CLS_REGIONS = [
 ];
 
 function simulate(gases: { name: string; ppm: number }[], noise: number, seed: number): Float64Array {
-  const result = simulateSpectrum({ gases, range_cm: [FIRST_X, LAST_X], resolution_cm: 0.5, pointSpacing_cm: STEP, ...CONDITIONS, noiseRms_AU: noise, seed });
-  if (result.spectrum.x.length !== POINTS) throw new Error(`simulator gave ${result.spectrum.x.length} points, expected ${POINTS}`);
+  const result = simulateSpectrum({
+    gases,
+    range_cm: [FIRST_X, LAST_X],
+    resolution_cm: 0.5,
+    pointSpacing_cm: STEP,
+    ...CONDITIONS,
+    noiseRms_AU: noise,
+    seed,
+  });
+  if (result.spectrum.x.length !== POINTS)
+    throw new Error(`simulator gave ${result.spectrum.x.length} points, expected ${POINTS}`);
   return result.spectrum.y;
 }
 
@@ -72,7 +93,13 @@ function sixDecimals(value: number): string {
 }
 
 function csvText(y: Float64Array, title: string): string {
-  const lines = [`# title = ${title}`, `# path_length_m = ${CONDITIONS.pathLength_m}`, `# temperature_K = ${CONDITIONS.temperature_K}`, `# pressure_kPa = ${CONDITIONS.pressure_kPa}`, 'wavenumber_cm-1,absorbance'];
+  const lines = [
+    `# title = ${title}`,
+    `# path_length_m = ${CONDITIONS.pathLength_m}`,
+    `# temperature_K = ${CONDITIONS.temperature_K}`,
+    `# pressure_kPa = ${CONDITIONS.pressure_kPa}`,
+    'wavenumber_cm-1,absorbance',
+  ];
   for (let i = 0; i < POINTS; i++) lines.push(`${X_TEXT[i]},${sixDecimals(y[i] as number)}`);
   return `${lines.join('\n')}\n`;
 }
@@ -151,7 +178,11 @@ interface BenchData {
 
 async function quietMain(args: string[]): Promise<void> {
   let stderr = '';
-  const status = await main(['node', 'bandwright', ...args], { stdout: { write: () => true }, stderr: { write: (s: string) => (stderr += s) }, interactive: false });
+  const status = await main(['node', 'bandwright', ...args], {
+    stdout: { write: () => true },
+    stderr: { write: (s: string) => (stderr += s) },
+    interactive: false,
+  });
   if (status !== 0) throw new Error(`bandwright ${args.join(' ')} failed (${status}): ${stderr}`);
 }
 
@@ -159,8 +190,12 @@ async function prepareData(log: (line: string) => void): Promise<BenchData> {
   const scans = join(DATA, 'scans');
   const stamp = join(DATA, 'recipe.txt');
   const data: BenchData = {
-    csv: Array.from({ length: MAX_SCANS }, (_, i) => join(scans, 'csv', `s${String(i).padStart(5, '0')}.csv`)),
-    jcamp: Array.from({ length: MAX_SCANS }, (_, i) => join(scans, 'jcamp', `s${String(i).padStart(5, '0')}.jdx`)),
+    csv: Array.from({ length: MAX_SCANS }, (_, i) =>
+      join(scans, 'csv', `s${String(i).padStart(5, '0')}.csv`),
+    ),
+    jcamp: Array.from({ length: MAX_SCANS }, (_, i) =>
+      join(scans, 'jcamp', `s${String(i).padStart(5, '0')}.jdx`),
+    ),
     band: join(DATA, 'co-band.calibration.json'),
     cls: join(DATA, 'four-gas-cls.calibration.json'),
     projection: join(DATA, 'cls-projection.json'),
@@ -168,7 +203,8 @@ async function prepareData(log: (line: string) => void): Promise<BenchData> {
   if (existsSync(stamp) && readFileSync(stamp, 'utf8') === RECIPE) return data;
   const started = performance.now();
   rmSync(DATA, { recursive: true, force: true });
-  for (const folder of ['standards', 'scans/csv', 'scans/jcamp']) mkdirSync(join(DATA, folder), { recursive: true });
+  for (const folder of ['standards', 'scans/csv', 'scans/jcamp'])
+    mkdirSync(join(DATA, folder), { recursive: true });
 
   // Standards from the simulator, written with the project's own JCAMP-DX writer.
   const levels: [string, Record<string, number>][] = [
@@ -190,36 +226,107 @@ async function prepareData(log: (line: string) => void): Promise<BenchData> {
   ];
   const manifest = ['scan,CO_ppm,N2O_ppm,CO2_pct,H2O_pct'];
   levels.forEach(([name, ppm], k) => {
-    const y = simulate(Object.entries(ppm).map(([gas, value]) => ({ name: gas, ppm: value })), 1e-4, 100 + k);
+    const y = simulate(
+      Object.entries(ppm).map(([gas, value]) => ({ name: gas, ppm: value })),
+      1e-4,
+      100 + k,
+    );
     const x = Float64Array.from({ length: POINTS }, (_, i) => FIRST_X + i * STEP);
     x[POINTS - 1] = LAST_X;
-    writeFileSync(join(DATA, 'standards', `${name}.jdx`), formatJcamp({ x, y, yKind: 'absorbance', metadata: { ...CONDITIONS } }, { title: `bench standard ${name}` }));
-    manifest.push(`standards/${name}.jdx,${ppm.CO ?? 0},${ppm.N2O ?? 0},${(ppm.CO2 ?? 0) / 1e4},${(ppm.H2O ?? 0) / 1e4}`);
+    writeFileSync(
+      join(DATA, 'standards', `${name}.jdx`),
+      formatJcamp(
+        { x, y, yKind: 'absorbance', metadata: { ...CONDITIONS } },
+        { title: `bench standard ${name}` },
+      ),
+    );
+    manifest.push(
+      `standards/${name}.jdx,${ppm.CO ?? 0},${ppm.N2O ?? 0},${(ppm.CO2 ?? 0) / 1e4},${(ppm.H2O ?? 0) / 1e4}`,
+    );
   });
   writeFileSync(join(DATA, 'standards.csv'), `${manifest.join('\n')}\n`);
-  const bandManifest = [manifest[0], ...manifest.slice(1).filter((row) => /standards\/(zero|co-)/.test(row as string))];
+  const bandManifest = [
+    manifest[0],
+    ...manifest.slice(1).filter((row) => /standards\/(zero|co-)/.test(row as string)),
+  ];
   writeFileSync(join(DATA, 'co-standards.csv'), `${bandManifest.join('\n')}\n`);
-  writeFileSync(join(DATA, 'co-band.method.json'), JSON.stringify({ model: 'band', gases: [{ name: 'CO', unit: 'ppm', band: [2040, 2245], baseline: [[1960, 1990], [2255, 2275]], model: 'linear' }] }));
-  writeFileSync(join(DATA, 'four-gas-cls.method.json'), JSON.stringify({ model: 'cls', gases: GASES.map((g) => ({ name: g.name, unit: g.unit })), interferents: [], regions: CLS_REGIONS, baselineOrder: 1 }));
+  writeFileSync(
+    join(DATA, 'co-band.method.json'),
+    JSON.stringify({
+      model: 'band',
+      gases: [
+        {
+          name: 'CO',
+          unit: 'ppm',
+          band: [2040, 2245],
+          baseline: [
+            [1960, 1990],
+            [2255, 2275],
+          ],
+          model: 'linear',
+        },
+      ],
+    }),
+  );
+  writeFileSync(
+    join(DATA, 'four-gas-cls.method.json'),
+    JSON.stringify({
+      model: 'cls',
+      gases: GASES.map((g) => ({ name: g.name, unit: g.unit })),
+      interferents: [],
+      regions: CLS_REGIONS,
+      baselineOrder: 1,
+    }),
+  );
   process.env.SOURCE_DATE_EPOCH = '1767225600';
-  await quietMain(['calibrate', join(DATA, 'co-standards.csv'), '--method', join(DATA, 'co-band.method.json'), '-o', data.band, '--force']);
-  await quietMain(['calibrate', join(DATA, 'standards.csv'), '--method', join(DATA, 'four-gas-cls.method.json'), '-o', data.cls, '--force']);
-  log(`  standards simulated and both calibrations built in ${((performance.now() - started) / 1000).toFixed(1)} s`);
+  await quietMain([
+    'calibrate',
+    join(DATA, 'co-standards.csv'),
+    '--method',
+    join(DATA, 'co-band.method.json'),
+    '-o',
+    data.band,
+    '--force',
+  ]);
+  await quietMain([
+    'calibrate',
+    join(DATA, 'standards.csv'),
+    '--method',
+    join(DATA, 'four-gas-cls.method.json'),
+    '-o',
+    data.cls,
+    '--force',
+  ]);
+  log(
+    `  standards simulated and both calibrations built in ${((performance.now() - started) / 1000).toFixed(1)} s`,
+  );
 
   // The CLS prediction as one matrix (gases × channels) for the numpy script: the model is linear
   // (no second-order terms), so its columns are the predictions of unit spectra.
   const calibration = readCalibration(data.cls);
   const model = calibration.cls?.model;
-  if (model === undefined || model.grid === null) throw new Error('the bench CLS calibration has no channel grid');
+  if (model === undefined || model.grid === null)
+    throw new Error('the bench CLS calibration has no channel grid');
   const channels = model.grid.length;
-  const matrix: number[][] = model.components.filter((c) => c.reported).map(() => new Array<number>(channels).fill(0));
+  const matrix: number[][] = model.components
+    .filter((c) => c.reported)
+    .map(() => new Array<number>(channels).fill(0));
   const unit = new Float64Array(channels);
   for (let j = 0; j < channels; j++) {
     unit.fill(0);
     unit[j] = 1;
-    predictCls(model, unit, { phi: 1 }).estimates.forEach((estimate, g) => ((matrix[g] as number[])[j] = estimate.value));
+    predictCls(model, unit, { phi: 1 }).estimates.forEach(
+      (estimate, g) => ((matrix[g] as number[])[j] = estimate.value),
+    );
   }
-  writeFileSync(data.projection, JSON.stringify({ gases: model.components.filter((c) => c.reported).map((c) => `${c.name}_${c.unit}`), grid: model.grid, matrix }));
+  writeFileSync(
+    data.projection,
+    JSON.stringify({
+      gases: model.components.filter((c) => c.reported).map((c) => `${c.name}_${c.unit}`),
+      grid: model.grid,
+      matrix,
+    }),
+  );
 
   // Samples: mixtures of pure spectra + baseline + noise.
   const pure = GASES.map((gas) => simulate([{ name: gas.name, ppm: gas.ppm }], 0, 1));
@@ -227,12 +334,15 @@ async function prepareData(log: (line: string) => void): Promise<BenchData> {
   const gaussian = createGaussian(20_260_102);
   const y = new Float64Array(POINTS);
   for (let n = 0; n < MAX_SCANS; n++) {
-    const fractions = GASES.map((gas) => (gas.range[0] + uniform() * (gas.range[1] - gas.range[0])) / gas.ppm);
+    const fractions = GASES.map(
+      (gas) => (gas.range[0] + uniform() * (gas.range[1] - gas.range[0])) / gas.ppm,
+    );
     const offset = 0.01 + 0.01 * uniform();
     const slope = (uniform() - 0.5) * 2e-6;
     for (let i = 0; i < POINTS; i++) {
       let value = offset + slope * (FIRST_X + i * STEP - 2000) + 1e-4 * gaussian();
-      for (let g = 0; g < GASES.length; g++) value += (fractions[g] as number) * ((pure[g] as Float64Array)[i] as number);
+      for (let g = 0; g < GASES.length; g++)
+        value += (fractions[g] as number) * ((pure[g] as Float64Array)[i] as number);
       y[i] = value;
     }
     const title = `bench sample ${n}`;
@@ -243,10 +353,13 @@ async function prepareData(log: (line: string) => void): Promise<BenchData> {
   const fromCsv = parseScan(readFileSync(data.csv[0] as string), { source: 'csv' });
   const fromJcamp = parseScan(readFileSync(data.jcamp[0] as string), { source: 'jcamp' });
   let worst = 0;
-  for (let i = 0; i < POINTS; i++) worst = Math.max(worst, Math.abs((fromCsv.y[i] as number) - (fromJcamp.y[i] as number)));
+  for (let i = 0; i < POINTS; i++)
+    worst = Math.max(worst, Math.abs((fromCsv.y[i] as number) - (fromJcamp.y[i] as number)));
   if (!(worst <= 1.01e-6)) throw new Error(`bench CSV and JCAMP-DX scans differ by ${worst} AU`);
   writeFileSync(stamp, RECIPE);
-  log(`  ${MAX_SCANS} CSV and ${MAX_SCANS} JCAMP-DX scans generated in ${((performance.now() - started) / 1000).toFixed(1)} s`);
+  log(
+    `  ${MAX_SCANS} CSV and ${MAX_SCANS} JCAMP-DX scans generated in ${((performance.now() - started) / 1000).toFixed(1)} s`,
+  );
   return data;
 }
 
@@ -271,15 +384,23 @@ function buildProgram(log: (line: string) => void): void {
   const started = performance.now();
   const tsc = join(ROOT, 'node_modules', 'typescript', 'bin', 'tsc');
   // Type errors elsewhere in a working tree do not stop tsc from emitting; the files are checked below.
-  spawnSync(process.execPath, [tsc, '-p', join(ROOT, 'tsconfig.build.json'), '--outDir', join(DATA, 'dist')], { stdio: 'ignore' });
-  if (!existsSync(join(DATA, 'dist', 'cli', 'main.js')) || !existsSync(join(DATA, 'dist', 'cli', 'batch-worker.js'))) throw new Error('tsc did not produce bench/data/dist');
+  spawnSync(
+    process.execPath,
+    [tsc, '-p', join(ROOT, 'tsconfig.build.json'), '--outDir', join(DATA, 'dist')],
+    { stdio: 'ignore' },
+  );
+  if (
+    !existsSync(join(DATA, 'dist', 'cli', 'main.js')) ||
+    !existsSync(join(DATA, 'dist', 'cli', 'batch-worker.js'))
+  )
+    throw new Error('tsc did not produce bench/data/dist');
   writeFileSync(
     CHILD,
     [
       "import { main } from './dist/cli/main.js';",
       "const status = await main(['node', 'bandwright', ...process.argv.slice(2)], { stdout: { write: () => true }, interactive: false });",
-      "const usage = process.resourceUsage();",
-      "process.stderr.write(`\\nBENCH ${JSON.stringify({ status, maxRss_kB: usage.maxRSS, cpu_us: usage.userCPUTime + usage.systemCPUTime })}\\n`);",
+      'const usage = process.resourceUsage();',
+      'process.stderr.write(`\\nBENCH ${JSON.stringify({ status, maxRss_kB: usage.maxRSS, cpu_us: usage.userCPUTime + usage.systemCPUTime })}\\n`);',
       '',
     ].join('\n'),
   );
@@ -292,10 +413,21 @@ function runCli(args: string[]): RunResult {
   const wallSeconds = (performance.now() - started) / 1000;
   const stderr = child.stderr;
   const bench = /BENCH (\{.*\})/.exec(stderr);
-  const summary = /(\d+) scan\(s\), (\d+) failed, in ([\d.]+) s \(\d+ scans\/s(?:, (\d+) worker threads)?\)/.exec(stderr);
-  if (bench === null || summary === null) throw new Error(`bandwright ${args.join(' ')}: no summary; stderr: ${stderr.slice(-2000)}`);
+  const summary =
+    /(\d+) scan\(s\), (\d+) failed, in ([\d.]+) s \(\d+ scans\/s(?:, (\d+) worker threads)?\)/.exec(stderr);
+  if (bench === null || summary === null)
+    throw new Error(`bandwright ${args.join(' ')}: no summary; stderr: ${stderr.slice(-2000)}`);
   const report = JSON.parse(bench[1] as string) as { status: number; maxRss_kB: number; cpu_us: number };
-  return { workers: Number(summary[4] ?? 0), cpuSeconds: report.cpu_us / 1e6, scans: Number(summary[1]), failed: Number(summary[2]), seconds: Number(summary[3]), wallSeconds, maxRss_MB: report.maxRss_kB / 1024, status: report.status };
+  return {
+    workers: Number(summary[4] ?? 0),
+    cpuSeconds: report.cpu_us / 1e6,
+    scans: Number(summary[1]),
+    failed: Number(summary[2]),
+    seconds: Number(summary[3]),
+    wallSeconds,
+    maxRss_MB: report.maxRss_kB / 1024,
+    status: report.status,
+  };
 }
 
 function listFile(paths: readonly string[], name: string): string {
@@ -314,11 +446,19 @@ function row(cells: (string | number)[]): string {
   return `| ${cells.join(' | ')} |`;
 }
 
-function numpyBatch(list: string, projection: string, out: string): { seconds: number; wallSeconds: number } | string {
+function numpyBatch(
+  list: string,
+  projection: string,
+  out: string,
+): { seconds: number; wallSeconds: number } | string {
   const probe = spawnSync('python3', ['-c', 'import numpy'], { encoding: 'utf8' });
-  if (probe.error !== undefined || probe.status !== 0) return 'python3 with numpy not found (Debian: apt-get install python3-numpy); numpy comparison skipped';
+  if (probe.error !== undefined || probe.status !== 0)
+    return 'python3 with numpy not found (Debian: apt-get install python3-numpy); numpy comparison skipped';
   const started = performance.now();
-  const run = spawnSync('python3', [join(ROOT, 'bench', 'numpy_batch.py'), list, projection, out], { encoding: 'utf8', maxBuffer: 1 << 24 });
+  const run = spawnSync('python3', [join(ROOT, 'bench', 'numpy_batch.py'), list, projection, out], {
+    encoding: 'utf8',
+    maxBuffer: 1 << 24,
+  });
   const wallSeconds = (performance.now() - started) / 1000;
   if (run.status !== 0) return `numpy script failed: ${run.stderr.slice(-1000)}`;
   const report = JSON.parse(run.stdout.trim().split('\n').pop() as string) as { seconds: number };
@@ -327,7 +467,11 @@ function numpyBatch(list: string, projection: string, out: string): { seconds: n
 
 /** Largest relative difference of the gas columns between our results CSV and the numpy one (same scans, same order). */
 function compareResults(ours: string, theirs: string): number {
-  const read = (path: string): string[][] => readFileSync(path, 'utf8').trim().split('\n').map((line) => line.split(','));
+  const read = (path: string): string[][] =>
+    readFileSync(path, 'utf8')
+      .trim()
+      .split('\n')
+      .map((line) => line.split(','));
   const [ourHeader, ...ourRows] = read(ours);
   const [theirHeader, ...theirRows] = read(theirs);
   let worst = 0;
@@ -348,7 +492,11 @@ async function watchRun(data: BenchData): Promise<string> {
   mkdirSync(join(folder, 'in'), { recursive: true });
   const out = join(folder, 'results.jsonl');
   const count = 100;
-  const child = spawn(process.execPath, [CHILD, 'watch', data.cls, join(folder, 'in'), '--jsonl', out, '--settle', '200', '--poll', '500'], { stdio: ['ignore', 'ignore', 'pipe'] });
+  const child = spawn(
+    process.execPath,
+    [CHILD, 'watch', data.cls, join(folder, 'in'), '--jsonl', out, '--settle', '200', '--poll', '500'],
+    { stdio: ['ignore', 'ignore', 'pipe'] },
+  );
   let stderr = '';
   child.stderr.on('data', (chunk: Buffer) => (stderr += chunk.toString()));
   const exited = new Promise<number | null>((resolve) => child.on('exit', (code) => resolve(code)));
@@ -375,7 +523,8 @@ async function watchRun(data: BenchData): Promise<string> {
     arrivals.push(performance.now());
   }
   const deadline = performance.now() + 15_000;
-  while (seen.length < count && performance.now() < deadline) await new Promise((resolve) => setTimeout(resolve, 20));
+  while (seen.length < count && performance.now() < deadline)
+    await new Promise((resolve) => setTimeout(resolve, 20));
   clearInterval(poller);
   const elapsed = (performance.now() - started) / 1000;
   child.kill('SIGTERM');
@@ -397,15 +546,23 @@ export type BatchBenchPart = 'table' | 'workers' | 'memory' | 'numpy' | 'watch';
  * @param parts - which parts to run (default all; `numpy` needs `table` for its comparison)
  * @returns the lines it reports
  */
-export async function run(log: (line: string) => void = () => undefined, parts: readonly BatchBenchPart[] = ['table', 'workers', 'memory', 'numpy', 'watch']): Promise<string[]> {
+export async function run(
+  log: (line: string) => void = () => undefined,
+  parts: readonly BatchBenchPart[] = ['table', 'workers', 'memory', 'numpy', 'watch'],
+): Promise<string[]> {
   const lines: string[] = [];
   const say = (line: string): void => {
     lines.push(line);
     log(line);
   };
   const cpu = cpus()[0]?.model ?? 'unknown CPU';
-  const load = (): string => loadavg().map((l) => l.toFixed(2)).join(' ');
-  say(`machine: ${cpus().length} × ${cpu}, ${(totalmem() / 2 ** 30).toFixed(0)} GiB, node ${process.version}, ${new Date().toISOString().slice(0, 10)}; load average at start ${load()}`);
+  const load = (): string =>
+    loadavg()
+      .map((l) => l.toFixed(2))
+      .join(' ');
+  say(
+    `machine: ${cpus().length} × ${cpu}, ${(totalmem() / 2 ** 30).toFixed(0)} GiB, node ${process.version}, ${new Date().toISOString().slice(0, 10)}; load average at start ${load()}`,
+  );
   const data = await prepareData(say);
   buildProgram(say);
   const results = join(DATA, 'results');
@@ -414,10 +571,24 @@ export async function run(log: (line: string) => void = () => undefined, parts: 
   // One read of every scan first, so that no run pays for a first read from disk the next gets from the page cache.
   const warmStarted = performance.now();
   for (const path of [...data.csv, ...data.jcamp]) readFileSync(path);
-  say(`  ${2 * MAX_SCANS} scans read once (page cache) in ${((performance.now() - warmStarted) / 1000).toFixed(1)} s`);
+  say(
+    `  ${2 * MAX_SCANS} scans read once (page cache) in ${((performance.now() - warmStarted) / 1000).toFixed(1)} s`,
+  );
   if (parts.includes('table')) {
     say('');
-    say(row(['format', 'calibration', 'N', 'workers', 'batch s', 'scans/s', 'MB/s', 'peak RSS MB', 'process s']));
+    say(
+      row([
+        'format',
+        'calibration',
+        'N',
+        'workers',
+        'batch s',
+        'scans/s',
+        'MB/s',
+        'peak RSS MB',
+        'process s',
+      ]),
+    );
     say(row(['---', '---', '---:', '---', '---:', '---:', '---:', '---:', '---:']));
     for (const format of ['csv', 'jcamp'] as const) {
       for (const calibration of ['band', 'cls'] as const) {
@@ -425,8 +596,18 @@ export async function run(log: (line: string) => void = () => undefined, parts: 
           const paths = data[format].slice(0, n);
           const list = listFile(paths, `list-${format}-${n}.txt`);
           const out = join(results, `${format}-${calibration}-${n}.csv`);
-          const result = runCli(['quantify', data[calibration], '--from', list, '--csv', out, '--force', '--quiet']);
-          if (result.failed > 0 || result.scans !== n) throw new Error(`${format} ${calibration} ${n}: ${result.failed} failed of ${result.scans}`);
+          const result = runCli([
+            'quantify',
+            data[calibration],
+            '--from',
+            list,
+            '--csv',
+            out,
+            '--force',
+            '--quiet',
+          ]);
+          if (result.failed > 0 || result.scans !== n)
+            throw new Error(`${format} ${calibration} ${n}: ${result.failed} failed of ${result.scans}`);
           ours[`${format}-${calibration}-${n}`] = result;
           const megabytes = bytesOf(paths) / 1e6;
           say(
@@ -448,18 +629,39 @@ export async function run(log: (line: string) => void = () => undefined, parts: 
   }
   if (parts.includes('workers')) {
     say('');
-    say('worker threads (--workers; with workers the main thread only writes), four-gas CLS, N = 10,000, with the processor time used (user + system, all threads):');
+    say(
+      'worker threads (--workers; with workers the main thread only writes), four-gas CLS, N = 10,000, with the processor time used (user + system, all threads):',
+    );
     for (const format of ['csv', 'jcamp'] as const) {
       const list = join(DATA, `list-${format}-10000.txt`);
       const speeds: string[] = [];
       for (const workers of [0, 1, 2]) {
-        const result = runCli(['quantify', data.cls, '--from', list, '--csv', join(results, `${format}-workers-${workers}.csv`), '--force', '--quiet', '--workers', String(workers)]);
-        speeds.push(`${workers} → ${(result.scans / result.seconds).toFixed(0)} scans/s, ${result.cpuSeconds.toFixed(1)} CPU s, ${result.maxRss_MB.toFixed(0)} MB`);
-        if (workers > 0 && readFileSync(join(results, `${format}-workers-${workers}.csv`), 'utf8') !== readFileSync(join(results, `${format}-workers-0.csv`), 'utf8')) {
+        const result = runCli([
+          'quantify',
+          data.cls,
+          '--from',
+          list,
+          '--csv',
+          join(results, `${format}-workers-${workers}.csv`),
+          '--force',
+          '--quiet',
+          '--workers',
+          String(workers),
+        ]);
+        speeds.push(
+          `${workers} → ${(result.scans / result.seconds).toFixed(0)} scans/s, ${result.cpuSeconds.toFixed(1)} CPU s, ${result.maxRss_MB.toFixed(0)} MB`,
+        );
+        if (
+          workers > 0 &&
+          readFileSync(join(results, `${format}-workers-${workers}.csv`), 'utf8') !==
+            readFileSync(join(results, `${format}-workers-0.csv`), 'utf8')
+        ) {
           throw new Error(`${format}: results with ${workers} workers differ from those without`);
         }
       }
-      say(`  ${format === 'csv' ? 'CSV' : 'JCAMP-DX'}: ${speeds.join(', ')}; results identical with and without workers`);
+      say(
+        `  ${format === 'csv' ? 'CSV' : 'JCAMP-DX'}: ${speeds.join(', ')}; results identical with and without workers`,
+      );
     }
   }
   if (parts.includes('memory')) {
@@ -467,14 +669,31 @@ export async function run(log: (line: string) => void = () => undefined, parts: 
     const list = listFile([...data.jcamp, ...data.jcamp, ...data.jcamp], 'list-jcamp-30000.txt');
     const parts30: string[] = [];
     for (const workers of ['0', '2']) {
-      const result = runCli(['quantify', data.cls, '--from', list, '--csv', join(results, `jcamp-30000-${workers}.csv`), '--force', '--quiet', '--workers', workers]);
-      parts30.push(`--workers ${workers}: ${result.maxRss_MB.toFixed(0)} MB at ${(result.scans / result.seconds).toFixed(0)} scans/s`);
+      const result = runCli([
+        'quantify',
+        data.cls,
+        '--from',
+        list,
+        '--csv',
+        join(results, `jcamp-30000-${workers}.csv`),
+        '--force',
+        '--quiet',
+        '--workers',
+        workers,
+      ]);
+      parts30.push(
+        `--workers ${workers}: ${result.maxRss_MB.toFixed(0)} MB at ${(result.scans / result.seconds).toFixed(0)} scans/s`,
+      );
     }
     say(`peak RSS at N = 30,000 (four-gas CLS, JCAMP-DX): ${parts30.join('; ')}`);
   }
   if (parts.includes('numpy') && ours['csv-cls-1000'] !== undefined) {
     say('');
-    const numpy = numpyBatch(join(DATA, 'list-csv-1000.txt'), data.projection, join(results, 'numpy-1000.csv'));
+    const numpy = numpyBatch(
+      join(DATA, 'list-csv-1000.txt'),
+      data.projection,
+      join(results, 'numpy-1000.csv'),
+    );
     if (typeof numpy === 'string') say(numpy);
     else {
       const mine = ours['csv-cls-1000'] as RunResult;

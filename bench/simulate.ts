@@ -12,10 +12,16 @@ import { simulateSpectrum, type SimulationOptions } from '../src/simulate/simula
 function median(values: number[]): number {
   const sorted = [...values].sort((a, b) => a - b);
   const middle = Math.floor(sorted.length / 2);
-  return sorted.length % 2 === 1 ? (sorted[middle] as number) : ((sorted[middle - 1] as number) + (sorted[middle] as number)) / 2;
+  return sorted.length % 2 === 1
+    ? (sorted[middle] as number)
+    : ((sorted[middle - 1] as number) + (sorted[middle] as number)) / 2;
 }
 
-function time(options: SimulationOptions, warmups: number, runs: number): { median_ms: number; min_ms: number; finePoints: number; outputPoints: number } {
+function time(
+  options: SimulationOptions,
+  warmups: number,
+  runs: number,
+): { median_ms: number; min_ms: number; finePoints: number; outputPoints: number } {
   let finePoints = 0;
   let outputPoints = 0;
   for (let i = 0; i < warmups; i++) simulateSpectrum(options);
@@ -68,7 +74,9 @@ export async function run(): Promise<string[]> {
     range_cm: [700, 4200],
   };
   const m = time(mixture, 1, 5);
-  lines.push(`simulate nine-gas mixture, 700–4200 cm⁻¹ at 0.5 cm⁻¹: median ${m.median_ms.toFixed(1)} ms over 5 runs; ${m.finePoints} fine-grid points`);
+  lines.push(
+    `simulate nine-gas mixture, 700–4200 cm⁻¹ at 0.5 cm⁻¹: median ${m.median_ms.toFixed(1)} ms over 5 runs; ${m.finePoints} fine-grid points`,
+  );
   return lines;
 }
 

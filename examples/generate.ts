@@ -34,7 +34,12 @@ function write(path: string, text: string): void {
 /** Writes a scan; `withConditions: false` leaves the conditions to the manifest (as many CSV exports do). */
 function writeScan(path: string, spectrum: Spectrum, title: string, withConditions = true): void {
   const scan = withConditions ? spectrum : { ...spectrum, metadata: { title } };
-  write(path, path.endsWith('.csv') ? formatSpectrumCsv(scan) : formatJcamp(scan, { title, origin: 'bandwright examples (simulated)', owner: 'examples' }));
+  write(
+    path,
+    path.endsWith('.csv')
+      ? formatSpectrumCsv(scan)
+      : formatJcamp(scan, { title, origin: 'bandwright examples (simulated)', owner: 'examples' }),
+  );
 }
 
 function simulate(options: SimulationOptions): Spectrum {
@@ -43,11 +48,20 @@ function simulate(options: SimulationOptions): Spectrum {
 
 /** Small, repeatable variation of cell conditions between scans (a lab at 22–24 °C, 100.6–102.1 kPa). */
 function labConditions(index: number): { temperature_K: number; pressure_kPa: number } {
-  return { temperature_K: Number((296.2 + 1.1 * Math.sin(1.7 * index)).toFixed(2)), pressure_kPa: Number((101.3 + 0.7 * Math.cos(2.3 * index)).toFixed(2)) };
+  return {
+    temperature_K: Number((296.2 + 1.1 * Math.sin(1.7 * index)).toFixed(2)),
+    pressure_kPa: Number((101.3 + 0.7 * Math.cos(2.3 * index)).toFixed(2)),
+  };
 }
 
 // ─── Marrowby Gas Laboratory: CO band calibration, samples, weekly check standard ──────────────
-const LAB = { pathLength_m: 1, resolution_cm: 0.5, apodization: 'triangular' as const, range_cm: [1950, 2350] as const, noiseRms_AU: 3e-4 };
+const LAB = {
+  pathLength_m: 1,
+  resolution_cm: 0.5,
+  apodization: 'triangular' as const,
+  range_cm: [1950, 2350] as const,
+  noiseRms_AU: 3e-4,
+};
 
 function labCo(): void {
   const folder = join(root, 'lab-co');
@@ -59,11 +73,20 @@ function labCo(): void {
     const replicate = i % 2 === 0 ? 'a' : 'b';
     const jcamp = i % 4 < 2;
     const name = `standards/co-${String(ppm).padStart(3, '0')}${replicate}.${jcamp ? 'jdx' : 'csv'}`;
-    const spectrum = simulate({ ...LAB, ...conditions, gases: ppm === 0 ? [] : [{ name: 'CO', ppm }], seed: 1000 + i });
+    const spectrum = simulate({
+      ...LAB,
+      ...conditions,
+      gases: ppm === 0 ? [] : [{ name: 'CO', ppm }],
+      seed: 1000 + i,
+    });
     writeScan(join(folder, name), spectrum, `CO standard ${ppm} ppm (${replicate}), cell A, FT-2`, jcamp);
     const lot = ppm === 0 ? 'MGL-Z-2611' : `MGL-CO-${String(ppm).padStart(4, '0')}-2611`;
     const uncertainty = ppm === 0 ? '' : ppm <= 20 ? '2' : '1';
-    manifest.push(jcamp ? `${name},${ppm},,,,${uncertainty},${lot}` : `${name},${ppm},1,${conditions.temperature_K},${conditions.pressure_kPa},${uncertainty},${lot}`);
+    manifest.push(
+      jcamp
+        ? `${name},${ppm},,,,${uncertainty},${lot}`
+        : `${name},${ppm},1,${conditions.temperature_K},${conditions.pressure_kPa},${uncertainty},${lot}`,
+    );
   });
   write(join(folder, 'standards.csv'), `${manifest.join('\n')}\n`);
   write(
@@ -72,7 +95,18 @@ function labCo(): void {
       {
         title: 'CO in nitrogen, 1 m cell A, bench FTIR FT-2',
         model: 'band',
-        gases: [{ name: 'CO', unit: 'ppm', band: [2020, 2240], baseline: [[1960, 1990], [2260, 2290]], model: 'quadratic' }],
+        gases: [
+          {
+            name: 'CO',
+            unit: 'ppm',
+            band: [2020, 2240],
+            baseline: [
+              [1960, 1990],
+              [2260, 2290],
+            ],
+            model: 'quadratic',
+          },
+        ],
         recheck: { everyDays: 7, tolerancePct: 5 },
       },
       null,
@@ -88,7 +122,13 @@ function labCo(): void {
     ['boiler-room-grab.jdx', 38, 309.6],
   ];
   samples.forEach(([name, ppm, temperature_K], i) => {
-    const spectrum = simulate({ ...LAB, temperature_K, pressure_kPa: 101.1, gases: [{ name: 'CO', ppm }], seed: 2000 + i });
+    const spectrum = simulate({
+      ...LAB,
+      temperature_K,
+      pressure_kPa: 101.1,
+      gases: [{ name: 'CO', ppm }],
+      seed: 2000 + i,
+    });
     writeScan(join(folder, 'samples', name), spectrum, `sample ${name.replace(/\.\w+$/, '')}`);
   });
 
@@ -100,7 +140,12 @@ function labCo(): void {
     const stamp = date.toISOString().slice(0, 10);
     const response = week < 6 ? 1 : 1 - 0.013 * (week - 5);
     const conditions = labConditions(40 + week);
-    const spectrum = simulate({ ...LAB, ...conditions, gases: [{ name: 'CO', ppm: 100 * response }], seed: 3000 + week });
+    const spectrum = simulate({
+      ...LAB,
+      ...conditions,
+      gases: [{ name: 'CO', ppm: 100 * response }],
+      seed: 3000 + week,
+    });
     const name = `checks/check-${stamp}.jdx`;
     writeScan(join(folder, name), spectrum, `CO check standard 100 ppm, lot MGL-CO-0100-2611, ${stamp}`);
     checks.push(`${name},100,${date.toISOString()}`);
@@ -109,7 +154,14 @@ function labCo(): void {
 }
 
 // ─── Quillon Fen Works, calciner stack K2: heated-cell mixtures for classical least squares ───
-const STACK = { pathLength_m: 2, temperature_K: 453.15, resolution_cm: 0.5, apodization: 'triangular' as const, range_cm: [1950, 2350] as const, noiseRms_AU: 3e-4 };
+const STACK = {
+  pathLength_m: 2,
+  temperature_K: 453.15,
+  resolution_cm: 0.5,
+  apodization: 'triangular' as const,
+  range_cm: [1950, 2350] as const,
+  noiseRms_AU: 3e-4,
+};
 
 /** A stack gas composition, every gas in ppm (CO2 and H2O too: 1 % = 10,000 ppm). */
 interface StackGases {
@@ -132,10 +184,22 @@ const NONE: StackGases = { CO: 0, N2O: 0, CO2: 0, H2O: 0 };
 const STACK_STANDARDS: [string, StackGases][] = [
   ['zero-a', NONE],
   ['zero-b', NONE],
-  ...[25, 50, 100, 200, 300].map((ppm): [string, StackGases] => [`co-${String(ppm).padStart(3, '0')}`, { ...NONE, CO: ppm }]),
-  ...[5, 10, 20, 40].map((ppm): [string, StackGases] => [`n2o-${String(ppm).padStart(2, '0')}`, { ...NONE, N2O: ppm }]),
-  ...[4, 8, 10, 12].map((pct): [string, StackGases] => [`co2-${String(pct).padStart(2, '0')}pct`, { ...NONE, CO2: pct * 1e4 }]),
-  ...[8, 10, 12, 14, 16, 18, 20].map((pct): [string, StackGases] => [`h2o-${String(pct).padStart(2, '0')}pct`, { ...NONE, H2O: pct * 1e4 }]),
+  ...[25, 50, 100, 200, 300].map((ppm): [string, StackGases] => [
+    `co-${String(ppm).padStart(3, '0')}`,
+    { ...NONE, CO: ppm },
+  ]),
+  ...[5, 10, 20, 40].map((ppm): [string, StackGases] => [
+    `n2o-${String(ppm).padStart(2, '0')}`,
+    { ...NONE, N2O: ppm },
+  ]),
+  ...[4, 8, 10, 12].map((pct): [string, StackGases] => [
+    `co2-${String(pct).padStart(2, '0')}pct`,
+    { ...NONE, CO2: pct * 1e4 },
+  ]),
+  ...[8, 10, 12, 14, 16, 18, 20].map((pct): [string, StackGases] => [
+    `h2o-${String(pct).padStart(2, '0')}pct`,
+    { ...NONE, H2O: pct * 1e4 },
+  ]),
   ['mix-1', { CO: 150, N2O: 25, CO2: 100000, H2O: 150000 }],
   ['mix-2', { CO: 60, N2O: 8, CO2: 90000, H2O: 120000 }],
   ['mix-3', { CO: 250, N2O: 35, CO2: 110000, H2O: 100000 }],
@@ -166,16 +230,23 @@ function stackMixture(): void {
       .filter(([, ppm]) => ppm > 0)
       .map(([gas, ppm]) => ({ name: gas, ppm }));
     const spectrum = simulate({ ...STACK, pressure_kPa, gases, seed: 5000 + i });
-    writeScan(join(folder, 'standards', `${name}.jdx`), spectrum, `stack method standard ${name}, heated cell, unit P7`);
+    writeScan(
+      join(folder, 'standards', `${name}.jdx`),
+      spectrum,
+      `stack method standard ${name}, heated cell, unit P7`,
+    );
     const uncertainty = name.startsWith('zero') ? '' : name.startsWith('h2o') ? '3' : '2';
-    manifest.push(`standards/${name}.jdx,${c.CO},${c.N2O},${c.CO2 / 1e4},${c.H2O / 1e4},,${uncertainty},QF-${name.toUpperCase()}`);
+    manifest.push(
+      `standards/${name}.jdx,${c.CO},${c.N2O},${c.CO2 / 1e4},${c.H2O / 1e4},,${uncertainty},QF-${name.toUpperCase()}`,
+    );
   });
   write(join(folder, 'standards.csv'), `${manifest.join('\n')}\n`);
   write(
     join(folder, 'method.json'),
     `${JSON.stringify(
       {
-        title: 'Calciner K2 stack: CO and N2O under CO2 and water, heated 2 m cell at 180 °C, portable FTIR P7',
+        title:
+          'Calciner K2 stack: CO and N2O under CO2 and water, heated 2 m cell at 180 °C, portable FTIR P7',
         model: 'cls',
         gases: [
           { name: 'CO', unit: 'ppm', secondOrder: true },
@@ -200,21 +271,51 @@ function stackMixture(): void {
   STACK_SAMPLES.forEach(([name, c], i) => {
     const gases = Object.entries(c).map(([gas, ppm]) => ({ name: gas, ppm }));
     const spectrum = simulate({ ...STACK, pressure_kPa: 100.7, gases, seed: 6000 + i });
-    writeScan(join(folder, 'samples', `${name}.jdx`), spectrum, `stack K2 sample ${name}, heated cell, unit P7`);
+    writeScan(
+      join(folder, 'samples', `${name}.jdx`),
+      spectrum,
+      `stack K2 sample ${name}, heated cell, unit P7`,
+    );
   });
 }
 
 async function calibrations(): Promise<void> {
   const folder = join(project, 'calibrations');
   process.env.SOURCE_DATE_EPOCH = EPOCH;
-  const status = await main(['node', 'bandwright', 'calibrate', join(root, 'lab-co', 'standards.csv'), '--method', join(root, 'lab-co', 'method.json'), '-o', join(folder, 'lab-co.calibration.json'), '--force'], {
-    stdout: { write: () => true },
-  });
+  const status = await main(
+    [
+      'node',
+      'bandwright',
+      'calibrate',
+      join(root, 'lab-co', 'standards.csv'),
+      '--method',
+      join(root, 'lab-co', 'method.json'),
+      '-o',
+      join(folder, 'lab-co.calibration.json'),
+      '--force',
+    ],
+    {
+      stdout: { write: () => true },
+    },
+  );
   if (status !== 0) throw new Error(`calibrate lab-co failed with status ${status}`);
   const stack = join(root, 'stack-mixture');
-  const stackStatus = await main(['node', 'bandwright', 'calibrate', join(stack, 'standards.csv'), '--method', join(stack, 'method.json'), '-o', join(folder, 'stack-k2.calibration.json'), '--force'], {
-    stdout: { write: () => true },
-  });
+  const stackStatus = await main(
+    [
+      'node',
+      'bandwright',
+      'calibrate',
+      join(stack, 'standards.csv'),
+      '--method',
+      join(stack, 'method.json'),
+      '-o',
+      join(folder, 'stack-k2.calibration.json'),
+      '--force',
+    ],
+    {
+      stdout: { write: () => true },
+    },
+  );
   if (stackStatus !== 0) throw new Error(`calibrate stack-mixture failed with status ${stackStatus}`);
 }
 

@@ -114,7 +114,12 @@ function describe(value: unknown): string {
 function fail(code: ErrorCode, location: ErrorLocation, value: unknown, rule: string): never {
   const prefix = formatLocation(location);
   const subject = location.parameter === undefined ? `value ${describe(value)}` : `= ${describe(value)}`;
-  const head = prefix === '' ? subject : location.parameter === undefined ? `${prefix}: ${subject}` : `${prefix} ${subject}`;
+  const head =
+    prefix === ''
+      ? subject
+      : location.parameter === undefined
+        ? `${prefix}: ${subject}`
+        : `${prefix} ${subject}`;
   throw new BandwrightError(code, `${head}, ${rule}`, location);
 }
 
@@ -127,7 +132,8 @@ function fail(code: ErrorCode, location: ErrorLocation, value: unknown, rule: st
  * @throws BandwrightError `INVALID_VALUE`
  */
 export function assertFinite(value: unknown, location: ErrorLocation): number {
-  if (typeof value !== 'number' || !Number.isFinite(value)) fail('INVALID_VALUE', location, value, 'must be a finite number');
+  if (typeof value !== 'number' || !Number.isFinite(value))
+    fail('INVALID_VALUE', location, value, 'must be a finite number');
   return value;
 }
 
@@ -172,7 +178,10 @@ export function assertAscending(values: ArrayLike<number>, location: ErrorLocati
     const current = values[i] as number;
     if (!(current > previous)) {
       const prefix = formatLocation(location);
-      const rule = current === previous ? 'duplicate x value' : 'x values must be strictly increasing or strictly decreasing';
+      const rule =
+        current === previous
+          ? 'duplicate x value'
+          : 'x values must be strictly increasing or strictly decreasing';
       throw new BandwrightError(
         'NOT_MONOTONIC',
         `${prefix === '' ? '' : `${prefix}: `}point ${i + 1}: x = ${current} after ${previous}, ${rule}`,

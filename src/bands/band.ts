@@ -60,7 +60,8 @@ const MAX_BASELINE_ORDER = 3;
 export function evaluateBaseline(baseline: FittedBaseline, wavenumber: number): number {
   const t = (wavenumber - baseline.centre_cm) / baseline.halfSpan_cm;
   let value = 0;
-  for (let k = baseline.coefficients.length - 1; k >= 0; k--) value = value * t + (baseline.coefficients[k] as number);
+  for (let k = baseline.coefficients.length - 1; k >= 0; k--)
+    value = value * t + (baseline.coefficients[k] as number);
   return value;
 }
 
@@ -77,7 +78,11 @@ export function evaluateBaseline(baseline: FittedBaseline, wavenumber: number): 
 export function fitBaseline(spectrum: Spectrum, band: Window, spec: BaselineSpec): FittedBaseline {
   const order = spec.order ?? 1;
   if (!Number.isInteger(order) || order < 0 || order > MAX_BASELINE_ORDER) {
-    throw new BandwrightError('INVALID_VALUE', `baseline order = ${order}, must be an integer from 0 to ${MAX_BASELINE_ORDER}`, { parameter: 'baseline order' });
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `baseline order = ${order}, must be an integer from 0 to ${MAX_BASELINE_ORDER}`,
+      { parameter: 'baseline order' },
+    );
   }
   let low = band[0];
   let high = band[1];
@@ -87,7 +92,8 @@ export function fitBaseline(spectrum: Spectrum, band: Window, spec: BaselineSpec
   }
   const centre = (low + high) / 2;
   const halfSpan = (high - low) / 2;
-  if (spec.windows.length === 0) return { coefficients: [0], centre_cm: centre, halfSpan_cm: halfSpan, rms_AU: 0, points: 0 };
+  if (spec.windows.length === 0)
+    return { coefficients: [0], centre_cm: centre, halfSpan_cm: halfSpan, rms_AU: 0, points: 0 };
 
   const design: number[][] = [];
   const values: number[] = [];
@@ -114,7 +120,13 @@ export function fitBaseline(spectrum: Spectrum, band: Window, spec: BaselineSpec
   }
   const fit = leastSquares(design, values, { columnNames: design[0]?.map((_, k) => `t^${k}`) });
   const rms = Math.sqrt(fit.rss / values.length);
-  return { coefficients: [...fit.coefficients], centre_cm: centre, halfSpan_cm: halfSpan, rms_AU: rms, points: values.length };
+  return {
+    coefficients: [...fit.coefficients],
+    centre_cm: centre,
+    halfSpan_cm: halfSpan,
+    rms_AU: rms,
+    points: values.length,
+  };
 }
 
 /**
@@ -132,7 +144,11 @@ export function fitBaseline(spectrum: Spectrum, band: Window, spec: BaselineSpec
  */
 export function measureBand(spectrum: Spectrum, band: Window, baseline: BaselineSpec): BandFeatures {
   if (spectrum.yKind !== 'absorbance') {
-    throw new BandwrightError('INVALID_VALUE', `${spectrum.metadata.source ?? 'scan'}: y-kind ${spectrum.yKind}, band features need absorbance`, { file: spectrum.metadata.source });
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `${spectrum.metadata.source ?? 'scan'}: y-kind ${spectrum.yKind}, band features need absorbance`,
+      { file: spectrum.metadata.source },
+    );
   }
   assertBandWindows(band, baseline.windows, 'band');
   const [start, end] = windowIndices(spectrum, band, 'band', 1);

@@ -54,7 +54,11 @@ export function channelsFromScan(spectrum: Spectrum, regions: readonly Window[])
       count++;
     }
     if (count < 3) {
-      throw new BandwrightError('WINDOW', `${spectrum.metadata.source ?? 'scan'}: region ${formatWindow(region)} holds ${count} grid point(s), needs at least 3`, { file: spectrum.metadata.source });
+      throw new BandwrightError(
+        'WINDOW',
+        `${spectrum.metadata.source ?? 'scan'}: region ${formatWindow(region)} holds ${count} grid point(s), needs at least 3`,
+        { file: spectrum.metadata.source },
+      );
     }
   });
   return { grid: Float64Array.from(values), regionOf: Int32Array.from(labels) };
@@ -83,7 +87,11 @@ function assertCovers(spectrum: Spectrum, region: Window): void {
  * @returns absorbance at each channel
  * @throws BandwrightError `WINDOW` naming the scan and the region it does not cover
  */
-export function onChannels(spectrum: Spectrum, channels: Float64Array, regions: readonly Window[]): Float64Array {
+export function onChannels(
+  spectrum: Spectrum,
+  channels: Float64Array,
+  regions: readonly Window[],
+): Float64Array {
   for (const region of regions) assertCovers(spectrum, region);
   const absorbance = toAbsorbance(spectrum);
   const { x, y } = absorbance;
@@ -131,7 +139,8 @@ const LANCZOS_HALF_WIDTH = 8;
 function isUniform(x: Float64Array, step: number): boolean {
   if (x.length < 2 || !(step > 0)) return false;
   const first = x[0] as number;
-  for (let i = 1; i < x.length; i++) if (Math.abs((x[i] as number) - (first + i * step)) > 1e-6 * step) return false;
+  for (let i = 1; i < x.length; i++)
+    if (Math.abs((x[i] as number) - (first + i * step)) > 1e-6 * step) return false;
   return true;
 }
 
@@ -170,14 +179,28 @@ function lanczosAt(values: Float64Array, u: number): number {
  *   does not cover the regions; `SINGULAR` naming the gases that cannot be separated;
  *   `CONDITIONS_MISSING`
  */
-export function buildClsCalibration(method: ClsMethod, standards: readonly StandardScan[], context: BuildContext & { background?: Spectrum }): Calibration {
+export function buildClsCalibration(
+  method: ClsMethod,
+  standards: readonly StandardScan[],
+  context: BuildContext & { background?: Spectrum },
+): Calibration {
   const first = standards[0];
   if (first === undefined) throw new BandwrightError('INSUFFICIENT_DATA', 'no standards given');
-  const components = [...method.gases.map((g) => ({ ...g, reported: true })), ...method.interferents.map((g) => ({ ...g, reported: false }))];
+  const components = [
+    ...method.gases.map((g) => ({ ...g, reported: true })),
+    ...method.interferents.map((g) => ({ ...g, reported: false })),
+  ];
   const resolved = standards.map((standard) =>
-    resolveConditions({ manifest: standard.conditions, scan: standard.spectrum.metadata, options: context.defaultConditions }, `${standard.scan} (manifest line ${standard.line})`),
+    resolveConditions(
+      { manifest: standard.conditions, scan: standard.spectrum.metadata, options: context.defaultConditions },
+      `${standard.scan} (manifest line ${standard.line})`,
+    ),
   );
-  const plain = resolved.map((c): CellConditions => ({ pathLength_m: c.pathLength_m, temperature_K: c.temperature_K, pressure_kPa: c.pressure_kPa }));
+  const plain = resolved.map((c): CellConditions => ({
+    pathLength_m: c.pathLength_m,
+    temperature_K: c.temperature_K,
+    pressure_kPa: c.pressure_kPa,
+  }));
   const reference = referenceConditions(method.reference, plain);
   const phis = plain.map((c) => densityPathFactor(c, reference));
   const { grid, regionOf } = channelsFromScan(first.spectrum, method.regions);
@@ -189,20 +212,35 @@ export function buildClsCalibration(method: ClsMethod, standards: readonly Stand
     return values;
   });
   if (peak > method.saturationAbsorbance) {
-    warnings.push(`the standards reach absorbance ${peak.toFixed(2)} in the regions, above ${method.saturationAbsorbance}: lines saturate; consider second-order terms for the strong absorbers or a shorter path`);
+    warnings.push(
+      `the standards reach absorbance ${peak.toFixed(2)} in the regions, above ${method.saturationAbsorbance}: lines saturate; consider second-order terms for the strong absorbers or a shorter path`,
+    );
   }
   const concentrations = standards.map((standard) =>
     components.map((component) => {
       const certified = standard.concentrations.find((c) => c.gas === component.name);
       if (certified === undefined) {
-        throw new BandwrightError('INVALID_VALUE', `${standard.scan} (manifest line ${standard.line}): the manifest has no ${component.name} column, but the method models ${component.name}; give its concentration (0 when absent)`, { parameter: component.name });
+        throw new BandwrightError(
+          'INVALID_VALUE',
+          `${standard.scan} (manifest line ${standard.line}): the manifest has no ${component.name} column, but the method models ${component.name}; give its concentration (0 when absent)`,
+          { parameter: component.name },
+        );
       }
       return fromPpm(toPpm(certified.value, certified.unit), component.unit);
     }),
   );
-  const background = context.background === undefined ? undefined : onChannels(context.background, grid, method.regions);
+  const background =
+    context.background === undefined ? undefined : onChannels(context.background, grid, method.regions);
   const model = fitCls(
-    { channels: grid, regionOf, spectra, concentrations, phi: phis, components: components.map((c) => ({ name: c.name, reported: c.reported, unit: c.unit })), standardLabels: standards.map((s) => s.scan) },
+    {
+      channels: grid,
+      regionOf,
+      spectra,
+      concentrations,
+      phi: phis,
+      components: components.map((c) => ({ name: c.name, reported: c.reported, unit: c.unit })),
+      standardLabels: standards.map((s) => s.scan),
+    },
     {
       baselineOrder: method.baselineOrder,
       secondOrder: components.filter((c) => c.secondOrder).map((c) => c.name),
@@ -216,7 +254,9 @@ export function buildClsCalibration(method: ClsMethod, standards: readonly Stand
   const records: CalibrationStandard[] = standards.map((standard, i) => ({
     scan: standard.scan,
     line: standard.line,
-    concentrations: Object.fromEntries(components.map((c, k) => [c.name, (concentrations[i] as number[])[k] as number])),
+    concentrations: Object.fromEntries(
+      components.map((c, k) => [c.name, (concentrations[i] as number[])[k] as number]),
+    ),
     conditions: plain[i] as CellConditions,
     phi: phis[i] as number,
     responses: {},

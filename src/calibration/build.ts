@@ -8,13 +8,29 @@
  */
 import { measureBand } from '../bands/band.js';
 import { BandwrightError } from '../errors.js';
-import { densityPathFactor, medianConditions, resolveConditions, type CellConditions, type PartialConditions, type ResolvedConditions } from '../gas/conditions.js';
+import {
+  densityPathFactor,
+  medianConditions,
+  resolveConditions,
+  type CellConditions,
+  type PartialConditions,
+  type ResolvedConditions,
+} from '../gas/conditions.js';
 import { cautionsFor } from '../gas/safety.js';
 import { fromPpm, toPpm, type ConcentrationUnit } from '../gas/units.js';
 import { fitUnivariate } from '../models/univariate.js';
 import { toAbsorbance, type Spectrum } from '../spectrum/spectrum.js';
 import { TOOL } from '../version.js';
-import { SCHEMA_VERSION, sealCalibration, type Calibration, type CalibrationBody, type CalibrationInput, type CalibrationStandard, type GasCalibration, type ZeroGasLimit } from './calibration.js';
+import {
+  SCHEMA_VERSION,
+  sealCalibration,
+  type Calibration,
+  type CalibrationBody,
+  type CalibrationInput,
+  type CalibrationStandard,
+  type GasCalibration,
+  type ZeroGasLimit,
+} from './calibration.js';
 import type { BandMethod, ResponseMethod } from './method.js';
 
 /** A standard ready for calibration: its scan in memory and its manifest row. */
@@ -52,7 +68,11 @@ export interface BuildContext {
 function certifiedIn(standard: StandardScan, gas: string, unit: ConcentrationUnit, where: string): number {
   const value = standard.concentrations.find((c) => c.gas === gas);
   if (value === undefined) {
-    throw new BandwrightError('INVALID_VALUE', `${where}: the manifest has no ${gas} column, but the method calibrates ${gas}`, { parameter: gas });
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `${where}: the manifest has no ${gas} column, but the method calibrates ${gas}`,
+      { parameter: gas },
+    );
   }
   return fromPpm(toPpm(value.value, value.unit), unit);
 }
@@ -63,7 +83,10 @@ function certifiedIn(standard: StandardScan, gas: string, unit: ConcentrationUni
  * @param given - from the method
  * @param conditions - the standards' conditions
  */
-export function referenceConditions(given: PartialConditions, conditions: readonly CellConditions[]): CellConditions {
+export function referenceConditions(
+  given: PartialConditions,
+  conditions: readonly CellConditions[],
+): CellConditions {
   const median = medianConditions(conditions);
   return {
     pathLength_m: given.pathLength_m ?? median.pathLength_m,
@@ -73,10 +96,18 @@ export function referenceConditions(given: PartialConditions, conditions: readon
 }
 
 function plainConditions(resolved: ResolvedConditions): CellConditions {
-  return { pathLength_m: resolved.pathLength_m, temperature_K: resolved.temperature_K, pressure_kPa: resolved.pressure_kPa };
+  return {
+    pathLength_m: resolved.pathLength_m,
+    temperature_K: resolved.temperature_K,
+    pressure_kPa: resolved.pressure_kPa,
+  };
 }
 
-function zeroGasLimit(responses: readonly number[], concentrations: readonly number[], slope: number): ZeroGasLimit | undefined {
+function zeroGasLimit(
+  responses: readonly number[],
+  concentrations: readonly number[],
+  slope: number,
+): ZeroGasLimit | undefined {
   const zeros = responses.filter((_, i) => concentrations[i] === 0);
   if (zeros.length < 2 || !(Math.abs(slope) > 0)) return undefined;
   const mean = zeros.reduce((a, b) => a + b, 0) / zeros.length;
@@ -99,11 +130,18 @@ function zeroGasLimit(responses: readonly number[], concentrations: readonly num
  *   baseline window is outside a scan; `INSUFFICIENT_DATA`/`SINGULAR` from the curve fit;
  *   `INVALID_VALUE` when the manifest lacks a gas of the method
  */
-export function buildBandCalibration(method: BandMethod, standards: readonly StandardScan[], context: BuildContext): Calibration {
+export function buildBandCalibration(
+  method: BandMethod,
+  standards: readonly StandardScan[],
+  context: BuildContext,
+): Calibration {
   if (standards.length === 0) throw new BandwrightError('INSUFFICIENT_DATA', 'no standards given');
   const warnings = [...(context.warnings ?? [])];
   const resolved = standards.map((standard) =>
-    resolveConditions({ manifest: standard.conditions, scan: standard.spectrum.metadata, options: context.defaultConditions }, `${standard.scan} (manifest line ${standard.line})`),
+    resolveConditions(
+      { manifest: standard.conditions, scan: standard.spectrum.metadata, options: context.defaultConditions },
+      `${standard.scan} (manifest line ${standard.line})`,
+    ),
   );
   const reference = referenceConditions(method.reference, resolved.map(plainConditions));
   const phis = resolved.map((conditions) => densityPathFactor(conditions, reference));
@@ -125,26 +163,43 @@ export function buildBandCalibration(method: BandMethod, standards: readonly Sta
     standards.forEach((standard, i) => {
       const where = `${standard.scan} (manifest line ${standard.line})`;
       const value = certifiedIn(standard, gasMethod.name, gasMethod.unit, where);
-      const features = measureBand(absorbances[i] as Spectrum, gasMethod.band, { windows: gasMethod.baseline, order: gasMethod.baselineOrder });
+      const features = measureBand(absorbances[i] as Spectrum, gasMethod.band, {
+        windows: gasMethod.baseline,
+        order: gasMethod.baselineOrder,
+      });
       const raw = gasMethod.response === 'area' ? features.area : features.height;
       const scaled = raw / (phis[i] as number);
       if (!Number.isFinite(scaled)) {
-        throw new BandwrightError('INVALID_VALUE', `${where}: ${gasMethod.name} band ${gasMethod.band[0]}–${gasMethod.band[1]} cm⁻¹ gives ${gasMethod.response === 'area' ? 'an area' : 'a height'} of ${scaled}, must be finite: the absorbance values are too large to integrate`, { file: standard.scan, parameter: gasMethod.name });
+        throw new BandwrightError(
+          'INVALID_VALUE',
+          `${where}: ${gasMethod.name} band ${gasMethod.band[0]}–${gasMethod.band[1]} cm⁻¹ gives ${gasMethod.response === 'area' ? 'an area' : 'a height'} of ${scaled}, must be finite: the absorbance values are too large to integrate`,
+          { file: standard.scan, parameter: gasMethod.name },
+        );
       }
       const record = records[i] as CalibrationStandard;
       record.concentrations[gasMethod.name] = value;
       record.responses[gasMethod.name] = { raw, scaled, peakAbsorbance: features.peakAbsorbance };
       if (features.peakAbsorbance > method.saturationAbsorbance) {
-        warnings.push(`${where}: ${gasMethod.name} peak absorbance ${features.peakAbsorbance.toFixed(3)} is above ${method.saturationAbsorbance}: lines saturate, the response is not proportional to concentration (consider a shorter path or a second-order curve)`);
+        warnings.push(
+          `${where}: ${gasMethod.name} peak absorbance ${features.peakAbsorbance.toFixed(3)} is above ${method.saturationAbsorbance}: lines saturate, the response is not proportional to concentration (consider a shorter path or a second-order curve)`,
+        );
       }
       concentration.push(value);
       response.push(scaled);
     });
-    const model = fitUnivariate({ concentration, response }, { form: gasMethod.curve, weights: gasMethod.weights, alpha: method.detectionAlpha });
+    const model = fitUnivariate(
+      { concentration, response },
+      { form: gasMethod.curve, weights: gasMethod.weights, alpha: method.detectionAlpha },
+    );
     const gas: GasCalibration = {
       gas: gasMethod.name,
       unit: gasMethod.unit,
-      feature: { band: gasMethod.band, baseline: gasMethod.baseline, baselineOrder: gasMethod.baselineOrder, response: gasMethod.response },
+      feature: {
+        band: gasMethod.band,
+        baseline: gasMethod.baseline,
+        baselineOrder: gasMethod.baselineOrder,
+        response: gasMethod.response,
+      },
       curve: gasMethod.curve,
       weights: gasMethod.weights,
       model,
@@ -173,7 +228,10 @@ export function buildBandCalibration(method: BandMethod, standards: readonly Sta
  * @param context - build context
  * @param method - the method
  */
-export function provenanceHeader(context: BuildContext, method: { title?: string }): Pick<CalibrationBody, 'schemaVersion' | 'tool' | 'createdAt' | 'title'> {
+export function provenanceHeader(
+  context: BuildContext,
+  method: { title?: string },
+): Pick<CalibrationBody, 'schemaVersion' | 'tool' | 'createdAt' | 'title'> {
   const title = context.title ?? method.title;
   return {
     schemaVersion: SCHEMA_VERSION,
@@ -203,18 +261,31 @@ export interface ResponseRow {
  * @returns the sealed calibration
  * @throws BandwrightError from the curve fit
  */
-export function buildResponseCalibration(method: ResponseMethod, rows: readonly ResponseRow[], context: BuildContext): Calibration {
+export function buildResponseCalibration(
+  method: ResponseMethod,
+  rows: readonly ResponseRow[],
+  context: BuildContext,
+): Calibration {
   const [gasMethod] = method.gases;
   const concentration = rows.map((row) => row.concentration);
   const response = rows.map((row) => row.response);
-  const model = fitUnivariate({ concentration, response }, { form: gasMethod.curve, weights: gasMethod.weights, alpha: method.detectionAlpha });
+  const model = fitUnivariate(
+    { concentration, response },
+    { form: gasMethod.curve, weights: gasMethod.weights, alpha: method.detectionAlpha },
+  );
   const warnings = [...(context.warnings ?? [])];
   const reference: CellConditions = {
     pathLength_m: method.reference.pathLength_m ?? 1,
     temperature_K: method.reference.temperature_K ?? 296.15,
     pressure_kPa: method.reference.pressure_kPa ?? 101.325,
   };
-  const gas: GasCalibration = { gas: gasMethod.name, unit: gasMethod.unit, curve: gasMethod.curve, weights: gasMethod.weights, model };
+  const gas: GasCalibration = {
+    gas: gasMethod.name,
+    unit: gasMethod.unit,
+    curve: gasMethod.curve,
+    weights: gasMethod.weights,
+    model,
+  };
   const blank = zeroGasLimit(response, concentration, model.coefficients.b);
   if (blank !== undefined) gas.zeroGasLimit = blank;
   return sealCalibration({

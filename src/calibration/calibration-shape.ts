@@ -18,12 +18,16 @@ class ShapeChecker {
   constructor(readonly source: string) {}
 
   fail(path: string, value: Json, rule: string): never {
-    let shown = value === undefined ? 'missing' : JSON.stringify(value) ?? String(value);
+    let shown = value === undefined ? 'missing' : (JSON.stringify(value) ?? String(value));
     if (shown.length > 60) shown = `${shown.slice(0, 60)}…`;
-    throw new BandwrightError('SCHEMA', `${this.source}: ${path} = ${shown}, ${rule}; the calibration file is damaged or was not written by bandwright`, {
-      file: this.source,
-      parameter: path,
-    });
+    throw new BandwrightError(
+      'SCHEMA',
+      `${this.source}: ${path} = ${shown}, ${rule}; the calibration file is damaged or was not written by bandwright`,
+      {
+        file: this.source,
+        parameter: path,
+      },
+    );
   }
 
   object(value: Json, path: string): Record<string, Json> {
@@ -42,12 +46,19 @@ class ShapeChecker {
   }
 
   choice(value: Json, path: string, choices: readonly string[]): string {
-    if (typeof value !== 'string' || !choices.includes(value)) this.fail(path, value, `must be one of ${choices.join(', ')}`);
+    if (typeof value !== 'string' || !choices.includes(value))
+      this.fail(path, value, `must be one of ${choices.join(', ')}`);
     return value;
   }
 
-  finite(value: Json, path: string, rule: (n: number) => boolean = () => true, ruleText = 'must be a finite number'): number {
-    if (typeof value !== 'number' || !Number.isFinite(value) || !rule(value)) this.fail(path, value, ruleText);
+  finite(
+    value: Json,
+    path: string,
+    rule: (n: number) => boolean = () => true,
+    ruleText = 'must be a finite number',
+  ): number {
+    if (typeof value !== 'number' || !Number.isFinite(value) || !rule(value))
+      this.fail(path, value, ruleText);
     return value;
   }
 
@@ -64,7 +75,8 @@ class ShapeChecker {
 
   window(value: Json, path: string): [number, number] {
     const [low, high] = this.numbers(value, path, 2);
-    if (this.array(value, path).length !== 2 || !((low as number) < (high as number))) this.fail(path, value, 'must be [low, high] in cm⁻¹ with low < high');
+    if (this.array(value, path).length !== 2 || !((low as number) < (high as number)))
+      this.fail(path, value, 'must be [low, high] in cm⁻¹ with low < high');
     return [low as number, high as number];
   }
 }
@@ -78,7 +90,8 @@ function checkUnivariateModel(check: ShapeChecker, value: Json, path: string): v
   check.choice(model.weights, `${path}.weights`, ['none', '1/x', '1/x2', 'replicates']);
   const weighting = check.object(model.weighting, `${path}.weighting`);
   check.finite(weighting.scale, `${path}.weighting.scale`, (n) => n > 0, 'must be a number > 0');
-  if (weighting.floor !== null) check.finite(weighting.floor, `${path}.weighting.floor`, (n) => n > 0, 'must be a number > 0 or null');
+  if (weighting.floor !== null)
+    check.finite(weighting.floor, `${path}.weighting.floor`, (n) => n > 0, 'must be a number > 0 or null');
   if (weighting.levels !== null) {
     check.array(weighting.levels, `${path}.weighting.levels`).forEach((level, i) => {
       const where = `${path}.weighting.levels[${i}]`;
@@ -94,7 +107,8 @@ function checkUnivariateModel(check: ShapeChecker, value: Json, path: string): v
   const covariance = check.array(model.covariance, `${path}.covariance`);
   if (covariance.length !== 3) check.fail(`${path}.covariance`, `${covariance.length} rows`, 'must be 3 × 3');
   covariance.forEach((row, i) => {
-    if (check.numbers(row, `${path}.covariance[${i}]`).length !== 3) check.fail(`${path}.covariance[${i}]`, row, 'must hold 3 numbers');
+    if (check.numbers(row, `${path}.covariance[${i}]`).length !== 3)
+      check.fail(`${path}.covariance[${i}]`, row, 'must hold 3 numbers');
   });
   check.finite(model.residualSD, `${path}.residualSD`, (n) => n >= 0, 'must be a number >= 0');
   check.finite(model.df, `${path}.df`, (n) => Number.isInteger(n) && n >= 1, 'must be a whole number >= 1');
@@ -105,7 +119,8 @@ function checkUnivariateModel(check: ShapeChecker, value: Json, path: string): v
   check.finite(model.meanX, `${path}.meanX`);
   check.finite(model.meanResponse, `${path}.meanResponse`);
   const range = check.numbers(model.range, `${path}.range`, 2);
-  if (range.length !== 2 || !((range[0] as number) <= (range[1] as number))) check.fail(`${path}.range`, model.range, 'must be [lowest, highest] concentration');
+  if (range.length !== 2 || !((range[0] as number) <= (range[1] as number)))
+    check.fail(`${path}.range`, model.range, 'must be [lowest, highest] concentration');
   const limits = check.object(model.limits, `${path}.limits`);
   for (const name of ['detection', 'determination']) {
     const limit = check.object(limits[name], `${path}.limits.${name}`);
@@ -121,12 +136,25 @@ function checkGas(check: ShapeChecker, value: Json, path: string, needsBand: boo
   if (gas.feature !== undefined || needsBand) {
     const feature = check.object(gas.feature, `${path}.feature`);
     check.window(feature.band, `${path}.feature.band`);
-    check.array(feature.baseline, `${path}.feature.baseline`).forEach((window, i) => check.window(window, `${path}.feature.baseline[${i}]`));
-    check.finite(feature.baselineOrder, `${path}.feature.baselineOrder`, (n) => Number.isInteger(n) && n >= 0 && n <= 3, 'must be a whole number from 0 to 3');
+    check
+      .array(feature.baseline, `${path}.feature.baseline`)
+      .forEach((window, i) => check.window(window, `${path}.feature.baseline[${i}]`));
+    check.finite(
+      feature.baselineOrder,
+      `${path}.feature.baselineOrder`,
+      (n) => Number.isInteger(n) && n >= 0 && n <= 3,
+      'must be a whole number from 0 to 3',
+    );
     check.choice(feature.response, `${path}.feature.response`, ['area', 'height']);
   }
   checkUnivariateModel(check, gas.model, `${path}.model`);
-  if (gas.zeroGasLimit !== undefined) check.finite(check.object(gas.zeroGasLimit, `${path}.zeroGasLimit`).value, `${path}.zeroGasLimit.value`, (n) => n >= 0, 'must be a number >= 0');
+  if (gas.zeroGasLimit !== undefined)
+    check.finite(
+      check.object(gas.zeroGasLimit, `${path}.zeroGasLimit`).value,
+      `${path}.zeroGasLimit.value`,
+      (n) => n >= 0,
+      'must be a number >= 0',
+    );
 }
 
 function checkCls(check: ShapeChecker, value: Json): void {
@@ -134,26 +162,36 @@ function checkCls(check: ShapeChecker, value: Json): void {
   const model = check.object(cls.model, 'cls.model');
   check.choice(model.kind, 'cls.model.kind', ['cls']);
   const grid = check.numbers(model.grid, 'cls.model.grid', 3);
-  for (let i = 1; i < grid.length; i++) if (!((grid[i] as number) > (grid[i - 1] as number))) check.fail(`cls.model.grid[${i}]`, grid[i], 'must be above the previous channel (ascending cm⁻¹)');
+  for (let i = 1; i < grid.length; i++)
+    if (!((grid[i] as number) > (grid[i - 1] as number)))
+      check.fail(`cls.model.grid[${i}]`, grid[i], 'must be above the previous channel (ascending cm⁻¹)');
   check.array(model.components, 'cls.model.components').forEach((raw, i) => {
     const component = check.object(raw, `cls.model.components[${i}]`);
     check.text(component.name, `cls.model.components[${i}].name`);
     check.choice(component.unit, `cls.model.components[${i}].unit`, UNITS);
-    if (typeof component.reported !== 'boolean') check.fail(`cls.model.components[${i}].reported`, component.reported, 'must be true or false');
+    if (typeof component.reported !== 'boolean')
+      check.fail(`cls.model.components[${i}].reported`, component.reported, 'must be true or false');
   });
-  const regions = check.array(cls.regions, 'cls.regions').map((window, i) => check.window(window, `cls.regions[${i}]`));
+  const regions = check
+    .array(cls.regions, 'cls.regions')
+    .map((window, i) => check.window(window, `cls.regions[${i}]`));
   grid.forEach((channel, i) => {
-    if (!regions.some((region) => channel >= region[0] && channel <= region[1])) check.fail(`cls.model.grid[${i}]`, channel, 'must lie inside one of cls.regions');
+    if (!regions.some((region) => channel >= region[0] && channel <= region[1]))
+      check.fail(`cls.model.grid[${i}]`, channel, 'must lie inside one of cls.regions');
   });
   const limits = check.object(cls.detectionLimits, 'cls.detectionLimits');
-  for (const [name, limit] of Object.entries(limits)) check.finite(limit, `cls.detectionLimits.${name}`, (n) => n >= 0, 'must be a number >= 0');
+  for (const [name, limit] of Object.entries(limits))
+    check.finite(limit, `cls.detectionLimits.${name}`, (n) => n >= 0, 'must be a number >= 0');
   // The model's matrices are many and internal: a blank prediction exercises all of them, and a
   // damaged one shows as an exception or a non-finite estimate.
   let problem: string | undefined;
   try {
     const blank = predictCls(model as unknown as ClsModel, new Float64Array(grid.length), { phi: 1 });
-    const bad = [...blank.estimates, ...blank.interferents].find((e) => !Number.isFinite(e.value) || !(Number.isFinite(e.se) && e.se >= 0) || !(e.low <= e.high));
-    if (bad !== undefined) problem = `a blank gives ${bad.name} = ${bad.value} ± ${bad.se} (${bad.low} to ${bad.high}), not a finite estimate with a standard error >= 0`;
+    const bad = [...blank.estimates, ...blank.interferents].find(
+      (e) => !Number.isFinite(e.value) || !(Number.isFinite(e.se) && e.se >= 0) || !(e.low <= e.high),
+    );
+    if (bad !== undefined)
+      problem = `a blank gives ${bad.name} = ${bad.value} ± ${bad.se} (${bad.low} to ${bad.high}), not a finite estimate with a standard error >= 0`;
   } catch (error) {
     problem = error instanceof Error ? error.message : String(error);
   }
@@ -178,18 +216,29 @@ export function checkCalibrationShape(record: Record<string, unknown>, source: s
   if (record.title !== undefined) check.text(record.title, 'title');
   const method = check.object(record.method, 'method');
   const kind = check.choice(method.model, 'method.model', ['band', 'responses', 'cls']);
-  check.finite(method.saturationAbsorbance, 'method.saturationAbsorbance', (n) => n > 0, 'must be an absorbance > 0');
+  check.finite(
+    method.saturationAbsorbance,
+    'method.saturationAbsorbance',
+    (n) => n > 0,
+    'must be an absorbance > 0',
+  );
   const reference = check.object(record.reference, 'reference');
-  for (const field of ['pathLength_m', 'temperature_K', 'pressure_kPa']) check.finite(reference[field], `reference.${field}`, (n) => n > 0, 'must be a number > 0');
+  for (const field of ['pathLength_m', 'temperature_K', 'pressure_kPa'])
+    check.finite(reference[field], `reference.${field}`, (n) => n > 0, 'must be a number > 0');
   const gases = check.array(record.gases, 'gases');
   if (kind === 'cls') checkCls(check, record.cls);
   else gases.forEach((gas, i) => checkGas(check, gas, `gases[${i}]`, kind === 'band'));
-  check.array(record.standards, 'standards').forEach((standard, i) => check.object(standard, `standards[${i}]`));
+  check
+    .array(record.standards, 'standards')
+    .forEach((standard, i) => check.object(standard, `standards[${i}]`));
   check.array(record.inputs, 'inputs').forEach((raw, i) => {
     const input = check.object(raw, `inputs[${i}]`);
     check.text(input.role, `inputs[${i}].role`);
-    if (check.text(input.path, `inputs[${i}].path`) === '') check.fail(`inputs[${i}].path`, input.path, 'must name a file');
-    if (!/^[0-9a-f]{64}$/.test(check.text(input.sha256, `inputs[${i}].sha256`))) check.fail(`inputs[${i}].sha256`, input.sha256, 'must be 64 lower-case hexadecimal digits');
+    if (check.text(input.path, `inputs[${i}].path`) === '')
+      check.fail(`inputs[${i}].path`, input.path, 'must name a file');
+    if (!/^[0-9a-f]{64}$/.test(check.text(input.sha256, `inputs[${i}].sha256`)))
+      check.fail(`inputs[${i}].sha256`, input.sha256, 'must be 64 lower-case hexadecimal digits');
   });
-  for (const field of ['warnings', 'cautions']) check.array(record[field], field).forEach((entry, i) => check.text(entry, `${field}[${i}]`));
+  for (const field of ['warnings', 'cautions'])
+    check.array(record[field], field).forEach((entry, i) => check.text(entry, `${field}[${i}]`));
 }

@@ -171,22 +171,52 @@ export function sealCalibration(body: CalibrationBody): Calibration {
  */
 export function verifyCalibration(value: unknown, source: string): Calibration {
   if (typeof value !== 'object' || value === null || Array.isArray(value)) {
-    throw new BandwrightError('SCHEMA', `${source}: not a calibration (expected a JSON object)`, { file: source });
+    throw new BandwrightError('SCHEMA', `${source}: not a calibration (expected a JSON object)`, {
+      file: source,
+    });
   }
   const record = value as Record<string, unknown>;
   const version = record.schemaVersion;
   if (typeof version !== 'string' || !/^\d+\.\d+$/.test(version)) {
-    throw new BandwrightError('SCHEMA', `${source}: schemaVersion = ${JSON.stringify(version)}, not a bandwright calibration (expected "major.minor")`, { file: source, parameter: 'schemaVersion' });
+    throw new BandwrightError(
+      'SCHEMA',
+      `${source}: schemaVersion = ${JSON.stringify(version)}, not a bandwright calibration (expected "major.minor")`,
+      { file: source, parameter: 'schemaVersion' },
+    );
   }
   const major = Number(version.split('.')[0]);
   const ourMajor = Number(SCHEMA_VERSION.split('.')[0]);
   if (major > ourMajor) {
-    throw new BandwrightError('SCHEMA', `${source}: schemaVersion ${version} is newer than this tool reads (${SCHEMA_VERSION}); update bandwright`, { file: source, parameter: 'schemaVersion' });
+    throw new BandwrightError(
+      'SCHEMA',
+      `${source}: schemaVersion ${version} is newer than this tool reads (${SCHEMA_VERSION}); update bandwright`,
+      { file: source, parameter: 'schemaVersion' },
+    );
   }
-  for (const field of ['tool', 'createdAt', 'method', 'reference', 'gases', 'standards', 'inputs', 'warnings', 'cautions', 'sha256'] as const) {
-    if (record[field] === undefined) throw new BandwrightError('SCHEMA', `${source}: field "${field}" is missing; the file is incomplete or not a calibration`, { file: source, parameter: field });
+  for (const field of [
+    'tool',
+    'createdAt',
+    'method',
+    'reference',
+    'gases',
+    'standards',
+    'inputs',
+    'warnings',
+    'cautions',
+    'sha256',
+  ] as const) {
+    if (record[field] === undefined)
+      throw new BandwrightError(
+        'SCHEMA',
+        `${source}: field "${field}" is missing; the file is incomplete or not a calibration`,
+        { file: source, parameter: field },
+      );
   }
-  if (typeof record.sha256 !== 'string') throw new BandwrightError('SCHEMA', `${source}: sha256 must be a hex string`, { file: source, parameter: 'sha256' });
+  if (typeof record.sha256 !== 'string')
+    throw new BandwrightError('SCHEMA', `${source}: sha256 must be a hex string`, {
+      file: source,
+      parameter: 'sha256',
+    });
   const actual = calibrationHash(record as unknown as Calibration);
   if (actual !== record.sha256) {
     throw new BandwrightError(
@@ -207,7 +237,9 @@ export function verifyCalibration(value: unknown, source: string): Calibration {
  */
 export function reportedGases(calibration: CalibrationBody): { gas: string; unit: ConcentrationUnit }[] {
   if (calibration.cls !== undefined) {
-    return calibration.cls.model.components.filter((c) => c.reported).map((c) => ({ gas: c.name, unit: c.unit as ConcentrationUnit }));
+    return calibration.cls.model.components
+      .filter((c) => c.reported)
+      .map((c) => ({ gas: c.name, unit: c.unit as ConcentrationUnit }));
   }
   return calibration.gases.map((g) => ({ gas: g.gas, unit: g.unit }));
 }

@@ -2,7 +2,13 @@
  * Method definitions: what to calibrate and how (DESIGN §4 "Method (JSON)"), validated from
  * parsed JSON into typed objects. Pure: the file is read in `src/io/method-file.ts`.
  */
-import { assertBandWindows, assertWindow, formatWindow, windowsOverlap, type Window } from '../bands/windows.js';
+import {
+  assertBandWindows,
+  assertWindow,
+  formatWindow,
+  windowsOverlap,
+  type Window,
+} from '../bands/windows.js';
 import { BandwrightError } from '../errors.js';
 import type { PartialConditions } from '../gas/conditions.js';
 import { requireInfraredSpecies } from '../gas/species.js';
@@ -121,8 +127,14 @@ class Checker {
 
   fail(path: string, value: Json, rule: string, code: 'INVALID_VALUE' | 'PARSE' = 'INVALID_VALUE'): never {
     // JSON.parse reads 1e400 as Infinity, which JSON.stringify would show as null.
-    const shown = JSON.stringify(value, (_key, inner: unknown) => (typeof inner === 'number' && !Number.isFinite(inner) ? String(inner) : inner));
-    throw new BandwrightError(code, `${this.source}: ${path} = ${shown === undefined ? 'missing' : shown}, ${rule}`, { file: this.source, parameter: path });
+    const shown = JSON.stringify(value, (_key, inner: unknown) =>
+      typeof inner === 'number' && !Number.isFinite(inner) ? String(inner) : inner,
+    );
+    throw new BandwrightError(
+      code,
+      `${this.source}: ${path} = ${shown === undefined ? 'missing' : shown}, ${rule}`,
+      { file: this.source, parameter: path },
+    );
   }
 
   object(value: Json, path: string): Record<string, Json> {
@@ -132,18 +144,25 @@ class Checker {
 
   onlyKeys(value: Record<string, Json>, path: string, allowed: readonly string[]): void {
     for (const key of Object.keys(value)) {
-      if (!allowed.includes(key)) this.fail(`${path === '' ? '' : `${path}.`}${key}`, value[key], `is not a known field here (known: ${allowed.join(', ')})`);
+      if (!allowed.includes(key))
+        this.fail(
+          `${path === '' ? '' : `${path}.`}${key}`,
+          value[key],
+          `is not a known field here (known: ${allowed.join(', ')})`,
+        );
     }
   }
 
   number(value: Json, path: string, rule: (n: number) => boolean, ruleText: string): number {
-    if (typeof value !== 'number' || !Number.isFinite(value) || !rule(value)) this.fail(path, value, ruleText);
+    if (typeof value !== 'number' || !Number.isFinite(value) || !rule(value))
+      this.fail(path, value, ruleText);
     return value;
   }
 
   choice<T extends string>(value: Json, path: string, choices: readonly T[], fallback: T): T {
     if (value === undefined) return fallback;
-    if (typeof value !== 'string' || !(choices as readonly string[]).includes(value)) this.fail(path, value, `must be one of ${choices.join(', ')}`);
+    if (typeof value !== 'string' || !(choices as readonly string[]).includes(value))
+      this.fail(path, value, `must be one of ${choices.join(', ')}`);
     return value as T;
   }
 
@@ -160,7 +179,8 @@ class Checker {
   }
 
   gasName(value: Json, path: string): string {
-    if (typeof value !== 'string' || value.trim() === '') this.fail(path, value, 'must be a gas name such as "CO"');
+    if (typeof value !== 'string' || value.trim() === '')
+      this.fail(path, value, 'must be a gas name such as "CO"');
     return requireInfraredSpecies(value, `${this.source}: ${path}`).name;
   }
 
@@ -172,7 +192,12 @@ class Checker {
 
   integer(value: Json, path: string, low: number, high: number, fallback: number): number {
     if (value === undefined) return fallback;
-    return this.number(value, path, (n) => Number.isInteger(n) && n >= low && n <= high, `must be a whole number from ${low} to ${high}`);
+    return this.number(
+      value,
+      path,
+      (n) => Number.isInteger(n) && n >= low && n <= high,
+      `must be a whole number from ${low} to ${high}`,
+    );
   }
 }
 
@@ -180,26 +205,68 @@ function parseCommon(check: Checker, root: Record<string, Json>): MethodCommon {
   const recheckRaw = root.recheck === undefined ? {} : check.object(root.recheck, 'recheck');
   check.onlyKeys(recheckRaw, 'recheck', ['everyDays', 'tolerancePct']);
   const recheck: RecheckPolicy = {
-    everyDays: recheckRaw.everyDays === undefined ? DEFAULT_RECHECK.everyDays : check.number(recheckRaw.everyDays, 'recheck.everyDays', (n) => n > 0, 'must be a number of days > 0'),
-    tolerancePct: recheckRaw.tolerancePct === undefined ? DEFAULT_RECHECK.tolerancePct : check.number(recheckRaw.tolerancePct, 'recheck.tolerancePct', (n) => n > 0 && n < 100, 'must be a percentage > 0 and < 100'),
+    everyDays:
+      recheckRaw.everyDays === undefined
+        ? DEFAULT_RECHECK.everyDays
+        : check.number(
+            recheckRaw.everyDays,
+            'recheck.everyDays',
+            (n) => n > 0,
+            'must be a number of days > 0',
+          ),
+    tolerancePct:
+      recheckRaw.tolerancePct === undefined
+        ? DEFAULT_RECHECK.tolerancePct
+        : check.number(
+            recheckRaw.tolerancePct,
+            'recheck.tolerancePct',
+            (n) => n > 0 && n < 100,
+            'must be a percentage > 0 and < 100',
+          ),
   };
   const referenceRaw = root.reference === undefined ? {} : check.object(root.reference, 'reference');
   check.onlyKeys(referenceRaw, 'reference', ['pathLength_m', 'temperature_K', 'pressure_kPa']);
   const reference: PartialConditions = {};
   for (const field of ['pathLength_m', 'temperature_K', 'pressure_kPa'] as const) {
-    if (referenceRaw[field] !== undefined) reference[field] = check.number(referenceRaw[field], `reference.${field}`, (n) => n > 0, 'must be > 0');
+    if (referenceRaw[field] !== undefined)
+      reference[field] = check.number(referenceRaw[field], `reference.${field}`, (n) => n > 0, 'must be > 0');
   }
-  if (root.title !== undefined && typeof root.title !== 'string') check.fail('title', root.title, 'must be text');
+  if (root.title !== undefined && typeof root.title !== 'string')
+    check.fail('title', root.title, 'must be text');
   return {
     ...(typeof root.title === 'string' ? { title: root.title } : {}),
     recheck,
     reference,
-    saturationAbsorbance: root.saturationAbsorbance === undefined ? DEFAULT_SATURATION_ABSORBANCE : check.number(root.saturationAbsorbance, 'saturationAbsorbance', (n) => n > 0, 'must be an absorbance > 0'),
-    detectionAlpha: root.detectionAlpha === undefined ? 0.05 : check.number(root.detectionAlpha, 'detectionAlpha', (n) => n > 0 && n < 0.5, 'must be a probability between 0 and 0.5'),
+    saturationAbsorbance:
+      root.saturationAbsorbance === undefined
+        ? DEFAULT_SATURATION_ABSORBANCE
+        : check.number(
+            root.saturationAbsorbance,
+            'saturationAbsorbance',
+            (n) => n > 0,
+            'must be an absorbance > 0',
+          ),
+    detectionAlpha:
+      root.detectionAlpha === undefined
+        ? 0.05
+        : check.number(
+            root.detectionAlpha,
+            'detectionAlpha',
+            (n) => n > 0 && n < 0.5,
+            'must be a probability between 0 and 0.5',
+          ),
   };
 }
 
-const COMMON_KEYS = ['model', 'gases', 'recheck', 'reference', 'saturationAbsorbance', 'detectionAlpha', 'title'];
+const COMMON_KEYS = [
+  'model',
+  'gases',
+  'recheck',
+  'reference',
+  'saturationAbsorbance',
+  'detectionAlpha',
+  'title',
+];
 
 /**
  * Validates a parsed method object.
@@ -214,7 +281,10 @@ export function parseMethod(value: Json, source: string): Method {
   const check = new Checker(source);
   const root = check.object(value, '(top level)');
   const model = check.choice(root.model, 'model', ['band', 'cls'] as const, 'band');
-  const gasList: Json[] = Array.isArray(root.gases) && root.gases.length > 0 ? root.gases : check.fail('gases', root.gases, 'must be a non-empty list of gases');
+  const gasList: Json[] =
+    Array.isArray(root.gases) && root.gases.length > 0
+      ? root.gases
+      : check.fail('gases', root.gases, 'must be a non-empty list of gases');
   const common = parseCommon(check, root);
   const seen = new Set<string>();
   const unique = (name: string, path: string): string => {
@@ -228,7 +298,16 @@ export function parseMethod(value: Json, source: string): Method {
     const gases = gasList.map((raw, i): BandGasMethod => {
       const path = `gases[${i}]`;
       const gas = check.object(raw, path);
-      check.onlyKeys(gas, path, ['name', 'unit', 'band', 'baseline', 'baselineOrder', 'response', 'model', 'weights']);
+      check.onlyKeys(gas, path, [
+        'name',
+        'unit',
+        'band',
+        'baseline',
+        'baselineOrder',
+        'response',
+        'model',
+        'weights',
+      ]);
       const band = check.window(gas.band, `${path}.band`);
       const baseline = check.windows(gas.baseline, `${path}.baseline`);
       assertBandWindows(band, baseline, `${source}: ${path}`);
@@ -240,7 +319,12 @@ export function parseMethod(value: Json, source: string): Method {
         baselineOrder: check.integer(gas.baselineOrder, `${path}.baselineOrder`, 0, 3, 1),
         response: check.choice(gas.response, `${path}.response`, ['area', 'height'] as const, 'area'),
         curve: check.choice(gas.model, `${path}.model`, ['linear', 'origin', 'quadratic'] as const, 'linear'),
-        weights: check.choice(gas.weights, `${path}.weights`, ['none', '1/x', '1/x2', 'replicates'] as const, 'none'),
+        weights: check.choice(
+          gas.weights,
+          `${path}.weights`,
+          ['none', '1/x', '1/x2', 'replicates'] as const,
+          'none',
+        ),
       };
     });
     return { model: 'band', gases, ...common };
@@ -248,27 +332,49 @@ export function parseMethod(value: Json, source: string): Method {
 
   check.onlyKeys(root, '', [...COMMON_KEYS, 'regions', 'baselineOrder', 'interferents', 'background']);
   const component = (raw: Json, path: string): ClsGasMethod => {
-    if (typeof raw === 'string') return { name: unique(check.gasName(raw, path), path), unit: 'ppm', secondOrder: false };
+    if (typeof raw === 'string')
+      return { name: unique(check.gasName(raw, path), path), unit: 'ppm', secondOrder: false };
     const gas = check.object(raw, path);
     check.onlyKeys(gas, path, ['name', 'unit', 'secondOrder']);
-    if (gas.secondOrder !== undefined && typeof gas.secondOrder !== 'boolean') check.fail(`${path}.secondOrder`, gas.secondOrder, 'must be true or false');
-    return { name: unique(check.gasName(gas.name, `${path}.name`), `${path}.name`), unit: check.unit(gas.unit, `${path}.unit`), secondOrder: gas.secondOrder === true };
+    if (gas.secondOrder !== undefined && typeof gas.secondOrder !== 'boolean')
+      check.fail(`${path}.secondOrder`, gas.secondOrder, 'must be true or false');
+    return {
+      name: unique(check.gasName(gas.name, `${path}.name`), `${path}.name`),
+      unit: check.unit(gas.unit, `${path}.unit`),
+      secondOrder: gas.secondOrder === true,
+    };
   };
   const gases = gasList.map((raw, i) => component(raw, `gases[${i}]`));
   const interferentList: Json[] =
-    root.interferents === undefined ? [] : Array.isArray(root.interferents) ? root.interferents : check.fail('interferents', root.interferents, 'must be a list of gas names');
+    root.interferents === undefined
+      ? []
+      : Array.isArray(root.interferents)
+        ? root.interferents
+        : check.fail('interferents', root.interferents, 'must be a list of gas names');
   const interferents = interferentList.map((raw, i) => component(raw, `interferents[${i}]`));
   const regions = check.windows(root.regions, 'regions');
-  if (regions.length === 0) check.fail('regions', root.regions, 'must list at least one spectral region [low, high] in cm⁻¹');
+  if (regions.length === 0)
+    check.fail('regions', root.regions, 'must list at least one spectral region [low, high] in cm⁻¹');
   regions.forEach((region, i) => {
     for (let j = 0; j < i; j++) {
       if (windowsOverlap(region, regions[j] as Window)) {
-        throw new BandwrightError('WINDOW', `${source}: regions[${j}] = ${formatWindow(regions[j] as Window)} and regions[${i}] = ${formatWindow(region)} overlap; merge them or separate them`, { file: source, parameter: 'regions' });
+        throw new BandwrightError(
+          'WINDOW',
+          `${source}: regions[${j}] = ${formatWindow(regions[j] as Window)} and regions[${i}] = ${formatWindow(region)} overlap; merge them or separate them`,
+          { file: source, parameter: 'regions' },
+        );
       }
     }
   });
-  if (root.background !== undefined && (typeof root.background !== 'string' || root.background.trim() === '')) {
-    check.fail('background', root.background, 'must be the path of a background absorbance scan, relative to the method file');
+  if (
+    root.background !== undefined &&
+    (typeof root.background !== 'string' || root.background.trim() === '')
+  ) {
+    check.fail(
+      'background',
+      root.background,
+      'must be the path of a background absorbance scan, relative to the method file',
+    );
   }
   return {
     model: 'cls',
@@ -292,7 +398,16 @@ export function parseMethod(value: Json, source: string): Method {
 export function parseResponseMethod(value: Json, source: string): ResponseMethod {
   const check = new Checker(source);
   const root = check.object(value, '(top level)');
-  check.onlyKeys(root, '', ['name', 'unit', 'model', 'weights', 'recheck', 'reference', 'detectionAlpha', 'title']);
+  check.onlyKeys(root, '', [
+    'name',
+    'unit',
+    'model',
+    'weights',
+    'recheck',
+    'reference',
+    'detectionAlpha',
+    'title',
+  ]);
   return {
     model: 'responses',
     gases: [
@@ -300,7 +415,12 @@ export function parseResponseMethod(value: Json, source: string): ResponseMethod
         name: check.gasName(root.name, 'gas'),
         unit: check.unit(root.unit, 'unit'),
         curve: check.choice(root.model, 'model', ['linear', 'origin', 'quadratic'] as const, 'linear'),
-        weights: check.choice(root.weights, 'weights', ['none', '1/x', '1/x2', 'replicates'] as const, 'none'),
+        weights: check.choice(
+          root.weights,
+          'weights',
+          ['none', '1/x', '1/x2', 'replicates'] as const,
+          'none',
+        ),
       },
     ],
     ...parseCommon(check, root),

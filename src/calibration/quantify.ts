@@ -9,7 +9,13 @@
  */
 import { measureBand } from '../bands/band.js';
 import { BandwrightError } from '../errors.js';
-import { conditionsFarReasons, densityPathFactor, resolveConditions, type CellConditions, type PartialConditions } from '../gas/conditions.js';
+import {
+  conditionsFarReasons,
+  densityPathFactor,
+  resolveConditions,
+  type CellConditions,
+  type PartialConditions,
+} from '../gas/conditions.js';
 import { cautionsFor } from '../gas/safety.js';
 import { toPpm, unitLabel, type ConcentrationUnit } from '../gas/units.js';
 import { predictCls } from '../models/cls.js';
@@ -17,7 +23,13 @@ import { predictConcentration } from '../models/univariate.js';
 import { toAbsorbance, type Spectrum } from '../spectrum/spectrum.js';
 import { onChannels } from './build-cls.js';
 import type { Calibration, GasCalibration } from './calibration.js';
-import { decorateGases, type GasResult, type ReportingOptions, type ResultFlag, type ScanResult } from './result.js';
+import {
+  decorateGases,
+  type GasResult,
+  type ReportingOptions,
+  type ResultFlag,
+  type ScanResult,
+} from './result.js';
 
 /** Options for quantification. */
 export interface QuantifyOptions extends ReportingOptions {
@@ -31,7 +43,11 @@ export interface QuantifyOptions extends ReportingOptions {
 
 function checkLevel(level: number): number {
   if (!(level > 0 && level < 1)) {
-    throw new BandwrightError('INVALID_VALUE', `--level = ${level}, must be a probability between 0 and 1 (e.g. 0.95)`, { parameter: '--level' });
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `--level = ${level}, must be a probability between 0 and 1 (e.g. 0.95)`,
+      { parameter: '--level' },
+    );
   }
   return level;
 }
@@ -63,21 +79,26 @@ function estimate(gas: GasCalibration, responses: readonly number[], level: numb
     result.detectionLimit = { value: detection.value, definition: detection.definition };
     if (prediction.value < detection.value) {
       flags.push('below-lod');
-      notes.push(`below the detection limit ${detection.value.toPrecision(3)} ${gas.unit} (${detection.definition}): report as "< LOD"`);
+      notes.push(
+        `below the detection limit ${detection.value.toPrecision(3)} ${gas.unit} (${detection.definition}): report as "< LOD"`,
+      );
     }
   }
   if (determination.value !== null) {
     result.determinationLimit = { value: determination.value, definition: determination.definition };
     if (!flags.includes('below-lod') && prediction.value < determination.value) {
       flags.push('below-loq');
-      notes.push(`below the determination limit ${determination.value.toPrecision(3)} ${gas.unit}: detected, but not quantified to the stated precision`);
+      notes.push(
+        `below the determination limit ${determination.value.toPrecision(3)} ${gas.unit}: detected, but not quantified to the stated precision`,
+      );
     }
   }
   const [low, high] = gas.model.range;
   if (prediction.extrapolated || prediction.value > high || (low > 0 && prediction.value < low)) {
     flags.push('extrapolated');
     // The model's own warning already says so when it noticed; add the range only otherwise.
-    if (!prediction.extrapolated) notes.push(`outside the calibrated range ${low}–${high} ${gas.unit}: the curve is extrapolated`);
+    if (!prediction.extrapolated)
+      notes.push(`outside the calibrated range ${low}–${high} ${gas.unit}: the curve is extrapolated`);
   }
   return result;
 }
@@ -92,9 +113,16 @@ function estimate(gas: GasCalibration, responses: readonly number[], level: numb
  * @throws BandwrightError `CONDITIONS_MISSING`, `WINDOW` (band outside the scan), `NO_SOLUTION`,
  *   `CONVERSION`, `INVALID_VALUE` (level, or a calibration that is not a band calibration)
  */
-export function quantifyBandScan(calibration: Calibration, spectrum: Spectrum, options: QuantifyOptions = {}): ScanResult {
+export function quantifyBandScan(
+  calibration: Calibration,
+  spectrum: Spectrum,
+  options: QuantifyOptions = {},
+): ScanResult {
   if (calibration.method.model !== 'band') {
-    throw new BandwrightError('INVALID_VALUE', `the calibration is a ${calibration.method.model} calibration; quantifyBandScan needs a band calibration`);
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `the calibration is a ${calibration.method.model} calibration; quantifyBandScan needs a band calibration`,
+    );
   }
   const level = checkLevel(options.level ?? 0.95);
   const { scan, conditions, phi, far } = scanConditions(calibration, spectrum, options);
@@ -103,17 +131,30 @@ export function quantifyBandScan(calibration: Calibration, spectrum: Spectrum, o
   let baselineRms = 0;
   for (const gas of calibration.gases) {
     const feature = gas.feature;
-    if (feature === undefined) throw new BandwrightError('SCHEMA', `calibration gas ${gas.gas} has no band; it was built from responses, use quantify --response`);
-    const measured = measureBand(absorbance, feature.band, { windows: feature.baseline, order: feature.baselineOrder });
+    if (feature === undefined)
+      throw new BandwrightError(
+        'SCHEMA',
+        `calibration gas ${gas.gas} has no band; it was built from responses, use quantify --response`,
+      );
+    const measured = measureBand(absorbance, feature.band, {
+      windows: feature.baseline,
+      order: feature.baselineOrder,
+    });
     baselineRms = Math.max(baselineRms, measured.baseline.rms_AU);
     const raw = feature.response === 'area' ? measured.area : measured.height;
     if (!Number.isFinite(raw / phi)) {
-      throw new BandwrightError('INVALID_VALUE', `${scan}: ${gas.gas} band ${feature.band[0]}–${feature.band[1]} cm⁻¹ gives ${feature.response === 'area' ? 'an area' : 'a height'} of ${raw / phi}, must be finite: the absorbance values are too large to integrate`, { file: scan, parameter: gas.gas });
+      throw new BandwrightError(
+        'INVALID_VALUE',
+        `${scan}: ${gas.gas} band ${feature.band[0]}–${feature.band[1]} cm⁻¹ gives ${feature.response === 'area' ? 'an area' : 'a height'} of ${raw / phi}, must be finite: the absorbance values are too large to integrate`,
+        { file: scan, parameter: gas.gas },
+      );
     }
     const result = estimate(gas, [raw / phi], level);
     if (measured.peakAbsorbance > calibration.method.saturationAbsorbance) {
       result.flags.push('saturated');
-      result.notes.push(`peak absorbance ${measured.peakAbsorbance.toFixed(3)} in the band is above ${calibration.method.saturationAbsorbance}: lines saturate, the result may be biased low`);
+      result.notes.push(
+        `peak absorbance ${measured.peakAbsorbance.toFixed(3)} in the band is above ${calibration.method.saturationAbsorbance}: lines saturate, the result may be biased low`,
+      );
     }
     if (far.length > 0) {
       result.flags.push('conditions-far');
@@ -132,11 +173,27 @@ export function quantifyBandScan(calibration: Calibration, spectrum: Spectrum, o
 }
 
 /** The scan's conditions, φ and how far they are from the calibration's. */
-function scanConditions(calibration: Calibration, spectrum: Spectrum, options: QuantifyOptions): { scan: string; conditions: CellConditions; phi: number; far: string[] } {
+function scanConditions(
+  calibration: Calibration,
+  spectrum: Spectrum,
+  options: QuantifyOptions,
+): { scan: string; conditions: CellConditions; phi: number; far: string[] } {
   const scan = spectrum.metadata.source ?? 'scan';
-  const resolved = resolveConditions({ manifest: options.givenConditions, scan: spectrum.metadata, options: options.defaultConditions }, scan);
-  const conditions: CellConditions = { pathLength_m: resolved.pathLength_m, temperature_K: resolved.temperature_K, pressure_kPa: resolved.pressure_kPa };
-  return { scan, conditions, phi: densityPathFactor(conditions, calibration.reference), far: conditionsFarReasons(conditions, calibration.reference) };
+  const resolved = resolveConditions(
+    { manifest: options.givenConditions, scan: spectrum.metadata, options: options.defaultConditions },
+    scan,
+  );
+  const conditions: CellConditions = {
+    pathLength_m: resolved.pathLength_m,
+    temperature_K: resolved.temperature_K,
+    pressure_kPa: resolved.pressure_kPa,
+  };
+  return {
+    scan,
+    conditions,
+    phi: densityPathFactor(conditions, calibration.reference),
+    far: conditionsFarReasons(conditions, calibration.reference),
+  };
 }
 
 /**
@@ -152,10 +209,17 @@ function scanConditions(calibration: Calibration, spectrum: Spectrum, options: Q
  * @throws BandwrightError `WINDOW` naming the scan when it does not cover the regions,
  *   `CONDITIONS_MISSING`, `CONVERSION`
  */
-export function quantifyClsScan(calibration: Calibration, spectrum: Spectrum, options: QuantifyOptions = {}): ScanResult {
+export function quantifyClsScan(
+  calibration: Calibration,
+  spectrum: Spectrum,
+  options: QuantifyOptions = {},
+): ScanResult {
   const cls = calibration.cls;
   if (calibration.method.model !== 'cls' || cls === undefined) {
-    throw new BandwrightError('INVALID_VALUE', `the calibration is a ${calibration.method.model} calibration; quantifyClsScan needs a classical-least-squares calibration`);
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `the calibration is a ${calibration.method.model} calibration; quantifyClsScan needs a classical-least-squares calibration`,
+    );
   }
   const level = checkLevel(options.level ?? 0.95);
   const { scan, conditions, phi, far } = scanConditions(calibration, spectrum, options);
@@ -180,7 +244,9 @@ export function quantifyClsScan(calibration: Calibration, spectrum: Spectrum, op
     const index = rangeIndex(name);
     const range = cls.model.ranges[index];
     const unit = unitLabel(cls.model.components[index]!.unit as ConcentrationUnit);
-    return range === undefined ? '' : `${Number((range.min / phi).toPrecision(4))}–${Number((range.max / phi).toPrecision(4))} ${unit}`;
+    return range === undefined
+      ? ''
+      : `${Number((range.min / phi).toPrecision(4))}–${Number((range.max / phi).toPrecision(4))} ${unit}`;
   };
   const poorFitCause =
     outside.length > 0
@@ -189,11 +255,25 @@ export function quantifyClsScan(calibration: Calibration, spectrum: Spectrum, op
   const gases = prediction.estimates.map((estimate): GasResult => {
     const flags: ResultFlag[] = [...estimate.flags];
     const notes: string[] = [];
-    if (estimate.flags.includes('extrapolated')) notes.push(`outside the calibrated range of the standards: the model is extrapolated`);
+    if (estimate.flags.includes('extrapolated'))
+      notes.push(`outside the calibrated range of the standards: the model is extrapolated`);
     const limit = (cls.detectionLimits[estimate.name] ?? Number.NaN) / phi;
-    const result: GasResult = { gas: estimate.name, value: estimate.value, unit: estimate.unit as GasResult['unit'], low: estimate.low, high: estimate.high, se: estimate.se, flags, notes };
+    const result: GasResult = {
+      gas: estimate.name,
+      value: estimate.value,
+      unit: estimate.unit as GasResult['unit'],
+      low: estimate.low,
+      high: estimate.high,
+      se: estimate.se,
+      flags,
+      notes,
+    };
     if (Number.isFinite(limit)) {
-      result.detectionLimit = { value: limit, definition: "3.3 × the prediction standard error of a blank at this scan's conditions (classical least squares)" };
+      result.detectionLimit = {
+        value: limit,
+        definition:
+          "3.3 × the prediction standard error of a blank at this scan's conditions (classical least squares)",
+      };
       if (estimate.value < limit) {
         flags.push('below-lod');
         notes.push(`below the detection limit ${limit.toPrecision(3)} ${estimate.unit}: report as "< LOD"`);
@@ -201,11 +281,15 @@ export function quantifyClsScan(calibration: Calibration, spectrum: Spectrum, op
     }
     if (prediction.flags.includes('poor-fit')) {
       flags.push('poor-fit');
-      notes.push(`the fit leaves a residual ${prediction.fitRatio.toFixed(2)}× the calibration's (limit ${prediction.fitRatioLimit.toFixed(2)}): ${poorFitCause}`);
+      notes.push(
+        `the fit leaves a residual ${prediction.fitRatio.toFixed(2)}× the calibration's (limit ${prediction.fitRatioLimit.toFixed(2)}): ${poorFitCause}`,
+      );
     }
     if (peak > calibration.method.saturationAbsorbance) {
       flags.push('saturated');
-      notes.push(`peak absorbance ${peak.toFixed(3)} in the regions is above ${calibration.method.saturationAbsorbance}: lines saturate`);
+      notes.push(
+        `peak absorbance ${peak.toFixed(3)} in the regions is above ${calibration.method.saturationAbsorbance}: lines saturate`,
+      );
     }
     if (far.length > 0) {
       flags.push('conditions-far');
@@ -213,7 +297,9 @@ export function quantifyClsScan(calibration: Calibration, spectrum: Spectrum, op
     }
     return result;
   });
-  const water = prediction.interferents.find((e) => e.name === 'H2O') ?? prediction.estimates.find((e) => e.name === 'H2O');
+  const water =
+    prediction.interferents.find((e) => e.name === 'H2O') ??
+    prediction.estimates.find((e) => e.name === 'H2O');
   for (const interferent of prediction.interferents) {
     const label = unitLabel(interferent.unit as ConcentrationUnit);
     warnings.push(
@@ -224,7 +310,13 @@ export function quantifyClsScan(calibration: Calibration, spectrum: Spectrum, op
   }
   const reporting: ReportingOptions =
     options.dryBasis !== undefined && options.dryBasis.waterFraction === undefined && water !== undefined
-      ? { ...options, dryBasis: { waterFraction: toPpm(water.value, water.unit as GasResult['unit']) * 1e-6, measuredInScan: true } }
+      ? {
+          ...options,
+          dryBasis: {
+            waterFraction: toPpm(water.value, water.unit as GasResult['unit']) * 1e-6,
+            measuredInScan: true,
+          },
+        }
       : options;
   return {
     scan,
@@ -238,7 +330,9 @@ export function quantifyClsScan(calibration: Calibration, spectrum: Spectrum, op
 
 /** "H2O", "CO2 and H2O" */
 function listWords(words: readonly string[]): string {
-  return words.length <= 1 ? words.join('') : `${words.slice(0, -1).join(', ')} and ${words[words.length - 1]!}`;
+  return words.length <= 1
+    ? words.join('')
+    : `${words.slice(0, -1).join(', ')} and ${words[words.length - 1]!}`;
 }
 
 /**
@@ -251,13 +345,27 @@ function listWords(words: readonly string[]): string {
  * @returns a result labelled `responses`
  * @throws BandwrightError `INVALID_VALUE` for no responses or a non-finite one; `NO_SOLUTION`
  */
-export function quantifyResponses(calibration: Calibration, responses: readonly number[], options: QuantifyOptions = {}): ScanResult {
+export function quantifyResponses(
+  calibration: Calibration,
+  responses: readonly number[],
+  options: QuantifyOptions = {},
+): ScanResult {
   if (calibration.gases.length !== 1) {
-    throw new BandwrightError('INVALID_VALUE', `the calibration has ${calibration.gases.length} gases; --response needs a calibration of one gas`, { parameter: '--response' });
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `the calibration has ${calibration.gases.length} gases; --response needs a calibration of one gas`,
+      { parameter: '--response' },
+    );
   }
-  if (responses.length === 0) throw new BandwrightError('INVALID_VALUE', '--response: give at least one response', { parameter: '--response' });
+  if (responses.length === 0)
+    throw new BandwrightError('INVALID_VALUE', '--response: give at least one response', {
+      parameter: '--response',
+    });
   responses.forEach((r, i) => {
-    if (!Number.isFinite(r)) throw new BandwrightError('INVALID_VALUE', `--response ${i + 1} = ${r}, must be a finite number`, { parameter: '--response' });
+    if (!Number.isFinite(r))
+      throw new BandwrightError('INVALID_VALUE', `--response ${i + 1} = ${r}, must be a finite number`, {
+        parameter: '--response',
+      });
   });
   const level = checkLevel(options.level ?? 0.95);
   const gas = calibration.gases[0] as GasCalibration;
@@ -271,7 +379,6 @@ export function quantifyResponses(calibration: Calibration, responses: readonly 
   };
 }
 
-
 /**
  * Quantifies one scan with any calibration that works on spectra (dispatches on the method).
  *
@@ -282,12 +389,20 @@ export function quantifyResponses(calibration: Calibration, responses: readonly 
  * @throws BandwrightError as the model's quantify function; `INVALID_VALUE` for a calibration made
  *   from tabulated responses (it has no spectral method: use {@link quantifyResponses})
  */
-export function quantifyScan(calibration: Calibration, spectrum: Spectrum, options: QuantifyOptions = {}): ScanResult {
+export function quantifyScan(
+  calibration: Calibration,
+  spectrum: Spectrum,
+  options: QuantifyOptions = {},
+): ScanResult {
   switch (calibration.method.model) {
     case 'band':
       return quantifyBandScan(calibration, spectrum, options);
     case 'responses':
-      throw new BandwrightError('INVALID_VALUE', 'the calibration was built from tabulated responses and cannot read scans; give --response values instead', { parameter: 'scans' });
+      throw new BandwrightError(
+        'INVALID_VALUE',
+        'the calibration was built from tabulated responses and cannot read scans; give --response values instead',
+        { parameter: 'scans' },
+      );
     case 'cls':
       return quantifyClsScan(calibration, spectrum, options);
   }

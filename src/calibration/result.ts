@@ -6,11 +6,20 @@
 import type { CellConditions } from '../gas/conditions.js';
 import { exceededLimits, type ExposureLimit } from '../gas/safety.js';
 import { findSpecies } from '../gas/species.js';
-import { correctToReferenceOxygen, fromPpm, ppmToMgPerM3, toDryBasis, toPpm, type ConcentrationUnit, type ReferenceState } from '../gas/units.js';
+import {
+  correctToReferenceOxygen,
+  fromPpm,
+  ppmToMgPerM3,
+  toDryBasis,
+  toPpm,
+  type ConcentrationUnit,
+  type ReferenceState,
+} from '../gas/units.js';
 import { BandwrightError } from '../errors.js';
 
 /** Result flags (DESIGN §4). */
-export type ResultFlag = 'below-lod' | 'below-loq' | 'extrapolated' | 'saturated' | 'poor-fit' | 'over-limit' | 'conditions-far';
+export type ResultFlag =
+  'below-lod' | 'below-loq' | 'extrapolated' | 'saturated' | 'poor-fit' | 'over-limit' | 'conditions-far';
 
 /** A derived value: another unit or basis, with the assumptions it rests on. */
 export interface Conversion {
@@ -99,13 +108,24 @@ export interface ReportingOptions {
  * @returns new gas results
  * @throws BandwrightError `CONVERSION` when dry basis needs H2O that was not measured or given, or O2 is too near air
  */
-export function decorateGases(gases: readonly GasResult[], options: ReportingOptions, pathLength_m: number): GasResult[] {
+export function decorateGases(
+  gases: readonly GasResult[],
+  options: ReportingOptions,
+  pathLength_m: number,
+): GasResult[] {
   let waterFraction = options.dryBasis?.waterFraction;
-  let waterNote = waterFraction === undefined ? '' : `water vapour ${(waterFraction * 100).toFixed(2)} % ${options.dryBasis?.measuredInScan ? 'measured in the same scan' : 'as given'}`;
+  let waterNote =
+    waterFraction === undefined
+      ? ''
+      : `water vapour ${(waterFraction * 100).toFixed(2)} % ${options.dryBasis?.measuredInScan ? 'measured in the same scan' : 'as given'}`;
   if (options.dryBasis !== undefined && waterFraction === undefined) {
     const water = gases.find((g) => g.gas === 'H2O');
     if (water === undefined) {
-      throw new BandwrightError('CONVERSION', 'dry basis asked for, but the calibration does not measure H2O in the scan; give the water vapour fraction (--h2o <%>)', { parameter: '--dry' });
+      throw new BandwrightError(
+        'CONVERSION',
+        'dry basis asked for, but the calibration does not measure H2O in the scan; give the water vapour fraction (--h2o <%>)',
+        { parameter: '--dry' },
+      );
     }
     waterFraction = toPpm(water.value, water.unit) * 1e-6;
     waterNote = `water vapour ${(waterFraction * 100).toFixed(2)} % measured in the same scan`;
@@ -119,19 +139,34 @@ export function decorateGases(gases: readonly GasResult[], options: ReportingOpt
       gas.low = convert(gas.low);
       gas.high = convert(gas.high);
       gas.se = convert(gas.se);
-      if (gas.detectionLimit !== undefined) gas.detectionLimit = { ...gas.detectionLimit, value: convert(gas.detectionLimit.value) };
-      if (gas.determinationLimit !== undefined) gas.determinationLimit = { ...gas.determinationLimit, value: convert(gas.determinationLimit.value) };
+      if (gas.detectionLimit !== undefined)
+        gas.detectionLimit = { ...gas.detectionLimit, value: convert(gas.detectionLimit.value) };
+      if (gas.determinationLimit !== undefined)
+        gas.determinationLimit = { ...gas.determinationLimit, value: convert(gas.determinationLimit.value) };
       gas.unit = unit;
     }
     gas.columnAmount_ppm_m = toPpm(gas.value, gas.unit) * pathLength_m;
     const conversions: Conversion[] = [];
-    let ppm = { value: toPpm(gas.value, gas.unit), low: toPpm(gas.low, gas.unit), high: toPpm(gas.high, gas.unit) };
-    const apply = (f: (v: number) => number): typeof ppm => ({ value: f(ppm.value), low: f(ppm.low), high: f(ppm.high) });
+    let ppm = {
+      value: toPpm(gas.value, gas.unit),
+      low: toPpm(gas.low, gas.unit),
+      high: toPpm(gas.high, gas.unit),
+    };
+    const apply = (f: (v: number) => number): typeof ppm => ({
+      value: f(ppm.value),
+      low: f(ppm.low),
+      high: f(ppm.high),
+    });
     const isWater = gas.gas === 'H2O';
     if (waterFraction !== undefined && !isWater) {
       const fraction = waterFraction;
       ppm = apply((v) => toDryBasis(v, fraction));
-      conversions.push({ kind: 'dry', ...ppm, unit: 'ppm', assumption: `dry basis: c_dry = c_wet / (1 − x_H2O), ${waterNote}` });
+      conversions.push({
+        kind: 'dry',
+        ...ppm,
+        unit: 'ppm',
+        assumption: `dry basis: c_dry = c_wet / (1 − x_H2O), ${waterNote}`,
+      });
     }
     if (options.oxygen !== undefined && !isWater) {
       const oxygen = options.oxygen;

@@ -10,15 +10,30 @@
  * SIGKILL, ends the process at once: any earlier file of that name is left untouched and the
  * partial file holds the rows written so far.
  */
-import { reportedGases, type BatchEntry, type Calibration, type QuantifyOptions, type YKind } from '../index.js';
-import { jsonDocumentSink, openResultFiles, resultFiles, TABLE_PAGE_SCANS, textTableSink } from './batch-output.js';
+import {
+  reportedGases,
+  type BatchEntry,
+  type Calibration,
+  type QuantifyOptions,
+  type YKind,
+} from '../index.js';
+import {
+  jsonDocumentSink,
+  openResultFiles,
+  resultFiles,
+  TABLE_PAGE_SCANS,
+  textTableSink,
+} from './batch-output.js';
 import type { BatchSetup } from './batch-scan.js';
 import { MIN_SCANS_FOR_WORKERS, runBatch, workerCount } from './batch.js';
 import { note, raiseStatus, type CommandContext } from './context.js';
 import { createProgress } from './progress.js';
 
 /** Exit status after a stop by a signal: 128 + the signal's number (common practice in shells). */
-export const SIGNAL_EXIT_STATUS: Readonly<Record<'SIGINT' | 'SIGTERM', number>> = Object.freeze({ SIGINT: 130, SIGTERM: 143 });
+export const SIGNAL_EXIT_STATUS: Readonly<Record<'SIGINT' | 'SIGTERM', number>> = Object.freeze({
+  SIGINT: 130,
+  SIGTERM: 143,
+});
 
 /** What to quantify and where the entries go. */
 export interface QuantifyBatchRequest {
@@ -72,13 +87,22 @@ export interface QuantifyBatchOutcome {
  * @throws BandwrightError `FILE_EXISTS` and other output errors before any scan is read; errors
  *   writing results (the partial files are removed); faults that are not about a scan
  */
-export async function runQuantifyBatch(context: CommandContext, request: QuantifyBatchRequest): Promise<QuantifyBatchOutcome> {
+export async function runQuantifyBatch(
+  context: CommandContext,
+  request: QuantifyBatchRequest,
+): Promise<QuantifyBatchOutcome> {
   const { calibration, options } = request;
   const level = options.level ?? 0.95;
   const gases = reportedGases(calibration).map((g) => ({ gas: g.gas, unit: options.unit ?? g.unit }));
   const files = resultFiles(request, gases, calibration.sha256);
-  const { sinks, lineFormats } = openResultFiles(files, { mode: 'replace', overwrite: request.force === true });
-  if (request.json) sinks.push(jsonDocumentSink(context.stdout, { file: request.calibrationPath, sha256: calibration.sha256 }, level));
+  const { sinks, lineFormats } = openResultFiles(files, {
+    mode: 'replace',
+    overwrite: request.force === true,
+  });
+  if (request.json)
+    sinks.push(
+      jsonDocumentSink(context.stdout, { file: request.calibrationPath, sha256: calibration.sha256 }, level),
+    );
   else if (!request.quiet) sinks.push(textTableSink(context.stdout, level));
   // Whole entries travel only when an output needs more than its lines.
   const keepEntries = request.json || !request.quiet || request.keepEntries === true;
@@ -97,7 +121,9 @@ export async function runQuantifyBatch(context: CommandContext, request: Quantif
       return;
     }
     interruptedBy = signal;
-    progress.note(`bandwright: ${signal}: finishing the scans in hand, then writing the results (a second ${signal} stops at once)`);
+    progress.note(
+      `bandwright: ${signal}: finishing the scans in hand, then writing the results (a second ${signal} stops at once)`,
+    );
   };
   const onInterrupt = (): void => onSignal('SIGINT');
   const onTerminate = (): void => onSignal('SIGTERM');
@@ -113,7 +139,13 @@ export async function runQuantifyBatch(context: CommandContext, request: Quantif
     process.on('SIGTERM', onTerminate);
   }
 
-  const setup: BatchSetup = { calibration, options, lineFormats, keepEntries, ...(request.yKind === undefined ? {} : { yKind: request.yKind }) };
+  const setup: BatchSetup = {
+    calibration,
+    options,
+    lineFormats,
+    keepEntries,
+    ...(request.yKind === undefined ? {} : { yKind: request.yKind }),
+  };
   const started = performance.now();
   const workers = workerCount(request.workers, total, request.paths.includes('-'));
   try {
@@ -131,7 +163,10 @@ export async function runQuantifyBatch(context: CommandContext, request: Quantif
         progress.update(done, failed);
       },
     });
-    if (outcome.workersOutOfMemory > 0) progress.note(`bandwright: ${outcome.workersOutOfMemory} worker thread(s) ran out of heap; their scans were quantified in the main thread`);
+    if (outcome.workersOutOfMemory > 0)
+      progress.note(
+        `bandwright: ${outcome.workersOutOfMemory} worker thread(s) ran out of heap; their scans were quantified in the main thread`,
+      );
     progress.finish();
     for (const sink of sinks) sink.finish();
   } catch (error) {
@@ -148,9 +183,15 @@ export async function runQuantifyBatch(context: CommandContext, request: Quantif
     raiseStatus(context, 1);
   }
   const rate = seconds > 0 ? done / seconds : Number.POSITIVE_INFINITY;
-  note(context, `${done} scan(s), ${failed} failed, in ${seconds.toFixed(2)} s (${Number.isFinite(rate) ? rate.toFixed(0) : '—'} scans/s${workers > 0 ? `, ${workers} worker threads` : ''})`);
+  note(
+    context,
+    `${done} scan(s), ${failed} failed, in ${seconds.toFixed(2)} s (${Number.isFinite(rate) ? rate.toFixed(0) : '—'} scans/s${workers > 0 ? `, ${workers} worker threads` : ''})`,
+  );
   if (interruptedBy !== undefined) {
-    note(context, `bandwright: interrupted by ${interruptedBy} after ${done} of ${total} scans; the results of those ${done} are complete`);
+    note(
+      context,
+      `bandwright: interrupted by ${interruptedBy} after ${done} of ${total} scans; the results of those ${done} are complete`,
+    );
     raiseStatus(context, SIGNAL_EXIT_STATUS[interruptedBy]);
   }
   return { entries, scans: done, failed, seconds, ...(interruptedBy === undefined ? {} : { interruptedBy }) };

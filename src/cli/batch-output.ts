@@ -5,7 +5,14 @@
  * Each output holds at most one page of entries, so memory stays flat in the number of scans,
  * and each gives the same text as the whole-batch formatters of `report/results.ts`.
  */
-import { formatCsv, formatResultsText, openResultsWriter, resultColumns, resultsDocument, type BatchEntry } from '../index.js';
+import {
+  formatCsv,
+  formatResultsText,
+  openResultsWriter,
+  resultColumns,
+  resultsDocument,
+  type BatchEntry,
+} from '../index.js';
 import type { BatchItem, LineFormat, ResultGases } from './batch-scan.js';
 import type { TextSink } from './context.js';
 
@@ -28,7 +35,8 @@ function resultsCsvHeader(gases: ResultGases): string {
 
 /** The entry of an item, for the outputs that need it (the batch keeps entries for them). */
 function entryOf(item: BatchItem): BatchEntry {
-  if (item.entry === undefined) throw new Error('batch output needs entries but the batch was set up without keepEntries');
+  if (item.entry === undefined)
+    throw new Error('batch output needs entries but the batch was set up without keepEntries');
   return item.entry;
 }
 
@@ -53,7 +61,11 @@ export interface ResultFile {
  * @param gases - result columns of the CSV
  * @param sha256 - the calibration's hash, written in every line
  */
-export function resultFiles(paths: { csv?: string | undefined; jsonl?: string | undefined }, gases: ResultGases, sha256: string): ResultFile[] {
+export function resultFiles(
+  paths: { csv?: string | undefined; jsonl?: string | undefined },
+  gases: ResultGases,
+  sha256: string,
+): ResultFile[] {
   const files: ResultFile[] = [];
   if (paths.csv !== undefined) files.push({ path: paths.csv, format: { kind: 'csv', gases, sha256 } });
   if (paths.jsonl !== undefined) files.push({ path: paths.jsonl, format: { kind: 'jsonl', sha256 } });
@@ -69,12 +81,20 @@ export function resultFiles(paths: { csv?: string | undefined; jsonl?: string | 
  * @returns one sink per file, and the line formats in the same order
  * @throws BandwrightError from {@link openResultsWriter} (the files opened before are abandoned)
  */
-export function openResultFiles(files: readonly ResultFile[], options: FileSinkOptions): { sinks: EntrySink[]; lineFormats: LineFormat[] } {
+export function openResultFiles(
+  files: readonly ResultFile[],
+  options: FileSinkOptions,
+): { sinks: EntrySink[]; lineFormats: LineFormat[] } {
   const sinks: EntrySink[] = [];
   try {
     files.forEach(({ path, format }, line) => {
       const header = format.kind === 'csv' ? { header: resultsCsvHeader(format.gases) } : {};
-      const writer = openResultsWriter(path, { mode: options.mode, ...header, overwrite: options.overwrite === true, createFolder: true });
+      const writer = openResultsWriter(path, {
+        mode: options.mode,
+        ...header,
+        overwrite: options.overwrite === true,
+        createFolder: true,
+      });
       sinks.push({
         add: (item) => writer.write(item.lines[line] as string),
         finish: () => writer.commit(),
@@ -130,7 +150,11 @@ export function textTableSink(out: TextSink, level: number, pageScans: number = 
  * @param calibration - the calibration's file and hash
  * @param level - interval level
  */
-export function jsonDocumentSink(out: TextSink, calibration: { file: string; sha256: string }, level: number): EntrySink {
+export function jsonDocumentSink(
+  out: TextSink,
+  calibration: { file: string; sha256: string },
+  level: number,
+): EntrySink {
   const empty = JSON.stringify(resultsDocument([], calibration, level), null, 2);
   // The document ends with `"results": []\n}`; entries go between the brackets.
   const open = empty.lastIndexOf('[]');

@@ -20,7 +20,8 @@ import type { YKind } from '../spectrum/spectrum.js';
 export type ResultGases = readonly { gas: string; unit: string }[];
 
 /** A result-file line made for every scan: a results CSV row or a JSON-lines record. */
-export type LineFormat = { kind: 'csv'; gases: ResultGases; sha256: string } | { kind: 'jsonl'; sha256: string };
+export type LineFormat =
+  { kind: 'csv'; gases: ResultGases; sha256: string } | { kind: 'jsonl'; sha256: string };
 
 /** Everything a batch needs besides the paths; plain data, so it can be sent to a worker. */
 export interface BatchSetup {
@@ -79,7 +80,9 @@ export function resultsJsonLine(entry: BatchEntry, sha256: string): string {
  * @param format - CSV row or JSON-lines record
  */
 export function formatLine(entry: BatchEntry, format: LineFormat): string {
-  return format.kind === 'csv' ? resultsCsvRow(entry, format.gases, format.sha256) : resultsJsonLine(entry, format.sha256);
+  return format.kind === 'csv'
+    ? resultsCsvRow(entry, format.gases, format.sha256)
+    : resultsJsonLine(entry, format.sha256);
 }
 
 /**
@@ -92,7 +95,10 @@ export function formatLine(entry: BatchEntry, format: LineFormat): string {
  */
 export function createScanQuantifier(setup: BatchSetup): ScanQuantifier {
   // Each spectrum is quantified before the next is read, so the readers' buffers can be reused.
-  const read: ScanReader = createScanReader({ reuseOutput: true, ...(setup.yKind === undefined ? {} : { yKind: setup.yKind }) });
+  const read: ScanReader = createScanReader({
+    reuseOutput: true,
+    ...(setup.yKind === undefined ? {} : { yKind: setup.yKind }),
+  });
   const formats = setup.lineFormats ?? [];
   const keepEntries = setup.keepEntries === true;
   return (path: string): BatchItem => {

@@ -18,7 +18,10 @@ port.on('message', (task: WorkerTask) => {
   try {
     reply = { first: task.first, items: task.paths.map(quantify) };
   } catch (error) {
-    reply = { first: task.first, fault: error instanceof Error ? (error.stack ?? error.message) : String(error) };
+    reply = {
+      first: task.first,
+      fault: error instanceof Error ? (error.stack ?? error.message) : String(error),
+    };
   }
   port.postMessage(reply);
 });

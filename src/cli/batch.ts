@@ -84,7 +84,12 @@ export const MIN_SCANS_FOR_WORKERS = 2_000;
  * @param machine - cores (default `os.availableParallelism()`) and 1-minute load average
  *   (default `os.loadavg()[0]`; 0 where the system does not report one)
  */
-export function workerCount(requested: 'auto' | number, scans: number, fromStdin: boolean, machine: { cores?: number; load?: number } = {}): number {
+export function workerCount(
+  requested: 'auto' | number,
+  scans: number,
+  fromStdin: boolean,
+  machine: { cores?: number; load?: number } = {},
+): number {
   if (fromStdin || scans === 0) return 0;
   if (requested !== 'auto') return Math.min(requested, scans);
   const cores = machine.cores ?? availableParallelism();
@@ -101,8 +106,13 @@ export function workerCount(requested: 'auto' | number, scans: number, fromStdin
  */
 function workerStart(data: WorkerStart): { script: URL | string; options: WorkerOptions } {
   const here = import.meta.url;
-  if (!here.endsWith('.ts')) return { script: new URL('./batch-worker.js', here), options: { workerData: data } };
-  const api = pathToFileURL(createRequire(here).resolve('tsx/esm/api').replace(/\.cjs$/, '.mjs')).href;
+  if (!here.endsWith('.ts'))
+    return { script: new URL('./batch-worker.js', here), options: { workerData: data } };
+  const api = pathToFileURL(
+    createRequire(here)
+      .resolve('tsx/esm/api')
+      .replace(/\.cjs$/, '.mjs'),
+  ).href;
   const target = new URL('./batch-worker.ts', here).href;
   const code = `import(${JSON.stringify(api)}).then((tsx) => { tsx.register(); return import(${JSON.stringify(target)}); }).catch((error) => { setImmediate(() => { throw error; }); });`;
   return { script: code, options: { eval: true, workerData: data } };
@@ -121,10 +131,15 @@ function workerStart(data: WorkerStart): { script: URL | string; options: Worker
  * @throws Error when a worker fails for a reason that is not about a scan, or when `onItem`
  *   throws (the workers are stopped first)
  */
-export async function runBatch(setup: BatchSetup, paths: readonly string[], options: RunBatchOptions): Promise<BatchOutcome> {
+export async function runBatch(
+  setup: BatchSetup,
+  paths: readonly string[],
+  options: RunBatchOptions,
+): Promise<BatchOutcome> {
   const shouldStop = options.shouldStop ?? (() => false);
   const quantify = createScanQuantifier(setup);
-  if (options.workers <= 0 || paths.length === 0) return runHere(quantify, paths, 0, options.onItem, shouldStop);
+  if (options.workers <= 0 || paths.length === 0)
+    return runHere(quantify, paths, 0, options.onItem, shouldStop);
   // This thread quantifies scans until one gives a result: the t and F quantiles it needed are
   // then handed to the workers, which so need not load the distribution kernels (about 10 MB of
   // memory each; `stats/distributions.ts`).
@@ -136,11 +151,24 @@ export async function runBatch(setup: BatchSetup, paths: readonly string[], opti
     quantified = item.error === undefined;
   }
   if (first === paths.length) return { delivered: first, stopped: false, workersOutOfMemory: 0 };
-  const rest = await runInWorkers({ setup, quantiles: computedQuantiles() }, quantify, paths, first, options, shouldStop);
+  const rest = await runInWorkers(
+    { setup, quantiles: computedQuantiles() },
+    quantify,
+    paths,
+    first,
+    options,
+    shouldStop,
+  );
   return { ...rest, delivered: first + rest.delivered };
 }
 
-async function runHere(quantify: ScanQuantifier, paths: readonly string[], from: number, onItem: RunBatchOptions['onItem'], shouldStop: () => boolean): Promise<BatchOutcome> {
+async function runHere(
+  quantify: ScanQuantifier,
+  paths: readonly string[],
+  from: number,
+  onItem: RunBatchOptions['onItem'],
+  shouldStop: () => boolean,
+): Promise<BatchOutcome> {
   let lastYield = performance.now();
   for (let i = from; i < paths.length; i++) {
     if (shouldStop()) return { delivered: i - from, stopped: true, workersOutOfMemory: 0 };
@@ -155,7 +183,14 @@ async function runHere(quantify: ScanQuantifier, paths: readonly string[], from:
   return { delivered: paths.length - from, stopped: false, workersOutOfMemory: 0 };
 }
 
-function runInWorkers(start: WorkerStart, quantifyHere: ScanQuantifier, paths: readonly string[], from: number, options: RunBatchOptions, shouldStop: () => boolean): Promise<BatchOutcome> {
+function runInWorkers(
+  start: WorkerStart,
+  quantifyHere: ScanQuantifier,
+  paths: readonly string[],
+  from: number,
+  options: RunBatchOptions,
+  shouldStop: () => boolean,
+): Promise<BatchOutcome> {
   const launch = workerStart(start);
   const chunkSize = options.chunkSize ?? 8;
   const resourceLimits = options.workerHeap ?? WORKER_HEAP_LIMITS;
@@ -172,7 +207,8 @@ function runInWorkers(start: WorkerStart, quantifyHere: ScanQuantifier, paths: r
       if (settled) return;
       settled = true;
       for (const worker of running.keys()) void worker.terminate();
-      if (error === undefined) resolve({ delivered: nextToDeliver - from, stopped, workersOutOfMemory: outOfMemory });
+      if (error === undefined)
+        resolve({ delivered: nextToDeliver - from, stopped, workersOutOfMemory: outOfMemory });
       else reject(error);
     };
     /** The next chunk of paths, or undefined when there is none or a stop was asked. */
@@ -266,7 +302,8 @@ function runInWorkers(start: WorkerStart, quantifyHere: ScanQuantifier, paths: r
         }
       });
       worker.on('exit', (code) => {
-        if (!settled && running.has(worker)) finish(new Error(`worker thread stopped with exit code ${code} before the batch was done`));
+        if (!settled && running.has(worker))
+          finish(new Error(`worker thread stopped with exit code ${code} before the batch was done`));
       });
     }
     // Two chunks per worker in flight, so a worker never waits for this thread.
@@ -284,7 +321,10 @@ function runInWorkers(start: WorkerStart, quantifyHere: ScanQuantifier, paths: r
  * it), keeps it flat at the same speed (bench/batch.ts). A worker that still runs out (a scan far
  * larger than usual) hands its chunks back to this thread.
  */
-export const WORKER_HEAP_LIMITS: WorkerHeapLimits = { maxYoungGenerationSizeMb: 8, maxOldGenerationSizeMb: 32 };
+export const WORKER_HEAP_LIMITS: WorkerHeapLimits = {
+  maxYoungGenerationSizeMb: 8,
+  maxOldGenerationSizeMb: 32,
+};
 
 /**
  * Parses `--workers`: `auto` or a whole number ≥ 0.
@@ -294,6 +334,11 @@ export const WORKER_HEAP_LIMITS: WorkerHeapLimits = { maxYoungGenerationSizeMb: 
  */
 export function workersOption(text: string): 'auto' | number {
   if (text === 'auto') return 'auto';
-  if (!/^\d+$/.test(text.trim()) || Number(text) > 64) throw new BandwrightError('USAGE', `--workers = ${JSON.stringify(text)}, must be auto or a whole number from 0 to 64`, { parameter: '--workers' });
+  if (!/^\d+$/.test(text.trim()) || Number(text) > 64)
+    throw new BandwrightError(
+      'USAGE',
+      `--workers = ${JSON.stringify(text)}, must be auto or a whole number from 0 to 64`,
+      { parameter: '--workers' },
+    );
   return Number(text);
 }

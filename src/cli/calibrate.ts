@@ -62,11 +62,18 @@ interface CalibrateOptions {
  *
  * @param options - parsed options with `pathLength`, `temperature`, `pressure`
  */
-export function conditionOptions(options: { pathLength?: string; temperature?: string; pressure?: string }): PartialConditions {
+export function conditionOptions(options: {
+  pathLength?: string;
+  temperature?: string;
+  pressure?: string;
+}): PartialConditions {
   const conditions: PartialConditions = {};
-  if (options.pathLength !== undefined) conditions.pathLength_m = parsePositiveOption(options.pathLength, '--path-length');
-  if (options.temperature !== undefined) conditions.temperature_K = parsePositiveOption(options.temperature, '--temperature');
-  if (options.pressure !== undefined) conditions.pressure_kPa = parsePositiveOption(options.pressure, '--pressure');
+  if (options.pathLength !== undefined)
+    conditions.pathLength_m = parsePositiveOption(options.pathLength, '--path-length');
+  if (options.temperature !== undefined)
+    conditions.temperature_K = parsePositiveOption(options.temperature, '--temperature');
+  if (options.pressure !== undefined)
+    conditions.pressure_kPa = parsePositiveOption(options.pressure, '--pressure');
   return conditions;
 }
 
@@ -77,20 +84,35 @@ export function conditionOptions(options: { pathLength?: string; temperature?: s
  */
 export function yKindOption(text: string | undefined): YKind | undefined {
   if (text === undefined) return undefined;
-  if (!(Y_KINDS as readonly string[]).includes(text)) throw new BandwrightError('USAGE', `--y-kind = ${JSON.stringify(text)}, must be one of ${Y_KINDS.join(', ')}`, { parameter: '--y-kind' });
+  if (!(Y_KINDS as readonly string[]).includes(text))
+    throw new BandwrightError(
+      'USAGE',
+      `--y-kind = ${JSON.stringify(text)}, must be one of ${Y_KINDS.join(', ')}`,
+      { parameter: '--y-kind' },
+    );
   return text as YKind;
 }
 
 function recheckFromFlags(options: CalibrateOptions): { everyDays?: number; tolerancePct?: number } {
   const recheck: { everyDays?: number; tolerancePct?: number } = {};
-  if (options.everyDays !== undefined) recheck.everyDays = parsePositiveOption(options.everyDays, '--every-days');
-  if (options.tolerancePct !== undefined) recheck.tolerancePct = parsePositiveOption(options.tolerancePct, '--tolerance-pct');
+  if (options.everyDays !== undefined)
+    recheck.everyDays = parsePositiveOption(options.everyDays, '--every-days');
+  if (options.tolerancePct !== undefined)
+    recheck.tolerancePct = parsePositiveOption(options.tolerancePct, '--tolerance-pct');
   return recheck;
 }
 
 function methodFromFlags(options: CalibrateOptions): BandMethod {
-  if (options.gas === undefined) throw new BandwrightError('USAGE', 'calibrate: give --method <method.json>, or --gas with --band for a one-gas band calibration', { parameter: '--gas' });
-  if (options.band === undefined) throw new BandwrightError('USAGE', `calibrate: --gas ${options.gas} needs --band low:high (cm⁻¹)`, { parameter: '--band' });
+  if (options.gas === undefined)
+    throw new BandwrightError(
+      'USAGE',
+      'calibrate: give --method <method.json>, or --gas with --band for a one-gas band calibration',
+      { parameter: '--gas' },
+    );
+  if (options.band === undefined)
+    throw new BandwrightError('USAGE', `calibrate: --gas ${options.gas} needs --band low:high (cm⁻¹)`, {
+      parameter: '--band',
+    });
   const gas: Record<string, unknown> = {
     name: options.gas,
     unit: options.unit ?? 'ppm',
@@ -101,7 +123,10 @@ function methodFromFlags(options: CalibrateOptions): BandMethod {
     weights: options.weights ?? 'none',
   };
   if (options.baselineOrder !== undefined) gas.baselineOrder = Number(options.baselineOrder);
-  return parseMethod({ model: 'band', gases: [gas], recheck: recheckFromFlags(options) }, 'options') as BandMethod;
+  return parseMethod(
+    { model: 'band', gases: [gas], recheck: recheckFromFlags(options) },
+    'options',
+  ) as BandMethod;
 }
 
 function defaultOutput(input: string): string {
@@ -122,10 +147,15 @@ function relativeTo(folder: string, path: string): string {
 export function registerCalibrate(program: Command, context: CommandContext): void {
   program
     .command('calibrate')
-    .description('build a calibration from a manifest of standard scans (with --method, or --gas and --band), or from --responses')
+    .description(
+      'build a calibration from a manifest of standard scans (with --method, or --gas and --band), or from --responses',
+    )
     .argument('[manifest]', 'CSV manifest of standards: scan, <GAS>_<unit>, conditions, uncertainty_pct, lot')
     .option('--method <file>', 'method file (JSON): gases, bands or regions, curve forms, recheck policy')
-    .option('--responses <file>', 'CSV table of pre-integrated responses: concentration,response (replicates as repeated rows)')
+    .option(
+      '--responses <file>',
+      'CSV table of pre-integrated responses: concentration,response (replicates as repeated rows)',
+    )
     .option('--gas <name>', 'gas to calibrate (with --band or --responses)')
     .option('--unit <unit>', 'concentration unit: ppm, ppb or pct', 'ppm')
     .option('--band <low:high>', 'integration window, cm⁻¹')
@@ -141,11 +171,20 @@ export function registerCalibrate(program: Command, context: CommandContext): vo
     .option('--every-days <days>', 'recheck interval, days (with --gas; a method file sets its own)')
     .option('--tolerance-pct <pct>', 'recheck tolerance, % (with --gas)')
     .option('--title <text>', 'title stored in the calibration')
-    .option('-o, --output <file>', 'calibration file to write (default: <manifest>.calibration.json beside it)')
+    .option(
+      '-o, --output <file>',
+      'calibration file to write (default: <manifest>.calibration.json beside it)',
+    )
     .option('--force', 'replace an existing calibration file')
     .option('--json', 'print the calibration as JSON on stdout instead of a summary')
-    .option('--plot <dir>', 'also write the calibration curve and the standards\' spectra as SVG files into this folder')
-    .option('--wavenumber-axis <order>', 'spectra plots with wavenumbers descending (high on the left, default) or ascending')
+    .option(
+      '--plot <dir>',
+      "also write the calibration curve and the standards' spectra as SVG files into this folder",
+    )
+    .option(
+      '--wavenumber-axis <order>',
+      'spectra plots with wavenumbers descending (high on the left, default) or ascending',
+    )
     .action((manifestPath: string | undefined, options: CalibrateOptions) => {
       const wavenumberAxis = wavenumberAxisOption(options.wavenumberAxis);
       let standardSpectra: StandardSpectrum[] = [];
@@ -153,15 +192,45 @@ export function registerCalibrate(program: Command, context: CommandContext): vo
       let output: string;
       const createdAt = creationTime();
       if (options.responses !== undefined) {
-        if (manifestPath !== undefined) throw new BandwrightError('USAGE', 'calibrate: give either a manifest or --responses, not both', { parameter: '--responses' });
-        if (options.gas === undefined) throw new BandwrightError('USAGE', 'calibrate --responses needs --gas <name>', { parameter: '--gas' });
+        if (manifestPath !== undefined)
+          throw new BandwrightError('USAGE', 'calibrate: give either a manifest or --responses, not both', {
+            parameter: '--responses',
+          });
+        if (options.gas === undefined)
+          throw new BandwrightError('USAGE', 'calibrate --responses needs --gas <name>', {
+            parameter: '--gas',
+          });
         output = options.output ?? defaultOutput(options.responses);
-        const responseMethod = parseResponseMethod({ name: options.gas, unit: options.unit, model: options.model, weights: options.weights, recheck: recheckFromFlags(options) }, 'options');
+        const responseMethod = parseResponseMethod(
+          {
+            name: options.gas,
+            unit: options.unit,
+            model: options.model,
+            weights: options.weights,
+            recheck: recheckFromFlags(options),
+          },
+          'options',
+        );
         const rows = readResponseTable(options.responses);
-        const inputs: CalibrationInput[] = [{ role: 'responses', path: relativeTo(dirname(resolve(output)), options.responses), sha256: sha256OfFile(options.responses) }];
-        calibration = buildResponseCalibration(responseMethod, rows, { inputs, createdAt, ...(options.title === undefined ? {} : { title: options.title }) });
+        const inputs: CalibrationInput[] = [
+          {
+            role: 'responses',
+            path: relativeTo(dirname(resolve(output)), options.responses),
+            sha256: sha256OfFile(options.responses),
+          },
+        ];
+        calibration = buildResponseCalibration(responseMethod, rows, {
+          inputs,
+          createdAt,
+          ...(options.title === undefined ? {} : { title: options.title }),
+        });
       } else {
-        if (manifestPath === undefined) throw new BandwrightError('USAGE', 'calibrate: give a manifest of standards (or --responses <table>)', { parameter: 'manifest' });
+        if (manifestPath === undefined)
+          throw new BandwrightError(
+            'USAGE',
+            'calibrate: give a manifest of standards (or --responses <table>)',
+            { parameter: 'manifest' },
+          );
         const method = options.method !== undefined ? readMethod(options.method) : methodFromFlags(options);
         output = options.output ?? defaultOutput(manifestPath);
         const folder = dirname(resolve(output));
@@ -171,7 +240,15 @@ export function registerCalibrate(program: Command, context: CommandContext): vo
         standardSpectra = loaded.standards.map((standard, index) => ({ index, spectrum: standard.spectrum }));
         const inputs: CalibrationInput[] = [
           { role: 'manifest', path: relativeTo(folder, manifestPath), sha256: sha256OfFile(manifestPath) },
-          ...(options.method === undefined ? [] : [{ role: 'method' as const, path: relativeTo(folder, options.method), sha256: sha256OfFile(options.method) }]),
+          ...(options.method === undefined
+            ? []
+            : [
+                {
+                  role: 'method' as const,
+                  path: relativeTo(folder, options.method),
+                  sha256: sha256OfFile(options.method),
+                },
+              ]),
           ...loaded.inputs.map((input) => ({ ...input, path: relativeTo(folder, input.path) })),
         ];
         const context = {
@@ -183,20 +260,41 @@ export function registerCalibrate(program: Command, context: CommandContext): vo
         };
         if (method.model === 'cls') {
           // A background spectrum is named relative to the method file.
-          const backgroundPath = method.background === undefined || options.method === undefined ? undefined : join(dirname(options.method), method.background);
-          const background = backgroundPath === undefined ? undefined : readScan(backgroundPath, yKind === undefined ? {} : { yKind });
-          if (backgroundPath !== undefined) inputs.push({ role: 'background', path: relativeTo(folder, backgroundPath), sha256: sha256OfFile(backgroundPath) });
-          calibration = buildClsCalibration(method, loaded.standards, { ...context, ...(background === undefined ? {} : { background }) });
+          const backgroundPath =
+            method.background === undefined || options.method === undefined
+              ? undefined
+              : join(dirname(options.method), method.background);
+          const background =
+            backgroundPath === undefined
+              ? undefined
+              : readScan(backgroundPath, yKind === undefined ? {} : { yKind });
+          if (backgroundPath !== undefined)
+            inputs.push({
+              role: 'background',
+              path: relativeTo(folder, backgroundPath),
+              sha256: sha256OfFile(backgroundPath),
+            });
+          calibration = buildClsCalibration(method, loaded.standards, {
+            ...context,
+            ...(background === undefined ? {} : { background }),
+          });
         } else if (method.model === 'band') {
           calibration = buildBandCalibration(method, loaded.standards, context);
         } else {
-          throw new BandwrightError('USAGE', 'calibrate: a responses method needs --responses <table>', { parameter: '--method' });
+          throw new BandwrightError('USAGE', 'calibrate: a responses method needs --responses <table>', {
+            parameter: '--method',
+          });
         }
       }
-      const plots = options.plot === undefined ? [] : calibrationPlots(calibration, standardSpectra, { wavenumberAxis });
+      const plots =
+        options.plot === undefined ? [] : calibrationPlots(calibration, standardSpectra, { wavenumberAxis });
       if (options.plot !== undefined) refuseExistingPlots(options.plot, plots, options.force === true);
       writeCalibration(output, calibration, { force: options.force === true });
-      if (options.plot !== undefined) note(context, `${writePlotFiles(options.plot, plots, { force: true }).length} plot(s) written to ${options.plot}`);
+      if (options.plot !== undefined)
+        note(
+          context,
+          `${writePlotFiles(options.plot, plots, { force: true }).length} plot(s) written to ${options.plot}`,
+        );
       if (options.json) context.stdout.write(`${JSON.stringify(calibration, null, 2)}\n`);
       else context.stdout.write(`${formatCalibrationSummary(calibration)}\n`);
       note(context, `calibration written to ${output} (sha256 ${calibration.sha256.slice(0, 16)}…)`);

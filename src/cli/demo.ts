@@ -8,7 +8,14 @@
 import { join, relative } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import type { Command } from 'commander';
-import { BandwrightError, historyPathFor, isNonEmptyFolder, moveHistoryAside, readCheckList, writeFileAtomic } from '../index.js';
+import {
+  BandwrightError,
+  historyPathFor,
+  isNonEmptyFolder,
+  moveHistoryAside,
+  readCheckList,
+  writeFileAtomic,
+} from '../index.js';
 import { note, raiseStatus, type CommandContext } from './context.js';
 
 /** The bundled examples folder, found from this file (works from src/ under tsx and from dist/). */
@@ -49,7 +56,12 @@ async function withCreationTime<T>(epochSeconds: string | undefined, action: () 
 
 /** One line for a recheck from its `--json` output: date, recovery, verdict, rules fired. */
 function recheckLine(stdout: string): string {
-  const result = JSON.parse(stdout) as { time: string; recoveryPct: number | null; verdict: string; rules: { rule: string }[] };
+  const result = JSON.parse(stdout) as {
+    time: string;
+    recoveryPct: number | null;
+    verdict: string;
+    rules: { rule: string }[];
+  };
   const recovery = result.recoveryPct === null ? 'zero gas' : `recovery ${result.recoveryPct.toFixed(2)} %`;
   return `${result.time.slice(0, 10)}  ${recovery}  ${result.verdict}${result.rules.length > 0 ? ` (${result.rules.map((r) => r.rule).join(', ')})` : ''}`;
 }
@@ -61,16 +73,26 @@ function recheckLine(stdout: string): string {
  * @param context - output and status
  * @param run - runs one command line in a fresh context and returns its status and output
  */
-export function registerDemo(program: Command, context: CommandContext, run: (args: string[]) => Promise<{ status: number; stdout: string; stderr: string }>): void {
+export function registerDemo(
+  program: Command,
+  context: CommandContext,
+  run: (args: string[]) => Promise<{ status: number; stdout: string; stderr: string }>,
+): void {
   program
     .command('demo')
-    .description('run the whole job on the bundled example data: calibrate, quantify, and more as it is built')
+    .description(
+      'run the whole job on the bundled example data: calibrate, quantify, and more as it is built',
+    )
     .option('--out <dir>', 'folder for everything the demo writes', 'bandwright-demo')
     .option('--force', 'use the folder even if it is not empty (files the demo writes are replaced)')
     .action(async (flags: { out: string; force?: boolean }) => {
       const out = flags.out;
       if (isNonEmptyFolder(out) && !flags.force) {
-        throw new BandwrightError('FILE_EXISTS', `${out} exists and is not empty; choose another --out or add --force`, { parameter: '--out' });
+        throw new BandwrightError(
+          'FILE_EXISTS',
+          `${out} exists and is not empty; choose another --out or add --force`,
+          { parameter: '--out' },
+        );
       }
       const examples = relative(process.cwd(), examplesFolder()) || '.';
       const lab = join(examples, 'lab-co');
@@ -78,15 +100,31 @@ export function registerDemo(program: Command, context: CommandContext, run: (ar
       const force = flags.force ? ['--force'] : [];
       const steps: DemoStep[] = [
         {
-          title: 'Calibrate CO from 14 standards (zero gas and six levels in duplicate), second-order band-area curve',
-          args: ['calibrate', join(lab, 'standards.csv'), '--method', join(lab, 'method.json'), '-o', at('lab-co.calibration.json'), ...force],
+          title:
+            'Calibrate CO from 14 standards (zero gas and six levels in duplicate), second-order band-area curve',
+          args: [
+            'calibrate',
+            join(lab, 'standards.csv'),
+            '--method',
+            join(lab, 'method.json'),
+            '-o',
+            at('lab-co.calibration.json'),
+            ...force,
+          ],
           stdoutFile: 'lab-co.calibration.txt',
           // Dated the day before the first weekly check, as it would have been built.
           createdAt: LAB_CALIBRATION_DATE,
         },
         {
           title: 'Quantify five samples with 95 % prediction intervals (table, CSV and JSON)',
-          args: ['quantify', at('lab-co.calibration.json'), join(lab, 'samples'), '--csv', at('lab-co.results.csv'), ...force],
+          args: [
+            'quantify',
+            at('lab-co.calibration.json'),
+            join(lab, 'samples'),
+            '--csv',
+            at('lab-co.results.csv'),
+            ...force,
+          ],
           stdoutFile: 'lab-co.results.txt',
         },
         {
@@ -99,8 +137,22 @@ export function registerDemo(program: Command, context: CommandContext, run: (ar
       const checks = readCheckList(join(lab, 'checks.csv'));
       checks.forEach((check, k) => {
         steps.push({
-          title: k === 0 ? `Recheck the ${checks.length} weekly check-standard scans in order (--at the time each was measured): recovery, control rules, trend` : '',
-          args: ['recheck', at('lab-co.calibration.json'), check.scan, '--certified', String(check.certified), '--unit', check.unit, '--at', check.measuredAt, '--json'],
+          title:
+            k === 0
+              ? `Recheck the ${checks.length} weekly check-standard scans in order (--at the time each was measured): recovery, control rules, trend`
+              : '',
+          args: [
+            'recheck',
+            at('lab-co.calibration.json'),
+            check.scan,
+            '--certified',
+            String(check.certified),
+            '--unit',
+            check.unit,
+            '--at',
+            check.measuredAt,
+            '--json',
+          ],
           expected: [0, 3, 4],
           line: recheckLine,
         });
@@ -112,19 +164,39 @@ export function registerDemo(program: Command, context: CommandContext, run: (ar
         expected: [0, 3, 4],
       });
       steps.push({
-        title: 'Write the calibration report: one self-contained HTML page with statistics, limits, plots, the recheck history, provenance and cautions',
+        title:
+          'Write the calibration report: one self-contained HTML page with statistics, limits, plots, the recheck history, provenance and cautions',
         args: ['report', at('lab-co.calibration.json'), '-o', at('lab-co.report.html'), ...force],
       });
       const stack = join(examples, 'stack-mixture');
       steps.push(
         {
-          title: 'Calibrate the stack method by classical least squares: CO and N2O under CO2 and water vapour, 26 standards, second-order terms for the saturating CO, N2O and water lines',
-          args: ['calibrate', join(stack, 'standards.csv'), '--method', join(stack, 'method.json'), '-o', at('stack-k2.calibration.json'), ...force],
+          title:
+            'Calibrate the stack method by classical least squares: CO and N2O under CO2 and water vapour, 26 standards, second-order terms for the saturating CO, N2O and water lines',
+          args: [
+            'calibrate',
+            join(stack, 'standards.csv'),
+            '--method',
+            join(stack, 'method.json'),
+            '-o',
+            at('stack-k2.calibration.json'),
+            ...force,
+          ],
           stdoutFile: 'stack-k2.calibration.txt',
         },
         {
-          title: 'Quantify the six stack samples on a dry basis (water from the same scan) and in mg/m³ at 273.15 K and 101.325 kPa; the sample taken during a water-spray upset is flagged poor-fit',
-          args: ['quantify', at('stack-k2.calibration.json'), join(stack, 'samples'), '--dry', '--mg-m3', '--csv', at('stack-k2.results.csv'), ...force],
+          title:
+            'Quantify the six stack samples on a dry basis (water from the same scan) and in mg/m³ at 273.15 K and 101.325 kPa; the sample taken during a water-spray upset is flagged poor-fit',
+          args: [
+            'quantify',
+            at('stack-k2.calibration.json'),
+            join(stack, 'samples'),
+            '--dry',
+            '--mg-m3',
+            '--csv',
+            at('stack-k2.results.csv'),
+            ...force,
+          ],
           stdoutFile: 'stack-k2.results.txt',
         },
       );
@@ -135,20 +207,29 @@ export function registerDemo(program: Command, context: CommandContext, run: (ar
       for (const step of steps) {
         const result = await withCreationTime(step.createdAt, () => run(step.args));
         const ok = (step.expected ?? [0]).includes(result.status);
-        if (step.stdoutFile !== undefined) writeFileAtomic(at(step.stdoutFile), result.stdout, { overwrite: true, createFolder: true });
+        if (step.stdoutFile !== undefined)
+          writeFileAtomic(at(step.stdoutFile), result.stdout, { overwrite: true, createFolder: true });
         if (ok && step.line !== undefined) {
-          if (step.title !== '') note(context, `\n${++number}. ${step.title}\n   $ bandwright ${step.args.join(' ')}`);
+          if (step.title !== '')
+            note(context, `\n${++number}. ${step.title}\n   $ bandwright ${step.args.join(' ')}`);
           note(context, `   ${step.line(result.stdout)}`);
           continue;
         }
-        note(context, `\n${step.title === '' ? number : ++number}. ${step.title || step.args.slice(0, 3).join(' ')}\n   $ bandwright ${step.args.join(' ')}${step.stdoutFile === undefined ? '' : `\n   → ${at(step.stdoutFile)}`}${ok ? '' : `\n   ! exit status ${result.status}:\n${result.stderr}`}`);
+        note(
+          context,
+          `\n${step.title === '' ? number : ++number}. ${step.title || step.args.slice(0, 3).join(' ')}\n   $ bandwright ${step.args.join(' ')}${step.stdoutFile === undefined ? '' : `\n   → ${at(step.stdoutFile)}`}${ok ? '' : `\n   ! exit status ${result.status}:\n${result.stderr}`}`,
+        );
         if (!ok) {
           raiseStatus(context, 1);
           note(context, 'the demo stops here; the message above says why');
           return;
         }
-        if ((step.args[0] === 'quantify' || step.args[0] === 'status') && step.stdoutFile?.endsWith('.txt')) context.stdout.write(`${result.stdout}\n`);
+        if ((step.args[0] === 'quantify' || step.args[0] === 'status') && step.stdoutFile?.endsWith('.txt'))
+          context.stdout.write(`${result.stdout}\n`);
       }
-      note(context, `\nEverything is in ${out}/. Each step above is an ordinary bandwright command you can run yourself.`);
+      note(
+        context,
+        `\nEverything is in ${out}/. Each step above is an ordinary bandwright command you can run yourself.`,
+      );
     });
 }

@@ -26,7 +26,9 @@ export function buildProgram(context: CommandContext): Command {
   const program = new Command();
   program
     .name('bandwright')
-    .description('Gas-cell infrared quantification: calibrate from certified standards, quantify samples with prediction intervals, recheck drift.')
+    .description(
+      'Gas-cell infrared quantification: calibrate from certified standards, quantify samples with prediction intervals, recheck drift.',
+    )
     .version(TOOL.version, '-V, --version')
     .showHelpAfterError('(run with --help for usage)')
     .addHelpText('after', `\n${resourceLimitsHelp()}\n`)
@@ -42,7 +44,13 @@ export function buildProgram(context: CommandContext): Command {
   registerVerify(program, context);
   registerReport(program, context);
   registerDemo(program, context, runCaptured);
-  for (const command of program.commands) command.exitOverride().configureOutput({ writeOut: (s) => context.stdout.write(s), writeErr: (s) => context.stderr.write(s) });
+  for (const command of program.commands)
+    command
+      .exitOverride()
+      .configureOutput({
+        writeOut: (s) => context.stdout.write(s),
+        writeErr: (s) => context.stderr.write(s),
+      });
   return program;
 }
 
@@ -52,7 +60,9 @@ export function buildProgram(context: CommandContext): Command {
  * @param args - arguments after `bandwright`
  * @returns the exit status and what was printed
  */
-export async function runCaptured(args: readonly string[]): Promise<{ status: number; stdout: string; stderr: string }> {
+export async function runCaptured(
+  args: readonly string[],
+): Promise<{ status: number; stdout: string; stderr: string }> {
   let stdout = '';
   let stderr = '';
   const status = await main(['node', 'bandwright', ...args], {
@@ -70,7 +80,10 @@ export async function runCaptured(args: readonly string[]): Promise<{ status: nu
  * @param streams - where to print (default: the process's stdout and stderr)
  * @returns the exit status
  */
-export async function main(argv: readonly string[], streams: { stdout?: TextSink; stderr?: TextSink; interactive?: boolean } = {}): Promise<number> {
+export async function main(
+  argv: readonly string[],
+  streams: { stdout?: TextSink; stderr?: TextSink; interactive?: boolean } = {},
+): Promise<number> {
   const context: CommandContext = {
     stdout: streams.stdout ?? process.stdout,
     stderr: streams.stderr ?? process.stderr,
@@ -92,7 +105,9 @@ export async function main(argv: readonly string[], streams: { stdout?: TextSink
       context.stderr.write(`bandwright: ${error.message}\n`);
       return error.code === 'USAGE' ? 2 : 1;
     }
-    context.stderr.write(`bandwright: internal error: ${error instanceof Error ? (error.stack ?? error.message) : String(error)}\n`);
+    context.stderr.write(
+      `bandwright: internal error: ${error instanceof Error ? (error.stack ?? error.message) : String(error)}\n`,
+    );
     return 1;
   }
 }
@@ -114,5 +129,6 @@ export function runAsProcess(argv: readonly string[]): void {
   });
 }
 
-const invokedDirectly = process.argv[1] !== undefined && import.meta.url === new URL(`file://${process.argv[1]}`).href;
+const invokedDirectly =
+  process.argv[1] !== undefined && import.meta.url === new URL(`file://${process.argv[1]}`).href;
 if (invokedDirectly) runAsProcess(process.argv);

@@ -11,10 +11,20 @@ import { BandwrightError } from '../index.js';
  * @param rule - optional check with its words, e.g. `[n => n > 0, 'must be > 0']`
  * @throws BandwrightError `USAGE` naming the option, the value and the rule
  */
-export function parseNumberOption(text: string, option: string, rule?: [(n: number) => boolean, string]): number {
-  const value = /^[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?$/.test(text.trim()) ? Number(text) : Number.NaN;
-  if (!Number.isFinite(value)) throw new BandwrightError('USAGE', `${option} = ${JSON.stringify(text)}, must be a number`, { parameter: option });
-  if (rule !== undefined && !rule[0](value)) throw new BandwrightError('USAGE', `${option} = ${text}, ${rule[1]}`, { parameter: option });
+export function parseNumberOption(
+  text: string,
+  option: string,
+  rule?: [(n: number) => boolean, string],
+): number {
+  const value = /^[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?$/.test(text.trim())
+    ? Number(text)
+    : Number.NaN;
+  if (!Number.isFinite(value))
+    throw new BandwrightError('USAGE', `${option} = ${JSON.stringify(text)}, must be a number`, {
+      parameter: option,
+    });
+  if (rule !== undefined && !rule[0](value))
+    throw new BandwrightError('USAGE', `${option} = ${text}, ${rule[1]}`, { parameter: option });
   return value;
 }
 
@@ -32,10 +42,18 @@ export function parsePositiveOption(text: string, option: string): number {
  */
 export function parseWindowOption(text: string, option: string): [number, number] {
   const parts = text.split(':');
-  if (parts.length !== 2) throw new BandwrightError('USAGE', `${option} = ${JSON.stringify(text)}, must be low:high in cm⁻¹, e.g. 2040:2245`, { parameter: option });
+  if (parts.length !== 2)
+    throw new BandwrightError(
+      'USAGE',
+      `${option} = ${JSON.stringify(text)}, must be low:high in cm⁻¹, e.g. 2040:2245`,
+      { parameter: option },
+    );
   const low = parseNumberOption(parts[0] as string, option);
   const high = parseNumberOption(parts[1] as string, option);
-  if (!(low < high)) throw new BandwrightError('USAGE', `${option} = ${text}, the low end must be below the high end`, { parameter: option });
+  if (!(low < high))
+    throw new BandwrightError('USAGE', `${option} = ${text}, the low end must be below the high end`, {
+      parameter: option,
+    });
   return [low, high];
 }
 
@@ -67,6 +85,9 @@ export function collect(value: string, previous: string[] = []): string[] {
 export function creationTime(): string {
   const epoch = process.env.SOURCE_DATE_EPOCH;
   if (epoch === undefined || epoch === '') return new Date().toISOString();
-  const seconds = parseNumberOption(epoch, 'SOURCE_DATE_EPOCH', [(n) => Number.isInteger(n) && n >= 0, 'must be whole seconds since 1970']);
+  const seconds = parseNumberOption(epoch, 'SOURCE_DATE_EPOCH', [
+    (n) => Number.isInteger(n) && n >= 0,
+    'must be whole seconds since 1970',
+  ]);
   return new Date(seconds * 1000).toISOString();
 }

@@ -65,7 +65,10 @@ export function createProgress(context: CommandContext, options: ProgressOptions
       const parts = [`[${'#'.repeat(filled)}${'.'.repeat(width - filled)}] ${done}/${options.total} scans`];
       if (failed > 0) parts.push(`${failed} failed`);
       if (rate > 0) parts.push(`${rate.toFixed(0)} scans/s`);
-      if (Number.isFinite(remaining) && done < options.total) parts.push(`${remaining < 60 ? `${remaining.toFixed(0)} s` : `${(remaining / 60).toFixed(1)} min`} left`);
+      if (Number.isFinite(remaining) && done < options.total)
+        parts.push(
+          `${remaining < 60 ? `${remaining.toFixed(0)} s` : `${(remaining / 60).toFixed(1)} min`} left`,
+        );
       context.stderr.write(`\r\x1b[K${parts.join(', ')}`);
       drawn = true;
     },

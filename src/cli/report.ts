@@ -53,7 +53,11 @@ export const WAVENUMBER_AXIS_CHOICES: readonly WavenumberAxis[] = ['descending',
 export function wavenumberAxisOption(text: string | undefined): WavenumberAxis {
   if (text === undefined) return 'descending';
   if (!(WAVENUMBER_AXIS_CHOICES as readonly string[]).includes(text)) {
-    throw new BandwrightError('USAGE', `--wavenumber-axis = ${JSON.stringify(text)}, must be descending (high wavenumbers on the left) or ascending`, { parameter: '--wavenumber-axis' });
+    throw new BandwrightError(
+      'USAGE',
+      `--wavenumber-axis = ${JSON.stringify(text)}, must be descending (high wavenumbers on the left) or ascending`,
+      { parameter: '--wavenumber-axis' },
+    );
   }
   return text as WavenumberAxis;
 }
@@ -67,19 +71,27 @@ export function wavenumberAxisOption(text: string | undefined): WavenumberAxis {
  * @param checks - the input checks from `checkInputs`
  * @returns spectra by standard index, and notes about those that could not be used
  */
-export function loadRecordedStandards(calibration: Calibration, calibrationPath: string, checks: readonly InputCheck[]): { spectra: StandardSpectrum[]; notes: string[] } {
+export function loadRecordedStandards(
+  calibration: Calibration,
+  calibrationPath: string,
+  checks: readonly InputCheck[],
+): { spectra: StandardSpectrum[]; notes: string[] } {
   const standardChecks = checks.filter((c) => c.role === 'standard');
   const spectra: StandardSpectrum[] = [];
   const notes: string[] = [];
   if (calibration.method.model === 'responses') return { spectra, notes };
   if (standardChecks.length !== calibration.standards.length) {
-    notes.push(`the calibration records ${standardChecks.length} standard scan file(s) for ${calibration.standards.length} standards, so the spectra cannot be matched to the standards and are not drawn`);
+    notes.push(
+      `the calibration records ${standardChecks.length} standard scan file(s) for ${calibration.standards.length} standards, so the spectra cannot be matched to the standards and are not drawn`,
+    );
     return { spectra, notes };
   }
   const problems: string[] = [];
   standardChecks.forEach((check, index) => {
     if (check.status !== 'unchanged') {
-      problems.push(`${check.path} (${check.status === 'changed' ? 'changed since the calibration was built' : check.status === 'missing' ? 'missing' : `unreadable: ${check.message ?? ''}`})`);
+      problems.push(
+        `${check.path} (${check.status === 'changed' ? 'changed since the calibration was built' : check.status === 'missing' ? 'missing' : `unreadable: ${check.message ?? ''}`})`,
+      );
       return;
     }
     try {
@@ -89,7 +101,10 @@ export function loadRecordedStandards(calibration: Calibration, calibrationPath:
       problems.push(`${check.path} (cannot be read: ${error.message})`);
     }
   });
-  if (problems.length > 0) notes.push(`${problems.length} of ${standardChecks.length} standard spectra are not drawn: ${problems.join('; ')}`);
+  if (problems.length > 0)
+    notes.push(
+      `${problems.length} of ${standardChecks.length} standard spectra are not drawn: ${problems.join('; ')}`,
+    );
   return { spectra, notes };
 }
 
@@ -103,10 +118,16 @@ export function loadRecordedStandards(calibration: Calibration, calibrationPath:
  * @returns the paths written
  * @throws BandwrightError `FILE_EXISTS` naming the first existing file; `FILE_READ` when the folder cannot be written
  */
-export function writePlotFiles(folder: string, plots: readonly NamedPlot[], options: { force?: boolean } = {}): string[] {
+export function writePlotFiles(
+  folder: string,
+  plots: readonly NamedPlot[],
+  options: { force?: boolean } = {},
+): string[] {
   const paths = plots.map((plot) => join(folder, plot.file));
   refuseExistingPlots(folder, plots, options.force === true);
-  plots.forEach((plot, i) => writeFileAtomic(paths[i] as string, svgFile(plot.svg), { overwrite: true, createFolder: true }));
+  plots.forEach((plot, i) =>
+    writeFileAtomic(paths[i] as string, svgFile(plot.svg), { overwrite: true, createFolder: true }),
+  );
   return paths;
 }
 
@@ -121,7 +142,12 @@ export function writePlotFiles(folder: string, plots: readonly NamedPlot[], opti
 export function refuseExistingPlots(folder: string, plots: readonly NamedPlot[], force: boolean): void {
   if (force) return;
   const existing = plots.map((plot) => join(folder, plot.file)).find((path) => isNonEmptyFolder(path));
-  if (existing !== undefined) throw new BandwrightError('FILE_EXISTS', `${existing} exists; use --force to replace the plots in ${folder}`, { file: existing, parameter: '--plot' });
+  if (existing !== undefined)
+    throw new BandwrightError(
+      'FILE_EXISTS',
+      `${existing} exists; use --force to replace the plots in ${folder}`,
+      { file: existing, parameter: '--plot' },
+    );
 }
 
 /**
@@ -132,7 +158,11 @@ export function refuseExistingPlots(folder: string, plots: readonly NamedPlot[],
  * @param option - option name for the message
  */
 export function refuseExisting(path: string, force: boolean, option: string): void {
-  if (!force && isNonEmptyFolder(path)) throw new BandwrightError('FILE_EXISTS', `${path} exists; use --force to replace it`, { file: path, parameter: option });
+  if (!force && isNonEmptyFolder(path))
+    throw new BandwrightError('FILE_EXISTS', `${path} exists; use --force to replace it`, {
+      file: path,
+      parameter: option,
+    });
 }
 
 /**
@@ -141,7 +171,10 @@ export function refuseExisting(path: string, force: boolean, option: string): vo
  * @param calibrationPath - calibration file
  */
 export function defaultReportPath(calibrationPath: string): string {
-  const name = extname(calibrationPath).toLowerCase() === '.json' ? basename(calibrationPath, extname(calibrationPath)) : basename(calibrationPath);
+  const name =
+    extname(calibrationPath).toLowerCase() === '.json'
+      ? basename(calibrationPath, extname(calibrationPath))
+      : basename(calibrationPath);
   return join(dirname(calibrationPath), `${name}.report.html`);
 }
 
@@ -155,12 +188,21 @@ export function defaultReportPath(calibrationPath: string): string {
  * @returns one view per gas with checks, and notes (a history of another calibration is not used)
  * @throws BandwrightError from reading the history (`PARSE` for a damaged file)
  */
-export function recheckHistoryViews(calibration: Calibration, calibrationPath: string, now: string): { views: RecheckHistoryView[]; notes: string[] } {
+export function recheckHistoryViews(
+  calibration: Calibration,
+  calibrationPath: string,
+  now: string,
+): { views: RecheckHistoryView[]; notes: string[] } {
   const path = historyPathFor(calibrationPath);
   const history = readHistoryIfExists(path);
   if (history === undefined) return { views: [], notes: [] };
   if (history.calibrationSha256 !== calibration.sha256) {
-    return { views: [], notes: [`${path} belongs to another calibration (sha256 ${history.calibrationSha256.slice(0, 12)}…, this one ${calibration.sha256.slice(0, 12)}…); its checks are not shown`] };
+    return {
+      views: [],
+      notes: [
+        `${path} belongs to another calibration (sha256 ${history.calibrationSha256.slice(0, 12)}…, this one ${calibration.sha256.slice(0, 12)}…); its checks are not shown`,
+      ],
+    };
   }
   const gases = [...new Set(history.records.map((r) => r.gas))];
   const views = gases.map((gas): RecheckHistoryView => {
@@ -171,7 +213,10 @@ export function recheckHistoryViews(calibration: Calibration, calibrationPath: s
     );
     return {
       gas,
-      chart: controlChartFromEvaluation(evaluation, schedule.nextDue === undefined ? {} : { nextDue: schedule.nextDue }),
+      chart: controlChartFromEvaluation(
+        evaluation,
+        schedule.nextDue === undefined ? {} : { nextDue: schedule.nextDue },
+      ),
       rows: evaluation.checks.map((c) => ({
         time: c.record.time,
         certified: c.record.certified,
@@ -182,7 +227,12 @@ export function recheckHistoryViews(calibration: Calibration, calibrationPath: s
         rules: c.rules.map((r) => r.rule),
         scan: c.record.scan,
       })),
-      notes: [`σ: ${evaluation.sigma.reason}`, `trend: ${evaluation.trend.summary}`, `schedule at ${now}: ${schedule.reason}`, ...evaluation.notes],
+      notes: [
+        `σ: ${evaluation.sigma.reason}`,
+        `trend: ${evaluation.trend.summary}`,
+        `schedule at ${now}: ${schedule.reason}`,
+        ...evaluation.notes,
+      ],
       source: path,
     };
   });
@@ -196,7 +246,10 @@ export function recheckHistoryViews(calibration: Calibration, calibrationPath: s
  * @param calibration - verified calibration
  * @param calibrationPath - its file as named
  */
-export function calibrationReportInput(calibration: Calibration, calibrationPath: string): CalibrationReportInput {
+export function calibrationReportInput(
+  calibration: Calibration,
+  calibrationPath: string,
+): CalibrationReportInput {
   const generatedAt = creationTime();
   const inputs = checkInputs(calibration, calibrationPath);
   const { spectra, notes } = loadRecordedStandards(calibration, calibrationPath, inputs);
@@ -230,9 +283,18 @@ export function calibrationReportInput(calibration: Calibration, calibrationPath
  * @param evaluation - the evaluated history after the new check
  * @param nextDue - next due time, ISO, when known
  */
-export function writeRecheckPlot(context: CommandContext, folder: string, evaluation: DriftEvaluation, nextDue?: string): void {
+export function writeRecheckPlot(
+  context: CommandContext,
+  folder: string,
+  evaluation: DriftEvaluation,
+  nextDue?: string,
+): void {
   const chart = controlChartFromEvaluation(evaluation, nextDue === undefined ? {} : { nextDue });
-  const written = writePlotFiles(folder, [controlChartPlot(chart, { file: `${evaluation.gas}-control-chart` })], { force: true });
+  const written = writePlotFiles(
+    folder,
+    [controlChartPlot(chart, { file: `${evaluation.gas}-control-chart` })],
+    { force: true },
+  );
   note(context, `control chart written to ${written.join(', ')}`);
 }
 
@@ -253,15 +315,26 @@ interface ReportFlags {
 export function registerReport(program: Command, context: CommandContext): void {
   program
     .command('report')
-    .description('write one self-contained HTML page for a calibration: statistics, limits, plots, recheck history, provenance, cautions')
+    .description(
+      'write one self-contained HTML page for a calibration: statistics, limits, plots, recheck history, provenance, cautions',
+    )
     .argument('<calibration>', 'calibration file (JSON) made by calibrate')
-    .option('-o, --output <file>', 'HTML file to write (default: <calibration without .json>.report.html beside it)')
+    .option(
+      '-o, --output <file>',
+      'HTML file to write (default: <calibration without .json>.report.html beside it)',
+    )
     .option('--force', 'replace an existing report (and plot files with --plot)')
     .option('--plot <dir>', 'also write each plot as an SVG file into this folder')
     .option('--level <p>', 'level of the confidence and prediction bands drawn', '0.95')
-    .option('--wavenumber-axis <order>', 'spectra with wavenumbers descending (high on the left, default) or ascending')
+    .option(
+      '--wavenumber-axis <order>',
+      'spectra with wavenumbers descending (high on the left, default) or ascending',
+    )
     .action((calibrationPath: string, flags: ReportFlags) => {
-      const level = parseNumberOption(flags.level, '--level', [(n) => n > 0 && n < 1, 'must be between 0 and 1, e.g. 0.95']);
+      const level = parseNumberOption(flags.level, '--level', [
+        (n) => n > 0 && n < 1,
+        'must be between 0 and 1, e.g. 0.95',
+      ]);
       const wavenumberAxis = wavenumberAxisOption(flags.wavenumberAxis);
       const output = flags.output ?? defaultReportPath(calibrationPath);
       const force = flags.force === true;
@@ -276,7 +349,11 @@ export function registerReport(program: Command, context: CommandContext): void 
       note(context, `report written to ${output}`);
       for (const text of input.spectraNotes) note(context, `note: ${text}`);
       const changed = input.inputs.filter((c) => c.status !== 'unchanged');
-      if (changed.length > 0) note(context, `note: ${changed.length} recorded input file(s) are missing or changed: ${changed.map((c) => `${resolve(recordedInputPath(calibrationPath, c.path))} (${c.status})`).join(', ')}`);
+      if (changed.length > 0)
+        note(
+          context,
+          `note: ${changed.length} recorded input file(s) are missing or changed: ${changed.map((c) => `${resolve(recordedInputPath(calibrationPath, c.path))} (${c.status})`).join(', ')}`,
+        );
       if (flags.plot !== undefined) {
         const written = writePlotFiles(flags.plot, plots, { force: true });
         note(context, `${written.length} plot(s) written to ${flags.plot}`);
@@ -314,10 +391,22 @@ export interface QuantifyOutputs {
 export function reportingWords(options: QuantifyOptions): string[] {
   const words: string[] = [];
   if (options.unit !== undefined) words.push(`reported in ${options.unit}`);
-  if (options.dryBasis !== undefined) words.push(options.dryBasis.waterFraction === undefined ? 'dry basis (water from the same scan)' : `dry basis (water ${(options.dryBasis.waterFraction * 100).toFixed(2)} % as given)`);
-  if (options.oxygen !== undefined) words.push(`corrected to ${options.oxygen.reference_pct} % O2 (measured ${options.oxygen.measured_pct} %, air ${options.oxygen.air_pct ?? 20.9} %)`);
-  if (options.massConcentration !== undefined) words.push(`mg/m³ at ${options.massConcentration.temperature_K} K and ${options.massConcentration.pressure_kPa} kPa`);
-  if (options.limits !== undefined) words.push(`${options.limits.length} exposure limit(s) for the over-limit flag`);
+  if (options.dryBasis !== undefined)
+    words.push(
+      options.dryBasis.waterFraction === undefined
+        ? 'dry basis (water from the same scan)'
+        : `dry basis (water ${(options.dryBasis.waterFraction * 100).toFixed(2)} % as given)`,
+    );
+  if (options.oxygen !== undefined)
+    words.push(
+      `corrected to ${options.oxygen.reference_pct} % O2 (measured ${options.oxygen.measured_pct} %, air ${options.oxygen.air_pct ?? 20.9} %)`,
+    );
+  if (options.massConcentration !== undefined)
+    words.push(
+      `mg/m³ at ${options.massConcentration.temperature_K} K and ${options.massConcentration.pressure_kPa} kPa`,
+    );
+  if (options.limits !== undefined)
+    words.push(`${options.limits.length} exposure limit(s) for the over-limit flag`);
   return words;
 }
 
@@ -340,11 +429,15 @@ export function writeQuantifyOutputs(context: CommandContext, outputs: QuantifyO
     tool: { name: TOOL.name, version: TOOL.version },
     options: reportingWords(outputs.options),
   };
-  const plots = outputs.plot === undefined ? [] : quantifyReportPlots(input, { wavenumberAxis: outputs.wavenumberAxis });
+  const plots =
+    outputs.plot === undefined ? [] : quantifyReportPlots(input, { wavenumberAxis: outputs.wavenumberAxis });
   if (outputs.report !== undefined) refuseExisting(outputs.report, outputs.force, '--report');
   if (outputs.plot !== undefined) refuseExistingPlots(outputs.plot, plots, outputs.force);
   if (outputs.report !== undefined) {
-    writeFileAtomic(outputs.report, quantifyReportHtml(input, { wavenumberAxis: outputs.wavenumberAxis }), { overwrite: outputs.force, createFolder: true });
+    writeFileAtomic(outputs.report, quantifyReportHtml(input, { wavenumberAxis: outputs.wavenumberAxis }), {
+      overwrite: outputs.force,
+      createFolder: true,
+    });
     note(context, `report written to ${outputs.report}`);
   }
   if (outputs.plot !== undefined) {

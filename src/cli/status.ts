@@ -42,46 +42,78 @@ export const DEFAULT_CALIBRATION_FOLDER = 'calibrations';
 export function registerStatus(program: Command, context: CommandContext): void {
   program
     .command('status')
-    .description('table of calibrations: last check, verdict, next due, days overdue, trend (exit 0 all current, 3 due within a day, 4 overdue or failed)')
-    .argument('[targets...]', `calibration files or folders of them (default: ./${DEFAULT_CALIBRATION_FOLDER})`)
+    .description(
+      'table of calibrations: last check, verdict, next due, days overdue, trend (exit 0 all current, 3 due within a day, 4 overdue or failed)',
+    )
+    .argument(
+      '[targets...]',
+      `calibration files or folders of them (default: ./${DEFAULT_CALIBRATION_FOLDER})`,
+    )
     .option('--now <time>', 'judge as at this ISO 8601 time (default: now)')
-    .option('--every-days <days>', 'recheck interval for every calibration, days (default: each calibration\'s)')
-    .option('--tolerance-pct <pct>', 'tolerance for every calibration, ± % recovery (default: each calibration\'s)')
+    .option(
+      '--every-days <days>',
+      "recheck interval for every calibration, days (default: each calibration's)",
+    )
+    .option(
+      '--tolerance-pct <pct>',
+      "tolerance for every calibration, ± % recovery (default: each calibration's)",
+    )
     .option('--json', 'print the status as JSON on stdout')
     .action((targets: string[], flags: StatusFlags) => {
       const now = flags.now === undefined ? new Date().toISOString() : parseTimeOption(flags.now, '--now');
       const policy: { everyDays?: number; tolerancePct?: number } = {};
-      if (flags.everyDays !== undefined) policy.everyDays = parsePositiveOption(flags.everyDays, '--every-days');
-      if (flags.tolerancePct !== undefined) policy.tolerancePct = parseNumberOption(flags.tolerancePct, '--tolerance-pct', [(n) => n > 0 && n < 100, 'must be a percentage > 0 and < 100']);
+      if (flags.everyDays !== undefined)
+        policy.everyDays = parsePositiveOption(flags.everyDays, '--every-days');
+      if (flags.tolerancePct !== undefined)
+        policy.tolerancePct = parseNumberOption(flags.tolerancePct, '--tolerance-pct', [
+          (n) => n > 0 && n < 100,
+          'must be a percentage > 0 and < 100',
+        ]);
       if (targets.length === 0) {
         try {
           findCalibrationFiles(DEFAULT_CALIBRATION_FOLDER);
         } catch (error) {
           if (error instanceof BandwrightError && error.code === 'FILE_NOT_FOUND') {
-            throw new BandwrightError('FILE_NOT_FOUND', `status: no ./${DEFAULT_CALIBRATION_FOLDER} folder here; give calibration files or folders`, { parameter: 'targets' });
+            throw new BandwrightError(
+              'FILE_NOT_FOUND',
+              `status: no ./${DEFAULT_CALIBRATION_FOLDER} folder here; give calibration files or folders`,
+              { parameter: 'targets' },
+            );
           }
           throw error;
         }
       }
       const collected = collectCalibrationFiles(targets.length > 0 ? targets : [DEFAULT_CALIBRATION_FOLDER]);
       const skipped: StatusProblem[] = collected.skipped.map((s) => ({ file: s.path, message: s.reason }));
-      const errors: StatusProblem[] = collected.emptyFolders.map((folder) => ({ file: folder, message: 'no calibration files in this folder' }));
+      const errors: StatusProblem[] = collected.emptyFolders.map((folder) => ({
+        file: folder,
+        message: 'no calibration files in this folder',
+      }));
       const rows: GasStatus[] = [];
       for (const file of collected.calibrations) {
         try {
           const calibration = readCalibration(file);
-          const history = readHistoryIfExists(historyPathFor(file), { calibrationSha256: calibration.sha256, calibrationFile: file });
+          const history = readHistoryIfExists(historyPathFor(file), {
+            calibrationSha256: calibration.sha256,
+            calibrationFile: file,
+          });
           rows.push(...calibrationStatus(calibration, file, history?.records ?? [], { policy, now }));
         } catch (error) {
           if (!(error instanceof BandwrightError)) throw error;
           errors.push({ file, message: error.message });
         }
       }
-      const exitStatus = Math.max(statusExitCode(rows.map((r) => r.schedule.state)), errors.length > 0 ? 1 : 0);
+      const exitStatus = Math.max(
+        statusExitCode(rows.map((r) => r.schedule.state)),
+        errors.length > 0 ? 1 : 0,
+      );
       const report: StatusReport = { now, rows, skipped, errors, exitStatus };
       if (flags.json) context.stdout.write(`${JSON.stringify(statusDocument(report), null, 2)}\n`);
       else context.stdout.write(`${formatStatusText(report)}\n`);
-      for (const problem of errors) context.stderr.write(`bandwright: ${problem.message.startsWith(problem.file) ? problem.message : `${problem.file}: ${problem.message}`}\n`);
+      for (const problem of errors)
+        context.stderr.write(
+          `bandwright: ${problem.message.startsWith(problem.file) ? problem.message : `${problem.file}: ${problem.message}`}\n`,
+        );
       raiseStatus(context, exitStatus);
     });
 }

@@ -24,9 +24,16 @@ export function formatIntegrityText(report: IntegrityReport): string {
     input.role,
     input.path,
     STATUS_WORDS[input.status],
-    input.status === 'changed' ? `recorded ${input.sha256.slice(0, 12)}…, now ${(input.currentSha256 ?? '').slice(0, 12)}…` : input.status === 'unreadable' ? (input.message ?? '') : '',
+    input.status === 'changed'
+      ? `recorded ${input.sha256.slice(0, 12)}…, now ${(input.currentSha256 ?? '').slice(0, 12)}…`
+      : input.status === 'unreadable'
+        ? (input.message ?? '')
+        : '',
   ]);
-  const table = formatTextTable([{ header: 'role' }, { header: 'file' }, { header: 'state' }, { header: 'detail' }], rows);
+  const table = formatTextTable(
+    [{ header: 'role' }, { header: 'file' }, { header: 'state' }, { header: 'detail' }],
+    rows,
+  );
   return [`${report.calibration}: content matches its sha256 ${report.sha256}`, '', table].join('\n');
 }
 
@@ -48,8 +55,13 @@ export function registerVerify(program: Command, context: CommandContext): void 
       else context.stdout.write(`${formatIntegrityText(report)}\n`);
       const bad = report.inputs.filter((input) => input.status !== 'unchanged');
       if (bad.length > 0) {
-        const list = bad.map((input) => `${input.path} (${STATUS_WORDS[input.status].toLowerCase()})`).join(', ');
-        note(context, `bandwright: ${bad.length} of ${report.inputs.length} input file(s) of ${calibrationPath} changed or missing since it was built: ${list}; rebuild the calibration or restore the files`);
+        const list = bad
+          .map((input) => `${input.path} (${STATUS_WORDS[input.status].toLowerCase()})`)
+          .join(', ');
+        note(
+          context,
+          `bandwright: ${bad.length} of ${report.inputs.length} input file(s) of ${calibrationPath} changed or missing since it was built: ${list}; rebuild the calibration or restore the files`,
+        );
         raiseStatus(context, 1);
       } else {
         note(context, `all ${report.inputs.length} input file(s) unchanged`);

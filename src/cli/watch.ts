@@ -59,12 +59,18 @@ Stopping:
 /** One result as a line for the terminal. */
 export function watchLine(entry: BatchEntry): string {
   if (isFailure(entry)) return `${entry.scan}: failed: ${entry.error}`;
-  const gases = entry.gases.map((g) => `${g.gas} ${g.flags.includes('below-lod') ? '< LOD ' : ''}${formatNumber(g.value)} ${g.unit} [${formatNumber(g.low)}, ${formatNumber(g.high)}]${g.flags.length > 0 ? ` (${g.flags.join(', ')})` : ''}`);
+  const gases = entry.gases.map(
+    (g) =>
+      `${g.gas} ${g.flags.includes('below-lod') ? '< LOD ' : ''}${formatNumber(g.value)} ${g.unit} [${formatNumber(g.low)}, ${formatNumber(g.high)}]${g.flags.length > 0 ? ` (${g.flags.join(', ')})` : ''}`,
+  );
   return `${entry.scan}: ${gases.join('; ')}`;
 }
 
 function millisecondsOption(text: string, option: string, minimum: number): number {
-  return parseNumberOption(text, option, [(n) => Number.isInteger(n) && n >= minimum, `must be a whole number of milliseconds >= ${minimum}`]);
+  return parseNumberOption(text, option, [
+    (n) => Number.isInteger(n) && n >= minimum,
+    `must be a whole number of milliseconds >= ${minimum}`,
+  ]);
 }
 
 /**
@@ -81,7 +87,10 @@ export function registerWatch(program: Command, context: CommandContext): void {
     .argument('<folder>', 'folder the instrument writes scans into')
     .option('--csv <file>', 'append one row per scan to this CSV file (created with its header if missing)')
     .option('--jsonl <file>', 'append one JSON line per scan (with calibrationSha256) to this file')
-    .option('--state <file>', 'record of the files processed (default: .<results file>.watch-state beside it)')
+    .option(
+      '--state <file>',
+      'record of the files processed (default: .<results file>.watch-state beside it)',
+    )
     .option('--once', 'quantify the complete scans present and exit')
     .option('--settle <ms>', 'a file is complete when unchanged this long, ms', '500')
     .option('--poll <ms>', 'look at the folder at least this often, ms (besides file-system events)', '1000')
@@ -96,10 +105,22 @@ export function registerWatch(program: Command, context: CommandContext): void {
       const yKind = yKindOption(flags.yKind);
       const gases = reportedGases(calibration).map((g) => ({ gas: g.gas, unit: options.unit ?? g.unit }));
       const resultsFile = flags.csv ?? flags.jsonl;
-      const statePath = flags.state ?? (resultsFile === undefined ? undefined : join(dirname(resultsFile), `.${basename(resultsFile)}.watch-state`));
-      const processed = statePath === undefined ? new Map<string, FileStamp>() : readProcessedRecord(statePath);
-      const watcher = createFolderWatcher(folder, { settleMs, pollMs, processed, ignore: [flags.csv, flags.jsonl, statePath].filter((p): p is string => p !== undefined) });
-      const { sinks, lineFormats } = openResultFiles(resultFiles(flags, gases, calibration.sha256), { mode: 'append' });
+      const statePath =
+        flags.state ??
+        (resultsFile === undefined
+          ? undefined
+          : join(dirname(resultsFile), `.${basename(resultsFile)}.watch-state`));
+      const processed =
+        statePath === undefined ? new Map<string, FileStamp>() : readProcessedRecord(statePath);
+      const watcher = createFolderWatcher(folder, {
+        settleMs,
+        pollMs,
+        processed,
+        ignore: [flags.csv, flags.jsonl, statePath].filter((p): p is string => p !== undefined),
+      });
+      const { sinks, lineFormats } = openResultFiles(resultFiles(flags, gases, calibration.sha256), {
+        mode: 'append',
+      });
       let record: ProcessedRecordFile | undefined;
       try {
         if (statePath !== undefined) record = openProcessedRecord(statePath);
@@ -107,7 +128,13 @@ export function registerWatch(program: Command, context: CommandContext): void {
         for (const sink of sinks) sink.abort();
         throw error;
       }
-      const quantify = createScanQuantifier({ calibration, options, lineFormats, keepEntries: true, ...(yKind === undefined ? {} : { yKind }) });
+      const quantify = createScanQuantifier({
+        calibration,
+        options,
+        lineFormats,
+        keepEntries: true,
+        ...(yKind === undefined ? {} : { yKind }),
+      });
 
       let stopping: string | undefined;
       let wake: (() => void) | undefined;
@@ -157,7 +184,11 @@ export function registerWatch(program: Command, context: CommandContext): void {
         }
         for (const file of ready) {
           if (stopping !== undefined) return;
-          if (file.previously !== undefined) note(context, `bandwright: ${file.path} changed after it was quantified (size ${file.previously.size} → ${file.stamp.size} bytes); quantified again`);
+          if (file.previously !== undefined)
+            note(
+              context,
+              `bandwright: ${file.path} changed after it was quantified (size ${file.previously.size} → ${file.stamp.size} bytes); quantified again`,
+            );
           const item = quantify(file.path);
           for (const sink of sinks) sink.add(item);
           record?.add(file.name, file.stamp);
@@ -183,7 +214,11 @@ export function registerWatch(program: Command, context: CommandContext): void {
             look();
           }
           const left = watcher.pending();
-          if (left.length > 0) note(context, `bandwright: ${left.length} file(s) still being written, left for the next run: ${left.slice(0, 5).join(', ')}${left.length > 5 ? ', …' : ''}`);
+          if (left.length > 0)
+            note(
+              context,
+              `bandwright: ${left.length} file(s) still being written, left for the next run: ${left.slice(0, 5).join(', ')}${left.length > 5 ? ', …' : ''}`,
+            );
         } else {
           note(context, `watching ${folder} (settle ${settleMs} ms); Ctrl-C or SIGTERM stops`);
           while (stopping === undefined) {
@@ -201,7 +236,10 @@ export function registerWatch(program: Command, context: CommandContext): void {
         removeHandlers();
       }
       const seconds = (performance.now() - started) / 1000;
-      note(context, `${done} scan(s) quantified, ${failed} failed, in ${seconds.toFixed(1)} s${stopping === undefined ? '' : `; stopped by ${stopping}`}`);
+      note(
+        context,
+        `${done} scan(s) quantified, ${failed} failed, in ${seconds.toFixed(1)} s${stopping === undefined ? '' : `; stopped by ${stopping}`}`,
+      );
       if (failed > 0) raiseStatus(context, 1);
     });
 }

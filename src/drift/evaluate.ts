@@ -18,7 +18,14 @@
  */
 import { BandwrightError } from '../errors.js';
 import type { RecheckPolicy } from '../calibration/method.js';
-import { deviationPercent, isZeroCheck, recoveryPercent, type CheckRecord, type ControlRuleName, type Verdict } from './record.js';
+import {
+  deviationPercent,
+  isZeroCheck,
+  recoveryPercent,
+  type CheckRecord,
+  type ControlRuleName,
+  type Verdict,
+} from './record.js';
 import { controlRulesAt, type RuleFiring } from './rules.js';
 import { fitDriftTrend, type DriftTrend } from './trend.js';
 
@@ -152,7 +159,14 @@ export interface DriftEvaluation {
  */
 export function controlLimits(sigmaPct: number, tolerancePct: number): ControlLimits {
   const band = (k: number): [number, number] => [100 - k * sigmaPct, 100 + k * sigmaPct];
-  return { centrePct: 100, sigmaPct, oneSigma: band(1), warning: band(2), action: band(3), tolerance: [100 - tolerancePct, 100 + tolerancePct] };
+  return {
+    centrePct: 100,
+    sigmaPct,
+    oneSigma: band(1),
+    warning: band(2),
+    action: band(3),
+    tolerance: [100 - tolerancePct, 100 + tolerancePct],
+  };
 }
 
 function sampleSd(values: readonly number[]): { mean: number; sd: number } {
@@ -184,7 +198,11 @@ function timeOrder(records: readonly CheckRecord[]): CheckRecord[] {
   const keyed = records.map((record, i) => {
     const ms = Date.parse(record.time);
     if (!Number.isFinite(ms)) {
-      throw new BandwrightError('INVALID_VALUE', `check ${record.line === undefined ? i + 1 : `on line ${record.line}`}: time = ${JSON.stringify(record.time)}, must be an ISO 8601 time`, { parameter: 'time' });
+      throw new BandwrightError(
+        'INVALID_VALUE',
+        `check ${record.line === undefined ? i + 1 : `on line ${record.line}`}: time = ${JSON.stringify(record.time)}, must be an ISO 8601 time`,
+        { parameter: 'time' },
+      );
     }
     return { record, ms, i };
   });
@@ -203,7 +221,12 @@ function label(record: CheckRecord): string {
 function chooseGas(records: readonly CheckRecord[], gas: string | undefined): string {
   if (gas !== undefined) return gas;
   const gases = [...new Set(records.map((r) => r.gas))];
-  if (gases.length > 1) throw new BandwrightError('INVALID_VALUE', `the history holds checks of ${gases.join(', ')}; name the gas to evaluate (--gas)`, { parameter: 'gas' });
+  if (gases.length > 1)
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `the history holds checks of ${gases.join(', ')}; name the gas to evaluate (--gas)`,
+      { parameter: 'gas' },
+    );
   return gases[0] ?? '';
 }
 
@@ -222,7 +245,11 @@ function chooseGas(records: readonly CheckRecord[], gas: string | undefined): st
 export function evaluateHistory(records: readonly CheckRecord[], options: EvaluateOptions): DriftEvaluation {
   const policy = options.policy;
   if (!(policy.tolerancePct > 0 && policy.tolerancePct < 100)) {
-    throw new BandwrightError('INVALID_VALUE', `tolerance = ${policy.tolerancePct} %, must be a percentage > 0 and < 100`, { parameter: 'tolerancePct' });
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `tolerance = ${policy.tolerancePct} %, must be a percentage > 0 and < 100`,
+      { parameter: 'tolerancePct' },
+    );
   }
   const size = Math.max(2, Math.round(options.baselineChecks ?? DEFAULT_BASELINE_CHECKS));
   const gas = chooseGas(records, options.gas);
@@ -260,16 +287,26 @@ export function evaluateHistory(records: readonly CheckRecord[], options: Evalua
     const rejects = rules.filter((r) => r.severity === 'reject');
     if (outside) {
       verdict = 'fail';
-      reasons.push(`recovery ${pct(recovery)} % is outside the tolerance ${pct(100 - tolerance)}–${pct(100 + tolerance)} %`);
+      reasons.push(
+        `recovery ${pct(recovery)} % is outside the tolerance ${pct(100 - tolerance)}–${pct(100 + tolerance)} %`,
+      );
     } else if (rejects.length > 0) {
       verdict = 'fail';
-      reasons.push(`recovery ${pct(recovery)} % is within the tolerance, but the check is out of statistical control: ${rejects.map((r) => r.rule).join(', ')} fired`);
+      reasons.push(
+        `recovery ${pct(recovery)} % is within the tolerance, but the check is out of statistical control: ${rejects.map((r) => r.rule).join(', ')} fired`,
+      );
     } else if (rules.length > 0 || near) {
       verdict = 'warning';
-      if (rules.length > 0) reasons.push(`recovery ${pct(recovery)} % is within the tolerance; warning rule 1-2s fired`);
-      if (near) reasons.push(`the prediction interval ${pct(lowPct)}–${pct(highPct)} % reaches beyond the tolerance ${pct(100 - tolerance)}–${pct(100 + tolerance)} %: the check cannot tell a pass from a fail`);
+      if (rules.length > 0)
+        reasons.push(`recovery ${pct(recovery)} % is within the tolerance; warning rule 1-2s fired`);
+      if (near)
+        reasons.push(
+          `the prediction interval ${pct(lowPct)}–${pct(highPct)} % reaches beyond the tolerance ${pct(100 - tolerance)}–${pct(100 + tolerance)} %: the check cannot tell a pass from a fail`,
+        );
     } else {
-      reasons.push(`recovery ${pct(recovery)} % is within the tolerance ${pct(100 - tolerance)}–${pct(100 + tolerance)} % and no control rule fired`);
+      reasons.push(
+        `recovery ${pct(recovery)} % is within the tolerance ${pct(100 - tolerance)}–${pct(100 + tolerance)} % and no control rule fired`,
+      );
     }
     reasons.push(...rules.map((r) => `${r.rule}: ${r.reason} (σ = ${pct(sigma.valuePct, 3)} %)`));
     checks.push({
@@ -300,9 +337,17 @@ export function evaluateHistory(records: readonly CheckRecord[], options: Evalua
         baseline.to = record.time;
         const span = `${day(baseline.from)} to ${day(baseline.to)}`;
         if (!(sd > 0)) {
-          frozen = toleranceSigma(policy, size, size, `the ${size} baseline checks (${span}) have an SD of 0, which cannot scale the rules`);
+          frozen = toleranceSigma(
+            policy,
+            size,
+            size,
+            `the ${size} baseline checks (${span}) have an SD of 0, which cannot scale the rules`,
+          );
         } else {
-          const wide = 3 * sd > tolerance ? `; its ±3σ action limit (±${pct(3 * sd)} %) is wider than the tolerance: the checks' repeatability is poor for this tolerance` : '';
+          const wide =
+            3 * sd > tolerance
+              ? `; its ±3σ action limit (±${pct(3 * sd)} %) is wider than the tolerance: the checks' repeatability is poor for this tolerance`
+              : '';
           frozen = {
             valuePct: sd,
             basis: 'baseline',
@@ -316,7 +361,10 @@ export function evaluateHistory(records: readonly CheckRecord[], options: Evalua
   const sigma = currentSigma();
   const notes = verdictNotes(checks, tolerance);
   const trend = fitDriftTrend(
-    spanChecks.map((i) => ({ time: (checks[i] as EvaluatedCheck).record.time, recoveryPct: (checks[i] as EvaluatedCheck).recoveryPct as number })),
+    spanChecks.map((i) => ({
+      time: (checks[i] as EvaluatedCheck).record.time,
+      recoveryPct: (checks[i] as EvaluatedCheck).recoveryPct as number,
+    })),
     {
       tolerancePct: tolerance,
       maxPoints: options.trendChecks ?? DEFAULT_TREND_CHECKS,
@@ -324,7 +372,17 @@ export function evaluateHistory(records: readonly CheckRecord[], options: Evalua
       ...(options.level === undefined ? {} : { level: options.level }),
     },
   );
-  const evaluation: DriftEvaluation = { gas, policy, checks, spanChecks, baseline, sigma, limits: controlLimits(sigma.valuePct, tolerance), trend, notes };
+  const evaluation: DriftEvaluation = {
+    gas,
+    policy,
+    checks,
+    spanChecks,
+    baseline,
+    sigma,
+    limits: controlLimits(sigma.valuePct, tolerance),
+    trend,
+    notes,
+  };
   const latest = checks[checks.length - 1];
   if (latest !== undefined) evaluation.latest = latest;
   return evaluation;
@@ -354,11 +412,23 @@ function judgeZero(record: CheckRecord, index: number): EvaluatedCheck {
     outside = !(record.low <= 0 && record.high >= 0);
     reason = `zero gas, judged by the prediction interval (the calibration has no detection limit for ${record.gas}): measured ${value}, interval ${pct(record.low, 3)}–${pct(record.high, 3)} ${record.unit} ${outside ? 'excludes' : 'includes'} 0`;
   }
-  return { record, index, kind: 'zero', rules: [], outsideTolerance: outside, nearTolerance: false, verdict: outside ? 'fail' : 'pass', reasons: [reason] };
+  return {
+    record,
+    index,
+    kind: 'zero',
+    rules: [],
+    outsideTolerance: outside,
+    nearTolerance: false,
+    verdict: outside ? 'fail' : 'pass',
+    reasons: [reason],
+  };
 }
 
 /** A new check before it is judged: everything but the verdict, rules and σ. */
-export type CheckMeasurementRecord = Omit<CheckRecord, 'verdict' | 'rules' | 'sigmaPct' | 'tolerancePct' | 'line'>;
+export type CheckMeasurementRecord = Omit<
+  CheckRecord,
+  'verdict' | 'rules' | 'sigmaPct' | 'tolerancePct' | 'line'
+>;
 
 /** A new check judged against its history. */
 export interface JudgedCheck {
@@ -379,8 +449,17 @@ export interface JudgedCheck {
  * @returns the record to append, the evaluation with it, and its evaluated check
  * @throws BandwrightError as {@link evaluateHistory}
  */
-export function judgeCheck(history: readonly CheckRecord[], measurement: CheckMeasurementRecord, options: EvaluateOptions): JudgedCheck {
-  const provisional: CheckRecord = { ...measurement, verdict: 'pass', rules: [], tolerancePct: options.policy.tolerancePct };
+export function judgeCheck(
+  history: readonly CheckRecord[],
+  measurement: CheckMeasurementRecord,
+  options: EvaluateOptions,
+): JudgedCheck {
+  const provisional: CheckRecord = {
+    ...measurement,
+    verdict: 'pass',
+    rules: [],
+    tolerancePct: options.policy.tolerancePct,
+  };
   const evaluation = evaluateHistory([...history, provisional], { ...options, gas: measurement.gas });
   const check = evaluation.checks.find((c) => c.record === provisional) as EvaluatedCheck;
   const record: CheckRecord = {

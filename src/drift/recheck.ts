@@ -31,7 +31,10 @@ export interface MeasureCheckOptions {
  * concentration in the gas's calibration unit, the certified value converted to it), with the
  * flag notes and the full quantification result of the scan.
  */
-export interface CheckMeasurement extends Pick<CheckRecord, 'gas' | 'unit' | 'certified' | 'measured' | 'low' | 'high' | 'se' | 'detectionLimit' | 'recoveryPct' | 'z'> {
+export interface CheckMeasurement extends Pick<
+  CheckRecord,
+  'gas' | 'unit' | 'certified' | 'measured' | 'low' | 'high' | 'se' | 'detectionLimit' | 'recoveryPct' | 'z'
+> {
   /** Flag notes of the quantification (extrapolated, saturated, conditions far …). */
   notes: string[];
   /** The full quantification result of the scan. */
@@ -51,23 +54,52 @@ export interface CheckMeasurement extends Pick<CheckRecord, 'gas' | 'unit' | 'ce
  * const measurement = measureCheck(calibration, readScan('checks/check-0901.jdx'), { certified: 100 });
  * measurement.recoveryPct; // e.g. 100.7
  */
-export function measureCheck(calibration: Calibration, spectrum: Spectrum, options: MeasureCheckOptions): CheckMeasurement {
+export function measureCheck(
+  calibration: Calibration,
+  spectrum: Spectrum,
+  options: MeasureCheckOptions,
+): CheckMeasurement {
   const gases = reportedGases(calibration);
   const names = gases.map((g) => g.gas);
   let gasName = options.gas;
   if (gasName === undefined) {
-    if (names.length !== 1) throw new BandwrightError('INVALID_VALUE', `the calibration has ${names.length} gases (${names.join(', ')}); choose the gas of the check standard with --gas`, { parameter: '--gas' });
+    if (names.length !== 1)
+      throw new BandwrightError(
+        'INVALID_VALUE',
+        `the calibration has ${names.length} gases (${names.join(', ')}); choose the gas of the check standard with --gas`,
+        { parameter: '--gas' },
+      );
     gasName = names[0] as string;
   }
   const gas = gases.find((g) => g.gas.toLowerCase() === (gasName as string).toLowerCase());
-  if (gas === undefined) throw new BandwrightError('INVALID_VALUE', `--gas = ${JSON.stringify(gasName)}, the calibration has ${names.join(', ')}`, { parameter: '--gas' });
+  if (gas === undefined)
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `--gas = ${JSON.stringify(gasName)}, the calibration has ${names.join(', ')}`,
+      { parameter: '--gas' },
+    );
   if (!Number.isFinite(options.certified) || options.certified < 0) {
-    throw new BandwrightError('INVALID_VALUE', `--certified = ${options.certified}, must be a concentration >= 0 (0 for zero gas)`, { parameter: '--certified' });
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `--certified = ${options.certified}, must be a concentration >= 0 (0 for zero gas)`,
+      { parameter: '--certified' },
+    );
   }
-  const certified = options.unit === undefined || options.unit === gas.unit ? options.certified : fromPpm(toPpm(options.certified, options.unit), gas.unit);
-  const result = quantifyScan(calibration, spectrum, { level: options.level ?? 0.95, ...(options.defaultConditions === undefined ? {} : { defaultConditions: options.defaultConditions }) });
+  const certified =
+    options.unit === undefined || options.unit === gas.unit
+      ? options.certified
+      : fromPpm(toPpm(options.certified, options.unit), gas.unit);
+  const result = quantifyScan(calibration, spectrum, {
+    level: options.level ?? 0.95,
+    ...(options.defaultConditions === undefined ? {} : { defaultConditions: options.defaultConditions }),
+  });
   const found = result.gases.find((g) => g.gas === gas.gas);
-  if (found === undefined) throw new BandwrightError('INVALID_VALUE', `the calibration gave no result for ${gas.gas} in ${result.scan}`, { parameter: '--gas' });
+  if (found === undefined)
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `the calibration gave no result for ${gas.gas} in ${result.scan}`,
+      { parameter: '--gas' },
+    );
   const measurement: CheckMeasurement = {
     gas: gas.gas,
     unit: found.unit,
@@ -92,7 +124,10 @@ export function measureCheck(calibration: Calibration, spectrum: Spectrum, optio
  * @param provenance - when it was measured and recorded (ISO), the scan path and its SHA-256
  * @returns the record without verdict, rules and σ
  */
-export function checkRecordOf(measurement: CheckMeasurement, provenance: { time: string; recordedAt: string; scan: string; scanSha256: string }): CheckMeasurementRecord {
+export function checkRecordOf(
+  measurement: CheckMeasurement,
+  provenance: { time: string; recordedAt: string; scan: string; scanSha256: string },
+): CheckMeasurementRecord {
   const record: CheckMeasurementRecord = {
     time: provenance.time,
     recordedAt: provenance.recordedAt,

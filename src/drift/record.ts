@@ -20,7 +20,14 @@ export const VERDICTS: readonly Verdict[] = ['pass', 'warning', 'fail'];
 export type ControlRuleName = '1-2s' | '1-3s' | '2-2s' | 'R-4s' | '4-1s' | '10-x';
 
 /** All control rules. */
-export const CONTROL_RULE_NAMES: readonly ControlRuleName[] = ['1-2s', '1-3s', '2-2s', 'R-4s', '4-1s', '10-x'];
+export const CONTROL_RULE_NAMES: readonly ControlRuleName[] = [
+  '1-2s',
+  '1-3s',
+  '2-2s',
+  'R-4s',
+  '4-1s',
+  '10-x',
+];
 
 /** One recorded check, as a line of the history file holds it. */
 export interface CheckRecord {

@@ -36,13 +36,22 @@ export interface RuleFiring {
 }
 
 /** Definition of each rule: its severity and what it says. */
-export const CONTROL_RULES: Readonly<Record<ControlRuleName, { severity: RuleSeverity; description: string }>> = {
+export const CONTROL_RULES: Readonly<
+  Record<ControlRuleName, { severity: RuleSeverity; description: string }>
+> = {
   '1-2s': { severity: 'warning', description: 'one check beyond ±2σ' },
   '1-3s': { severity: 'reject', description: 'one check beyond ±3σ' },
   '2-2s': { severity: 'reject', description: 'two consecutive checks beyond the same ±2σ limit' },
-  'R-4s': { severity: 'reject', description: 'one check beyond +2σ and the next beyond −2σ, or the reverse (applied across two consecutive checks, one check per run)' },
+  'R-4s': {
+    severity: 'reject',
+    description:
+      'one check beyond +2σ and the next beyond −2σ, or the reverse (applied across two consecutive checks, one check per run)',
+  },
   '4-1s': { severity: 'reject', description: 'four consecutive checks beyond the same ±1σ limit' },
-  '10-x': { severity: 'reject', description: 'ten consecutive checks on the same side of the certified value' },
+  '10-x': {
+    severity: 'reject',
+    description: 'ten consecutive checks on the same side of the certified value',
+  },
 };
 
 function sideWord(sign: number): string {
@@ -91,23 +100,42 @@ function range(from: number, to: number): number[] {
  * @example
  * controlRulesAt([2.3, 2.4], 1).map((f) => f.rule); // ['1-2s', '2-2s']
  */
-export function controlRulesAt(z: readonly number[], index: number, options: { labels?: readonly string[] } = {}): RuleFiring[] {
+export function controlRulesAt(
+  z: readonly number[],
+  index: number,
+  options: { labels?: readonly string[] } = {},
+): RuleFiring[] {
   const label = (i: number): string => options.labels?.[i] ?? `check ${i + 1}`;
   const current = z[index];
   if (current === undefined || Number.isNaN(current)) return [];
   const fired: RuleFiring[] = [];
   const sign = current > 0 ? 1 : current < 0 ? -1 : 0;
   if (Math.abs(current) > 2) {
-    fired.push({ rule: '1-2s', severity: 'warning', checks: [index], reason: `${label(index)} is at ${formatZ(current)}, beyond ${signedLimit(sign, 2)}` });
+    fired.push({
+      rule: '1-2s',
+      severity: 'warning',
+      checks: [index],
+      reason: `${label(index)} is at ${formatZ(current)}, beyond ${signedLimit(sign, 2)}`,
+    });
   }
   if (Math.abs(current) > 3) {
-    fired.push({ rule: '1-3s', severity: 'reject', checks: [index], reason: `${label(index)} is at ${formatZ(current)}, beyond ${signedLimit(sign, 3)}` });
+    fired.push({
+      rule: '1-3s',
+      severity: 'reject',
+      checks: [index],
+      reason: `${label(index)} is at ${formatZ(current)}, beyond ${signedLimit(sign, 3)}`,
+    });
   }
   if (index >= 1) {
     const previous = z[index - 1] as number;
     const twoTwo = sameSideRun(z, index, 2, 2);
     if (twoTwo !== 0) {
-      fired.push({ rule: '2-2s', severity: 'reject', checks: [index - 1, index], reason: `${label(index - 1)} (${formatZ(previous)}) and ${label(index)} (${formatZ(current)}) are both beyond ${signedLimit(twoTwo, 2)}` });
+      fired.push({
+        rule: '2-2s',
+        severity: 'reject',
+        checks: [index - 1, index],
+        reason: `${label(index - 1)} (${formatZ(previous)}) and ${label(index)} (${formatZ(current)}) are both beyond ${signedLimit(twoTwo, 2)}`,
+      });
     }
     if ((previous > 2 && current < -2) || (previous < -2 && current > 2)) {
       fired.push({
@@ -120,11 +148,21 @@ export function controlRulesAt(z: readonly number[], index: number, options: { l
   }
   const fourOne = sameSideRun(z, index, 4, 1);
   if (fourOne !== 0) {
-    fired.push({ rule: '4-1s', severity: 'reject', checks: range(index - 3, index), reason: `${label(index - 3)} to ${label(index)}: four consecutive checks beyond ${signedLimit(fourOne, 1)}` });
+    fired.push({
+      rule: '4-1s',
+      severity: 'reject',
+      checks: range(index - 3, index),
+      reason: `${label(index - 3)} to ${label(index)}: four consecutive checks beyond ${signedLimit(fourOne, 1)}`,
+    });
   }
   const tenX = sameSideRun(z, index, 10, 0);
   if (tenX !== 0) {
-    fired.push({ rule: '10-x', severity: 'reject', checks: range(index - 9, index), reason: `${label(index - 9)} to ${label(index)}: ten consecutive checks ${sideWord(tenX)} the certified value` });
+    fired.push({
+      rule: '10-x',
+      severity: 'reject',
+      checks: range(index - 9, index),
+      reason: `${label(index - 9)} to ${label(index)}: ten consecutive checks ${sideWord(tenX)} the certified value`,
+    });
   }
   return fired;
 }

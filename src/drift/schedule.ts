@@ -45,7 +45,12 @@ export interface Schedule {
 
 function parseTime(text: string, parameter: string): number {
   const ms = Date.parse(text);
-  if (!Number.isFinite(ms)) throw new BandwrightError('INVALID_VALUE', `${parameter} = ${JSON.stringify(text)}, must be an ISO 8601 time`, { parameter });
+  if (!Number.isFinite(ms))
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `${parameter} = ${JSON.stringify(text)}, must be an ISO 8601 time`,
+      { parameter },
+    );
   return ms;
 }
 
@@ -65,9 +70,16 @@ function day(iso: string): string {
  * scheduleFor([{ time: '2026-09-01T09:30:00Z', verdict: 'pass' }], { everyDays: 7, calibrationCreatedAt: '2026-08-30T00:00:00Z', now: '2026-09-07T12:00:00Z' });
  * // { state: 'due', nextDue: '2026-09-08T09:30:00.000Z', … }
  */
-export function scheduleFor(checks: readonly Pick<CheckRecord, 'time' | 'verdict'>[], options: ScheduleOptions): Schedule {
+export function scheduleFor(
+  checks: readonly Pick<CheckRecord, 'time' | 'verdict'>[],
+  options: ScheduleOptions,
+): Schedule {
   if (!(options.everyDays > 0) || !Number.isFinite(options.everyDays)) {
-    throw new BandwrightError('INVALID_VALUE', `recheck interval = ${options.everyDays} days, must be a number of days > 0`, { parameter: 'everyDays' });
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `recheck interval = ${options.everyDays} days, must be a number of days > 0`,
+      { parameter: 'everyDays' },
+    );
   }
   const nowMs = options.now === undefined ? Date.now() : parseTime(options.now, 'now');
   const soon = options.dueWithinDays ?? 1;
@@ -75,7 +87,10 @@ export function scheduleFor(checks: readonly Pick<CheckRecord, 'time' | 'verdict
     .map((c, i) => ({ c, i, ms: parseTime(c.time, 'time') }))
     .sort((a, b) => a.ms - b.ms || a.i - b.i);
   const latest = ordered[ordered.length - 1];
-  const schedule: Pick<Schedule, 'lastCheck'> = latest === undefined ? {} : { lastCheck: { time: new Date(latest.ms).toISOString(), verdict: latest.c.verdict } };
+  const schedule: Pick<Schedule, 'lastCheck'> =
+    latest === undefined
+      ? {}
+      : { lastCheck: { time: new Date(latest.ms).toISOString(), verdict: latest.c.verdict } };
   if (latest !== undefined && latest.c.verdict === 'fail') {
     const since = (nowMs - latest.ms) / DAY_MS;
     return {
@@ -91,7 +106,9 @@ export function scheduleFor(checks: readonly Pick<CheckRecord, 'time' | 'verdict
   const dueMs = startMs + options.everyDays * DAY_MS;
   const until = (dueMs - nowMs) / DAY_MS;
   const nextDue = new Date(dueMs).toISOString();
-  const from = fromCheck ? `the latest check (${day(new Date(startMs).toISOString())}, ${latest.c.verdict})` : `the calibration's creation (${day(new Date(startMs).toISOString())}), no check yet`;
+  const from = fromCheck
+    ? `the latest check (${day(new Date(startMs).toISOString())}, ${latest.c.verdict})`
+    : `the calibration's creation (${day(new Date(startMs).toISOString())}), no check yet`;
   const state: ScheduleState = until < 0 ? 'overdue' : until <= soon ? 'due' : 'ok';
   const reason =
     state === 'overdue'
@@ -99,5 +116,13 @@ export function scheduleFor(checks: readonly Pick<CheckRecord, 'time' | 'verdict
       : state === 'due'
         ? `due within ${soon} day${soon === 1 ? '' : 's'}: ${options.everyDays} days after ${from}`
         : `next due in ${until.toFixed(1)} days: ${options.everyDays} days after ${from}`;
-  return { state, ...schedule, basis: fromCheck ? 'check' : 'calibration', nextDue, daysUntilDue: until, daysOverdue: Math.max(0, -until), reason };
+  return {
+    state,
+    ...schedule,
+    basis: fromCheck ? 'check' : 'calibration',
+    nextDue,
+    daysUntilDue: until,
+    daysOverdue: Math.max(0, -until),
+    reason,
+  };
 }

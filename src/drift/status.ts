@@ -27,7 +27,14 @@ export interface GasStatus {
   /** Number of checks of this gas in the history. */
   checks: number;
   /** Latest check by time, as judged now. */
-  lastCheck?: { time: string; verdict: Verdict; recoveryPct?: number; measured: number; certified: number; line?: number };
+  lastCheck?: {
+    time: string;
+    verdict: Verdict;
+    recoveryPct?: number;
+    measured: number;
+    certified: number;
+    line?: number;
+  };
   /** Schedule (state, next due, days overdue). */
   schedule: Schedule;
   /** Trend of recovery against time. */
@@ -58,14 +65,24 @@ export interface StatusOptions extends Omit<EvaluateOptions, 'policy' | 'gas'> {
  * @returns one status per gas of the calibration, in the calibration's order
  * @throws BandwrightError `INVALID_VALUE` for a bad policy or time
  */
-export function calibrationStatus(calibration: Calibration, file: string, records: readonly CheckRecord[], options: StatusOptions = {}): GasStatus[] {
+export function calibrationStatus(
+  calibration: Calibration,
+  file: string,
+  records: readonly CheckRecord[],
+  options: StatusOptions = {},
+): GasStatus[] {
   const policy: RecheckPolicy = { ...calibration.method.recheck, ...options.policy };
   const { policy: _override, now, dueWithinDays, ...evaluateOptions } = options;
   return reportedGases(calibration).map((gas) => {
     const evaluation = evaluateHistory(records, { ...evaluateOptions, policy, gas: gas.gas });
     const schedule = scheduleFor(
       evaluation.checks.map((c) => ({ time: c.record.time, verdict: c.verdict })),
-      { everyDays: policy.everyDays, calibrationCreatedAt: calibration.createdAt, ...(now === undefined ? {} : { now }), ...(dueWithinDays === undefined ? {} : { dueWithinDays }) },
+      {
+        everyDays: policy.everyDays,
+        calibrationCreatedAt: calibration.createdAt,
+        ...(now === undefined ? {} : { now }),
+        ...(dueWithinDays === undefined ? {} : { dueWithinDays }),
+      },
     );
     const status: GasStatus = {
       file,
@@ -82,7 +99,12 @@ export function calibrationStatus(calibration: Calibration, file: string, record
     if (calibration.title !== undefined) status.title = calibration.title;
     const latest = evaluation.latest;
     if (latest !== undefined) {
-      status.lastCheck = { time: latest.record.time, verdict: latest.verdict, measured: latest.record.measured, certified: latest.record.certified };
+      status.lastCheck = {
+        time: latest.record.time,
+        verdict: latest.verdict,
+        measured: latest.record.measured,
+        certified: latest.record.certified,
+      };
       if (latest.recoveryPct !== undefined) status.lastCheck.recoveryPct = latest.recoveryPct;
       if (latest.record.line !== undefined) status.lastCheck.line = latest.record.line;
     }

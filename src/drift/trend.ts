@@ -132,7 +132,12 @@ export function fitDriftTrend(points: readonly TrendPoint[], options: TrendOptio
   const used = sorted.slice(Math.max(0, sorted.length - maxPoints));
   const base = { minimumPoints, level };
   if (used.length < minimumPoints) {
-    return { status: 'insufficient', summary: `no trend yet: ${used.length} check(s), a trend needs at least ${minimumPoints}`, points: used.length, ...base };
+    return {
+      status: 'insufficient',
+      summary: `no trend yet: ${used.length} check(s), a trend needs at least ${minimumPoints}`,
+      points: used.length,
+      ...base,
+    };
   }
   const n = used.length;
   const firstMs = (used[0] as (typeof used)[number]).ms;
@@ -143,7 +148,14 @@ export function fitDriftTrend(points: readonly TrendPoint[], options: TrendOptio
   const from = new Date(firstMs).toISOString();
   const to = new Date((used[n - 1] as (typeof used)[number]).ms).toISOString();
   if (!(sxx > 0)) {
-    return { status: 'insufficient', summary: `no trend: all ${n} checks are at the same time`, points: n, from, to, ...base };
+    return {
+      status: 'insufficient',
+      summary: `no trend: all ${n} checks are at the same time`,
+      points: n,
+      from,
+      to,
+      ...base,
+    };
   }
   let fit;
   try {
@@ -153,7 +165,8 @@ export function fitDriftTrend(points: readonly TrendPoint[], options: TrendOptio
       { columnNames: ['recovery at the mean time', 'slope per day'] },
     );
   } catch (error) {
-    if (isBandwrightError(error, 'SINGULAR')) return { status: 'insufficient', summary: `no trend: ${error.message}`, points: n, from, to, ...base };
+    if (isBandwrightError(error, 'SINGULAR'))
+      return { status: 'insufficient', summary: `no trend: ${error.message}`, points: n, from, to, ...base };
     throw error;
   }
   const a = fit.coefficients[0] as number;
@@ -161,7 +174,8 @@ export function fitDriftTrend(points: readonly TrendPoint[], options: TrendOptio
   const s = fit.residualSD;
   const df = fit.df;
   const seSlope = s / Math.sqrt(sxx);
-  const tStatistic = seSlope > 0 ? b / seSlope : b === 0 ? 0 : b > 0 ? Number.POSITIVE_INFINITY : Number.NEGATIVE_INFINITY;
+  const tStatistic =
+    seSlope > 0 ? b / seSlope : b === 0 ? 0 : b > 0 ? Number.POSITIVE_INFINITY : Number.NEGATIVE_INFINITY;
   const pValue = Number.isFinite(tStatistic) ? 2 * (1 - tCdf(Math.abs(tStatistic), df)) : 0;
   const tCritical = criticalT(level, df);
   const originMs = firstMs + meanDay * DAY_MS;
@@ -232,11 +246,23 @@ export function fitDriftTrend(points: readonly TrendPoint[], options: TrendOptio
  * @param time - ISO time
  * @returns recovery of the line and the band ends, %, or undefined when the trend has no line
  */
-export function trendAt(trend: DriftTrend, time: string): { recoveryPct: number; low: number; high: number } | undefined {
-  if (trend.status === 'insufficient' || trend.origin === undefined || trend.interceptPct === undefined || trend.slopePctPerDay === undefined) return undefined;
+export function trendAt(
+  trend: DriftTrend,
+  time: string,
+): { recoveryPct: number; low: number; high: number } | undefined {
+  if (
+    trend.status === 'insufficient' ||
+    trend.origin === undefined ||
+    trend.interceptPct === undefined ||
+    trend.slopePctPerDay === undefined
+  )
+    return undefined;
   const u = (Date.parse(time) - Date.parse(trend.origin)) / DAY_MS;
   const value = trend.interceptPct + trend.slopePctPerDay * u;
   const s = trend.residualSdPct ?? 0;
-  const half = (trend.criticalT ?? 0) * s * Math.sqrt(1 / trend.points + (u * u) / (trend.sxxDays2 ?? Number.POSITIVE_INFINITY));
+  const half =
+    (trend.criticalT ?? 0) *
+    s *
+    Math.sqrt(1 / trend.points + (u * u) / (trend.sxxDays2 ?? Number.POSITIVE_INFINITY));
   return { recoveryPct: value, low: value - half, high: value + half };
 }

@@ -37,7 +37,8 @@ export type PartialConditions = Partial<CellConditions>;
 const FIELDS = ['pathLength_m', 'temperature_K', 'pressure_kPa'] as const;
 const DESCRIPTION: Record<(typeof FIELDS)[number], string> = {
   pathLength_m: 'path length (manifest column path_length_m, JCAMP-DX ##PATH LENGTH, option --path-length)',
-  temperature_K: 'temperature (manifest column temperature_K or temperature_C, JCAMP-DX ##TEMPERATURE, option --temperature)',
+  temperature_K:
+    'temperature (manifest column temperature_K or temperature_C, JCAMP-DX ##TEMPERATURE, option --temperature)',
   pressure_kPa: 'pressure (manifest column pressure_kPa, JCAMP-DX ##PRESSURE, option --pressure)',
 };
 
@@ -68,7 +69,11 @@ export function resolveConditions(
       break;
     }
     if (result[field] === undefined) {
-      throw new BandwrightError('CONDITIONS_MISSING', `${where}: no ${DESCRIPTION[field]} is given; give it in one of those places`, { file: where, parameter: field });
+      throw new BandwrightError(
+        'CONDITIONS_MISSING',
+        `${where}: no ${DESCRIPTION[field]} is given; give it in one of those places`,
+        { file: where, parameter: field },
+      );
     }
   }
   return {
@@ -107,7 +112,10 @@ export interface ConditionsTolerance {
  * (725–795 mmHg and 10–30 °C, NIOSH 3800); beyond that line widths and the rotational envelope
  * change enough that φ scaling alone is not to be trusted for peak heights or saturated bands.
  */
-export const DEFAULT_CONDITIONS_TOLERANCE: ConditionsTolerance = { temperature_K: 10, pressureFraction: 0.05 };
+export const DEFAULT_CONDITIONS_TOLERANCE: ConditionsTolerance = {
+  temperature_K: 10,
+  pressureFraction: 0.05,
+};
 
 /**
  * Says whether a scan's temperature or pressure is far from the calibration's reference.
@@ -125,11 +133,15 @@ export function conditionsFarReasons(
   const reasons: string[] = [];
   const dT = conditions.temperature_K - reference.temperature_K;
   if (Math.abs(dT) > tolerance.temperature_K) {
-    reasons.push(`temperature ${conditions.temperature_K.toFixed(2)} K is ${Math.abs(dT).toFixed(1)} K from the calibration's ${reference.temperature_K.toFixed(2)} K (limit ±${tolerance.temperature_K} K)`);
+    reasons.push(
+      `temperature ${conditions.temperature_K.toFixed(2)} K is ${Math.abs(dT).toFixed(1)} K from the calibration's ${reference.temperature_K.toFixed(2)} K (limit ±${tolerance.temperature_K} K)`,
+    );
   }
   const dP = conditions.pressure_kPa / reference.pressure_kPa - 1;
   if (Math.abs(dP) > tolerance.pressureFraction) {
-    reasons.push(`pressure ${conditions.pressure_kPa.toFixed(2)} kPa is ${(Math.abs(dP) * 100).toFixed(1)} % from the calibration's ${reference.pressure_kPa.toFixed(2)} kPa (limit ±${(tolerance.pressureFraction * 100).toFixed(0)} %)`);
+    reasons.push(
+      `pressure ${conditions.pressure_kPa.toFixed(2)} kPa is ${(Math.abs(dP) * 100).toFixed(1)} % from the calibration's ${reference.pressure_kPa.toFixed(2)} kPa (limit ±${(tolerance.pressureFraction * 100).toFixed(0)} %)`,
+    );
   }
   return reasons;
 }
@@ -143,11 +155,14 @@ export function conditionsFarReasons(
  * @throws BandwrightError `INSUFFICIENT_DATA` for an empty list
  */
 export function medianConditions(conditions: readonly CellConditions[]): CellConditions {
-  if (conditions.length === 0) throw new BandwrightError('INSUFFICIENT_DATA', 'no standards to take reference conditions from');
+  if (conditions.length === 0)
+    throw new BandwrightError('INSUFFICIENT_DATA', 'no standards to take reference conditions from');
   const median = (values: number[]): number => {
     const sorted = [...values].sort((a, b) => a - b);
     const mid = sorted.length >> 1;
-    return sorted.length % 2 === 1 ? (sorted[mid] as number) : ((sorted[mid - 1] as number) + (sorted[mid] as number)) / 2;
+    return sorted.length % 2 === 1
+      ? (sorted[mid] as number)
+      : ((sorted[mid - 1] as number) + (sorted[mid] as number)) / 2;
   };
   return {
     pathLength_m: median(conditions.map((c) => c.pathLength_m)),

@@ -11,7 +11,7 @@ import { ppmToMgPerM3, toPpm, type ConcentrationUnit } from './units.js';
 
 /** General caution for compressed-gas standards and the cell, shown once per output. */
 export const GENERAL_CAUTION =
-  'bandwright is not a life-safety monitor. Compare results with the exposure limits that apply where you work, follow licensed industrial-hygiene practice, vent the gas cell to a safe place, and handle standards\' cylinders (high pressure, toxic contents) as their safety data sheets say.';
+  "bandwright is not a life-safety monitor. Compare results with the exposure limits that apply where you work, follow licensed industrial-hygiene practice, vent the gas cell to a safe place, and handle standards' cylinders (high pressure, toxic contents) as their safety data sheets say.";
 
 /**
  * The hazard statement for one gas, or undefined when the gas needs none.
@@ -75,7 +75,11 @@ const HYGIENE_STATE = { temperature_K: 298.15, pressure_kPa: 101.325 };
 export function limitInPpm(limit: ExposureLimit): number {
   if (limit.unit !== 'mg/m3') return toPpm(limit.limit, limit.unit);
   const species = findSpecies(limit.gas);
-  if (species === undefined) throw new BandwrightError('UNKNOWN_GAS', `limit for ${JSON.stringify(limit.gas)}: gas not in the species table, cannot convert mg/m3 to ppm`);
+  if (species === undefined)
+    throw new BandwrightError(
+      'UNKNOWN_GAS',
+      `limit for ${JSON.stringify(limit.gas)}: gas not in the species table, cannot convert mg/m3 to ppm`,
+    );
   return limit.limit / ppmToMgPerM3(1, species.molarMass_g_mol, HYGIENE_STATE);
 }
 
@@ -88,7 +92,11 @@ export function limitInPpm(limit: ExposureLimit): number {
  * @param limits - all user limits
  * @returns the limits exceeded, with a plain-words description each
  */
-export function exceededLimits(gas: string, highPpm: number, limits: readonly ExposureLimit[]): { limit: ExposureLimit; message: string }[] {
+export function exceededLimits(
+  gas: string,
+  highPpm: number,
+  limits: readonly ExposureLimit[],
+): { limit: ExposureLimit; message: string }[] {
   const name = findSpecies(gas)?.name ?? gas;
   return limits
     .filter((limit) => (findSpecies(limit.gas)?.name ?? limit.gas) === name)

@@ -49,7 +49,8 @@ export interface Species {
   cautionNote?: string;
 }
 
-const HOMONUCLEAR = 'homonuclear diatomic: its only vibration does not change the dipole moment, so it has no infrared absorption spectrum (common practice)';
+const HOMONUCLEAR =
+  'homonuclear diatomic: its only vibration does not change the dipole moment, so it has no infrared absorption spectrum (common practice)';
 
 // Atomic weights, g/mol (IUPAC conventional standard atomic weights; common practice).
 const H = 1.008;
@@ -62,36 +63,85 @@ const Cl = 35.45;
 
 const TABLE: readonly Species[] = [
   {
-    name: 'CO', aliases: ['carbon monoxide'], commonName: 'carbon monoxide', molarMass_g_mol: C + O, atoms: 2, linear: true, irActive: true,
-    bands: [{ mode: '1-0', center_cm: 2143.27, irActive: true, source: 'Huber & Herzberg 1979 constants, G(1) − G(0) (facts.md), from memory' }],
-    hazards: ['toxic', 'flammable'], cautionNote: 'CO is colourless and odourless.',
+    name: 'CO',
+    aliases: ['carbon monoxide'],
+    commonName: 'carbon monoxide',
+    molarMass_g_mol: C + O,
+    atoms: 2,
+    linear: true,
+    irActive: true,
+    bands: [
+      {
+        mode: '1-0',
+        center_cm: 2143.27,
+        irActive: true,
+        source: 'Huber & Herzberg 1979 constants, G(1) − G(0) (facts.md), from memory',
+      },
+    ],
+    hazards: ['toxic', 'flammable'],
+    cautionNote: 'CO is colourless and odourless.',
   },
   {
-    name: 'CO2', aliases: ['carbon dioxide'], commonName: 'carbon dioxide', molarMass_g_mol: C + 2 * O, atoms: 3, linear: true, irActive: true,
+    name: 'CO2',
+    aliases: ['carbon dioxide'],
+    commonName: 'carbon dioxide',
+    molarMass_g_mol: C + 2 * O,
+    atoms: 3,
+    linear: true,
+    irActive: true,
     bands: [
-      { mode: 'ν1', center_cm: 1333, irActive: false, source: 'from memory (symmetric stretch, IR-inactive)' },
+      {
+        mode: 'ν1',
+        center_cm: 1333,
+        irActive: false,
+        source: 'from memory (symmetric stretch, IR-inactive)',
+      },
       { mode: 'ν2', center_cm: 667.4, irActive: true, source: 'from memory' },
       { mode: 'ν3', center_cm: 2349.1, irActive: true, source: 'from memory' },
     ],
     hazards: ['asphyxiant'],
   },
   {
-    name: 'N2O', aliases: ['nitrous oxide'], commonName: 'nitrous oxide', molarMass_g_mol: 2 * N + O, atoms: 3, linear: true, irActive: true,
+    name: 'N2O',
+    aliases: ['nitrous oxide'],
+    commonName: 'nitrous oxide',
+    molarMass_g_mol: 2 * N + O,
+    atoms: 3,
+    linear: true,
+    irActive: true,
     bands: [{ mode: 'ν3', center_cm: 2224, irActive: true, source: 'from memory (overlaps the CO band)' }],
     hazards: ['oxidiser'],
   },
   {
-    name: 'NO', aliases: ['nitric oxide', 'nitrogen monoxide'], commonName: 'nitric oxide', molarMass_g_mol: N + O, atoms: 2, linear: true, irActive: true,
+    name: 'NO',
+    aliases: ['nitric oxide', 'nitrogen monoxide'],
+    commonName: 'nitric oxide',
+    molarMass_g_mol: N + O,
+    atoms: 2,
+    linear: true,
+    irActive: true,
     bands: [{ mode: '1-0', center_cm: 1876, irActive: true, source: 'Huber & Herzberg, from memory' }],
     hazards: ['toxic', 'oxidiser'],
   },
   {
-    name: 'NO2', aliases: ['nitrogen dioxide'], commonName: 'nitrogen dioxide', molarMass_g_mol: N + 2 * O, atoms: 3, linear: false, irActive: true,
+    name: 'NO2',
+    aliases: ['nitrogen dioxide'],
+    commonName: 'nitrogen dioxide',
+    molarMass_g_mol: N + 2 * O,
+    atoms: 3,
+    linear: false,
+    irActive: true,
     bands: [{ mode: 'ν3', center_cm: 1617.8, irActive: true, source: 'from memory' }],
     hazards: ['toxic', 'oxidiser', 'corrosive'],
   },
   {
-    name: 'SO2', aliases: ['sulfur dioxide', 'sulphur dioxide'], commonName: 'sulfur dioxide', molarMass_g_mol: S + 2 * O, atoms: 3, linear: false, irActive: true,
+    name: 'SO2',
+    aliases: ['sulfur dioxide', 'sulphur dioxide'],
+    commonName: 'sulfur dioxide',
+    molarMass_g_mol: S + 2 * O,
+    atoms: 3,
+    linear: false,
+    irActive: true,
     bands: [
       { mode: 'ν1', center_cm: 1151, irActive: true, source: 'NIST CCCBDB' },
       { mode: 'ν2', center_cm: 518, irActive: true, source: 'NIST CCCBDB' },
@@ -100,7 +150,13 @@ const TABLE: readonly Species[] = [
     hazards: ['toxic', 'corrosive'],
   },
   {
-    name: 'H2O', aliases: ['water', 'water vapour', 'water vapor'], commonName: 'water vapour', molarMass_g_mol: 2 * H + O, atoms: 3, linear: false, irActive: true,
+    name: 'H2O',
+    aliases: ['water', 'water vapour', 'water vapor'],
+    commonName: 'water vapour',
+    molarMass_g_mol: 2 * H + O,
+    atoms: 3,
+    linear: false,
+    irActive: true,
     bands: [
       { mode: 'ν1', center_cm: 3657.1, irActive: true, source: 'from memory' },
       { mode: 'ν2', center_cm: 1594.7, irActive: true, source: 'from memory' },
@@ -109,7 +165,13 @@ const TABLE: readonly Species[] = [
     hazards: [],
   },
   {
-    name: 'CH4', aliases: ['methane'], commonName: 'methane', molarMass_g_mol: C + 4 * H, atoms: 5, linear: false, irActive: true,
+    name: 'CH4',
+    aliases: ['methane'],
+    commonName: 'methane',
+    molarMass_g_mol: C + 4 * H,
+    atoms: 5,
+    linear: false,
+    irActive: true,
     bands: [
       { mode: 'ν3', center_cm: 3019, irActive: true, source: 'from memory' },
       { mode: 'ν4', center_cm: 1306, irActive: true, source: 'from memory' },
@@ -117,44 +179,137 @@ const TABLE: readonly Species[] = [
     hazards: ['flammable', 'asphyxiant'],
   },
   {
-    name: 'NH3', aliases: ['ammonia'], commonName: 'ammonia', molarMass_g_mol: N + 3 * H, atoms: 4, linear: false, irActive: true,
-    bands: [{ mode: 'ν2', center_cm: 950, irActive: true, source: 'from memory (umbrella mode, inversion-split doublet)' }],
+    name: 'NH3',
+    aliases: ['ammonia'],
+    commonName: 'ammonia',
+    molarMass_g_mol: N + 3 * H,
+    atoms: 4,
+    linear: false,
+    irActive: true,
+    bands: [
+      {
+        mode: 'ν2',
+        center_cm: 950,
+        irActive: true,
+        source: 'from memory (umbrella mode, inversion-split doublet)',
+      },
+    ],
     hazards: ['toxic', 'corrosive'],
   },
   {
-    name: 'HCl', aliases: ['hydrogen chloride'], commonName: 'hydrogen chloride', molarMass_g_mol: H + Cl, atoms: 2, linear: true, irActive: true,
+    name: 'HCl',
+    aliases: ['hydrogen chloride'],
+    commonName: 'hydrogen chloride',
+    molarMass_g_mol: H + Cl,
+    atoms: 2,
+    linear: true,
+    irActive: true,
     bands: [{ mode: '1-0', center_cm: 2885.98, irActive: true, source: 'Huber & Herzberg, from memory' }],
     hazards: ['toxic', 'corrosive'],
   },
   {
-    name: 'HF', aliases: ['hydrogen fluoride'], commonName: 'hydrogen fluoride', molarMass_g_mol: H + F, atoms: 2, linear: true, irActive: true,
+    name: 'HF',
+    aliases: ['hydrogen fluoride'],
+    commonName: 'hydrogen fluoride',
+    molarMass_g_mol: H + F,
+    atoms: 2,
+    linear: true,
+    irActive: true,
     bands: [{ mode: '1-0', center_cm: 3961.4, irActive: true, source: 'from memory' }],
     hazards: ['toxic', 'corrosive'],
   },
   {
-    name: 'H2S', aliases: ['hydrogen sulfide', 'hydrogen sulphide'], commonName: 'hydrogen sulfide', molarMass_g_mol: 2 * H + S, atoms: 3, linear: false, irActive: true,
+    name: 'H2S',
+    aliases: ['hydrogen sulfide', 'hydrogen sulphide'],
+    commonName: 'hydrogen sulfide',
+    molarMass_g_mol: 2 * H + S,
+    atoms: 3,
+    linear: false,
+    irActive: true,
     bands: [{ mode: 'ν2', center_cm: 1183, irActive: true, source: 'from memory (weak)' }],
     hazards: ['toxic', 'flammable'],
   },
   {
-    name: 'HCN', aliases: ['hydrogen cyanide'], commonName: 'hydrogen cyanide', molarMass_g_mol: H + C + N, atoms: 3, linear: true, irActive: true,
+    name: 'HCN',
+    aliases: ['hydrogen cyanide'],
+    commonName: 'hydrogen cyanide',
+    molarMass_g_mol: H + C + N,
+    atoms: 3,
+    linear: true,
+    irActive: true,
     bands: [{ mode: 'ν2', center_cm: 712, irActive: true, source: 'from memory' }],
     hazards: ['toxic', 'flammable'],
   },
   {
-    name: 'COCl2', aliases: ['phosgene'], commonName: 'phosgene', molarMass_g_mol: C + O + 2 * Cl, atoms: 4, linear: false, irActive: true,
+    name: 'COCl2',
+    aliases: ['phosgene'],
+    commonName: 'phosgene',
+    molarMass_g_mol: C + O + 2 * Cl,
+    atoms: 4,
+    linear: false,
+    irActive: true,
     bands: [{ mode: 'ν1', center_cm: 1827, irActive: true, source: 'from memory' }],
     hazards: ['toxic'],
   },
   {
-    name: 'CH2O', aliases: ['formaldehyde', 'HCHO'], commonName: 'formaldehyde', molarMass_g_mol: C + 2 * H + O, atoms: 4, linear: false, irActive: true,
+    name: 'CH2O',
+    aliases: ['formaldehyde', 'HCHO'],
+    commonName: 'formaldehyde',
+    molarMass_g_mol: C + 2 * H + O,
+    atoms: 4,
+    linear: false,
+    irActive: true,
     bands: [{ mode: 'ν1', center_cm: 2782, irActive: true, source: 'from memory' }],
     hazards: ['toxic', 'flammable'],
   },
-  { name: 'N2', aliases: ['nitrogen'], commonName: 'nitrogen', molarMass_g_mol: 2 * N, atoms: 2, linear: true, irActive: false, irInactiveReason: HOMONUCLEAR, bands: [], hazards: ['asphyxiant'] },
-  { name: 'O2', aliases: ['oxygen'], commonName: 'oxygen', molarMass_g_mol: 2 * O, atoms: 2, linear: true, irActive: false, irInactiveReason: HOMONUCLEAR, bands: [], hazards: ['oxidiser'] },
-  { name: 'H2', aliases: ['hydrogen'], commonName: 'hydrogen', molarMass_g_mol: 2 * H, atoms: 2, linear: true, irActive: false, irInactiveReason: HOMONUCLEAR, bands: [], hazards: ['flammable', 'asphyxiant'] },
-  { name: 'Cl2', aliases: ['chlorine'], commonName: 'chlorine', molarMass_g_mol: 2 * Cl, atoms: 2, linear: true, irActive: false, irInactiveReason: HOMONUCLEAR, bands: [], hazards: ['toxic', 'oxidiser', 'corrosive'] },
+  {
+    name: 'N2',
+    aliases: ['nitrogen'],
+    commonName: 'nitrogen',
+    molarMass_g_mol: 2 * N,
+    atoms: 2,
+    linear: true,
+    irActive: false,
+    irInactiveReason: HOMONUCLEAR,
+    bands: [],
+    hazards: ['asphyxiant'],
+  },
+  {
+    name: 'O2',
+    aliases: ['oxygen'],
+    commonName: 'oxygen',
+    molarMass_g_mol: 2 * O,
+    atoms: 2,
+    linear: true,
+    irActive: false,
+    irInactiveReason: HOMONUCLEAR,
+    bands: [],
+    hazards: ['oxidiser'],
+  },
+  {
+    name: 'H2',
+    aliases: ['hydrogen'],
+    commonName: 'hydrogen',
+    molarMass_g_mol: 2 * H,
+    atoms: 2,
+    linear: true,
+    irActive: false,
+    irInactiveReason: HOMONUCLEAR,
+    bands: [],
+    hazards: ['flammable', 'asphyxiant'],
+  },
+  {
+    name: 'Cl2',
+    aliases: ['chlorine'],
+    commonName: 'chlorine',
+    molarMass_g_mol: 2 * Cl,
+    atoms: 2,
+    linear: true,
+    irActive: false,
+    irInactiveReason: HOMONUCLEAR,
+    bands: [],
+    hazards: ['toxic', 'oxidiser', 'corrosive'],
+  },
 ];
 
 const BY_KEY = new Map<string, Species>();
@@ -187,11 +342,21 @@ export function findSpecies(name: string): Species | undefined {
 export function requireInfraredSpecies(name: string, where = 'gas'): Species {
   const species = findSpecies(name);
   if (species === undefined) {
-    const known = TABLE.filter((s) => s.irActive).map((s) => s.name).join(', ');
-    throw new BandwrightError('UNKNOWN_GAS', `${where}: gas ${JSON.stringify(name)} is not in the species table; known gases: ${known}`, { parameter: where });
+    const known = TABLE.filter((s) => s.irActive)
+      .map((s) => s.name)
+      .join(', ');
+    throw new BandwrightError(
+      'UNKNOWN_GAS',
+      `${where}: gas ${JSON.stringify(name)} is not in the species table; known gases: ${known}`,
+      { parameter: where },
+    );
   }
   if (!species.irActive) {
-    throw new BandwrightError('IR_INACTIVE', `${where}: ${species.name} (${species.commonName}) cannot be measured by infrared absorption: ${species.irInactiveReason ?? 'no IR-active vibration'}`, { parameter: where });
+    throw new BandwrightError(
+      'IR_INACTIVE',
+      `${where}: ${species.name} (${species.commonName}) cannot be measured by infrared absorption: ${species.irInactiveReason ?? 'no IR-active vibration'}`,
+      { parameter: where },
+    );
   }
   return species;
 }

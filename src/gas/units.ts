@@ -33,7 +33,11 @@ export function parseConcentrationUnit(text: string, where: string): Concentrati
   const key = text.trim().toLowerCase();
   if (key === '%' || key === 'percent') return 'pct';
   if ((CONCENTRATION_UNITS as readonly string[]).includes(key)) return key as ConcentrationUnit;
-  throw new BandwrightError('INVALID_VALUE', `${where}: unit ${JSON.stringify(text)} is not known, use ppm, ppb or pct`, { parameter: where });
+  throw new BandwrightError(
+    'INVALID_VALUE',
+    `${where}: unit ${JSON.stringify(text)} is not known, use ppm, ppb or pct`,
+    { parameter: where },
+  );
 }
 
 /** Label for printing: `ppm`, `ppb`, `%`. */
@@ -89,7 +93,7 @@ export function ppmToMgPerM3(ppm: number, molarMass_g_mol: number, state: Refere
   assertPositive(molarMass_g_mol, { parameter: 'molar mass' });
   assertPositive(state.temperature_K, { parameter: 'reference temperature' });
   assertPositive(state.pressure_kPa, { parameter: 'reference pressure' });
-  return (ppm * molarMass_g_mol * state.pressure_kPa * 1e3) / (GAS_CONSTANT * state.temperature_K) * 1e-3;
+  return ((ppm * molarMass_g_mol * state.pressure_kPa * 1e3) / (GAS_CONSTANT * state.temperature_K)) * 1e-3;
 }
 
 /**
@@ -98,7 +102,7 @@ export function ppmToMgPerM3(ppm: number, molarMass_g_mol: number, state: Refere
  * @param state - temperature (K) and pressure (kPa)
  */
 export function molarVolume_L(state: ReferenceState): number {
-  return (GAS_CONSTANT * state.temperature_K) / (state.pressure_kPa * 1e3) * 1e3;
+  return ((GAS_CONSTANT * state.temperature_K) / (state.pressure_kPa * 1e3)) * 1e3;
 }
 
 /**
@@ -112,7 +116,11 @@ export function molarVolume_L(state: ReferenceState): number {
 export function toDryBasis(wet: number, waterFraction: number): number {
   assertFinite(waterFraction, { parameter: 'water fraction' });
   if (!(waterFraction >= 0 && waterFraction < 1)) {
-    throw new BandwrightError('CONVERSION', `water vapour fraction = ${waterFraction}, must be from 0 to below 1 (a mole fraction, not percent)`, { parameter: 'water fraction' });
+    throw new BandwrightError(
+      'CONVERSION',
+      `water vapour fraction = ${waterFraction}, must be from 0 to below 1 (a mole fraction, not percent)`,
+      { parameter: 'water fraction' },
+    );
   }
   return wet / (1 - waterFraction);
 }
@@ -147,12 +155,23 @@ export const MIN_OXYGEN_GAP_PCT = 0.5;
  */
 export function correctToReferenceOxygen(value: number, correction: OxygenCorrection): number {
   const air = correction.air_pct ?? 20.9;
-  for (const [name, pct] of [['measured O2', correction.measured_pct], ['reference O2', correction.reference_pct], ['O2 of air', air]] as const) {
+  for (const [name, pct] of [
+    ['measured O2', correction.measured_pct],
+    ['reference O2', correction.reference_pct],
+    ['O2 of air', air],
+  ] as const) {
     assertFinite(pct, { parameter: name });
-    if (pct < 0 || pct > 100) throw new BandwrightError('INVALID_VALUE', `${name} = ${pct} %, must be from 0 to 100`, { parameter: name });
+    if (pct < 0 || pct > 100)
+      throw new BandwrightError('INVALID_VALUE', `${name} = ${pct} %, must be from 0 to 100`, {
+        parameter: name,
+      });
   }
   if (correction.reference_pct >= air) {
-    throw new BandwrightError('CONVERSION', `reference O2 = ${correction.reference_pct} %, must be below the O2 of air (${air} %)`, { parameter: 'reference O2' });
+    throw new BandwrightError(
+      'CONVERSION',
+      `reference O2 = ${correction.reference_pct} %, must be below the O2 of air (${air} %)`,
+      { parameter: 'reference O2' },
+    );
   }
   if (air - correction.measured_pct < MIN_OXYGEN_GAP_PCT) {
     throw new BandwrightError(

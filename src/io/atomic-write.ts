@@ -4,7 +4,18 @@
  * killed outright (SIGKILL, power loss) is never a file anyone needs: the target is either the
  * old or the new one. The next write of the same target removes such leftovers.
  */
-import { closeSync, existsSync, fsyncSync, openSync, readdirSync, renameSync, statSync, unlinkSync, writeSync, mkdirSync } from 'node:fs';
+import {
+  closeSync,
+  existsSync,
+  fsyncSync,
+  openSync,
+  readdirSync,
+  renameSync,
+  statSync,
+  unlinkSync,
+  writeSync,
+  mkdirSync,
+} from 'node:fs';
 import { basename, dirname, join } from 'node:path';
 import { BandwrightError } from '../errors.js';
 import { processRuns } from './lock.js';
@@ -42,7 +53,12 @@ export function removeLeftTemporaries(path: string, now: number = Date.now()): s
     const pid = Number(owner[1]);
     const temporary = join(folder, name);
     try {
-      if (pid === process.pid || processRuns(pid) || now - statSync(temporary).mtimeMs < LEFT_TEMPORARY_AGE_MS) continue;
+      if (
+        pid === process.pid ||
+        processRuns(pid) ||
+        now - statSync(temporary).mtimeMs < LEFT_TEMPORARY_AGE_MS
+      )
+        continue;
       unlinkSync(temporary);
       removed.push(temporary);
     } catch {
@@ -69,7 +85,11 @@ export interface AtomicWriteOptions {
  * @throws BandwrightError `FILE_EXISTS` when the file exists and overwrite is off; `FILE_READ` when
  *   the folder does not exist or is not writable
  */
-export function writeFileAtomic(path: string, content: string | Uint8Array, options: AtomicWriteOptions = {}): void {
+export function writeFileAtomic(
+  path: string,
+  content: string | Uint8Array,
+  options: AtomicWriteOptions = {},
+): void {
   if (!options.overwrite && existsSync(path)) {
     throw new BandwrightError('FILE_EXISTS', `${path} exists; use --force to replace it`, { file: path });
   }
@@ -86,7 +106,9 @@ export function writeFileAtomic(path: string, content: string | Uint8Array, opti
     closeSync(descriptor);
     descriptor = undefined;
     if (!options.overwrite && existsSync(path)) {
-      throw new BandwrightError('FILE_EXISTS', `${path} appeared while writing; use --force to replace it`, { file: path });
+      throw new BandwrightError('FILE_EXISTS', `${path} appeared while writing; use --force to replace it`, {
+        file: path,
+      });
     }
     renameSync(temporary, path);
     removeLeftTemporaries(path);
@@ -99,6 +121,11 @@ export function writeFileAtomic(path: string, content: string | Uint8Array, opti
     }
     if (error instanceof BandwrightError) throw error;
     const reason = error instanceof Error ? error.message : String(error);
-    throw new BandwrightError('FILE_READ', `${path}: cannot write: ${reason}`, { file: path }, { cause: error });
+    throw new BandwrightError(
+      'FILE_READ',
+      `${path}: cannot write: ${reason}`,
+      { file: path },
+      { cause: error },
+    );
   }
 }

@@ -26,8 +26,15 @@ export function readCalibration(path: string): Calibration {
  * @param options - `force` to replace an existing file
  * @throws BandwrightError `FILE_EXISTS` without force; `FILE_READ` when the folder is not writable
  */
-export function writeCalibration(path: string, calibration: Calibration, options: { force?: boolean } = {}): void {
-  writeFileAtomic(path, `${JSON.stringify(calibration, null, 2)}\n`, { overwrite: options.force === true, createFolder: true });
+export function writeCalibration(
+  path: string,
+  calibration: Calibration,
+  options: { force?: boolean } = {},
+): void {
+  writeFileAtomic(path, `${JSON.stringify(calibration, null, 2)}\n`, {
+    overwrite: options.force === true,
+    createFolder: true,
+  });
 }
 
 /**

@@ -51,10 +51,18 @@ export function parseTable(input: string, source: string, options: { maxRows?: n
     return lo + 1;
   };
 
-  const parsed = Papa.parse<string[]>(text, { header: false, skipEmptyLines: false, comments: false, delimiter: headerDelimiter(text), newline: '\n' });
+  const parsed = Papa.parse<string[]>(text, {
+    header: false,
+    skipEmptyLines: false,
+    comments: false,
+    delimiter: headerDelimiter(text),
+    newline: '\n',
+  });
   const quoteError = parsed.errors.find((e) => e.type === 'Quotes');
   if (quoteError !== undefined) {
-    throw new BandwrightError('PARSE', `${source} line ${(quoteError.row ?? 0) + 1}: ${quoteError.message}`, { file: source });
+    throw new BandwrightError('PARSE', `${source} line ${(quoteError.row ?? 0) + 1}: ${quoteError.message}`, {
+      file: source,
+    });
   }
   const delimiter = parsed.meta.delimiter;
   // papaparse does not report row offsets without a step callback; walk the rows and find each
@@ -81,14 +89,28 @@ export function parseTable(input: string, source: string, options: { maxRows?: n
     headerIndex = i;
     break;
   }
-  if (headerIndex < 0) throw new BandwrightError('PARSE', `${source}: the table is empty, expected a header line and data rows`, { file: source });
+  if (headerIndex < 0)
+    throw new BandwrightError(
+      'PARSE',
+      `${source}: the table is empty, expected a header line and data rows`,
+      { file: source },
+    );
   const columns = (records[headerIndex] as string[]).map((cell) => cell.trim());
   const keys = columns.map((name) => name.toLowerCase());
   const headerLine = lineAt(starts[headerIndex] as number);
   keys.forEach((key, i) => {
-    if (key === '') throw new BandwrightError('PARSE', `${source} line ${headerLine}: column ${i + 1} has no name`, { file: source, line: headerLine });
+    if (key === '')
+      throw new BandwrightError('PARSE', `${source} line ${headerLine}: column ${i + 1} has no name`, {
+        file: source,
+        line: headerLine,
+      });
     const earlier = keys.indexOf(key);
-    if (earlier !== i) throw new BandwrightError('PARSE', `${source} line ${headerLine}: column ${JSON.stringify(columns[i])} appears twice (columns ${earlier + 1} and ${i + 1})`, { file: source, line: headerLine });
+    if (earlier !== i)
+      throw new BandwrightError(
+        'PARSE',
+        `${source} line ${headerLine}: column ${JSON.stringify(columns[i])} appears twice (columns ${earlier + 1} and ${i + 1})`,
+        { file: source, line: headerLine },
+      );
   });
 
   const rows: TableRow[] = [];
@@ -98,9 +120,18 @@ export function parseTable(input: string, source: string, options: { maxRows?: n
     if (record.every((cell) => cell.trim() === '')) continue;
     const line = lineAt(starts[i] as number);
     if (record.length !== columns.length) {
-      throw new BandwrightError('PARSE', `${source} line ${line}: ${record.length} cells, the header has ${columns.length} (${columns.join(delimiter)})`, { file: source, line });
+      throw new BandwrightError(
+        'PARSE',
+        `${source} line ${line}: ${record.length} cells, the header has ${columns.length} (${columns.join(delimiter)})`,
+        { file: source, line },
+      );
     }
-    if (rows.length >= maxRows) throw new BandwrightError('LIMIT', `${source}: more than ${maxRows} data rows, the limit (BANDWRIGHT_MAX_TABLE_ROWS raises it)`, { file: source });
+    if (rows.length >= maxRows)
+      throw new BandwrightError(
+        'LIMIT',
+        `${source}: more than ${maxRows} data rows, the limit (BANDWRIGHT_MAX_TABLE_ROWS raises it)`,
+        { file: source },
+      );
     const cells = new Map<string, string>();
     record.forEach((cell, k) => {
       const value = cell.trim();
@@ -140,7 +171,8 @@ function unifyLineEnds(text: string): string {
  * or semicolon there decides, and data rows such as `a.csv;10,5` cannot mislead the guess.
  */
 function headerDelimiter(text: string): string {
-  const header = text.split('\n').find((line) => line.trim() !== '' && !line.trimStart().startsWith('#')) ?? '';
+  const header =
+    text.split('\n').find((line) => line.trim() !== '' && !line.trimStart().startsWith('#')) ?? '';
   if (header.includes('\t')) return '\t';
   if (header.includes(';')) return ';';
   return ',';
@@ -164,16 +196,24 @@ const NUMBER = /^[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?$/;
  * @returns the number
  * @throws BandwrightError `INVALID_VALUE` naming the cell, the value and the rule
  */
-export function parseNumberCell(text: string, where: { file: string; line: number; column: string }, options: { decimalComma?: boolean } = {}): number {
+export function parseNumberCell(
+  text: string,
+  where: { file: string; line: number; column: string },
+  options: { decimalComma?: boolean } = {},
+): number {
   const normalised = options.decimalComma ? text.replace(',', '.') : text;
   const value = NUMBER.test(normalised) ? Number(normalised) : Number.NaN;
   if (!Number.isFinite(value)) {
     const rule = NUMBER.test(normalised) ? 'is too large for a double-precision number' : 'must be a number';
-    throw new BandwrightError('INVALID_VALUE', `${where.file} line ${where.line}: ${where.column} = ${JSON.stringify(text)}, ${rule}`, {
-      file: where.file,
-      line: where.line,
-      parameter: where.column,
-    });
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `${where.file} line ${where.line}: ${where.column} = ${JSON.stringify(text)}, ${rule}`,
+      {
+        file: where.file,
+        line: where.line,
+        parameter: where.column,
+      },
+    );
   }
   return value;
 }
@@ -187,9 +227,17 @@ export function parseNumberCell(text: string, where: { file: string; line: numbe
  * @param rows - cell values (numbers are written with full precision as given)
  * @returns CSV text with a trailing newline
  */
-export function formatCsv(columns: readonly string[], rows: readonly (readonly (string | number | undefined)[])[]): string {
+export function formatCsv(
+  columns: readonly string[],
+  rows: readonly (readonly (string | number | undefined)[])[],
+): string {
   const lines = [columns.map(guardCell).map(quoteCell).join(',')];
-  for (const row of rows) lines.push(row.map((cell) => (typeof cell === 'number' ? String(cell) : quoteCell(guardCell(cell ?? '')))).join(','));
+  for (const row of rows)
+    lines.push(
+      row
+        .map((cell) => (typeof cell === 'number' ? String(cell) : quoteCell(guardCell(cell ?? ''))))
+        .join(','),
+    );
   return `${lines.join('\n')}\n`;
 }
 

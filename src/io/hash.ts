@@ -30,12 +30,19 @@ export function sha256OfBytes(bytes: Uint8Array): string {
 export function sha256OfFile(path: string): string {
   let descriptor: number;
   try {
-    if (statSync(path).isDirectory()) throw new BandwrightError('FILE_READ', `${path} is a folder, expected a file`, { file: path });
+    if (statSync(path).isDirectory())
+      throw new BandwrightError('FILE_READ', `${path} is a folder, expected a file`, { file: path });
     descriptor = openSync(path, 'r');
   } catch (error) {
     if (error instanceof BandwrightError) throw error;
-    if ((error as NodeJS.ErrnoException).code === 'ENOENT') throw new BandwrightError('FILE_NOT_FOUND', `${path}: no such file`, { file: path });
-    throw new BandwrightError('FILE_READ', `${path}: cannot read: ${(error as Error).message}`, { file: path }, { cause: error });
+    if ((error as NodeJS.ErrnoException).code === 'ENOENT')
+      throw new BandwrightError('FILE_NOT_FOUND', `${path}: no such file`, { file: path });
+    throw new BandwrightError(
+      'FILE_READ',
+      `${path}: cannot read: ${(error as Error).message}`,
+      { file: path },
+      { cause: error },
+    );
   }
   const hash = createHash('sha256');
   const buffer = Buffer.allocUnsafe(1 << 20);
@@ -46,7 +53,12 @@ export function sha256OfFile(path: string): string {
       hash.update(buffer.subarray(0, count));
     }
   } catch (error) {
-    throw new BandwrightError('FILE_READ', `${path}: cannot read: ${(error as Error).message}`, { file: path }, { cause: error });
+    throw new BandwrightError(
+      'FILE_READ',
+      `${path}: cannot read: ${(error as Error).message}`,
+      { file: path },
+      { cause: error },
+    );
   } finally {
     closeSync(descriptor);
   }

@@ -19,13 +19,33 @@
  * nor interleave records. A last line without its end of line is a record torn by a crash: it is
  * reported with its line number and content and nothing more is appended until it is repaired.
  */
-import { closeSync, existsSync, fsyncSync, openSync, readdirSync, renameSync, statSync, writeSync } from 'node:fs';
+import {
+  closeSync,
+  existsSync,
+  fsyncSync,
+  openSync,
+  readdirSync,
+  renameSync,
+  statSync,
+  writeSync,
+} from 'node:fs';
 import { basename, dirname, extname, join } from 'node:path';
 import Papa from 'papaparse';
 import { BandwrightError } from '../errors.js';
 import { parseConcentrationUnit, type ConcentrationUnit } from '../gas/units.js';
-import { judgeCheck, type CheckMeasurementRecord, type EvaluateOptions, type JudgedCheck } from '../drift/evaluate.js';
-import { CONTROL_RULE_NAMES, VERDICTS, type CheckRecord, type ControlRuleName, type Verdict } from '../drift/record.js';
+import {
+  judgeCheck,
+  type CheckMeasurementRecord,
+  type EvaluateOptions,
+  type JudgedCheck,
+} from '../drift/evaluate.js';
+import {
+  CONTROL_RULE_NAMES,
+  VERDICTS,
+  type CheckRecord,
+  type ControlRuleName,
+  type Verdict,
+} from '../drift/record.js';
 import { writeFileAtomic } from './atomic-write.js';
 import { guardCell, parseNumberCell, parseTable } from './csv-table.js';
 import { parseJson } from './json-file.js';
@@ -80,7 +100,8 @@ export interface ReadHistoryOptions {
   calibrationFile?: string;
 }
 
-const HEADER_PATTERN = /^# bandwright check history; format (\d+); calibration sha256 ([0-9a-f]{64})(?:;.*)?$/;
+const HEADER_PATTERN =
+  /^# bandwright check history; format (\d+); calibration sha256 ([0-9a-f]{64})(?:;.*)?$/;
 const ISO_UTC = /^\d{4}-\d{2}-\d{2}T\d{2}:\d{2}:\d{2}(?:\.\d{1,9})?Z$/;
 const HEX64 = /^[0-9a-f]{64}$/;
 
@@ -93,7 +114,8 @@ const HEX64 = /^[0-9a-f]{64}$/;
  * historyPathFor('calibrations/lab-co.calibration.json'); // 'calibrations/lab-co.calibration.history.csv'
  */
 export function historyPathFor(calibrationPath: string): string {
-  const base = extname(calibrationPath).toLowerCase() === '.json' ? calibrationPath.slice(0, -5) : calibrationPath;
+  const base =
+    extname(calibrationPath).toLowerCase() === '.json' ? calibrationPath.slice(0, -5) : calibrationPath;
   return `${base}.history.csv`;
 }
 
@@ -104,7 +126,10 @@ export function historyPathFor(calibrationPath: string): string {
  * @param calibrationFile - the calibration's file name (shown for people; not checked)
  */
 export function formatHistoryHeader(calibrationSha256: string, calibrationFile?: string): string {
-  const name = calibrationFile === undefined ? '' : `; file ${basename(calibrationFile).replace(/[\u0000-\u001f\u007f]/g, '?')}`;
+  const name =
+    calibrationFile === undefined
+      ? ''
+      : `; file ${basename(calibrationFile).replace(/[\u0000-\u001f\u007f]/g, '?')}`;
   return `# bandwright check history; format ${HISTORY_FORMAT_VERSION}; calibration sha256 ${calibrationSha256}${name}\n${HISTORY_COLUMNS.join(',')}\n`;
 }
 
@@ -129,11 +154,28 @@ function textCell(value: string): string {
  *   or a time is not ISO 8601 UTC
  */
 export function formatHistoryRecord(record: CheckRecord): string {
-  for (const [field, value] of [['scan', record.scan], ['gas', record.gas], ['tool version', record.toolVersion]] as const) {
-    if (/[\r\n]/.test(value)) throw new BandwrightError('INVALID_VALUE', `${field} = ${JSON.stringify(value)}: a line break cannot be kept in the history (one record per line); rename the file`, { parameter: field });
+  for (const [field, value] of [
+    ['scan', record.scan],
+    ['gas', record.gas],
+    ['tool version', record.toolVersion],
+  ] as const) {
+    if (/[\r\n]/.test(value))
+      throw new BandwrightError(
+        'INVALID_VALUE',
+        `${field} = ${JSON.stringify(value)}: a line break cannot be kept in the history (one record per line); rename the file`,
+        { parameter: field },
+      );
   }
-  for (const [field, value] of [['time', record.time], ['recorded_at', record.recordedAt]] as const) {
-    if (!ISO_UTC.test(value)) throw new BandwrightError('INVALID_VALUE', `${field} = ${JSON.stringify(value)}, must be an ISO 8601 UTC time such as 2026-09-01T09:30:00.000Z`, { parameter: field });
+  for (const [field, value] of [
+    ['time', record.time],
+    ['recorded_at', record.recordedAt],
+  ] as const) {
+    if (!ISO_UTC.test(value))
+      throw new BandwrightError(
+        'INVALID_VALUE',
+        `${field} = ${JSON.stringify(value)}, must be an ISO 8601 UTC time such as 2026-09-01T09:30:00.000Z`,
+        { parameter: field },
+      );
   }
   const cells = [
     textCell(record.time),
@@ -173,14 +215,27 @@ function parseRecord(line: string, lineNumber: number, source: string): CheckRec
   const cells = parsed.data[0];
   const where = `${source} line ${lineNumber}`;
   if (problem !== undefined || cells === undefined || parsed.data.length !== 1) {
-    throw new BandwrightError('PARSE', `${where}: not a valid CSV record (${problem?.message ?? 'more than one row'}): ${shown(line)}`, { file: source, line: lineNumber });
+    throw new BandwrightError(
+      'PARSE',
+      `${where}: not a valid CSV record (${problem?.message ?? 'more than one row'}): ${shown(line)}`,
+      { file: source, line: lineNumber },
+    );
   }
   if (cells.length !== HISTORY_COLUMNS.length) {
-    throw new BandwrightError('PARSE', `${where}: ${cells.length} cells, a record has ${HISTORY_COLUMNS.length} (${HISTORY_COLUMNS.join(',')}); the line is damaged: ${shown(line)}`, { file: source, line: lineNumber });
+    throw new BandwrightError(
+      'PARSE',
+      `${where}: ${cells.length} cells, a record has ${HISTORY_COLUMNS.length} (${HISTORY_COLUMNS.join(',')}); the line is damaged: ${shown(line)}`,
+      { file: source, line: lineNumber },
+    );
   }
-  const cell = (column: (typeof HISTORY_COLUMNS)[number]): string => unguard(cells[HISTORY_COLUMNS.indexOf(column)] as string);
+  const cell = (column: (typeof HISTORY_COLUMNS)[number]): string =>
+    unguard(cells[HISTORY_COLUMNS.indexOf(column)] as string);
   const fail = (column: string, value: string, rule: string): never => {
-    throw new BandwrightError('PARSE', `${where}: ${column} = ${JSON.stringify(value)}, ${rule}`, { file: source, line: lineNumber, parameter: column });
+    throw new BandwrightError('PARSE', `${where}: ${column} = ${JSON.stringify(value)}, ${rule}`, {
+      file: source,
+      line: lineNumber,
+      parameter: column,
+    });
   };
   const number = (column: (typeof HISTORY_COLUMNS)[number]): number => {
     try {
@@ -190,10 +245,12 @@ function parseRecord(line: string, lineNumber: number, source: string): CheckRec
       throw error;
     }
   };
-  const optionalNumber = (column: (typeof HISTORY_COLUMNS)[number]): number | undefined => (cell(column) === '' ? undefined : number(column));
+  const optionalNumber = (column: (typeof HISTORY_COLUMNS)[number]): number | undefined =>
+    cell(column) === '' ? undefined : number(column);
   const time = (column: 'time' | 'recorded_at'): string => {
     const value = cell(column);
-    if (!ISO_UTC.test(value) || !Number.isFinite(Date.parse(value))) fail(column, value, 'must be an ISO 8601 UTC time such as 2026-09-01T09:30:00.000Z');
+    if (!ISO_UTC.test(value) || !Number.isFinite(Date.parse(value)))
+      fail(column, value, 'must be an ISO 8601 UTC time such as 2026-09-01T09:30:00.000Z');
     return value;
   };
   const gas = cell('gas');
@@ -205,12 +262,20 @@ function parseRecord(line: string, lineNumber: number, source: string): CheckRec
     fail('unit', cell('unit'), 'must be ppm, ppb or pct');
   }
   const verdict = cell('verdict');
-  if (!(VERDICTS as readonly string[]).includes(verdict)) fail('verdict', verdict, `must be one of ${VERDICTS.join(', ')}`);
+  if (!(VERDICTS as readonly string[]).includes(verdict))
+    fail('verdict', verdict, `must be one of ${VERDICTS.join(', ')}`);
   const rulesText = cell('rules').trim();
   const rules = rulesText === '' ? [] : rulesText.split(/\s+/);
-  for (const rule of rules) if (!(CONTROL_RULE_NAMES as readonly string[]).includes(rule)) fail('rules', rulesText, `${JSON.stringify(rule)} is not a control rule (${CONTROL_RULE_NAMES.join(', ')})`);
+  for (const rule of rules)
+    if (!(CONTROL_RULE_NAMES as readonly string[]).includes(rule))
+      fail(
+        'rules',
+        rulesText,
+        `${JSON.stringify(rule)} is not a control rule (${CONTROL_RULE_NAMES.join(', ')})`,
+      );
   const scanSha256 = cell('scan_sha256');
-  if (!HEX64.test(scanSha256)) fail('scan_sha256', scanSha256, 'must be 64 lower-case hexadecimal characters');
+  if (!HEX64.test(scanSha256))
+    fail('scan_sha256', scanSha256, 'must be 64 lower-case hexadecimal characters');
   const certified = number('certified');
   if (certified < 0) fail('certified', cell('certified'), 'must be >= 0');
   const tolerancePct = number('tolerance_pct');
@@ -233,8 +298,14 @@ function parseRecord(line: string, lineNumber: number, source: string): CheckRec
     toolVersion: cell('tool_version'),
     line: lineNumber,
   };
-  const optional = { detectionLimit: optionalNumber('detection_limit'), recoveryPct: optionalNumber('recovery_pct'), z: optionalNumber('z'), sigmaPct: optionalNumber('sigma_pct') };
-  for (const [key, value] of Object.entries(optional)) if (value !== undefined) (record as unknown as Record<string, number>)[key] = value;
+  const optional = {
+    detectionLimit: optionalNumber('detection_limit'),
+    recoveryPct: optionalNumber('recovery_pct'),
+    z: optionalNumber('z'),
+    sigmaPct: optionalNumber('sigma_pct'),
+  };
+  for (const [key, value] of Object.entries(optional))
+    if (value !== undefined) (record as unknown as Record<string, number>)[key] = value;
   return record;
 }
 
@@ -265,11 +336,26 @@ export function parseHistory(text: string, source: string, options: ReadHistoryO
     );
   }
   const first = lines[0];
-  if (first === undefined || first === '') throw new BandwrightError('PARSE', `${source} line 1: empty; a history starts with "# bandwright check history; format 1; calibration sha256 …"`, { file: source, line: 1 });
+  if (first === undefined || first === '')
+    throw new BandwrightError(
+      'PARSE',
+      `${source} line 1: empty; a history starts with "# bandwright check history; format 1; calibration sha256 …"`,
+      { file: source, line: 1 },
+    );
   const match = HEADER_PATTERN.exec(first);
-  if (match === null) throw new BandwrightError('PARSE', `${source} line 1: ${shown(first)} is not a bandwright history first line ("# bandwright check history; format 1; calibration sha256 …")`, { file: source, line: 1 });
+  if (match === null)
+    throw new BandwrightError(
+      'PARSE',
+      `${source} line 1: ${shown(first)} is not a bandwright history first line ("# bandwright check history; format 1; calibration sha256 …")`,
+      { file: source, line: 1 },
+    );
   const formatVersion = Number(match[1]);
-  if (formatVersion > HISTORY_FORMAT_VERSION) throw new BandwrightError('SCHEMA', `${source} line 1: history format ${formatVersion} is newer than this tool reads (${HISTORY_FORMAT_VERSION}); update bandwright`, { file: source, line: 1 });
+  if (formatVersion > HISTORY_FORMAT_VERSION)
+    throw new BandwrightError(
+      'SCHEMA',
+      `${source} line 1: history format ${formatVersion} is newer than this tool reads (${HISTORY_FORMAT_VERSION}); update bandwright`,
+      { file: source, line: 1 },
+    );
   const calibrationSha256 = match[2] as string;
   if (options.calibrationSha256 !== undefined && options.calibrationSha256 !== calibrationSha256) {
     const name = options.calibrationFile ?? 'the calibration';
@@ -280,12 +366,27 @@ export function parseHistory(text: string, source: string, options: ReadHistoryO
     );
   }
   const header = lines[1];
-  if (header === undefined) throw new BandwrightError('PARSE', `${source} line 2: missing the header line (${HISTORY_COLUMNS.join(',')})`, { file: source, line: 2 });
-  if (header !== HISTORY_COLUMNS.join(',')) throw new BandwrightError('PARSE', `${source} line 2: header ${shown(header)} is not the format ${formatVersion} header (${HISTORY_COLUMNS.join(',')})`, { file: source, line: 2 });
+  if (header === undefined)
+    throw new BandwrightError(
+      'PARSE',
+      `${source} line 2: missing the header line (${HISTORY_COLUMNS.join(',')})`,
+      { file: source, line: 2 },
+    );
+  if (header !== HISTORY_COLUMNS.join(','))
+    throw new BandwrightError(
+      'PARSE',
+      `${source} line 2: header ${shown(header)} is not the format ${formatVersion} header (${HISTORY_COLUMNS.join(',')})`,
+      { file: source, line: 2 },
+    );
   const records: CheckRecord[] = [];
   for (let i = 2; i < lines.length; i++) {
     const line = lines[i] as string;
-    if (line.trim() === '') throw new BandwrightError('PARSE', `${source} line ${i + 1}: blank line; a history has one record per line and no blank lines (delete it)`, { file: source, line: i + 1 });
+    if (line.trim() === '')
+      throw new BandwrightError(
+        'PARSE',
+        `${source} line ${i + 1}: blank line; a history has one record per line and no blank lines (delete it)`,
+        { file: source, line: i + 1 },
+      );
     records.push(parseRecord(line, i + 1, source));
   }
   return { path: source, formatVersion, calibrationSha256, records, lines: lines.length };
@@ -355,7 +456,12 @@ function appendLine(path: string, line: string): void {
     while (offset < bytes.length) offset += writeSync(descriptor, bytes, offset, bytes.length - offset);
     fsyncSync(descriptor);
   } catch (error) {
-    throw new BandwrightError('FILE_READ', `${path}: cannot append: ${(error as Error).message}`, { file: path }, { cause: error });
+    throw new BandwrightError(
+      'FILE_READ',
+      `${path}: cannot append: ${(error as Error).message}`,
+      { file: path },
+      { cause: error },
+    );
   } finally {
     if (descriptor !== undefined) closeSync(descriptor);
   }
@@ -376,13 +482,20 @@ export function appendHistoryRecord(path: string, options: AppendHistoryOptions)
   return withFileLock(
     `${path}.lock`,
     () => {
-      const readOptions: ReadHistoryOptions = { calibrationSha256: options.calibrationSha256, ...(options.calibrationFile === undefined ? {} : { calibrationFile: options.calibrationFile }) };
+      const readOptions: ReadHistoryOptions = {
+        calibrationSha256: options.calibrationSha256,
+        ...(options.calibrationFile === undefined ? {} : { calibrationFile: options.calibrationFile }),
+      };
       const existing = readHistoryIfExists(path, readOptions);
       const previous = existing?.records ?? [];
       const record = options.complete(previous);
       const line = formatHistoryRecord(record);
       if (existing === undefined) {
-        writeFileAtomic(path, formatHistoryHeader(options.calibrationSha256, options.calibrationFile) + line, { overwrite: false });
+        writeFileAtomic(
+          path,
+          formatHistoryHeader(options.calibrationSha256, options.calibrationFile) + line,
+          { overwrite: false },
+        );
         return { record: { ...record, line: 3 }, created: true, previous };
       }
       appendLine(path, line);
@@ -414,7 +527,11 @@ export interface RecordCheckOptions extends Omit<EvaluateOptions, 'gas'> {
  * const judged = recordCheck(historyPathFor(file), checkRecordOf(measurement, provenance), { calibrationSha256: calibration.sha256, policy: calibration.method.recheck });
  * judged.check.verdict;
  */
-export function recordCheck(path: string, measurement: CheckMeasurementRecord, options: RecordCheckOptions): JudgedCheck & { created: boolean } {
+export function recordCheck(
+  path: string,
+  measurement: CheckMeasurementRecord,
+  options: RecordCheckOptions,
+): JudgedCheck & { created: boolean } {
   let judged: JudgedCheck | undefined;
   const { calibrationSha256, calibrationFile, lock, ...evaluateOptions } = options;
   const appended = appendHistoryRecord(path, {
@@ -451,12 +568,19 @@ export interface SkippedFile {
 export function findCalibrationFiles(folder: string): { calibrations: string[]; skipped: SkippedFile[] } {
   let names: string[];
   try {
-    if (!statSync(folder).isDirectory()) throw new BandwrightError('FILE_READ', `${folder} is not a folder`, { file: folder });
+    if (!statSync(folder).isDirectory())
+      throw new BandwrightError('FILE_READ', `${folder} is not a folder`, { file: folder });
     names = readdirSync(folder).sort();
   } catch (error) {
     if (error instanceof BandwrightError) throw error;
-    if ((error as NodeJS.ErrnoException).code === 'ENOENT') throw new BandwrightError('FILE_NOT_FOUND', `${folder}: no such folder`, { file: folder });
-    throw new BandwrightError('FILE_READ', `${folder}: cannot list: ${(error as Error).message}`, { file: folder }, { cause: error });
+    if ((error as NodeJS.ErrnoException).code === 'ENOENT')
+      throw new BandwrightError('FILE_NOT_FOUND', `${folder}: no such folder`, { file: folder });
+    throw new BandwrightError(
+      'FILE_READ',
+      `${folder}: cannot list: ${(error as Error).message}`,
+      { file: folder },
+      { cause: error },
+    );
   }
   const calibrations: string[] = [];
   const skipped: SkippedFile[] = [];
@@ -477,7 +601,8 @@ export function findCalibrationFiles(folder: string): { calibrations: string[]; 
       else skipped.push({ path, reason: error instanceof Error ? error.message : String(error) });
       continue;
     }
-    if (typeof value === 'object' && value !== null && !Array.isArray(value) && 'schemaVersion' in value) calibrations.push(path);
+    if (typeof value === 'object' && value !== null && !Array.isArray(value) && 'schemaVersion' in value)
+      calibrations.push(path);
     else skipped.push({ path, reason: 'not a calibration (no schemaVersion)' });
   }
   return { calibrations, skipped };
@@ -539,7 +664,12 @@ export function moveHistoryAside(path: string): string | undefined {
   try {
     renameSync(path, target);
   } catch (error) {
-    throw new BandwrightError('FILE_READ', `${path}: cannot move it aside: ${(error as Error).message}`, { file: path }, { cause: error });
+    throw new BandwrightError(
+      'FILE_READ',
+      `${path}: cannot move it aside: ${(error as Error).message}`,
+      { file: path },
+      { cause: error },
+    );
   }
   return target;
 }
@@ -574,19 +704,48 @@ export function readCheckList(path: string): CheckListEntry[] {
   const keys = table.columns.map((c) => c.toLowerCase());
   const certifiedColumns = keys.filter((k) => /^certified_(ppm|ppb|pct)$/.test(k));
   if (!keys.includes('scan') || !keys.includes('measured_at') || certifiedColumns.length !== 1) {
-    throw new BandwrightError('PARSE', `${path} line 1: a check list needs the columns scan, certified_<ppm|ppb|pct> (one) and measured_at (found: ${table.columns.join(', ')})`, { file: path, line: 1 });
+    throw new BandwrightError(
+      'PARSE',
+      `${path} line 1: a check list needs the columns scan, certified_<ppm|ppb|pct> (one) and measured_at (found: ${table.columns.join(', ')})`,
+      { file: path, line: 1 },
+    );
   }
   const certifiedKey = certifiedColumns[0] as string;
   const unit = parseConcentrationUnit(certifiedKey.slice('certified_'.length), `${path}: ${certifiedKey}`);
   return table.rows.map((row) => {
     const scan = row.cells.get('scan') ?? '';
-    if (scan === '') throw new BandwrightError('PARSE', `${path} line ${row.line}: scan is empty, must name a scan file`, { file: path, line: row.line, parameter: 'scan' });
-    const certified = parseNumberCell(row.cells.get(certifiedKey) ?? '', { file: path, line: row.line, column: certifiedKey }, { decimalComma: table.decimalComma });
-    if (certified < 0) throw new BandwrightError('INVALID_VALUE', `${path} line ${row.line}: ${certifiedKey} = ${certified}, must be >= 0`, { file: path, line: row.line, parameter: certifiedKey });
+    if (scan === '')
+      throw new BandwrightError('PARSE', `${path} line ${row.line}: scan is empty, must name a scan file`, {
+        file: path,
+        line: row.line,
+        parameter: 'scan',
+      });
+    const certified = parseNumberCell(
+      row.cells.get(certifiedKey) ?? '',
+      { file: path, line: row.line, column: certifiedKey },
+      { decimalComma: table.decimalComma },
+    );
+    if (certified < 0)
+      throw new BandwrightError(
+        'INVALID_VALUE',
+        `${path} line ${row.line}: ${certifiedKey} = ${certified}, must be >= 0`,
+        { file: path, line: row.line, parameter: certifiedKey },
+      );
     const time = row.cells.get('measured_at') ?? '';
     const ms = /(Z|[+-]\d{2}:\d{2})$/.test(time) ? Date.parse(time) : Number.NaN;
-    if (!Number.isFinite(ms)) throw new BandwrightError('PARSE', `${path} line ${row.line}: measured_at = ${JSON.stringify(time)}, must be an ISO 8601 time with a zone, e.g. 2026-09-01T09:30:00Z`, { file: path, line: row.line, parameter: 'measured_at' });
-    const entry: CheckListEntry = { line: row.line, scan: join(dirname(path), scan), certified, unit, measuredAt: new Date(ms).toISOString() };
+    if (!Number.isFinite(ms))
+      throw new BandwrightError(
+        'PARSE',
+        `${path} line ${row.line}: measured_at = ${JSON.stringify(time)}, must be an ISO 8601 time with a zone, e.g. 2026-09-01T09:30:00Z`,
+        { file: path, line: row.line, parameter: 'measured_at' },
+      );
+    const entry: CheckListEntry = {
+      line: row.line,
+      scan: join(dirname(path), scan),
+      certified,
+      unit,
+      measuredAt: new Date(ms).toISOString(),
+    };
     const gas = row.cells.get('gas');
     if (gas !== undefined && gas !== '') entry.gas = gas;
     return entry;

@@ -87,16 +87,21 @@ function oneLine(text: string): string {
 export function formatJcamp(spectrum: Spectrum, options: JcampWriteOptions): string {
   const where = spectrum.metadata.source ?? 'spectrum';
   if (spectrum.yKind === 'single-beam') {
-    throw new BandwrightError('INVALID_VALUE', `${where}: a single-beam spectrum is not written as JCAMP-DX here; convert it to absorbance or transmittance first`, {
-      parameter: 'yKind',
-    });
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `${where}: a single-beam spectrum is not written as JCAMP-DX here; convert it to absorbance or transmittance first`,
+      {
+        parameter: 'yKind',
+      },
+    );
   }
   const compression = options.compression ?? 'dif-dup';
   const { x, y } = spectrum;
   const n = x.length;
   const step = ((x[n - 1] as number) - (x[0] as number)) / (n - 1);
   let even = true;
-  for (let i = 1; i < n - 1 && even; i++) even = Math.abs((x[i] as number) - ((x[0] as number) + i * step)) <= 1e-9 * Math.abs(step);
+  for (let i = 1; i < n - 1 && even; i++)
+    even = Math.abs((x[i] as number) - ((x[0] as number) + i * step)) <= 1e-9 * Math.abs(step);
 
   const lines: string[] = [
     `##TITLE=${oneLine(options.title)}`,
@@ -109,7 +114,9 @@ export function formatJcamp(spectrum: Spectrum, options: JcampWriteOptions): str
   const condition = (label: string, value: number | undefined, unit: string): void => {
     if (value === undefined) return;
     if (!Number.isFinite(value)) {
-      throw new BandwrightError('INVALID_VALUE', `${where}: ${label} = ${value}, must be a finite number`, { parameter: label });
+      throw new BandwrightError('INVALID_VALUE', `${where}: ${label} = ${value}, must be a finite number`, {
+        parameter: label,
+      });
     }
     lines.push(`##${label}=${String(value)}${unit === '' ? '' : ` $$ ${unit}`}`);
   };
@@ -134,7 +141,15 @@ export function formatJcamp(spectrum: Spectrum, options: JcampWriteOptions): str
   }
 
   if (!even) {
-    lines.push('##XFACTOR=1', '##YFACTOR=1', `##FIRSTX=${String(x[0])}`, `##LASTX=${String(x[n - 1])}`, `##NPOINTS=${n}`, `##FIRSTY=${String(y[0])}`, '##XYPOINTS=(XY..XY)');
+    lines.push(
+      '##XFACTOR=1',
+      '##YFACTOR=1',
+      `##FIRSTX=${String(x[0])}`,
+      `##LASTX=${String(x[n - 1])}`,
+      `##NPOINTS=${n}`,
+      `##FIRSTY=${String(y[0])}`,
+      '##XYPOINTS=(XY..XY)',
+    );
     for (let i = 0; i < n; i++) lines.push(`${String(x[i])}, ${String(y[i])}`);
     lines.push('##END=');
     return `${lines.join('\n')}\n`;
@@ -147,7 +162,9 @@ export function formatJcamp(spectrum: Spectrum, options: JcampWriteOptions): str
   if (options.yFactor !== undefined) {
     yFactor = options.yFactor;
     if (!(yFactor > 0) || !Number.isFinite(yFactor)) {
-      throw new BandwrightError('INVALID_VALUE', `yFactor = ${yFactor}, must be a finite number > 0`, { parameter: 'yFactor' });
+      throw new BandwrightError('INVALID_VALUE', `yFactor = ${yFactor}, must be a finite number > 0`, {
+        parameter: 'yFactor',
+      });
     }
     yFactorText = String(yFactor);
   } else {
@@ -158,9 +175,13 @@ export function formatJcamp(spectrum: Spectrum, options: JcampWriteOptions): str
     yFactor = Number(yFactorText);
   }
   if (maxAbs / yFactor > 2 ** 52) {
-    throw new BandwrightError('INVALID_VALUE', `yFactor = ${yFactorText}: the largest |y| = ${maxAbs} would need ${Math.round(maxAbs / yFactor)} as an integer, beyond exact integers; use a larger yFactor`, {
-      parameter: 'yFactor',
-    });
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `yFactor = ${yFactorText}: the largest |y| = ${maxAbs} would need ${Math.round(maxAbs / yFactor)} as an integer, beyond exact integers; use a larger yFactor`,
+      {
+        parameter: 'yFactor',
+      },
+    );
   }
   const ints = new Float64Array(n);
   for (let i = 0; i < n; i++) {
@@ -170,7 +191,11 @@ export function formatJcamp(spectrum: Spectrum, options: JcampWriteOptions): str
   const xText = (i: number): string => {
     const text = String(x[i]);
     if (/e/i.test(text)) {
-      throw new BandwrightError('INVALID_VALUE', `${where}: x = ${text} cm⁻¹ cannot be written as a plain decimal in ##XYDATA (1e-6 … 1e21)`, {});
+      throw new BandwrightError(
+        'INVALID_VALUE',
+        `${where}: x = ${text} cm⁻¹ cannot be written as a plain decimal in ##XYDATA (1e-6 … 1e21)`,
+        {},
+      );
     }
     return text;
   };

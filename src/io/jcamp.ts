@@ -31,9 +31,27 @@
  * dashes, slashes and underscores.
  */
 import { BandwrightError } from '../errors.js';
-import { makeSpectrum, spectrumFromCheckedArrays, type ScanMetadata, type Spectrum, type YKind } from '../spectrum/spectrum.js';
-import { DECIMAL_POINT, DECIMAL_POINT_NO_EXPONENT, parseNumberText, scanNumber, type ScanCursor } from './number-parse.js';
-import { DEFAULT_MAX_POINTS, asBuffer, assertLineEnds, assertNotUtf16, assertTransmittanceFraction } from './spectrum-table.js';
+import {
+  makeSpectrum,
+  spectrumFromCheckedArrays,
+  type ScanMetadata,
+  type Spectrum,
+  type YKind,
+} from '../spectrum/spectrum.js';
+import {
+  DECIMAL_POINT,
+  DECIMAL_POINT_NO_EXPONENT,
+  parseNumberText,
+  scanNumber,
+  type ScanCursor,
+} from './number-parse.js';
+import {
+  DEFAULT_MAX_POINTS,
+  asBuffer,
+  assertLineEnds,
+  assertNotUtf16,
+  assertTransmittanceFraction,
+} from './spectrum-table.js';
 
 /** Options of {@link parseJcamp}. */
 export interface JcampOptions {
@@ -76,8 +94,28 @@ const HASH = 0x23;
 const DATA_KEYS = new Set(['XYDATA', 'XYPOINTS', 'PEAKTABLE', 'PEAKASSIGNMENTS', 'DATATABLE', 'RADATA']);
 /** Labels this reader uses; each may appear once. */
 const USED_KEYS = new Set([
-  'TITLE', 'JCAMPDX', 'XUNITS', 'YUNITS', 'XFACTOR', 'YFACTOR', 'FIRSTX', 'LASTX', 'DELTAX', 'NPOINTS', 'FIRSTY',
-  'XYDATA', 'XYPOINTS', 'PATHLENGTH', 'TEMPERATURE', 'PRESSURE', 'RESOLUTION', 'DATE', 'LONGDATE', 'TIME', '$YKIND', 'END',
+  'TITLE',
+  'JCAMPDX',
+  'XUNITS',
+  'YUNITS',
+  'XFACTOR',
+  'YFACTOR',
+  'FIRSTX',
+  'LASTX',
+  'DELTAX',
+  'NPOINTS',
+  'FIRSTY',
+  'XYDATA',
+  'XYPOINTS',
+  'PATHLENGTH',
+  'TEMPERATURE',
+  'PRESSURE',
+  'RESOLUTION',
+  'DATE',
+  'LONGDATE',
+  'TIME',
+  '$YKIND',
+  'END',
 ]);
 
 /** Normalises a label name by the JCAMP-DX rule. */
@@ -116,16 +154,27 @@ function splitRecords(bytes: Uint8Array, source: string): { records: Record_[]; 
     if (endLine !== 0) {
       if (p === end || (bytes[p] === DOLLAR && bytes[p + 1] === DOLLAR)) continue;
       const text = decode(bytes, p, end);
-      if (isLabel && normaliseJcampLabel(text.slice(2, text.indexOf('=') < 0 ? undefined : text.indexOf('='))) === 'TITLE') {
-        throw new BandwrightError('PARSE', `${source} line ${lineNumber}: a second block starts after ##END= on line ${endLine}; not supported: single spectra only`, {
+      if (
+        isLabel &&
+        normaliseJcampLabel(text.slice(2, text.indexOf('=') < 0 ? undefined : text.indexOf('='))) === 'TITLE'
+      ) {
+        throw new BandwrightError(
+          'PARSE',
+          `${source} line ${lineNumber}: a second block starts after ##END= on line ${endLine}; not supported: single spectra only`,
+          {
+            file: source,
+            line: lineNumber,
+          },
+        );
+      }
+      throw new BandwrightError(
+        'PARSE',
+        `${source} line ${lineNumber}: ${JSON.stringify(text.slice(0, 40))} after ##END= on line ${endLine}, nothing may follow it`,
+        {
           file: source,
           line: lineNumber,
-        });
-      }
-      throw new BandwrightError('PARSE', `${source} line ${lineNumber}: ${JSON.stringify(text.slice(0, 40))} after ##END= on line ${endLine}, nothing may follow it`, {
-        file: source,
-        line: lineNumber,
-      });
+        },
+      );
     }
     if (isLabel) {
       if (current !== undefined) current.dataEnd = lineStart;
@@ -134,13 +183,25 @@ function splitRecords(bytes: Uint8Array, source: string): { records: Record_[]; 
       const comment = hash < 0 ? '' : decode(bytes, hash + 2, end).trim();
       const equals = text.indexOf('=');
       if (equals < 0) {
-        throw new BandwrightError('PARSE', `${source} line ${lineNumber}: label ##${text.trim()} has no '='; labels are written ##NAME=value`, {
-          file: source,
-          line: lineNumber,
-        });
+        throw new BandwrightError(
+          'PARSE',
+          `${source} line ${lineNumber}: label ##${text.trim()} has no '='; labels are written ##NAME=value`,
+          {
+            file: source,
+            line: lineNumber,
+          },
+        );
       }
       const name = text.slice(0, equals).trim();
-      current = { key: normaliseJcampLabel(name), name, value: text.slice(equals + 1).trim(), comment, line: lineNumber, dataStart: pos, dataEnd: pos };
+      current = {
+        key: normaliseJcampLabel(name),
+        name,
+        value: text.slice(equals + 1).trim(),
+        comment,
+        line: lineNumber,
+        dataStart: pos,
+        dataEnd: pos,
+      };
       records.push(current);
       if (current.key === 'END') {
         endLine = lineNumber;
@@ -172,17 +233,28 @@ function splitRecords(bytes: Uint8Array, source: string): { records: Record_[]; 
 type UnitTable = ReadonlyMap<string, (value: number) => number>;
 
 function unitKey(text: string): string {
-  return text.toLowerCase().replace(/[\s.°º]+/g, '').replace(/^in/, '').replace(/^\((.*)\)$/, '$1').replace(/^\[(.*)\]$/, '$1');
+  return text
+    .toLowerCase()
+    .replace(/[\s.°º]+/g, '')
+    .replace(/^in/, '')
+    .replace(/^\((.*)\)$/, '$1')
+    .replace(/^\[(.*)\]$/, '$1');
 }
 
 const LENGTH_UNITS: UnitTable = new Map<string, (value: number) => number>([
   ...['m', 'meter', 'meters', 'metre', 'metres'].map((u) => [u, (v: number) => v] as const),
-  ...['cm', 'centimeter', 'centimeters', 'centimetre', 'centimetres'].map((u) => [u, (v: number) => v / 100] as const),
-  ...['mm', 'millimeter', 'millimeters', 'millimetre', 'millimetres'].map((u) => [u, (v: number) => v / 1000] as const),
+  ...['cm', 'centimeter', 'centimeters', 'centimetre', 'centimetres'].map(
+    (u) => [u, (v: number) => v / 100] as const,
+  ),
+  ...['mm', 'millimeter', 'millimeters', 'millimetre', 'millimetres'].map(
+    (u) => [u, (v: number) => v / 1000] as const,
+  ),
 ]);
 const TEMPERATURE_UNITS: UnitTable = new Map<string, (value: number) => number>([
   ...['k', 'kelvin', 'degk', 'degreesk'].map((u) => [u, (v: number) => v] as const),
-  ...['c', 'degc', 'degreesc', 'celsius', 'degreescelsius', 'degcelsius', 'centigrade'].map((u) => [u, (v: number) => v + 273.15] as const),
+  ...['c', 'degc', 'degreesc', 'celsius', 'degreescelsius', 'degcelsius', 'centigrade'].map(
+    (u) => [u, (v: number) => v + 273.15] as const,
+  ),
 ]);
 /** Pressure units to kPa: atm 101.325 (exact), bar 100, Torr 101.325/760, mmHg 0.133322387415, psi 6.894757293168361 (all by definition). */
 const PRESSURE_UNITS: UnitTable = new Map<string, (value: number) => number>([
@@ -208,11 +280,15 @@ function readQuantity(
   const where = `${source} line ${record.line}: ##${record.name}`;
   const match = LEADING_NUMBER.exec(record.value);
   if (match === null) {
-    throw new BandwrightError('INVALID_VALUE', `${where} = ${JSON.stringify(record.value)}, must be a number (optionally followed by a unit)`, {
-      file: source,
-      line: record.line,
-      parameter: record.name,
-    });
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `${where} = ${JSON.stringify(record.value)}, must be a number (optionally followed by a unit)`,
+      {
+        file: source,
+        line: record.line,
+        parameter: record.name,
+      },
+    );
   }
   const number = parseNumberText(match[1] as string, DECIMAL_POINT);
   const inline = (match[2] as string).trim();
@@ -220,22 +296,34 @@ function readQuantity(
     if (text === '') return undefined;
     const key = unitKey(text);
     if (!units.has(key)) {
-      throw new BandwrightError('INVALID_VALUE', `${where}: ${what} ${JSON.stringify(text)} is not a unit this label accepts (${unitNames})`, {
-        file: source,
-        line: record.line,
-        parameter: record.name,
-      });
+      throw new BandwrightError(
+        'INVALID_VALUE',
+        `${where}: ${what} ${JSON.stringify(text)} is not a unit this label accepts (${unitNames})`,
+        {
+          file: source,
+          line: record.line,
+          parameter: record.name,
+        },
+      );
     }
     return key;
   };
   const inlineUnit = pick(inline, 'unit');
   const commentUnit = pick(record.comment, 'unit comment');
-  if (inlineUnit !== undefined && commentUnit !== undefined && units.get(inlineUnit)?.(1) !== units.get(commentUnit)?.(1)) {
-    throw new BandwrightError('INVALID_VALUE', `${where}: the value says ${inline} but the comment says ${record.comment}, they must agree`, {
-      file: source,
-      line: record.line,
-      parameter: record.name,
-    });
+  if (
+    inlineUnit !== undefined &&
+    commentUnit !== undefined &&
+    units.get(inlineUnit)?.(1) !== units.get(commentUnit)?.(1)
+  ) {
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `${where}: the value says ${inline} but the comment says ${record.comment}, they must agree`,
+      {
+        file: source,
+        line: record.line,
+        parameter: record.name,
+      },
+    );
   }
   const unit = inlineUnit ?? commentUnit ?? conventional;
   return (units.get(unit) as (value: number) => number)(number);
@@ -270,23 +358,35 @@ function readHeader(records: Record_[], source: string): Header {
   for (const record of records) {
     if (record.key === '') continue; // `##=` comment record
     if (record.key === 'BLOCKS' || (record.key === 'DATATYPE' && /^LINK\b/i.test(record.value))) {
-      throw new BandwrightError('PARSE', `${source} line ${record.line}: compound JCAMP-DX file (##${record.name}=${record.value}); not supported: single spectra only`, {
-        file: source,
-        line: record.line,
-      });
+      throw new BandwrightError(
+        'PARSE',
+        `${source} line ${record.line}: compound JCAMP-DX file (##${record.name}=${record.value}); not supported: single spectra only`,
+        {
+          file: source,
+          line: record.line,
+        },
+      );
     }
     if (record.key === 'NTUPLES') {
-      throw new BandwrightError('PARSE', `${source} line ${record.line}: ##NTUPLES (multi-dimensional data) not supported: single spectra only`, {
-        file: source,
-        line: record.line,
-      });
+      throw new BandwrightError(
+        'PARSE',
+        `${source} line ${record.line}: ##NTUPLES (multi-dimensional data) not supported: single spectra only`,
+        {
+          file: source,
+          line: record.line,
+        },
+      );
     }
     const earlier = byKey.get(record.key);
     if (earlier !== undefined && USED_KEYS.has(record.key)) {
-      throw new BandwrightError('PARSE', `${source} line ${record.line}: ##${record.name} given again (first on line ${earlier.line}), must appear once in a single spectrum`, {
-        file: source,
-        line: record.line,
-      });
+      throw new BandwrightError(
+        'PARSE',
+        `${source} line ${record.line}: ##${record.name} given again (first on line ${earlier.line}), must appear once in a single spectrum`,
+        {
+          file: source,
+          line: record.line,
+        },
+      );
     }
     if (earlier === undefined) byKey.set(record.key, record);
   }
@@ -310,29 +410,48 @@ function readHeader(records: Record_[], source: string): Header {
   }
   const version = parseNumberText(/^\s*[\d.]+/.exec(second.value)?.[0] ?? '');
   if (!(version >= 4 && version < 6)) {
-    throw new BandwrightError('PARSE', `${source} line ${second.line}: ##JCAMP-DX=${second.value}, supported versions are 4.24 and 5.x`, {
-      file: source,
-      line: second.line,
-    });
+    throw new BandwrightError(
+      'PARSE',
+      `${source} line ${second.line}: ##JCAMP-DX=${second.value}, supported versions are 4.24 and 5.x`,
+      {
+        file: source,
+        line: second.line,
+      },
+    );
   }
   if (!byKey.has('END')) {
-    throw new BandwrightError('PARSE', `${source}: no ##END= label; the file is truncated or not a complete JCAMP-DX block`, { file: source });
+    throw new BandwrightError(
+      'PARSE',
+      `${source}: no ##END= label; the file is truncated or not a complete JCAMP-DX block`,
+      { file: source },
+    );
   }
   const required = (key: string, name: string): Record_ => {
     const record = byKey.get(key);
     if (record === undefined) {
-      throw new BandwrightError('PARSE', `${source}: ##${name}= missing, a JCAMP-DX spectrum must declare it`, { file: source, parameter: name });
+      throw new BandwrightError(
+        'PARSE',
+        `${source}: ##${name}= missing, a JCAMP-DX spectrum must declare it`,
+        { file: source, parameter: name },
+      );
     }
     return record;
   };
-  const numberOf = (record: Record_, rule: 'finite' | 'non-zero' | 'count'): { value: number; unit: number } => {
+  const numberOf = (
+    record: Record_,
+    rule: 'finite' | 'non-zero' | 'count',
+  ): { value: number; unit: number } => {
     const value = parseNumberText(record.value);
     const bad = (what: string): never => {
-      throw new BandwrightError('INVALID_VALUE', `${source} line ${record.line}: ##${record.name}=${record.value}, ${what}`, {
-        file: source,
-        line: record.line,
-        parameter: record.name,
-      });
+      throw new BandwrightError(
+        'INVALID_VALUE',
+        `${source} line ${record.line}: ##${record.name}=${record.value}, ${what}`,
+        {
+          file: source,
+          line: record.line,
+          parameter: record.name,
+        },
+      );
     };
     if (!Number.isFinite(value)) bad('must be a finite number');
     if (rule === 'non-zero' && value === 0) bad('must not be zero');
@@ -347,11 +466,15 @@ function readHeader(records: Record_[], source: string): Header {
   else if (['MICROMETERS', 'MICROMETRES', 'MICRONS', 'UM', 'µM', 'ΜM'].includes(xUnitsKey)) xUnit = 'um';
   else if (['NANOMETERS', 'NANOMETRES', 'NM'].includes(xUnitsKey)) xUnit = 'nm';
   else {
-    throw new BandwrightError('PARSE', `${source} line ${xUnitsRecord.line}: ##XUNITS=${xUnitsRecord.value} not supported; use 1/CM, MICROMETERS or NANOMETERS`, {
-      file: source,
-      line: xUnitsRecord.line,
-      parameter: 'XUNITS',
-    });
+    throw new BandwrightError(
+      'PARSE',
+      `${source} line ${xUnitsRecord.line}: ##XUNITS=${xUnitsRecord.value} not supported; use 1/CM, MICROMETERS or NANOMETERS`,
+      {
+        file: source,
+        line: xUnitsRecord.line,
+        parameter: 'XUNITS',
+      },
+    );
   }
 
   const yUnitsRecord = required('YUNITS', 'YUNITS');
@@ -359,7 +482,12 @@ function readHeader(records: Record_[], source: string): Header {
   let yKind: YKind;
   if (yUnitsKey === 'ABSORBANCE' || yUnitsKey === 'ABSORBANCEUNITS') yKind = 'absorbance';
   else if (yUnitsKey === 'TRANSMITTANCE') yKind = 'transmittance';
-  else if (['%TRANSMITTANCE', 'PERCENTTRANSMITTANCE', '%T', 'TRANSMITTANCE%', 'TRANSMITTANCEPERCENT'].includes(yUnitsKey)) yKind = 'transmittance-percent';
+  else if (
+    ['%TRANSMITTANCE', 'PERCENTTRANSMITTANCE', '%T', 'TRANSMITTANCE%', 'TRANSMITTANCEPERCENT'].includes(
+      yUnitsKey,
+    )
+  )
+    yKind = 'transmittance-percent';
   else {
     throw new BandwrightError(
       'PARSE',
@@ -372,23 +500,34 @@ function readHeader(records: Record_[], source: string): Header {
     const declared = yKindRecord.value.trim().toLowerCase();
     const allowed: YKind[] = ['absorbance', 'absorbance-natural', 'transmittance', 'transmittance-percent'];
     if (!(allowed as string[]).includes(declared)) {
-      throw new BandwrightError('PARSE', `${source} line ${yKindRecord.line}: ##$Y KIND=${yKindRecord.value}, must be one of ${allowed.join(', ')}`, {
-        file: source,
-        line: yKindRecord.line,
-        parameter: '$Y KIND',
-      });
+      throw new BandwrightError(
+        'PARSE',
+        `${source} line ${yKindRecord.line}: ##$Y KIND=${yKindRecord.value}, must be one of ${allowed.join(', ')}`,
+        {
+          file: source,
+          line: yKindRecord.line,
+          parameter: '$Y KIND',
+        },
+      );
     }
     const kind = declared as YKind;
     const compatible = kind === yKind || (kind === 'absorbance-natural' && yKind === 'absorbance');
     if (!compatible) {
-      throw new BandwrightError('PARSE', `${source} line ${yKindRecord.line}: ##$Y KIND=${kind} contradicts ##YUNITS=${yUnitsRecord.value} (line ${yUnitsRecord.line})`, {
-        file: source,
-        line: yKindRecord.line,
-        parameter: '$Y KIND',
-      });
+      throw new BandwrightError(
+        'PARSE',
+        `${source} line ${yKindRecord.line}: ##$Y KIND=${kind} contradicts ##YUNITS=${yUnitsRecord.value} (line ${yUnitsRecord.line})`,
+        {
+          file: source,
+          line: yKindRecord.line,
+          parameter: '$Y KIND',
+        },
+      );
     }
     yKind = kind;
-  } else if (yKind === 'absorbance' && /\b(natural|ln|napierian|base\s*e|neperian)\b/i.test(yUnitsRecord.comment)) {
+  } else if (
+    yKind === 'absorbance' &&
+    /\b(natural|ln|napierian|base\s*e|neperian)\b/i.test(yUnitsRecord.comment)
+  ) {
     throw new BandwrightError(
       'PARSE',
       `${source} line ${yUnitsRecord.line}: ##YUNITS comment "${yUnitsRecord.comment}" suggests natural-log absorbance; declare it with ##$Y KIND=absorbance-natural, or remove the comment for decadic absorbance`,
@@ -396,7 +535,10 @@ function readHeader(records: Record_[], source: string): Header {
     );
   }
 
-  const optionalNumber = (key: string, rule: 'finite' | 'non-zero' | 'count'): { value: number; unit: number } | undefined => {
+  const optionalNumber = (
+    key: string,
+    rule: 'finite' | 'non-zero' | 'count',
+  ): { value: number; unit: number } | undefined => {
     const record = byKey.get(key);
     return record === undefined ? undefined : numberOf(record, rule);
   };
@@ -406,24 +548,43 @@ function readHeader(records: Record_[], source: string): Header {
   const path = byKey.get('PATHLENGTH');
   const positive = (record: Record_, value: number, unit: string): number => {
     if (!(value > 0) || !Number.isFinite(value)) {
-      throw new BandwrightError('INVALID_VALUE', `${source} line ${record.line}: ##${record.name}=${record.value} gives ${value} ${unit}, must be > 0`, {
-        file: source,
-        line: record.line,
-        parameter: record.name,
-      });
+      throw new BandwrightError(
+        'INVALID_VALUE',
+        `${source} line ${record.line}: ##${record.name}=${record.value} gives ${value} ${unit}, must be > 0`,
+        {
+          file: source,
+          line: record.line,
+          parameter: record.name,
+        },
+      );
     }
     return value;
   };
-  if (path !== undefined) metadata.pathLength_m = positive(path, readQuantity(path, source, LENGTH_UNITS, 'cm', 'm, cm, mm; cm when none is named'), 'm');
+  if (path !== undefined)
+    metadata.pathLength_m = positive(
+      path,
+      readQuantity(path, source, LENGTH_UNITS, 'cm', 'm, cm, mm; cm when none is named'),
+      'm',
+    );
   const temperature = byKey.get('TEMPERATURE');
   if (temperature !== undefined) {
-    metadata.temperature_K = positive(temperature, readQuantity(temperature, source, TEMPERATURE_UNITS, 'c', 'K, C or °C; °C when none is named'), 'K');
+    metadata.temperature_K = positive(
+      temperature,
+      readQuantity(temperature, source, TEMPERATURE_UNITS, 'c', 'K, C or °C; °C when none is named'),
+      'K',
+    );
   }
   const pressure = byKey.get('PRESSURE');
   if (pressure !== undefined) {
     metadata.pressure_kPa = positive(
       pressure,
-      readQuantity(pressure, source, PRESSURE_UNITS, 'atm', 'atm, bar, mbar, hPa, kPa, Pa, Torr, mmHg, psi; atm when none is named'),
+      readQuantity(
+        pressure,
+        source,
+        PRESSURE_UNITS,
+        'atm',
+        'atm, bar, mbar, hPa, kPa, Pa, Torr, mmHg, psi; atm when none is named',
+      ),
       'kPa',
     );
   }
@@ -437,7 +598,8 @@ function readHeader(records: Record_[], source: string): Header {
   const date = byKey.get('DATE')?.value.trim();
   const time = byKey.get('TIME')?.value.trim();
   if (longDate !== undefined && longDate !== '') metadata.dateText = longDate;
-  else if (date !== undefined && date !== '') metadata.dateText = time !== undefined && time !== '' ? `${date} ${time}` : date;
+  else if (date !== undefined && date !== '')
+    metadata.dateText = time !== undefined && time !== '' ? `${date} ${time}` : date;
 
   const header: Header = {
     xUnit,
@@ -470,7 +632,8 @@ class Ordinates {
   length = 0;
   /** @param reuse - a buffer to start in when long enough (its content is overwritten) */
   constructor(capacity: number, reuse?: Float64Array) {
-    this.values = reuse !== undefined && reuse.length >= capacity ? reuse : new Float64Array(Math.max(16, capacity));
+    this.values =
+      reuse !== undefined && reuse.length >= capacity ? reuse : new Float64Array(Math.max(16, capacity));
   }
   push(value: number): void {
     if (this.length === this.values.length) {
@@ -558,13 +721,17 @@ function printedUnitOf(bytes: Uint8Array, start: number, end: number): number {
     const c = bytes[i] as number;
     if (c === 0x2e) fraction = 0;
     else if (c === 0x45 || c === 0x65) {
-      exponent = parseNumberText(String.fromCharCode.apply(null, bytes.subarray(i + 1, end) as unknown as number[]));
+      exponent = parseNumberText(
+        String.fromCharCode.apply(null, bytes.subarray(i + 1, end) as unknown as number[]),
+      );
       break;
     } else if (fraction >= 0 && c >= 0x30 && c <= 0x39) fraction++;
   }
   const power = (Number.isFinite(exponent) ? exponent : 0) - Math.max(0, fraction);
   // Plain decimals (once per data line): a table of 10^-k instead of a pow call.
-  return power <= 0 && power > -NEGATIVE_POWERS_OF_TEN.length ? (NEGATIVE_POWERS_OF_TEN[-power] as number) : 10 ** power;
+  return power <= 0 && power > -NEGATIVE_POWERS_OF_TEN.length
+    ? (NEGATIVE_POWERS_OF_TEN[-power] as number)
+    : 10 ** power;
 }
 
 /** 10^0 … 10^-22 as correctly rounded literals. */
@@ -618,7 +785,14 @@ const ASDF_CODE: Uint8Array = new Uint8Array(256).fill(CODE_OTHER);
  *
  * @returns true when the line was decoded (X in `lineX`), false to leave it to the general loop
  */
-function decodeAsdfLineFast(bytes: Uint8Array, start: number, end: number, stream: OrdinateStream, cursor: ScanCursor, lineX: FastLineX): boolean {
+function decodeAsdfLineFast(
+  bytes: Uint8Array,
+  start: number,
+  end: number,
+  stream: OrdinateStream,
+  cursor: ScanCursor,
+  lineX: FastLineX,
+): boolean {
   const c0 = bytes[start] as number;
   if (!((c0 >= 0x30 && c0 <= 0x39) || c0 === 0x2e || c0 === 0x2b || c0 === 0x2d)) return false;
   const x = scanNumber(bytes, start, end, DECIMAL_POINT_NO_EXPONENT, cursor);
@@ -720,10 +894,20 @@ interface LineStart {
   printedUnit: number;
 }
 
-function decodeXyData(bytes: Uint8Array, record: Record_, header: Header, source: string, maxPoints: number): { y: Float64Array; lineStarts: LineStart[] } {
+function decodeXyData(
+  bytes: Uint8Array,
+  record: Record_,
+  header: Header,
+  source: string,
+  maxPoints: number,
+): { y: Float64Array; lineStarts: LineStart[] } {
   const format = record.value.toUpperCase().replace(/\s+/g, '');
   if (format !== '(X++(Y..Y))') {
-    throw new BandwrightError('PARSE', `${source} line ${record.line}: ##XYDATA=${record.value} not supported; only (X++(Y..Y))`, { file: source, line: record.line });
+    throw new BandwrightError(
+      'PARSE',
+      `${source} line ${record.line}: ##XYDATA=${record.value} not supported; only (X++(Y..Y))`,
+      { file: source, line: record.line },
+    );
   }
   const stream = new OrdinateStream(header.nPoints ?? 1024, maxPoints, xyDataScratch);
   const lineStarts: LineStart[] = [];
@@ -755,7 +939,12 @@ function decodeXyData(bytes: Uint8Array, record: Record_, header: Header, source
     const lineBase = stream.out.length;
     const lineIndex = stream.yCheckPending ? lineBase - 1 : lineBase;
     if (decodeAsdfLineFast(bytes, p, end, stream, cursor, fastLineX)) {
-      lineStarts.push({ line: lineNumber, x: fastLineX.x, index: lineIndex, printedUnit: fastLineX.printedUnit });
+      lineStarts.push({
+        line: lineNumber,
+        x: fastLineX.x,
+        index: lineIndex,
+        printedUnit: fastLineX.printedUnit,
+      });
       continue;
     }
     let tokenCount = 0;
@@ -774,12 +963,25 @@ function decodeXyData(bytes: Uint8Array, record: Record_, header: Header, source
         const tokenStart = p;
         const value = scanNumber(bytes, p, end, DECIMAL_POINT, cursor);
         p = cursor.end;
-        if (!Number.isFinite(value)) dataError(source, lineNumber, 'PARSE', `${JSON.stringify(decode(bytes, tokenStart, p))} overflows a double`);
-        if (tokenCount === 0) lineStarts.push({ line: lineNumber, x: value, index: lineIndex, printedUnit: printedUnitOf(bytes, tokenStart, p) });
+        if (!Number.isFinite(value))
+          dataError(
+            source,
+            lineNumber,
+            'PARSE',
+            `${JSON.stringify(decode(bytes, tokenStart, p))} overflows a double`,
+          );
+        if (tokenCount === 0)
+          lineStarts.push({
+            line: lineNumber,
+            x: value,
+            index: lineIndex,
+            printedUnit: printedUnitOf(bytes, tokenStart, p),
+          });
         else if (!stream.emit(value, ABSOLUTE)) emitError(stream, source, lineNumber);
         tokenCount++;
       }
-      if (stream.ordinatesOnLine === 0) dataError(source, lineNumber, 'PARSE', 'a data line needs an X value and at least one ordinate');
+      if (stream.ordinatesOnLine === 0)
+        dataError(source, lineNumber, 'PARSE', 'a data line needs an X value and at least one ordinate');
       stream.yCheckPending = false;
       continue;
     }
@@ -795,7 +997,13 @@ function decodeXyData(bytes: Uint8Array, record: Record_, header: Header, source
       let kind: number; // 0 absolute, 1 difference, 2 duplicate count
       if ((c >= 0x30 && c <= 0x39) || c === 0x2e || c === 0x2b || c === 0x2d) {
         value = scanNumber(bytes, p, end, DECIMAL_POINT_NO_EXPONENT, cursor);
-        if (cursor.end === p) dataError(source, lineNumber, 'PARSE', `${JSON.stringify(decode(bytes, p, Math.min(end, p + 12)))} is not a number`);
+        if (cursor.end === p)
+          dataError(
+            source,
+            lineNumber,
+            'PARSE',
+            `${JSON.stringify(decode(bytes, p, Math.min(end, p + 12)))} is not a number`,
+          );
         p = cursor.end;
         kind = 0;
       } else {
@@ -825,9 +1033,19 @@ function decodeXyData(bytes: Uint8Array, record: Record_, header: Header, source
           first = 9;
           kind = 2;
         } else if (c === 0x3f) {
-          return dataError(source, lineNumber, 'PARSE', `'?' (a missing value) at column ${p - lineStart + 1}; a spectrum needs every ordinate`);
+          return dataError(
+            source,
+            lineNumber,
+            'PARSE',
+            `'?' (a missing value) at column ${p - lineStart + 1}; a spectrum needs every ordinate`,
+          );
         } else {
-          return dataError(source, lineNumber, 'PARSE', `unexpected character ${JSON.stringify(String.fromCharCode(c))} at column ${p - lineStart + 1}; not AFFN, SQZ, DIF or DUP`);
+          return dataError(
+            source,
+            lineNumber,
+            'PARSE',
+            `unexpected character ${JSON.stringify(String.fromCharCode(c))} at column ${p - lineStart + 1}; not AFFN, SQZ, DIF or DUP`,
+          );
         }
         p++;
         const negative = first < 0;
@@ -839,14 +1057,36 @@ function decodeXyData(bytes: Uint8Array, record: Record_, header: Header, source
           p++;
         }
         if (p < end && bytes[p] === 0x2e) {
-          dataError(source, lineNumber, 'PARSE', `decimal point after the ASDF value ${JSON.stringify(decode(bytes, tokenStart, p + 1))}; SQZ, DIF and DUP values are integers`);
+          dataError(
+            source,
+            lineNumber,
+            'PARSE',
+            `decimal point after the ASDF value ${JSON.stringify(decode(bytes, tokenStart, p + 1))}; SQZ, DIF and DUP values are integers`,
+          );
         }
         value = negative ? -magnitude : magnitude;
       }
-      if (!Number.isFinite(value)) dataError(source, lineNumber, 'PARSE', `${JSON.stringify(decode(bytes, tokenStart, p))} overflows a double`);
+      if (!Number.isFinite(value))
+        dataError(
+          source,
+          lineNumber,
+          'PARSE',
+          `${JSON.stringify(decode(bytes, tokenStart, p))} overflows a double`,
+        );
       if (tokenCount === 0) {
-        if (kind !== 0) dataError(source, lineNumber, 'PARSE', `the line starts with ${JSON.stringify(decode(bytes, tokenStart, p))}, must start with the X value (AFFN or SQZ)`);
-        lineStarts.push({ line: lineNumber, x: value, index: lineIndex, printedUnit: c >= 0x40 ? 1 : printedUnitOf(bytes, tokenStart, p) });
+        if (kind !== 0)
+          dataError(
+            source,
+            lineNumber,
+            'PARSE',
+            `the line starts with ${JSON.stringify(decode(bytes, tokenStart, p))}, must start with the X value (AFFN or SQZ)`,
+          );
+        lineStarts.push({
+          line: lineNumber,
+          x: value,
+          index: lineIndex,
+          printedUnit: c >= 0x40 ? 1 : printedUnitOf(bytes, tokenStart, p),
+        });
         tokenCount++;
         continue;
       }
@@ -856,17 +1096,33 @@ function decodeXyData(bytes: Uint8Array, record: Record_, header: Header, source
         lastWasDup = false;
       } else if (kind === 1) {
         if (stream.ordinatesOnLine === 0) {
-          dataError(source, lineNumber, 'PARSE', `DIF value ${JSON.stringify(decode(bytes, tokenStart, p))} is the first ordinate of the line; the first ordinate must be absolute (SQZ or AFFN)`);
+          dataError(
+            source,
+            lineNumber,
+            'PARSE',
+            `DIF value ${JSON.stringify(decode(bytes, tokenStart, p))} is the first ordinate of the line; the first ordinate must be absolute (SQZ or AFFN)`,
+          );
         }
         stream.lastDifference = value;
         if (!stream.emit(stream.previous + value, DIFFERENCE)) emitError(stream, source, lineNumber);
         lastWasDup = false;
       } else {
         if (stream.ordinatesOnLine === 0 || lastWasDup) {
-          dataError(source, lineNumber, 'PARSE', `DUP count ${JSON.stringify(decode(bytes, tokenStart, p))} ${lastWasDup ? 'follows another DUP' : 'has no value before it to repeat'}`);
+          dataError(
+            source,
+            lineNumber,
+            'PARSE',
+            `DUP count ${JSON.stringify(decode(bytes, tokenStart, p))} ${lastWasDup ? 'follows another DUP' : 'has no value before it to repeat'}`,
+          );
         }
         if (value < 1) dataError(source, lineNumber, 'PARSE', `DUP count ${value}, must be >= 1`);
-        if (stream.out.length + value - 1 > maxPoints) dataError(source, lineNumber, 'LIMIT', `DUP count ${value} gives more than ${maxPoints} data points, the limit (maxPoints; BANDWRIGHT_MAX_POINTS raises it)`);
+        if (stream.out.length + value - 1 > maxPoints)
+          dataError(
+            source,
+            lineNumber,
+            'LIMIT',
+            `DUP count ${value} gives more than ${maxPoints} data points, the limit (maxPoints; BANDWRIGHT_MAX_POINTS raises it)`,
+          );
         const repeated = stream.lastKind;
         for (let k = 1; k < value; k++) {
           const next = repeated === DIFFERENCE ? stream.previous + stream.lastDifference : stream.previous;
@@ -875,7 +1131,8 @@ function decodeXyData(bytes: Uint8Array, record: Record_, header: Header, source
         lastWasDup = true;
       }
     }
-    if (stream.ordinatesOnLine === 0) dataError(source, lineNumber, 'PARSE', 'a data line needs an X value and at least one ordinate');
+    if (stream.ordinatesOnLine === 0)
+      dataError(source, lineNumber, 'PARSE', 'a data line needs an X value and at least one ordinate');
     stream.yCheckPending = stream.lastKind === DIFFERENCE;
   }
   if (stream.out.values.length <= 1 << 18) xyDataScratch = stream.out.values;
@@ -896,15 +1153,29 @@ function emitError(stream: OrdinateStream, source: string, line: number): never 
       { file: source, line },
     );
   }
-  return dataError(source, line, 'LIMIT', `more than ${stream.maxPoints} data points, the limit (maxPoints; BANDWRIGHT_MAX_POINTS raises it)`);
+  return dataError(
+    source,
+    line,
+    'LIMIT',
+    `more than ${stream.maxPoints} data points, the limit (maxPoints; BANDWRIGHT_MAX_POINTS raises it)`,
+  );
 }
 
 // ---------------------------------------------------------------- XYPOINTS (AFFN pairs)
 
-function decodeXyPoints(bytes: Uint8Array, record: Record_, source: string, maxPoints: number): { x: Float64Array; y: Float64Array; lines: Int32Array } {
+function decodeXyPoints(
+  bytes: Uint8Array,
+  record: Record_,
+  source: string,
+  maxPoints: number,
+): { x: Float64Array; y: Float64Array; lines: Int32Array } {
   const format = record.value.toUpperCase().replace(/\s+/g, '');
   if (format !== '(XY..XY)') {
-    throw new BandwrightError('PARSE', `${source} line ${record.line}: ##XYPOINTS=${record.value} not supported; only (XY..XY)`, { file: source, line: record.line });
+    throw new BandwrightError(
+      'PARSE',
+      `${source} line ${record.line}: ##XYPOINTS=${record.value} not supported; only (XY..XY)`,
+      { file: source, line: record.line },
+    );
   }
   const xs = new Ordinates(1024);
   const ys = new Ordinates(1024);
@@ -931,28 +1202,45 @@ function decodeXyPoints(bytes: Uint8Array, record: Record_, source: string, maxP
         continue;
       }
       if (c === 0x3f) {
-        throw new BandwrightError('PARSE', `${source} line ${lineNumber}: '?' (a missing value); a spectrum needs every point`, { file: source, line: lineNumber });
+        throw new BandwrightError(
+          'PARSE',
+          `${source} line ${lineNumber}: '?' (a missing value); a spectrum needs every point`,
+          { file: source, line: lineNumber },
+        );
       }
       const value = scanNumber(bytes, p, end, DECIMAL_POINT, cursor);
       const next = cursor.end < end ? (bytes[cursor.end] as number) : SPACE;
       if (cursor.end === p || !(next === SPACE || next === TAB || next === 0x2c || next === 0x3b)) {
         let stopAt = p;
-        while (stopAt < end && bytes[stopAt] !== SPACE && bytes[stopAt] !== 0x2c && bytes[stopAt] !== 0x3b) stopAt++;
-        throw new BandwrightError('PARSE', `${source} line ${lineNumber}: ${JSON.stringify(decode(bytes, p, stopAt))} is not a number (XYPOINTS holds AFFN x, y pairs)`, {
-          file: source,
-          line: lineNumber,
-        });
+        while (stopAt < end && bytes[stopAt] !== SPACE && bytes[stopAt] !== 0x2c && bytes[stopAt] !== 0x3b)
+          stopAt++;
+        throw new BandwrightError(
+          'PARSE',
+          `${source} line ${lineNumber}: ${JSON.stringify(decode(bytes, p, stopAt))} is not a number (XYPOINTS holds AFFN x, y pairs)`,
+          {
+            file: source,
+            line: lineNumber,
+          },
+        );
       }
       if (!Number.isFinite(value)) {
-        throw new BandwrightError('INVALID_VALUE', `${source} line ${lineNumber}: ${JSON.stringify(decode(bytes, p, cursor.end))} overflows a double, must be finite`, {
-          file: source,
-          line: lineNumber,
-        });
+        throw new BandwrightError(
+          'INVALID_VALUE',
+          `${source} line ${lineNumber}: ${JSON.stringify(decode(bytes, p, cursor.end))} overflows a double, must be finite`,
+          {
+            file: source,
+            line: lineNumber,
+          },
+        );
       }
       p = cursor.end;
       if (count % 2 === 0) {
         if (xs.length >= maxPoints) {
-          throw new BandwrightError('LIMIT', `${source} line ${lineNumber}: more than ${maxPoints} data points, the limit (maxPoints; BANDWRIGHT_MAX_POINTS raises it)`, { file: source, line: lineNumber });
+          throw new BandwrightError(
+            'LIMIT',
+            `${source} line ${lineNumber}: more than ${maxPoints} data points, the limit (maxPoints; BANDWRIGHT_MAX_POINTS raises it)`,
+            { file: source, line: lineNumber },
+          );
         }
         xs.push(value);
         lines.push(lineNumber);
@@ -961,9 +1249,17 @@ function decodeXyPoints(bytes: Uint8Array, record: Record_, source: string, maxP
     }
   }
   if (count % 2 !== 0) {
-    throw new BandwrightError('PARSE', `${source} line ${lineNumber}: ##XYPOINTS ends with an x value without its y (${count} numbers, must be pairs)`, { file: source, line: lineNumber });
+    throw new BandwrightError(
+      'PARSE',
+      `${source} line ${lineNumber}: ##XYPOINTS ends with an x value without its y (${count} numbers, must be pairs)`,
+      { file: source, line: lineNumber },
+    );
   }
-  return { x: xs.values.slice(0, xs.length), y: ys.values.slice(0, ys.length), lines: Int32Array.from(lines) };
+  return {
+    x: xs.values.slice(0, xs.length),
+    y: ys.values.slice(0, ys.length),
+    lines: Int32Array.from(lines),
+  };
 }
 
 // ---------------------------------------------------------------- assembly
@@ -985,7 +1281,9 @@ export function parseJcamp(input: Uint8Array | string, options: JcampOptions): S
   const source = options.source;
   const maxPoints = options.maxPoints ?? DEFAULT_MAX_POINTS;
   if (!Number.isInteger(maxPoints) || maxPoints < 2) {
-    throw new BandwrightError('INVALID_VALUE', `maxPoints = ${maxPoints}, must be an integer >= 2`, { parameter: 'maxPoints' });
+    throw new BandwrightError('INVALID_VALUE', `maxPoints = ${maxPoints}, must be an integer >= 2`, {
+      parameter: 'maxPoints',
+    });
   }
   const bytes = asBuffer(typeof input === 'string' ? new TextEncoder().encode(input) : input);
   assertNotUtf16(bytes, source);
@@ -995,19 +1293,35 @@ export function parseJcamp(input: Uint8Array | string, options: JcampOptions): S
   const xyData = records.find((r) => r.key === 'XYDATA');
   const xyPoints = records.find((r) => r.key === 'XYPOINTS');
   if (xyData !== undefined && xyPoints !== undefined) {
-    throw new BandwrightError('PARSE', `${source} line ${xyPoints.line}: both ##XYDATA (line ${xyData.line}) and ##XYPOINTS; a single spectrum has one data table`, {
-      file: source,
-      line: xyPoints.line,
-    });
+    throw new BandwrightError(
+      'PARSE',
+      `${source} line ${xyPoints.line}: both ##XYDATA (line ${xyData.line}) and ##XYPOINTS; a single spectrum has one data table`,
+      {
+        file: source,
+        line: xyPoints.line,
+      },
+    );
   }
   if (header.nPoints !== undefined && header.nPoints > maxPoints) {
-    throw new BandwrightError('LIMIT', `${source}: ##NPOINTS=${header.nPoints}, more than ${maxPoints} data points, the limit (maxPoints; BANDWRIGHT_MAX_POINTS raises it)`, { file: source });
+    throw new BandwrightError(
+      'LIMIT',
+      `${source}: ##NPOINTS=${header.nPoints}, more than ${maxPoints} data points, the limit (maxPoints; BANDWRIGHT_MAX_POINTS raises it)`,
+      { file: source },
+    );
   }
   let x: Float64Array;
   let y: Float64Array;
   // Set when the XYDATA assembly has already seen finite, strictly monotonic x and finite y.
   let checked = false;
-  if (xyData !== undefined) ({ x, y, checked } = assembleXyData(bytes, xyData, header, source, maxPoints, options.reuseOutput === true));
+  if (xyData !== undefined)
+    ({ x, y, checked } = assembleXyData(
+      bytes,
+      xyData,
+      header,
+      source,
+      maxPoints,
+      options.reuseOutput === true,
+    ));
   else if (xyPoints !== undefined) ({ x, y } = assembleXyPoints(bytes, xyPoints, header, source, maxPoints));
   else {
     const peaks = records.find((r) => r.key === 'PEAKTABLE');
@@ -1025,9 +1339,13 @@ export function parseJcamp(input: Uint8Array | string, options: JcampOptions): S
     for (let i = 0; i < x.length; i++) {
       const lambda = x[i] as number;
       if (!(lambda > 0)) {
-        throw new BandwrightError('INVALID_VALUE', `${source}: point ${i + 1}: wavelength ${lambda} ${header.xUnit === 'um' ? 'µm' : 'nm'}, must be > 0 to give a wavenumber`, {
-          file: source,
-        });
+        throw new BandwrightError(
+          'INVALID_VALUE',
+          `${source}: point ${i + 1}: wavelength ${lambda} ${header.xUnit === 'um' ? 'µm' : 'nm'}, must be > 0 to give a wavenumber`,
+          {
+            file: source,
+          },
+        );
       }
       x[i] = scale / lambda;
     }
@@ -1036,7 +1354,8 @@ export function parseJcamp(input: Uint8Array | string, options: JcampOptions): S
     x.reverse();
     y.reverse();
   }
-  if (header.yKind === 'transmittance') assertTransmittanceFraction(y, source, 'declare ##YUNITS=% TRANSMITTANCE if they are percent');
+  if (header.yKind === 'transmittance')
+    assertTransmittanceFraction(y, source, 'declare ##YUNITS=% TRANSMITTANCE if they are percent');
   const init: Spectrum = { x, y, yKind: header.yKind, metadata: header.metadata };
   // Reversal keeps x strictly monotonic; anything the assembly did not vouch for, and every
   // failure message, goes through makeSpectrum's full checks.
@@ -1046,18 +1365,38 @@ export function parseJcamp(input: Uint8Array | string, options: JcampOptions): S
 /** x buffer reused by `reuseOutput` parses (see {@link JcampOptions.reuseOutput}). */
 let xOutputScratch: Float64Array = new Float64Array(0);
 
-function assembleXyData(bytes: Uint8Array, record: Record_, header: Header, source: string, maxPoints: number, reuseOutput: boolean): { x: Float64Array; y: Float64Array; checked: boolean } {
+function assembleXyData(
+  bytes: Uint8Array,
+  record: Record_,
+  header: Header,
+  source: string,
+  maxPoints: number,
+  reuseOutput: boolean,
+): { x: Float64Array; y: Float64Array; checked: boolean } {
   const { y, lineStarts } = decodeXyData(bytes, record, header, source, maxPoints);
   const n = y.length;
   if (header.nPoints !== undefined && header.nPoints !== n) {
-    throw new BandwrightError('PARSE', `${source}: ##NPOINTS=${header.nPoints} but ##XYDATA (line ${record.line}) holds ${n} points; the data or the count is wrong`, {
-      file: source,
-      line: record.line,
-      parameter: 'NPOINTS',
-    });
+    throw new BandwrightError(
+      'PARSE',
+      `${source}: ##NPOINTS=${header.nPoints} but ##XYDATA (line ${record.line}) holds ${n} points; the data or the count is wrong`,
+      {
+        file: source,
+        line: record.line,
+        parameter: 'NPOINTS',
+      },
+    );
   }
-  if (n < 2) throw new BandwrightError('PARSE', `${source} line ${record.line}: ##XYDATA holds ${n} point(s), a spectrum needs at least 2`, { file: source, line: record.line });
-  if (header.firstX === undefined) throw new BandwrightError('PARSE', `${source}: ##FIRSTX= missing, ##XYDATA needs it`, { file: source, parameter: 'FIRSTX' });
+  if (n < 2)
+    throw new BandwrightError(
+      'PARSE',
+      `${source} line ${record.line}: ##XYDATA holds ${n} point(s), a spectrum needs at least 2`,
+      { file: source, line: record.line },
+    );
+  if (header.firstX === undefined)
+    throw new BandwrightError('PARSE', `${source}: ##FIRSTX= missing, ##XYDATA needs it`, {
+      file: source,
+      parameter: 'FIRSTX',
+    });
   const firstX = header.firstX.value;
   let step: number;
   if (header.lastX !== undefined) {
@@ -1073,15 +1412,25 @@ function assembleXyData(bytes: Uint8Array, record: Record_, header: Header, sour
       }
     }
   } else if (header.deltaX !== undefined) step = header.deltaX;
-  else throw new BandwrightError('PARSE', `${source}: neither ##LASTX= nor ##DELTAX= given, the x spacing of ##XYDATA is unknown`, { file: source, parameter: 'DELTAX' });
+  else
+    throw new BandwrightError(
+      'PARSE',
+      `${source}: neither ##LASTX= nor ##DELTAX= given, the x spacing of ##XYDATA is unknown`,
+      { file: source, parameter: 'DELTAX' },
+    );
   if (!(step !== 0 && Number.isFinite(step))) {
-    throw new BandwrightError('INVALID_VALUE', `${source}: ##FIRSTX and ##LASTX give an x step of ${step}, must be non-zero`, { file: source });
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `${source}: ##FIRSTX and ##LASTX give an x step of ${step}, must be non-zero`,
+      { file: source },
+    );
   }
   const xFactor = header.xFactor;
   for (const start of lineStarts) {
     const actual = start.x * xFactor;
     const expected = firstX + start.index * step;
-    const tolerance = 0.1 * Math.abs(step) + 0.5 * start.printedUnit * Math.abs(xFactor) + 1e-12 * Math.abs(expected);
+    const tolerance =
+      0.1 * Math.abs(step) + 0.5 * start.printedUnit * Math.abs(xFactor) + 1e-12 * Math.abs(expected);
     if (!(Math.abs(actual - expected) <= tolerance)) {
       throw new BandwrightError(
         'PARSE',
@@ -1144,16 +1493,25 @@ function assembleXyData(bytes: Uint8Array, record: Record_, header: Header, sour
   return { x: xOut, y: yOut, checked };
 }
 
-
-function assembleXyPoints(bytes: Uint8Array, record: Record_, header: Header, source: string, maxPoints: number): { x: Float64Array; y: Float64Array } {
+function assembleXyPoints(
+  bytes: Uint8Array,
+  record: Record_,
+  header: Header,
+  source: string,
+  maxPoints: number,
+): { x: Float64Array; y: Float64Array } {
   const { x, y, lines } = decodeXyPoints(bytes, record, source, maxPoints);
   const n = x.length;
   if (header.nPoints !== undefined && header.nPoints !== n) {
-    throw new BandwrightError('PARSE', `${source}: ##NPOINTS=${header.nPoints} but ##XYPOINTS (line ${record.line}) holds ${n} points; the data or the count is wrong`, {
-      file: source,
-      line: record.line,
-      parameter: 'NPOINTS',
-    });
+    throw new BandwrightError(
+      'PARSE',
+      `${source}: ##NPOINTS=${header.nPoints} but ##XYPOINTS (line ${record.line}) holds ${n} points; the data or the count is wrong`,
+      {
+        file: source,
+        line: record.line,
+        parameter: 'NPOINTS',
+      },
+    );
   }
   for (let i = 0; i < n; i++) {
     x[i] = (x[i] as number) * header.xFactor;
@@ -1172,11 +1530,19 @@ function assembleXyPoints(bytes: Uint8Array, record: Record_, header: Header, so
     }
     direction = stepSign;
   }
-  const check = (label: 'FIRSTX' | 'LASTX', given: { value: number; unit: number } | undefined, actual: number | undefined): void => {
+  const check = (
+    label: 'FIRSTX' | 'LASTX',
+    given: { value: number; unit: number } | undefined,
+    actual: number | undefined,
+  ): void => {
     if (given === undefined || actual === undefined) return;
     const tolerance = 0.5 * given.unit + 1e-9 * Math.abs(given.value);
     if (!(Math.abs(actual - given.value) <= tolerance)) {
-      throw new BandwrightError('PARSE', `${source}: ##${label}=${given.value} but ##XYPOINTS ${label === 'FIRSTX' ? 'starts' : 'ends'} at x = ${actual}`, { file: source, parameter: label });
+      throw new BandwrightError(
+        'PARSE',
+        `${source}: ##${label}=${given.value} but ##XYPOINTS ${label === 'FIRSTX' ? 'starts' : 'ends'} at x = ${actual}`,
+        { file: source, parameter: label },
+      );
     }
   };
   check('FIRSTX', header.firstX, x[0]);

@@ -37,7 +37,11 @@ export function parseJson(text: string, source: string, limits: JsonLimits = {})
     else if (c === 0x7b || c === 0x5b) {
       depth++;
       if (depth > maxDepth) {
-        throw new BandwrightError('LIMIT', `${source} line ${lineOf(text, i)}: nested deeper than ${maxDepth} levels`, { file: source, line: lineOf(text, i) });
+        throw new BandwrightError(
+          'LIMIT',
+          `${source} line ${lineOf(text, i)}: nested deeper than ${maxDepth} levels`,
+          { file: source, line: lineOf(text, i) },
+        );
       }
     } else if (c === 0x7d || c === 0x5d) depth--;
   }
@@ -48,7 +52,11 @@ export function parseJson(text: string, source: string, limits: JsonLimits = {})
     const message = (error as Error).message;
     const position = /position (\d+)/.exec(message);
     const line = position === null ? undefined : lineOf(text, Number(position[1]));
-    throw new BandwrightError('PARSE', `${source}${line === undefined ? '' : ` line ${line}`}: not valid JSON (${message})`, { file: source, ...(line === undefined ? {} : { line }) });
+    throw new BandwrightError(
+      'PARSE',
+      `${source}${line === undefined ? '' : ` line ${line}`}: not valid JSON (${message})`,
+      { file: source, ...(line === undefined ? {} : { line }) },
+    );
   }
   refuseOverflow(text, source);
   return value;
@@ -63,7 +71,11 @@ function refuseOverflow(text: string, source: string): void {
   for (let match = literal.exec(text); match !== null; match = literal.exec(text)) {
     if (!Number.isFinite(Number(match[0])) && !insideString(text, match.index)) {
       const line = lineOf(text, match.index);
-      throw new BandwrightError('INVALID_VALUE', `${source} line ${line}: number ${match[0]} is too large for a double-precision number`, { file: source, line });
+      throw new BandwrightError(
+        'INVALID_VALUE',
+        `${source} line ${line}: number ${match[0]} is too large for a double-precision number`,
+        { file: source, line },
+      );
     }
   }
 }
@@ -87,7 +99,11 @@ function insideString(text: string, offset: number): boolean {
  * @throws BandwrightError `FILE_NOT_FOUND`, `FILE_READ`, `LIMIT`, `PARSE`
  */
 export function readJson(path: string, limits: JsonLimits = {}): unknown {
-  return parseJson(readText(path, limits.maxBytes === undefined ? {} : { maxBytes: limits.maxBytes }), path, limits);
+  return parseJson(
+    readText(path, limits.maxBytes === undefined ? {} : { maxBytes: limits.maxBytes }),
+    path,
+    limits,
+  );
 }
 
 function lineOf(text: string, offset: number): number {

@@ -24,11 +24,33 @@ export interface ResourceLimits {
 }
 
 /** The environment variable and default of each limit. */
-export const RESOURCE_LIMIT_SETTINGS: Readonly<Record<keyof ResourceLimits, { variable: string; default: number; minimum: number; what: string }>> = {
-  maxScanBytes: { variable: 'BANDWRIGHT_MAX_SCAN_BYTES', default: 200_000_000, minimum: 1, what: 'largest scan file, bytes' },
-  maxPoints: { variable: 'BANDWRIGHT_MAX_POINTS', default: 2_000_000, minimum: 2, what: 'most data points in one scan' },
-  maxTableBytes: { variable: 'BANDWRIGHT_MAX_TABLE_BYTES', default: 64 * 1024 * 1024, minimum: 1, what: 'largest manifest, table, calibration or history file, bytes' },
-  maxTableRows: { variable: 'BANDWRIGHT_MAX_TABLE_ROWS', default: 1_000_000, minimum: 1, what: 'most data rows in one table' },
+export const RESOURCE_LIMIT_SETTINGS: Readonly<
+  Record<keyof ResourceLimits, { variable: string; default: number; minimum: number; what: string }>
+> = {
+  maxScanBytes: {
+    variable: 'BANDWRIGHT_MAX_SCAN_BYTES',
+    default: 200_000_000,
+    minimum: 1,
+    what: 'largest scan file, bytes',
+  },
+  maxPoints: {
+    variable: 'BANDWRIGHT_MAX_POINTS',
+    default: 2_000_000,
+    minimum: 2,
+    what: 'most data points in one scan',
+  },
+  maxTableBytes: {
+    variable: 'BANDWRIGHT_MAX_TABLE_BYTES',
+    default: 64 * 1024 * 1024,
+    minimum: 1,
+    what: 'largest manifest, table, calibration or history file, bytes',
+  },
+  maxTableRows: {
+    variable: 'BANDWRIGHT_MAX_TABLE_ROWS',
+    default: 1_000_000,
+    minimum: 1,
+    what: 'most data rows in one table',
+  },
 };
 
 /**
@@ -42,9 +64,14 @@ export const RESOURCE_LIMIT_SETTINGS: Readonly<Record<keyof ResourceLimits, { va
  * // BANDWRIGHT_MAX_POINTS=5000000 bandwright inspect big.jdx
  * resourceLimits().maxPoints; // 5000000
  */
-export function resourceLimits(environment: Readonly<Record<string, string | undefined>> = process.env): ResourceLimits {
+export function resourceLimits(
+  environment: Readonly<Record<string, string | undefined>> = process.env,
+): ResourceLimits {
   const limits = {} as ResourceLimits;
-  for (const [key, setting] of Object.entries(RESOURCE_LIMIT_SETTINGS) as [keyof ResourceLimits, (typeof RESOURCE_LIMIT_SETTINGS)[keyof ResourceLimits]][]) {
+  for (const [key, setting] of Object.entries(RESOURCE_LIMIT_SETTINGS) as [
+    keyof ResourceLimits,
+    (typeof RESOURCE_LIMIT_SETTINGS)[keyof ResourceLimits],
+  ][]) {
     const text = environment[setting.variable];
     if (text === undefined || text.trim() === '') {
       limits[key] = setting.default;
@@ -52,7 +79,11 @@ export function resourceLimits(environment: Readonly<Record<string, string | und
     }
     const value = /^\s*\d+(?:[eE]\+?\d+)?\s*$/.test(text) ? Number(text) : Number.NaN;
     if (!Number.isSafeInteger(value) || value < setting.minimum) {
-      throw new BandwrightError('USAGE', `${setting.variable} = ${JSON.stringify(text)}, must be a whole number >= ${setting.minimum} (${setting.what})`, { parameter: setting.variable });
+      throw new BandwrightError(
+        'USAGE',
+        `${setting.variable} = ${JSON.stringify(text)}, must be a whole number >= ${setting.minimum} (${setting.what})`,
+        { parameter: setting.variable },
+      );
     }
     limits[key] = value;
   }
@@ -61,6 +92,10 @@ export function resourceLimits(environment: Readonly<Record<string, string | und
 
 /** Help text listing the limits and their variables (for `bandwright --help`). */
 export function resourceLimitsHelp(): string {
-  const lines = Object.values(RESOURCE_LIMIT_SETTINGS).map((s) => `  ${s.variable.padEnd(28)} ${s.what} (default ${s.default})`);
-  return ['Input limits (environment variables; a larger file is refused with a message):', ...lines].join('\n');
+  const lines = Object.values(RESOURCE_LIMIT_SETTINGS).map(
+    (s) => `  ${s.variable.padEnd(28)} ${s.what} (default ${s.default})`,
+  );
+  return ['Input limits (environment variables; a larger file is refused with a message):', ...lines].join(
+    '\n',
+  );
 }

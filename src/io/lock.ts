@@ -8,7 +8,16 @@
  * checks that what was renamed is still the lock judged stale, so two waiters cannot both break
  * one lock and then delete each other's fresh one.
  */
-import { closeSync, linkSync, openSync, readFileSync, renameSync, statSync, unlinkSync, writeSync } from 'node:fs';
+import {
+  closeSync,
+  linkSync,
+  openSync,
+  readFileSync,
+  renameSync,
+  statSync,
+  unlinkSync,
+  writeSync,
+} from 'node:fs';
 import { hostname } from 'node:os';
 import { BandwrightError } from '../errors.js';
 
@@ -80,9 +89,19 @@ function ageMs(path: string): number | undefined {
  * @param path - lock file
  * @param staleMs - age beyond which any lock is stale, ms
  */
-function staleReason(path: string, seen: { text: string; owner?: LockOwner }, staleMs: number): string | undefined {
+function staleReason(
+  path: string,
+  seen: { text: string; owner?: LockOwner },
+  staleMs: number,
+): string | undefined {
   const owner = seen.owner;
-  if (owner !== undefined && owner.host === hostname() && owner.pid !== process.pid && !processRuns(owner.pid)) return `its owner, process ${owner.pid}, no longer runs`;
+  if (
+    owner !== undefined &&
+    owner.host === hostname() &&
+    owner.pid !== process.pid &&
+    !processRuns(owner.pid)
+  )
+    return `its owner, process ${owner.pid}, no longer runs`;
   const age = ageMs(path);
   if (age !== undefined && age > staleMs) return `it is ${(age / 1000).toFixed(0)} s old`;
   return undefined;
@@ -134,7 +153,12 @@ export function withFileLock<T>(lockPath: string, action: () => T, options: Lock
   const staleMs = options.staleMs ?? 30_000;
   const timeoutMs = options.timeoutMs ?? 20_000;
   const retryMs = options.retryMs ?? 15;
-  const mine = JSON.stringify({ pid: process.pid, host: hostname(), time: new Date().toISOString(), nonce: Math.random().toString(36).slice(2) });
+  const mine = JSON.stringify({
+    pid: process.pid,
+    host: hostname(),
+    time: new Date().toISOString(),
+    nonce: Math.random().toString(36).slice(2),
+  });
   const start = Date.now();
   for (;;) {
     let descriptor: number | undefined;
@@ -142,7 +166,13 @@ export function withFileLock<T>(lockPath: string, action: () => T, options: Lock
       descriptor = openSync(lockPath, 'wx');
     } catch (error) {
       const code = (error as NodeJS.ErrnoException).code;
-      if (code !== 'EEXIST') throw new BandwrightError('FILE_READ', `${lockPath}: cannot create the lock file: ${(error as Error).message}`, { file: lockPath }, { cause: error });
+      if (code !== 'EEXIST')
+        throw new BandwrightError(
+          'FILE_READ',
+          `${lockPath}: cannot create the lock file: ${(error as Error).message}`,
+          { file: lockPath },
+          { cause: error },
+        );
     }
     if (descriptor !== undefined) {
       try {
@@ -160,7 +190,10 @@ export function withFileLock<T>(lockPath: string, action: () => T, options: Lock
       continue;
     }
     if (Date.now() - start > timeoutMs) {
-      const who = seen.owner === undefined ? 'another process' : `process ${seen.owner.pid} on ${seen.owner.host} since ${seen.owner.time}`;
+      const who =
+        seen.owner === undefined
+          ? 'another process'
+          : `process ${seen.owner.pid} on ${seen.owner.host} since ${seen.owner.time}`;
       throw new BandwrightError(
         'LOCKED',
         `${lockPath}: locked by ${who} for more than ${timeoutMs >= 1000 ? `${(timeoutMs / 1000).toFixed(0)} s` : `${timeoutMs} ms`}; if no other bandwright command is writing this history, delete the lock file and retry`,

@@ -53,7 +53,15 @@ export interface Manifest {
   warnings: string[];
 }
 
-const KNOWN = new Set(['scan', 'path_length_m', 'temperature_k', 'temperature_c', 'pressure_kpa', 'uncertainty_pct', 'lot']);
+const KNOWN = new Set([
+  'scan',
+  'path_length_m',
+  'temperature_k',
+  'temperature_c',
+  'pressure_kpa',
+  'uncertainty_pct',
+  'lot',
+]);
 const GAS_COLUMN = /^(.+)_(ppm|ppb|pct)$/i;
 
 /**
@@ -80,10 +88,18 @@ export function parseManifest(text: string, path: string): Manifest {
   const folder = dirname(resolve(path));
   const keys = table.columns.map((c) => c.toLowerCase());
   if (!keys.includes('scan')) {
-    throw new BandwrightError('PARSE', `${path} line 1: no "scan" column; the header must name the scan files' column "scan" (found: ${table.columns.join(', ')})`, { file: path, line: 1 });
+    throw new BandwrightError(
+      'PARSE',
+      `${path} line 1: no "scan" column; the header must name the scan files' column "scan" (found: ${table.columns.join(', ')})`,
+      { file: path, line: 1 },
+    );
   }
   if (keys.includes('temperature_k') && keys.includes('temperature_c')) {
-    throw new BandwrightError('PARSE', `${path} line 1: both temperature_K and temperature_C columns; keep one`, { file: path, line: 1 });
+    throw new BandwrightError(
+      'PARSE',
+      `${path} line 1: both temperature_K and temperature_C columns; keep one`,
+      { file: path, line: 1 },
+    );
   }
   const gases: Manifest['gases'] = [];
   const warnings: string[] = [];
@@ -92,77 +108,130 @@ export function parseManifest(text: string, path: string): Manifest {
     if (KNOWN.has(key)) continue;
     const match = GAS_COLUMN.exec(column);
     if (match === null) {
-      warnings.push(`${path}: column ${JSON.stringify(column)} is not a gas (<GAS>_ppm|ppb|pct) or a known column; it is ignored`);
+      warnings.push(
+        `${path}: column ${JSON.stringify(column)} is not a gas (<GAS>_ppm|ppb|pct) or a known column; it is ignored`,
+      );
       continue;
     }
     const species = requireInfraredSpecies(match[1] as string, `${path} line 1: column ${column}`);
     if (gases.some((g) => g.gas === species.name)) {
-      throw new BandwrightError('PARSE', `${path} line 1: gas ${species.name} has two columns; keep one`, { file: path, line: 1 });
+      throw new BandwrightError('PARSE', `${path} line 1: gas ${species.name} has two columns; keep one`, {
+        file: path,
+        line: 1,
+      });
     }
     gases.push({ gas: species.name, unit: parseConcentrationUnit(match[2] as string, column), column });
   }
   if (gases.length === 0) {
-    throw new BandwrightError('PARSE', `${path} line 1: no gas column; name one column per gas as <GAS>_<unit>, e.g. CO_ppm`, { file: path, line: 1 });
+    throw new BandwrightError(
+      'PARSE',
+      `${path} line 1: no gas column; name one column per gas as <GAS>_<unit>, e.g. CO_ppm`,
+      { file: path, line: 1 },
+    );
   }
-  if (table.rows.length === 0) throw new BandwrightError('PARSE', `${path}: no standards listed below the header`, { file: path });
+  if (table.rows.length === 0)
+    throw new BandwrightError('PARSE', `${path}: no standards listed below the header`, { file: path });
   const entries = table.rows.map((row) => parseEntry(row, table, gases, path, folder));
   const firstLine = new Map<string, number>();
   for (const entry of entries) {
     const earlier = firstLine.get(entry.scanPath);
     if (earlier === undefined) firstLine.set(entry.scanPath, entry.line);
     // One scan listed twice counts one measurement as two standards and understates the scatter.
-    else warnings.push(`${path} line ${entry.line}: scan ${entry.scan} is already listed at line ${earlier}; it counts as a second standard, which understates the calibration's scatter`);
+    else
+      warnings.push(
+        `${path} line ${entry.line}: scan ${entry.scan} is already listed at line ${earlier}; it counts as a second standard, which understates the calibration's scatter`,
+      );
   }
   return { path, gases, entries, warnings };
 }
 
-function parseEntry(row: Table['rows'][number], table: Table, gases: Manifest['gases'], path: string, folder: string): ManifestEntry {
+function parseEntry(
+  row: Table['rows'][number],
+  table: Table,
+  gases: Manifest['gases'],
+  path: string,
+  folder: string,
+): ManifestEntry {
   const cell = (key: string): string | undefined => {
     const value = row.cells.get(key);
     return value === undefined || value === '' ? undefined : value;
   };
   const number = (key: string, column: string): number | undefined => {
     const text = cell(key);
-    return text === undefined ? undefined : parseNumberCell(text, { file: path, line: row.line, column }, { decimalComma: table.decimalComma });
+    return text === undefined
+      ? undefined
+      : parseNumberCell(text, { file: path, line: row.line, column }, { decimalComma: table.decimalComma });
   };
   const positive = (key: string, column: string): number | undefined => {
     const value = number(key, column);
     if (value !== undefined && !(value > 0)) {
-      throw new BandwrightError('INVALID_VALUE', `${path} line ${row.line}: ${column} = ${value}, must be > 0`, { file: path, line: row.line, parameter: column });
+      throw new BandwrightError(
+        'INVALID_VALUE',
+        `${path} line ${row.line}: ${column} = ${value}, must be > 0`,
+        { file: path, line: row.line, parameter: column },
+      );
     }
     return value;
   };
   const scan = cell('scan');
-  if (scan === undefined) throw new BandwrightError('PARSE', `${path} line ${row.line}: scan is empty, must name a scan file`, { file: path, line: row.line, parameter: 'scan' });
+  if (scan === undefined)
+    throw new BandwrightError('PARSE', `${path} line ${row.line}: scan is empty, must name a scan file`, {
+      file: path,
+      line: row.line,
+      parameter: 'scan',
+    });
   insideFolder(scan, folder, { file: path, line: row.line, column: 'scan' });
   // Keep the path as the user would write it from where they ran the command, for messages.
   const scanPath = join(dirname(path), scan);
   const concentrations = gases.map(({ gas, unit, column }) => {
     const value = number(column.toLowerCase(), column);
     if (value === undefined) {
-      throw new BandwrightError('INVALID_VALUE', `${path} line ${row.line}: ${column} is empty; give the certified value (0 for a gas the standard does not contain)`, { file: path, line: row.line, parameter: column });
+      throw new BandwrightError(
+        'INVALID_VALUE',
+        `${path} line ${row.line}: ${column} is empty; give the certified value (0 for a gas the standard does not contain)`,
+        { file: path, line: row.line, parameter: column },
+      );
     }
-    if (value < 0) throw new BandwrightError('INVALID_VALUE', `${path} line ${row.line}: ${column} = ${value}, must be >= 0`, { file: path, line: row.line, parameter: column });
+    if (value < 0)
+      throw new BandwrightError(
+        'INVALID_VALUE',
+        `${path} line ${row.line}: ${column} = ${value}, must be >= 0`,
+        { file: path, line: row.line, parameter: column },
+      );
     // A mole fraction cannot exceed 1 (100 %, 10⁶ ppm): a larger value is a typing or unit error.
     if (toPpm(value, unit) > 1e6) {
-      throw new BandwrightError('INVALID_VALUE', `${path} line ${row.line}: ${column} = ${value}, above 100 % by volume (10⁶ ppm); a concentration cannot exceed the whole gas`, { file: path, line: row.line, parameter: column });
+      throw new BandwrightError(
+        'INVALID_VALUE',
+        `${path} line ${row.line}: ${column} = ${value}, above 100 % by volume (10⁶ ppm); a concentration cannot exceed the whole gas`,
+        { file: path, line: row.line, parameter: column },
+      );
     }
     return { gas, unit, value };
   });
   const temperatureC = number('temperature_c', 'temperature_C');
   if (temperatureC !== undefined && !(temperatureC > -273.15)) {
-    throw new BandwrightError('INVALID_VALUE', `${path} line ${row.line}: temperature_C = ${temperatureC}, must be above -273.15`, { file: path, line: row.line, parameter: 'temperature_C' });
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `${path} line ${row.line}: temperature_C = ${temperatureC}, must be above -273.15`,
+      { file: path, line: row.line, parameter: 'temperature_C' },
+    );
   }
   const conditions: PartialConditions = {};
   const pathLength = positive('path_length_m', 'path_length_m');
-  const temperature = positive('temperature_k', 'temperature_K') ?? (temperatureC === undefined ? undefined : temperatureC + 273.15);
+  const temperature =
+    positive('temperature_k', 'temperature_K') ??
+    (temperatureC === undefined ? undefined : temperatureC + 273.15);
   const pressure = positive('pressure_kpa', 'pressure_kPa');
   if (pathLength !== undefined) conditions.pathLength_m = pathLength;
   if (temperature !== undefined) conditions.temperature_K = temperature;
   if (pressure !== undefined) conditions.pressure_kPa = pressure;
   const uncertainty = number('uncertainty_pct', 'uncertainty_pct');
   if (uncertainty !== undefined && !(uncertainty >= 0)) {
-    throw new BandwrightError('INVALID_VALUE', `${path} line ${row.line}: uncertainty_pct = ${uncertainty}, must be >= 0`, { file: path, line: row.line, parameter: 'uncertainty_pct' });
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `${path} line ${row.line}: uncertainty_pct = ${uncertainty}, must be >= 0`,
+      { file: path, line: row.line, parameter: 'uncertainty_pct' },
+    );
   }
   const entry: ManifestEntry = { line: row.line, scan, scanPath, concentrations, conditions };
   if (uncertainty !== undefined) entry.uncertaintyPct = uncertainty;
@@ -174,7 +243,11 @@ function parseEntry(row: Table['rows'][number], table: Table, gases: Manifest['g
 /**
  * Refuses a path written in a manifest that leaves the manifest's folder (absolute paths or `..`), so a manifest cannot pull in unrelated files.
  */
-function insideFolder(written: string, folder: string, where: { file: string; line: number; column: string }): void {
+function insideFolder(
+  written: string,
+  folder: string,
+  where: { file: string; line: number; column: string },
+): void {
   const resolved = resolve(folder, written);
   const rel = relative(folder, resolved);
   if (isAbsolute(written) || rel === '' || rel.startsWith(`..${sep}`) || rel === '..' || isAbsolute(rel)) {

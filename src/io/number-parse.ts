@@ -46,7 +46,13 @@ const TWO_TO_53 = 2 ** 53;
  * @returns the correctly rounded double (±Infinity when the literal overflows), or NaN when no
  *   number starts at `start`. An exponent marker not followed by digits is not consumed.
  */
-export function scanNumber(bytes: Uint8Array, start: number, limit: number, syntax: NumberSyntax, cursor: ScanCursor): number {
+export function scanNumber(
+  bytes: Uint8Array,
+  start: number,
+  limit: number,
+  syntax: NumberSyntax,
+  cursor: ScanCursor,
+): number {
   let i = start;
   let negative = false;
   if (i < limit) {

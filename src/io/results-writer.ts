@@ -12,7 +12,18 @@
  *   an atomic write first; an existing one must start with the same header (CSV) or with a results
  *   line (JSON lines), and end with a line break (a last line cut short is refused, not extended).
  */
-import { closeSync, existsSync, fsyncSync, mkdirSync, openSync, readSync, renameSync, statSync, unlinkSync, writeSync } from 'node:fs';
+import {
+  closeSync,
+  existsSync,
+  fsyncSync,
+  mkdirSync,
+  openSync,
+  readSync,
+  renameSync,
+  statSync,
+  unlinkSync,
+  writeSync,
+} from 'node:fs';
 import { basename, dirname, join } from 'node:path';
 import { BandwrightError } from '../errors.js';
 import { writeFileAtomic } from './atomic-write.js';
@@ -79,11 +90,19 @@ export function partialResultsPath(path: string, pid: number = process.pid): str
 
 function writeFailure(path: string, error: unknown): BandwrightError {
   if (error instanceof BandwrightError) return error;
-  return new BandwrightError('FILE_READ', `${path}: cannot write: ${(error as Error).message}`, { file: path }, { cause: error });
+  return new BandwrightError(
+    'FILE_READ',
+    `${path}: cannot write: ${(error as Error).message}`,
+    { file: path },
+    { cause: error },
+  );
 }
 
 /** First bytes and last byte of a file (enough to check a header and a final line break). */
-function fileEnds(path: string, headBytes: number): { head: string; size: number; lastByte: number | undefined } {
+function fileEnds(
+  path: string,
+  headBytes: number,
+): { head: string; size: number; lastByte: number | undefined } {
   const descriptor = openSync(path, 'r');
   try {
     const size = statSync(path).size;
@@ -118,15 +137,25 @@ function fileEnds(path: string, headBytes: number): { head: string; size: number
 export function assertAppendable(path: string, header: string | undefined): void {
   let ends: ReturnType<typeof fileEnds>;
   try {
-    if (statSync(path).isDirectory()) throw new BandwrightError('FILE_READ', `${path} is a folder, expected a results file`, { file: path });
+    if (statSync(path).isDirectory())
+      throw new BandwrightError('FILE_READ', `${path} is a folder, expected a results file`, { file: path });
     ends = fileEnds(path, Math.max(header?.length ?? 0, 64 * 1024) + 4);
   } catch (error) {
     if (error instanceof BandwrightError) throw error;
-    throw new BandwrightError('FILE_READ', `${path}: cannot read: ${(error as Error).message}`, { file: path }, { cause: error });
+    throw new BandwrightError(
+      'FILE_READ',
+      `${path}: cannot read: ${(error as Error).message}`,
+      { file: path },
+      { cause: error },
+    );
   }
   if (ends.size === 0) return;
   if (ends.lastByte !== 0x0a) {
-    throw new BandwrightError('PARSE', `${path}: the last line is incomplete (no line break at the end); the file was cut short, repair or move it before appending`, { file: path });
+    throw new BandwrightError(
+      'PARSE',
+      `${path}: the last line is incomplete (no line break at the end); the file was cut short, repair or move it before appending`,
+      { file: path },
+    );
   }
   const firstLine = ends.head.slice(0, ends.head.indexOf('\n') + 1);
   if (header !== undefined) {
@@ -147,8 +176,17 @@ export function assertAppendable(path: string, header: string | undefined): void
     parsed = undefined;
   }
   const record = parsed as Record<string, unknown> | undefined;
-  if (typeof record !== 'object' || record === null || typeof record.scan !== 'string' || typeof record.calibrationSha256 !== 'string') {
-    throw new BandwrightError('PARSE', `${path} line 1: not a bandwright results line (a JSON object with "scan" and "calibrationSha256"); choose another file`, { file: path, line: 1 });
+  if (
+    typeof record !== 'object' ||
+    record === null ||
+    typeof record.scan !== 'string' ||
+    typeof record.calibrationSha256 !== 'string'
+  ) {
+    throw new BandwrightError(
+      'PARSE',
+      `${path} line 1: not a bandwright results line (a JSON object with "scan" and "calibrationSha256"); choose another file`,
+      { file: path, line: 1 },
+    );
   }
 }
 
@@ -241,7 +279,8 @@ export function openResultsWriter(path: string, options: ResultsWriterOptions): 
       return rows;
     },
     write(text: string): void {
-      if (!open) throw new BandwrightError('INVALID_VALUE', `${path}: results file already closed`, { file: path });
+      if (!open)
+        throw new BandwrightError('INVALID_VALUE', `${path}: results file already closed`, { file: path });
       if (pending === '') pendingSince = now();
       pending += text;
       rows++;
@@ -265,7 +304,11 @@ export function openResultsWriter(path: string, options: ResultsWriterOptions): 
       close();
       if (append) return;
       if (!options.overwrite && existsSync(path)) {
-        throw new BandwrightError('FILE_EXISTS', `${path} appeared while the results were written; they are kept in ${writingPath}; use --force to replace it`, { file: path });
+        throw new BandwrightError(
+          'FILE_EXISTS',
+          `${path} appeared while the results were written; they are kept in ${writingPath}; use --force to replace it`,
+          { file: path },
+        );
       }
       try {
         renameSync(writingPath, path);

@@ -33,7 +33,12 @@ export function parseScanList(text: string, source: string): string[] {
     const entry = text.slice(start, end).trim();
     start = end + 1;
     if (entry === '' || entry.startsWith('#')) continue;
-    if (entry.includes('\0')) throw new BandwrightError('PARSE', `${source} line ${line}: a NUL character in the path; a scan list holds one path per line as text`, { file: source, line });
+    if (entry.includes('\0'))
+      throw new BandwrightError(
+        'PARSE',
+        `${source} line ${line}: a NUL character in the path; a scan list holds one path per line as text`,
+        { file: source, line },
+      );
     paths.push(entry);
   }
   return paths;

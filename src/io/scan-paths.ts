@@ -103,8 +103,14 @@ function listFolder(folder: string): Dirent[] {
     return readdirSync(folder, { withFileTypes: true });
   } catch (error) {
     const code = (error as NodeJS.ErrnoException).code;
-    if (code === 'ENOENT') throw new BandwrightError('FILE_NOT_FOUND', `${folder}: no such folder`, { file: folder });
-    throw new BandwrightError('FILE_READ', `${folder}: cannot list: ${(error as Error).message}`, { file: folder }, { cause: error });
+    if (code === 'ENOENT')
+      throw new BandwrightError('FILE_NOT_FOUND', `${folder}: no such folder`, { file: folder });
+    throw new BandwrightError(
+      'FILE_READ',
+      `${folder}: cannot list: ${(error as Error).message}`,
+      { file: folder },
+      { cause: error },
+    );
   }
 }
 
@@ -246,7 +252,9 @@ export function expandScanArguments(args: readonly string[], options: ExpandScan
     if (isGlob(argument) && !exists(argument)) {
       const matches = expandGlob(argument);
       if (matches.length === 0) {
-        throw new BandwrightError('FILE_NOT_FOUND', `${argument}: the pattern matches no file`, { file: argument });
+        throw new BandwrightError('FILE_NOT_FOUND', `${argument}: the pattern matches no file`, {
+          file: argument,
+        });
       }
       matches.forEach(add);
       continue;
@@ -255,8 +263,16 @@ export function expandScanArguments(args: readonly string[], options: ExpandScan
     try {
       stats = statSync(argument);
     } catch (error) {
-      if ((error as NodeJS.ErrnoException).code === 'ENOENT') throw new BandwrightError('FILE_NOT_FOUND', `${argument}: no such file or folder`, { file: argument });
-      throw new BandwrightError('FILE_READ', `${argument}: cannot read: ${(error as Error).message}`, { file: argument }, { cause: error });
+      if ((error as NodeJS.ErrnoException).code === 'ENOENT')
+        throw new BandwrightError('FILE_NOT_FOUND', `${argument}: no such file or folder`, {
+          file: argument,
+        });
+      throw new BandwrightError(
+        'FILE_READ',
+        `${argument}: cannot read: ${(error as Error).message}`,
+        { file: argument },
+        { cause: error },
+      );
     }
     if (!stats.isDirectory()) {
       add(argument);
@@ -266,12 +282,19 @@ export function expandScanArguments(args: readonly string[], options: ExpandScan
       .filter((entry) => {
         const name = entry.name.toLowerCase();
         if (name.startsWith('.')) return false;
-        return extensions.some((extension) => name.endsWith(extension)) && isFile(join(argument, entry.name), entry);
+        return (
+          extensions.some((extension) => name.endsWith(extension)) &&
+          isFile(join(argument, entry.name), entry)
+        );
       })
       .map((entry) => entry.name)
       .sort(compareNames);
     if (scans.length === 0) {
-      throw new BandwrightError('FILE_NOT_FOUND', `${argument}: the folder has no scan files (${extensions.join(' ')})`, { file: argument });
+      throw new BandwrightError(
+        'FILE_NOT_FOUND',
+        `${argument}: the folder has no scan files (${extensions.join(' ')})`,
+        { file: argument },
+      );
     }
     for (const name of scans) add(join(argument, name));
   }

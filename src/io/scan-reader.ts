@@ -42,7 +42,10 @@ export function createScanReader(options: ScanReaderOptions = {}): ScanReader {
   // The limits are read once, not per scan (BANDWRIGHT_MAX_SCAN_BYTES, BANDWRIGHT_MAX_POINTS).
   const limits = resourceLimits();
   const maxBytes = options.maxBytes ?? limits.maxScanBytes;
-  if (!(maxBytes > 0)) throw new BandwrightError('INVALID_VALUE', `maxBytes = ${maxBytes}, must be > 0`, { parameter: 'maxBytes' });
+  if (!(maxBytes > 0))
+    throw new BandwrightError('INVALID_VALUE', `maxBytes = ${maxBytes}, must be > 0`, {
+      parameter: 'maxBytes',
+    });
   const { maxBytes: _maxBytes, reuseOutput: _reuse, ...rest } = options;
   const parseOptions = { ...rest, maxPoints: options.maxPoints ?? limits.maxPoints };
   const reuseOutput = options.reuseOutput === true;
@@ -53,14 +56,26 @@ export function createScanReader(options: ScanReaderOptions = {}): ScanReader {
     let size: number;
     try {
       const stats = statSync(path);
-      if (stats.isDirectory()) throw new BandwrightError('FILE_READ', `${path} is a folder, expected a scan file`, { file: path });
-      if (stats.size > maxBytes) throw new BandwrightError('LIMIT', `${path}: ${stats.size} bytes, above the limit of ${maxBytes} bytes (BANDWRIGHT_MAX_SCAN_BYTES raises it)`, { file: path });
+      if (stats.isDirectory())
+        throw new BandwrightError('FILE_READ', `${path} is a folder, expected a scan file`, { file: path });
+      if (stats.size > maxBytes)
+        throw new BandwrightError(
+          'LIMIT',
+          `${path}: ${stats.size} bytes, above the limit of ${maxBytes} bytes (BANDWRIGHT_MAX_SCAN_BYTES raises it)`,
+          { file: path },
+        );
       size = stats.size;
       descriptor = openSync(path, 'r');
     } catch (error) {
       if (error instanceof BandwrightError) throw error;
-      if ((error as NodeJS.ErrnoException).code === 'ENOENT') throw new BandwrightError('FILE_NOT_FOUND', `${path}: no such file`, { file: path });
-      throw new BandwrightError('FILE_READ', `${path}: cannot read: ${(error as Error).message}`, { file: path }, { cause: error });
+      if ((error as NodeJS.ErrnoException).code === 'ENOENT')
+        throw new BandwrightError('FILE_NOT_FOUND', `${path}: no such file`, { file: path });
+      throw new BandwrightError(
+        'FILE_READ',
+        `${path}: cannot read: ${(error as Error).message}`,
+        { file: path },
+        { cause: error },
+      );
     }
     let length = 0;
     try {
@@ -75,11 +90,21 @@ export function createScanReader(options: ScanReaderOptions = {}): ScanReader {
         const count = readSync(descriptor, buffer, length, buffer.length - length, null);
         if (count === 0) break;
         length += count;
-        if (length > maxBytes) throw new BandwrightError('LIMIT', `${path}: more than ${maxBytes} bytes, above the limit (BANDWRIGHT_MAX_SCAN_BYTES raises it)`, { file: path });
+        if (length > maxBytes)
+          throw new BandwrightError(
+            'LIMIT',
+            `${path}: more than ${maxBytes} bytes, above the limit (BANDWRIGHT_MAX_SCAN_BYTES raises it)`,
+            { file: path },
+          );
       }
     } catch (error) {
       if (error instanceof BandwrightError) throw error;
-      throw new BandwrightError('FILE_READ', `${path}: cannot read: ${(error as Error).message}`, { file: path }, { cause: error });
+      throw new BandwrightError(
+        'FILE_READ',
+        `${path}: cannot read: ${(error as Error).message}`,
+        { file: path },
+        { cause: error },
+      );
     } finally {
       closeSync(descriptor);
     }
@@ -91,7 +116,12 @@ export function createScanReader(options: ScanReaderOptions = {}): ScanReader {
  * `parseScan` of `scan.ts` with the readers' `reuseOutput` passed on: the same format detection,
  * options and y-kind check (tests/io/scan-reader.test.ts compares the two).
  */
-function parse(bytes: Uint8Array, source: string, options: Omit<ReadScanOptions, 'source' | 'maxBytes'> & { maxPoints: number }, reuseOutput: boolean): Spectrum {
+function parse(
+  bytes: Uint8Array,
+  source: string,
+  options: Omit<ReadScanOptions, 'source' | 'maxBytes'> & { maxPoints: number },
+  reuseOutput: boolean,
+): Spectrum {
   const format = options.format ?? detectScanFormat(bytes, source);
   if (format === 'jcamp') {
     const spectrum = parseJcamp(bytes, { source, maxPoints: options.maxPoints, reuseOutput });

@@ -48,7 +48,11 @@ const JCAMP_EXTENSION = /\.(jdx|dx|jcamp)$/i;
  */
 export function detectScanFormat(bytes: Uint8Array, source: string): 'csv' | 'jcamp' {
   let p = bytes.length >= 3 && bytes[0] === 0xef && bytes[1] === 0xbb && bytes[2] === 0xbf ? 3 : 0;
-  while (p < bytes.length && (bytes[p] === 0x20 || bytes[p] === 0x09 || bytes[p] === 0x0a || bytes[p] === 0x0d)) p++;
+  while (
+    p < bytes.length &&
+    (bytes[p] === 0x20 || bytes[p] === 0x09 || bytes[p] === 0x0a || bytes[p] === 0x0d)
+  )
+    p++;
   if (bytes[p] === 0x23 && bytes[p + 1] === 0x23) return 'jcamp';
   return JCAMP_EXTENSION.test(source) ? 'jcamp' : 'csv';
 }
@@ -68,7 +72,12 @@ export function parseScan(bytes: Uint8Array, options: ParseScanOptions): Spectru
   const format = options.format ?? detectScanFormat(bytes, options.source);
   if (options.maxPoints === undefined) options = { ...options, maxPoints: resourceLimits().maxPoints };
   if (format === 'jcamp') {
-    const spectrum = parseJcamp(bytes, options.maxPoints === undefined ? { source: options.source } : { source: options.source, maxPoints: options.maxPoints });
+    const spectrum = parseJcamp(
+      bytes,
+      options.maxPoints === undefined
+        ? { source: options.source }
+        : { source: options.source, maxPoints: options.maxPoints },
+    );
     if (options.yKind !== undefined && options.yKind !== spectrum.yKind) {
       throw new BandwrightError(
         'PARSE',
@@ -103,11 +112,21 @@ function readAll(descriptor: number, label: string, maxBytes: number): Uint8Arra
         continue;
       }
       if (code === 'EOF') break;
-      throw new BandwrightError('FILE_READ', `${label}: cannot read: ${(error as Error).message}`, { file: label }, { cause: error });
+      throw new BandwrightError(
+        'FILE_READ',
+        `${label}: cannot read: ${(error as Error).message}`,
+        { file: label },
+        { cause: error },
+      );
     }
     if (count === 0) break;
     total += count;
-    if (total > maxBytes) throw new BandwrightError('LIMIT', `${label}: more than ${maxBytes} bytes, above the limit (BANDWRIGHT_MAX_SCAN_BYTES raises it)`, { file: label });
+    if (total > maxBytes)
+      throw new BandwrightError(
+        'LIMIT',
+        `${label}: more than ${maxBytes} bytes, above the limit (BANDWRIGHT_MAX_SCAN_BYTES raises it)`,
+        { file: label },
+      );
     chunks.push(Buffer.from(chunk.subarray(0, count)));
   }
   return new Uint8Array(Buffer.concat(chunks, total));
@@ -126,7 +145,10 @@ function readAll(descriptor: number, label: string, maxBytes: number): Uint8Arra
  */
 export function readScan(path: string, options: ReadScanOptions = {}): Spectrum {
   const maxBytes = options.maxBytes ?? resourceLimits().maxScanBytes;
-  if (!(maxBytes > 0)) throw new BandwrightError('INVALID_VALUE', `maxBytes = ${maxBytes}, must be > 0`, { parameter: 'maxBytes' });
+  if (!(maxBytes > 0))
+    throw new BandwrightError('INVALID_VALUE', `maxBytes = ${maxBytes}, must be > 0`, {
+      parameter: 'maxBytes',
+    });
   const { maxBytes: _maxBytes, source: givenSource, ...parseOptions } = options;
   let bytes: Uint8Array;
   let source: string;
@@ -138,13 +160,25 @@ export function readScan(path: string, options: ReadScanOptions = {}): Spectrum 
     let descriptor: number;
     try {
       const stats = statSync(path);
-      if (stats.isDirectory()) throw new BandwrightError('FILE_READ', `${path} is a folder, expected a scan file`, { file: path });
-      if (stats.size > maxBytes) throw new BandwrightError('LIMIT', `${path}: ${stats.size} bytes, above the limit of ${maxBytes} bytes (BANDWRIGHT_MAX_SCAN_BYTES raises it)`, { file: path });
+      if (stats.isDirectory())
+        throw new BandwrightError('FILE_READ', `${path} is a folder, expected a scan file`, { file: path });
+      if (stats.size > maxBytes)
+        throw new BandwrightError(
+          'LIMIT',
+          `${path}: ${stats.size} bytes, above the limit of ${maxBytes} bytes (BANDWRIGHT_MAX_SCAN_BYTES raises it)`,
+          { file: path },
+        );
       descriptor = openSync(path, 'r');
     } catch (error) {
       if (error instanceof BandwrightError) throw error;
-      if ((error as NodeJS.ErrnoException).code === 'ENOENT') throw new BandwrightError('FILE_NOT_FOUND', `${path}: no such file`, { file: path });
-      throw new BandwrightError('FILE_READ', `${path}: cannot read: ${(error as Error).message}`, { file: path }, { cause: error });
+      if ((error as NodeJS.ErrnoException).code === 'ENOENT')
+        throw new BandwrightError('FILE_NOT_FOUND', `${path}: no such file`, { file: path });
+      throw new BandwrightError(
+        'FILE_READ',
+        `${path}: cannot read: ${(error as Error).message}`,
+        { file: path },
+        { cause: error },
+      );
     }
     try {
       bytes = readAll(descriptor, path, maxBytes);

@@ -55,12 +55,18 @@ export function formatSpectrumCsv(spectrum: Spectrum, options: SpectrumCsvOption
   const numberComment = (key: string, value: number | undefined): void => {
     if (value === undefined) return;
     if (!Number.isFinite(value)) {
-      throw new BandwrightError('INVALID_VALUE', `${metadata.source ?? 'spectrum'}: ${key} = ${value}, must be a finite number`, { parameter: key });
+      throw new BandwrightError(
+        'INVALID_VALUE',
+        `${metadata.source ?? 'spectrum'}: ${key} = ${value}, must be a finite number`,
+        { parameter: key },
+      );
     }
     lines.push(`# ${key} = ${String(value)}`);
   };
-  if (metadata.title !== undefined && oneLine(metadata.title) !== '') lines.push(`# title = ${oneLine(metadata.title)}`);
-  if (metadata.dateText !== undefined && oneLine(metadata.dateText) !== '') lines.push(`# date = ${oneLine(metadata.dateText)}`);
+  if (metadata.title !== undefined && oneLine(metadata.title) !== '')
+    lines.push(`# title = ${oneLine(metadata.title)}`);
+  if (metadata.dateText !== undefined && oneLine(metadata.dateText) !== '')
+    lines.push(`# date = ${oneLine(metadata.dateText)}`);
   numberComment('path_length_m', metadata.pathLength_m);
   numberComment('temperature_K', metadata.temperature_K);
   numberComment('pressure_kPa', metadata.pressure_kPa);
@@ -68,17 +74,33 @@ export function formatSpectrumCsv(spectrum: Spectrum, options: SpectrumCsvOption
   const { x, y, background } = spectrum;
   if (spectrum.yKind === 'single-beam') {
     if (background === undefined) {
-      throw new BandwrightError('INVALID_VALUE', `${metadata.source ?? 'spectrum'}: single-beam spectrum without a background`, {});
+      throw new BandwrightError(
+        'INVALID_VALUE',
+        `${metadata.source ?? 'spectrum'}: single-beam spectrum without a background`,
+        {},
+      );
     }
     lines.push(['wavenumber_cm-1', 'single_beam_sample', 'single_beam_background'].join(delimiter));
-    for (let i = 0; i < x.length; i++) lines.push(`${numberText(x[i] as number)}${delimiter}${numberText(y[i] as number)}${delimiter}${numberText(background[i] as number)}`);
+    for (let i = 0; i < x.length; i++)
+      lines.push(
+        `${numberText(x[i] as number)}${delimiter}${numberText(y[i] as number)}${delimiter}${numberText(background[i] as number)}`,
+      );
   } else {
     lines.push(`wavenumber_cm-1${delimiter}${Y_COLUMN_NAMES[spectrum.yKind]}`);
-    for (let i = 0; i < x.length; i++) lines.push(`${numberText(x[i] as number)}${delimiter}${numberText(y[i] as number)}`);
+    for (let i = 0; i < x.length; i++)
+      lines.push(`${numberText(x[i] as number)}${delimiter}${numberText(y[i] as number)}`);
   }
   for (let i = 0; i < x.length; i++) {
-    if (!Number.isFinite(x[i]) || !Number.isFinite(y[i]) || (background !== undefined && !Number.isFinite(background[i]))) {
-      throw new BandwrightError('INVALID_VALUE', `${metadata.source ?? 'spectrum'}: point ${i + 1} is not finite (x = ${x[i]}, y = ${y[i]})`, {});
+    if (
+      !Number.isFinite(x[i]) ||
+      !Number.isFinite(y[i]) ||
+      (background !== undefined && !Number.isFinite(background[i]))
+    ) {
+      throw new BandwrightError(
+        'INVALID_VALUE',
+        `${metadata.source ?? 'spectrum'}: point ${i + 1} is not finite (x = ${x[i]}, y = ${y[i]})`,
+        {},
+      );
     }
   }
   return lines.join(eol) + eol;

@@ -27,7 +27,14 @@
 import { BandwrightError } from '../errors.js';
 import { makeSpectrum, type ScanMetadata, type Spectrum, type YKind } from '../spectrum/spectrum.js';
 import { RESOURCE_LIMIT_SETTINGS } from './limits.js';
-import { DECIMAL_COMMA, DECIMAL_POINT, parseNumberText, scanNumber, type NumberSyntax, type ScanCursor } from './number-parse.js';
+import {
+  DECIMAL_COMMA,
+  DECIMAL_POINT,
+  parseNumberText,
+  scanNumber,
+  type NumberSyntax,
+  type ScanCursor,
+} from './number-parse.js';
 
 /** Options of {@link parseSpectrumTable}. */
 export interface SpectrumTableOptions {
@@ -73,15 +80,51 @@ const CR = 0x0d;
 type Role = 'x' | 'y' | 'sample' | 'background';
 type XUnit = 'cm-1' | 'um' | 'nm';
 
-const Y_NAMES: ReadonlyMap<string, YKind | 'sample' | 'background'> = new Map<string, YKind | 'sample' | 'background'>([
-  ...['absorbance', 'a', 'abs', 'absorbance_decadic', 'decadic_absorbance', 'absorbance_log10', 'absorbance_au'].map((n) => [n, 'absorbance'] as const),
-  ...['absorbance_natural', 'natural_absorbance', 'absorbance_ln', 'ln', 'napierian_absorbance', 'absorbance_napierian'].map((n) => [n, 'absorbance-natural'] as const),
+const Y_NAMES: ReadonlyMap<string, YKind | 'sample' | 'background'> = new Map<
+  string,
+  YKind | 'sample' | 'background'
+>([
+  ...[
+    'absorbance',
+    'a',
+    'abs',
+    'absorbance_decadic',
+    'decadic_absorbance',
+    'absorbance_log10',
+    'absorbance_au',
+  ].map((n) => [n, 'absorbance'] as const),
+  ...[
+    'absorbance_natural',
+    'natural_absorbance',
+    'absorbance_ln',
+    'ln',
+    'napierian_absorbance',
+    'absorbance_napierian',
+  ].map((n) => [n, 'absorbance-natural'] as const),
   ...['transmittance', 't', 'transmittance_fraction'].map((n) => [n, 'transmittance'] as const),
-  ...['transmittance_pct', 'transmittance_percent', 'transmittance_%', '%t', 't%', 't_%', 't_pct', 'percent_transmittance', 'pct_transmittance', '%_transmittance'].map(
-    (n) => [n, 'transmittance-percent'] as const,
+  ...[
+    'transmittance_pct',
+    'transmittance_percent',
+    'transmittance_%',
+    '%t',
+    't%',
+    't_%',
+    't_pct',
+    'percent_transmittance',
+    'pct_transmittance',
+    '%_transmittance',
+  ].map((n) => [n, 'transmittance-percent'] as const),
+  ...['sample', 'single_beam_sample', 'sample_single_beam', 'sample_intensity', 'sb_sample'].map(
+    (n) => [n, 'sample'] as const,
   ),
-  ...['sample', 'single_beam_sample', 'sample_single_beam', 'sample_intensity', 'sb_sample'].map((n) => [n, 'sample'] as const),
-  ...['background', 'single_beam_background', 'background_single_beam', 'background_intensity', 'reference', 'sb_background'].map((n) => [n, 'background'] as const),
+  ...[
+    'background',
+    'single_beam_background',
+    'background_single_beam',
+    'background_intensity',
+    'reference',
+    'sb_background',
+  ].map((n) => [n, 'background'] as const),
 ]);
 
 /** Header spellings recognised for each y-kind, for messages. */
@@ -107,9 +150,13 @@ function xUnitOf(name: string, where: string): XUnit {
   if (has('nm', 'nanometer', 'nanometers', 'nanometre', 'nanometres')) return 'nm';
   if (has('cm', 'cm1', 'wavenumber', 'wavenumbers')) return 'cm-1';
   if (has('wavelength', 'lambda')) {
-    throw new BandwrightError('PARSE', `${where}: x column "${name}" is a wavelength without a unit; name it wavelength_um or wavelength_nm`, {
-      parameter: name,
-    });
+    throw new BandwrightError(
+      'PARSE',
+      `${where}: x column "${name}" is a wavelength without a unit; name it wavelength_um or wavelength_nm`,
+      {
+        parameter: name,
+      },
+    );
   }
   return 'cm-1';
 }
@@ -153,7 +200,11 @@ function splitCells(line: string, delimiter: string): string[] {
 }
 
 /** Counts tab, semicolon and comma outside double quotes. */
-function countDelimiters(bytes: Uint8Array, start: number, end: number): { tab: number; semicolon: number; comma: number } {
+function countDelimiters(
+  bytes: Uint8Array,
+  start: number,
+  end: number,
+): { tab: number; semicolon: number; comma: number } {
   let tab = 0;
   let semicolon = 0;
   let comma = 0;
@@ -170,24 +221,44 @@ function countDelimiters(bytes: Uint8Array, start: number, end: number): { tab: 
   return { tab, semicolon, comma };
 }
 
-const METADATA_KEYS = new Set(['title', 'path_length_m', 'temperature_k', 'temperature_c', 'pressure_kpa', 'resolution_cm-1', 'resolution_cm', 'date']);
+const METADATA_KEYS = new Set([
+  'title',
+  'path_length_m',
+  'temperature_k',
+  'temperature_c',
+  'pressure_kpa',
+  'resolution_cm-1',
+  'resolution_cm',
+  'date',
+]);
 
 /** Reads a `# key = value` comment into metadata; other comments are ignored. */
-function readCommentLine(text: string, lineNumber: number, source: string, metadata: ScanMetadata, seen: Map<string, number>): void {
+function readCommentLine(
+  text: string,
+  lineNumber: number,
+  source: string,
+  metadata: ScanMetadata,
+  seen: Map<string, number>,
+): void {
   const body = text.replace(/^\s*#+/, '');
   const equals = body.indexOf('=');
   if (equals < 0) return;
   const key = body.slice(0, equals).trim().toLowerCase().replace(/\s+/g, '_');
   if (!METADATA_KEYS.has(key)) return;
   const rawValue = body.slice(equals + 1).trim();
-  const canonical = key === 'resolution_cm' ? 'resolution_cm-1' : key === 'temperature_c' ? 'temperature_k' : key;
+  const canonical =
+    key === 'resolution_cm' ? 'resolution_cm-1' : key === 'temperature_c' ? 'temperature_k' : key;
   const earlier = seen.get(canonical);
   if (earlier !== undefined) {
-    throw new BandwrightError('PARSE', `${source} line ${lineNumber}: ${body.slice(0, equals).trim()} given again (first on line ${earlier}), must appear once`, {
-      file: source,
-      line: lineNumber,
-      parameter: key,
-    });
+    throw new BandwrightError(
+      'PARSE',
+      `${source} line ${lineNumber}: ${body.slice(0, equals).trim()} given again (first on line ${earlier}), must appear once`,
+      {
+        file: source,
+        line: lineNumber,
+        parameter: key,
+      },
+    );
   }
   seen.set(canonical, lineNumber);
   if (key === 'title') {
@@ -202,11 +273,15 @@ function readCommentLine(text: string, lineNumber: number, source: string, metad
   const name = body.slice(0, equals).trim();
   const bad = (rule: string): never => {
     const shown = rawValue.length > 40 ? `${rawValue.slice(0, 40)}…` : rawValue;
-    throw new BandwrightError('INVALID_VALUE', `${source} line ${lineNumber}: ${name} = ${JSON.stringify(shown)}, ${rule}`, {
-      file: source,
-      line: lineNumber,
-      parameter: name,
-    });
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `${source} line ${lineNumber}: ${name} = ${JSON.stringify(shown)}, ${rule}`,
+      {
+        file: source,
+        line: lineNumber,
+        parameter: name,
+      },
+    );
   };
   if (!Number.isFinite(value)) bad('must be a finite number');
   switch (key) {
@@ -239,7 +314,12 @@ interface Layout {
   xUnit: XUnit;
 }
 
-function resolveLayout(header: string[] | undefined, columnCount: number, options: SpectrumTableOptions, headerLine: number): Layout {
+function resolveLayout(
+  header: string[] | undefined,
+  columnCount: number,
+  options: SpectrumTableOptions,
+  headerLine: number,
+): Layout {
   const source = options.source;
   const at = header === undefined ? `${source}` : `${source} line ${headerLine}`;
   let headerKind: YKind | undefined;
@@ -251,16 +331,23 @@ function resolveLayout(header: string[] | undefined, columnCount: number, option
     if (header.length === 2) {
       const kind = kinds[0];
       if (kind === 'sample' || kind === 'background') {
-        throw new BandwrightError('PARSE', `${at}: column "${header[1]}" is a single-beam ${kind} spectrum; a single-beam table needs both columns, x,sample,background`, {
-          file: source,
-          line: headerLine,
-        });
+        throw new BandwrightError(
+          'PARSE',
+          `${at}: column "${header[1]}" is a single-beam ${kind} spectrum; a single-beam table needs both columns, x,sample,background`,
+          {
+            file: source,
+            line: headerLine,
+          },
+        );
       }
       headerKind = kind;
       roles = ['x', 'y'];
     } else if (header.length === 3) {
       const [first, second] = kinds;
-      if ((first === 'sample' && second === 'background') || (first === 'background' && second === 'sample')) {
+      if (
+        (first === 'sample' && second === 'background') ||
+        (first === 'background' && second === 'sample')
+      ) {
         headerKind = 'single-beam';
         roles = ['x', first, second];
       } else if (first === undefined && second === undefined) {
@@ -273,18 +360,26 @@ function resolveLayout(header: string[] | undefined, columnCount: number, option
         );
       }
     } else {
-      throw new BandwrightError('PARSE', `${at}: header has ${header.length} column(s), expected 2 (x, y) or 3 (x, sample, background)`, {
-        file: source,
-        line: headerLine,
-      });
+      throw new BandwrightError(
+        'PARSE',
+        `${at}: header has ${header.length} column(s), expected 2 (x, y) or 3 (x, sample, background)`,
+        {
+          file: source,
+          line: headerLine,
+        },
+      );
     }
   } else if (columnCount === 2) roles = ['x', 'y'];
   else if (columnCount === 3) roles = ['x', 'sample', 'background'];
   else {
-    throw new BandwrightError('PARSE', `${at} line ${headerLine}: ${columnCount} field(s), expected 2 (x, y) or 3 (x, sample, background)`, {
-      file: source,
-      line: headerLine,
-    });
+    throw new BandwrightError(
+      'PARSE',
+      `${at} line ${headerLine}: ${columnCount} field(s), expected 2 (x, y) or 3 (x, sample, background)`,
+      {
+        file: source,
+        line: headerLine,
+      },
+    );
   }
   if (headerKind !== undefined && options.yKind !== undefined && headerKind !== options.yKind) {
     throw new BandwrightError(
@@ -339,9 +434,19 @@ interface RowContext {
   roles: number[];
 }
 
-function rowFail(context: RowContext, code: 'PARSE' | 'INVALID_VALUE' | 'NOT_MONOTONIC' | 'LIMIT', line: number, message: string, parameter?: string): never {
+function rowFail(
+  context: RowContext,
+  code: 'PARSE' | 'INVALID_VALUE' | 'NOT_MONOTONIC' | 'LIMIT',
+  line: number,
+  message: string,
+  parameter?: string,
+): never {
   const source = context.source;
-  throw new BandwrightError(code, `${source} line ${line}: ${message}`, parameter === undefined ? { file: source, line } : { file: source, line, parameter });
+  throw new BandwrightError(
+    code,
+    `${source} line ${line}: ${message}`,
+    parameter === undefined ? { file: source, line } : { file: source, line, parameter },
+  );
 }
 
 function fieldEnd(context: RowContext, start: number, end: number): number {
@@ -370,15 +475,28 @@ function badField(context: RowContext, line: number, column: number, start: numb
   const stop = fieldEnd(context, start, lineEnd);
   let text = textOf(context.bytes, start, stop).trim();
   if (text.length >= 2 && text.startsWith('"') && text.endsWith('"')) text = text.slice(1, -1);
-  if (text === '') return rowFail(context, 'PARSE', line, `column ${column + 1} (${name}) is empty, must be a number`, name);
+  if (text === '')
+    return rowFail(context, 'PARSE', line, `column ${column + 1} (${name}) is empty, must be a number`, name);
   if (/^[+-]?(nan|inf|infinity)$/i.test(text)) {
-    return rowFail(context, 'INVALID_VALUE', line, `column ${column + 1} (${name}) = ${JSON.stringify(text)}, must be a finite number`, name);
+    return rowFail(
+      context,
+      'INVALID_VALUE',
+      line,
+      `column ${column + 1} (${name}) = ${JSON.stringify(text)}, must be a finite number`,
+      name,
+    );
   }
   for (const other of [TAB, SEMICOLON, COMMA]) {
     // A stray comma in a tab/semicolon table is a decimal-separator problem, reported below.
     if (other === COMMA && delimiter !== COMMA) continue;
     if (other !== delimiter && other !== decimal && text.includes(String.fromCharCode(other))) {
-      return rowFail(context, 'PARSE', line, `${delimiterName(other)} found in ${JSON.stringify(text)} but the delimiter is ${delimiterName(delimiter)}; mixed delimiters`, name);
+      return rowFail(
+        context,
+        'PARSE',
+        line,
+        `${delimiterName(other)} found in ${JSON.stringify(text)} but the delimiter is ${delimiterName(delimiter)}; mixed delimiters`,
+        name,
+      );
     }
   }
   const hint =
@@ -387,7 +505,13 @@ function badField(context: RowContext, line: number, column: number, start: numb
       : decimal === COMMA && text.includes('.')
         ? ` (the decimal separator is ','${context.decimalDetected ? ', detected from commas in the data' : ''}; a '.' is not accepted with it, nor is digit grouping)`
         : '';
-  return rowFail(context, 'PARSE', line, `column ${column + 1} (${name}) = ${JSON.stringify(text)}, not a number; must be a decimal such as 2143.5 or 1.2e-3${hint}`, name);
+  return rowFail(
+    context,
+    'PARSE',
+    line,
+    `column ${column + 1} (${name}) = ${JSON.stringify(text)}, not a number; must be a decimal such as 2143.5 or 1.2e-3${hint}`,
+    name,
+  );
 }
 
 function grown(array: Float64Array<ArrayBuffer>, capacity: number): Float64Array<ArrayBuffer> {
@@ -402,14 +526,21 @@ function grown(array: Float64Array<ArrayBuffer>, capacity: number): Float64Array
  * them and the result gets exact-size copies, so a table costs one allocation per column instead
  * of a guess, its growth and a trim. Buffers above {@link SCRATCH_LIMIT} values are not kept.
  */
-const scratch: { xs: Float64Array<ArrayBuffer>; ys: Float64Array<ArrayBuffer>; backgrounds: Float64Array<ArrayBuffer> } = {
+const scratch: {
+  xs: Float64Array<ArrayBuffer>;
+  ys: Float64Array<ArrayBuffer>;
+  backgrounds: Float64Array<ArrayBuffer>;
+} = {
   xs: new Float64Array(0),
   ys: new Float64Array(0),
   backgrounds: new Float64Array(0),
 };
 const SCRATCH_LIMIT = 1 << 18;
 
-function keep(array: Float64Array<ArrayBuffer>, previous: Float64Array<ArrayBuffer>): Float64Array<ArrayBuffer> {
+function keep(
+  array: Float64Array<ArrayBuffer>,
+  previous: Float64Array<ArrayBuffer>,
+): Float64Array<ArrayBuffer> {
   return array.length <= SCRATCH_LIMIT && array.length > previous.length ? array : previous;
 }
 
@@ -423,7 +554,8 @@ function readRows(
   start: number,
   firstLine: number,
 ): { n: number; direction: number; xs: Float64Array; ys: Float64Array; backgrounds: Float64Array } {
-  const { bytes, length, delimiter, skipTabs, quotesRequired, columnCount, syntax, roles, maxPoints } = context;
+  const { bytes, length, delimiter, skipTabs, quotesRequired, columnCount, syntax, roles, maxPoints } =
+    context;
   // Capacity is what the rows may fill before growing (never above maxPoints); the reused buffers may be longer.
   let capacity = Math.min(maxPoints, Math.max(context.capacity, scratch.xs.length));
   let xs = grown(scratch.xs, capacity);
@@ -443,15 +575,34 @@ function readRows(
     while (c === SPACE || (skipTabs && c === TAB)) c = bytes[++p] as number;
     if (p >= length || c === LF || c === CR) {
       const end = lineEndAt(context, pos);
-      if (end > p) rowFail(context, 'PARSE', lineNumber, 'a carriage return inside the line; lines end with LF or CRLF');
+      if (end > p)
+        rowFail(context, 'PARSE', lineNumber, 'a carriage return inside the line; lines end with LF or CRLF');
       pos = end < length && bytes[end] === CR ? end + 2 : end + 1;
       if (blankLine === 0) blankLine = lineNumber;
       continue;
     }
-    if (blankLine !== 0) rowFail(context, 'PARSE', lineNumber, `data after the blank line ${blankLine}; the data lines of a table must be contiguous`);
-    if (c === HASH) rowFail(context, 'PARSE', lineNumber, 'comment line inside the data; # comments are allowed only before the data');
+    if (blankLine !== 0)
+      rowFail(
+        context,
+        'PARSE',
+        lineNumber,
+        `data after the blank line ${blankLine}; the data lines of a table must be contiguous`,
+      );
+    if (c === HASH)
+      rowFail(
+        context,
+        'PARSE',
+        lineNumber,
+        'comment line inside the data; # comments are allowed only before the data',
+      );
     if (n === capacity) {
-      if (capacity >= maxPoints) rowFail(context, 'LIMIT', lineNumber, `more than ${maxPoints} data points, the limit (maxPoints; BANDWRIGHT_MAX_POINTS raises it)`);
+      if (capacity >= maxPoints)
+        rowFail(
+          context,
+          'LIMIT',
+          lineNumber,
+          `more than ${maxPoints} data points, the limit (maxPoints; BANDWRIGHT_MAX_POINTS raises it)`,
+        );
       capacity = Math.min(maxPoints, capacity * 2);
       xs = grown(xs, capacity);
       ys = grown(ys, capacity);
@@ -475,7 +626,8 @@ function readRows(
       if (cursor.end === p) badField(context, lineNumber, column, fieldStart, lineEndAt(context, fieldStart));
       p = cursor.end;
       if (quoted) {
-        if (bytes[p] !== QUOTE) badField(context, lineNumber, column, fieldStart, lineEndAt(context, fieldStart));
+        if (bytes[p] !== QUOTE)
+          badField(context, lineNumber, column, fieldStart, lineEndAt(context, fieldStart));
         p++;
       }
       c = bytes[p] as number;
@@ -483,7 +635,13 @@ function readRows(
       if (column < lastColumn) {
         if (c !== delimiter) {
           const end = lineEndAt(context, fieldStart);
-          if (p >= end) rowFail(context, 'PARSE', lineNumber, `${column + 1} field(s), expected ${columnCount} (${context.names.join(', ')})`);
+          if (p >= end)
+            rowFail(
+              context,
+              'PARSE',
+              lineNumber,
+              `${column + 1} field(s), expected ${columnCount} (${context.names.join(', ')})`,
+            );
           badField(context, lineNumber, column, fieldStart, end);
         }
         p++;
@@ -494,16 +652,36 @@ function readRows(
           if (p < end && bytes[p] === delimiter) {
             let fields = columnCount;
             for (let k = p; k < end; k = fieldEnd(context, k + 1, end)) fields++;
-            const hint = context.decimal !== COMMA && delimiter === COMMA ? '; if the numbers use a decimal comma, a comma delimiter is ambiguous: use ; or tab, or quote every field' : '';
-            rowFail(context, 'PARSE', lineNumber, `${fields} fields, expected ${columnCount} (${context.names.join(', ')})${hint}`);
+            const hint =
+              context.decimal !== COMMA && delimiter === COMMA
+                ? '; if the numbers use a decimal comma, a comma delimiter is ambiguous: use ; or tab, or quote every field'
+                : '';
+            rowFail(
+              context,
+              'PARSE',
+              lineNumber,
+              `${fields} fields, expected ${columnCount} (${context.names.join(', ')})${hint}`,
+            );
           }
-          if (p >= end) rowFail(context, 'PARSE', lineNumber, 'a carriage return inside the line; lines end with LF or CRLF');
+          if (p >= end)
+            rowFail(
+              context,
+              'PARSE',
+              lineNumber,
+              'a carriage return inside the line; lines end with LF or CRLF',
+            );
           badField(context, lineNumber, column, fieldStart, end);
         }
       }
       if (value - value !== 0) {
         const name = context.names[column] ?? `column ${column + 1}`;
-        rowFail(context, 'INVALID_VALUE', lineNumber, `column ${column + 1} (${name}) = ${JSON.stringify(textOf(bytes, fieldStart, cursor.end).trim())} overflows a double, must be a finite number`, name);
+        rowFail(
+          context,
+          'INVALID_VALUE',
+          lineNumber,
+          `column ${column + 1} (${name}) = ${JSON.stringify(textOf(bytes, fieldStart, cursor.end).trim())} overflows a double, must be a finite number`,
+          name,
+        );
       }
       const role = roles[column];
       if (role === 0) xs[n] = value;
@@ -513,7 +691,14 @@ function readRows(
     pos = p + 1;
     if (n > 0) {
       const step = (xs[n] as number) - (xs[n - 1] as number);
-      if (step === 0) rowFail(context, 'NOT_MONOTONIC', lineNumber, `x = ${xs[n]} repeats the previous line's x; duplicate x value`, context.names[0]);
+      if (step === 0)
+        rowFail(
+          context,
+          'NOT_MONOTONIC',
+          lineNumber,
+          `x = ${xs[n]} repeats the previous line's x; duplicate x value`,
+          context.names[0],
+        );
       const sign = step > 0 ? 1 : -1;
       if (direction === 0) direction = sign;
       else if (sign !== direction) {
@@ -555,10 +740,17 @@ export function asBuffer(bytes: Uint8Array): Buffer {
  *   first bytes alternate with NUL
  */
 export function assertNotUtf16(bytes: Uint8Array, source: string): void {
-  const bom = bytes.length >= 2 && ((bytes[0] === 0xff && bytes[1] === 0xfe) || (bytes[0] === 0xfe && bytes[1] === 0xff));
-  const nulPattern = bytes.length >= 4 && ((bytes[1] === 0 && bytes[3] === 0 && bytes[0] !== 0) || (bytes[0] === 0 && bytes[2] === 0 && bytes[1] !== 0));
+  const bom =
+    bytes.length >= 2 &&
+    ((bytes[0] === 0xff && bytes[1] === 0xfe) || (bytes[0] === 0xfe && bytes[1] === 0xff));
+  const nulPattern =
+    bytes.length >= 4 &&
+    ((bytes[1] === 0 && bytes[3] === 0 && bytes[0] !== 0) ||
+      (bytes[0] === 0 && bytes[2] === 0 && bytes[1] !== 0));
   if (bom || nulPattern) {
-    throw new BandwrightError('PARSE', `${source}: the file is UTF-16 text; save it as UTF-8 (or ASCII)`, { file: source });
+    throw new BandwrightError('PARSE', `${source}: the file is UTF-16 text; save it as UTF-8 (or ASCII)`, {
+      file: source,
+    });
   }
 }
 
@@ -572,7 +764,11 @@ export function assertNotUtf16(bytes: Uint8Array, source: string): void {
  */
 export function assertLineEnds(bytes: Uint8Array, source: string): void {
   if (bytes.indexOf(CR) >= 0 && bytes.indexOf(LF) < 0) {
-    throw new BandwrightError('PARSE', `${source}: lines end with CR alone (an old Mac OS export); save the file with LF or CRLF line ends`, { file: source });
+    throw new BandwrightError(
+      'PARSE',
+      `${source}: lines end with CR alone (an old Mac OS export); save the file with LF or CRLF line ends`,
+      { file: source },
+    );
   }
 }
 
@@ -622,7 +818,9 @@ export function parseSpectrumTable(bytes: Uint8Array, options: SpectrumTableOpti
   const source = options.source;
   const maxPoints = options.maxPoints ?? DEFAULT_MAX_POINTS;
   if (!Number.isInteger(maxPoints) || maxPoints < 2) {
-    throw new BandwrightError('INVALID_VALUE', `maxPoints = ${maxPoints}, must be an integer >= 2`, { parameter: 'maxPoints' });
+    throw new BandwrightError('INVALID_VALUE', `maxPoints = ${maxPoints}, must be an integer >= 2`, {
+      parameter: 'maxPoints',
+    });
   }
   bytes = asBuffer(bytes);
   const length = bytes.length;
@@ -648,7 +846,13 @@ export function parseSpectrumTable(bytes: Uint8Array, options: SpectrumTableOpti
     while (p < end && (bytes[p] === SPACE || bytes[p] === TAB)) p++;
     if (p < end) {
       if (bytes[p] === HASH) {
-        readCommentLine(new TextDecoder('utf-8').decode(bytes.subarray(p, end)), lineNumber, source, metadata, seenKeys);
+        readCommentLine(
+          new TextDecoder('utf-8').decode(bytes.subarray(p, end)),
+          lineNumber,
+          source,
+          metadata,
+          seenKeys,
+        );
       } else {
         contentStart = pos;
         contentEnd = end;
@@ -658,7 +862,9 @@ export function parseSpectrumTable(bytes: Uint8Array, options: SpectrumTableOpti
     pos = nextLine;
   }
   if (contentStart < 0) {
-    throw new BandwrightError('PARSE', `${source}: no data lines (the file is empty or has only comments)`, { file: source });
+    throw new BandwrightError('PARSE', `${source}: no data lines (the file is empty or has only comments)`, {
+      file: source,
+    });
   }
   const firstContentLine = lineNumber;
 
@@ -681,7 +887,10 @@ export function parseSpectrumTable(bytes: Uint8Array, options: SpectrumTableOpti
   const delimiterText = String.fromCharCode(delimiter);
 
   // Header or data?
-  const firstCells = splitCells(new TextDecoder('utf-8').decode(bytes.subarray(contentStart, contentEnd)), delimiterText);
+  const firstCells = splitCells(
+    new TextDecoder('utf-8').decode(bytes.subarray(contentStart, contentEnd)),
+    delimiterText,
+  );
   const firstCell = firstCells[0] ?? '';
   const firstIsNumber =
     !Number.isNaN(parseNumberText(firstCell, DECIMAL_POINT)) ||
@@ -752,7 +961,8 @@ export function parseSpectrumTable(bytes: Uint8Array, options: SpectrumTableOpti
   if (n === 0) throw new BandwrightError('PARSE', `${source}: a header but no data lines`, { file: source });
 
   // The row buffers are reused by the next table: a copy, unless the caller takes views.
-  const trim = (array: Float64Array): Float64Array => (options.reuseOutput ? array.subarray(0, n) : array.slice(0, n));
+  const trim = (array: Float64Array): Float64Array =>
+    options.reuseOutput ? array.subarray(0, n) : array.slice(0, n);
   const x = trim(xs);
   const y = trim(ys);
   const background = backgrounds === undefined ? undefined : trim(backgrounds);
@@ -777,7 +987,15 @@ export function parseSpectrumTable(bytes: Uint8Array, options: SpectrumTableOpti
     background?.reverse();
   }
   if (layout.yKind === 'transmittance') {
-    assertTransmittanceFraction(y, source, 'name the column transmittance_pct (or %T) or give the y-kind transmittance-percent');
+    assertTransmittanceFraction(
+      y,
+      source,
+      'name the column transmittance_pct (or %T) or give the y-kind transmittance-percent',
+    );
   }
-  return makeSpectrum(background === undefined ? { x, y, yKind: layout.yKind, metadata } : { x, y, yKind: layout.yKind, background, metadata });
+  return makeSpectrum(
+    background === undefined
+      ? { x, y, yKind: layout.yKind, metadata }
+      : { x, y, yKind: layout.yKind, background, metadata },
+  );
 }

@@ -32,17 +32,33 @@ export function loadStandards(manifest: Manifest, options: { yKind?: YKind } = {
   const standards = manifest.entries.map((entry): StandardScan => {
     let bytes: Uint8Array;
     try {
-      bytes = readBytes(entry.scanPath, { maxBytes: resourceLimits().maxScanBytes, limitVariable: 'BANDWRIGHT_MAX_SCAN_BYTES' });
+      bytes = readBytes(entry.scanPath, {
+        maxBytes: resourceLimits().maxScanBytes,
+        limitVariable: 'BANDWRIGHT_MAX_SCAN_BYTES',
+      });
     } catch (error) {
       if (error instanceof BandwrightError && error.code === 'FILE_NOT_FOUND') {
-        throw new BandwrightError('FILE_NOT_FOUND', `${manifest.path} line ${entry.line}: standard scan ${entry.scanPath} does not exist`, { file: manifest.path, line: entry.line });
+        throw new BandwrightError(
+          'FILE_NOT_FOUND',
+          `${manifest.path} line ${entry.line}: standard scan ${entry.scanPath} does not exist`,
+          { file: manifest.path, line: entry.line },
+        );
       }
       // A folder, an unreadable or an oversized file: say which manifest row named it.
-      if (error instanceof BandwrightError) throw new BandwrightError(error.code, `${manifest.path} line ${entry.line}: ${error.message}`, { file: manifest.path, line: entry.line }, { cause: error });
+      if (error instanceof BandwrightError)
+        throw new BandwrightError(
+          error.code,
+          `${manifest.path} line ${entry.line}: ${error.message}`,
+          { file: manifest.path, line: entry.line },
+          { cause: error },
+        );
       throw error;
     }
     inputs.push({ role: 'standard', path: entry.scanPath, sha256: sha256OfBytes(bytes) });
-    const spectrum = parseScan(bytes, { source: entry.scanPath, ...(options.yKind === undefined ? {} : { yKind: options.yKind }) });
+    const spectrum = parseScan(bytes, {
+      source: entry.scanPath,
+      ...(options.yKind === undefined ? {} : { yKind: options.yKind }),
+    });
     return {
       scan: entry.scan,
       line: entry.line,

@@ -53,15 +53,22 @@ export function recordedInputPath(calibrationPath: string, recorded: string): st
  * @param calibrationPath - its file as named (inputs are relative to its folder)
  * @returns one check per input, in order
  */
-export function checkInputs(calibration: Pick<Calibration, 'inputs'>, calibrationPath: string): RecordedInputCheck[] {
+export function checkInputs(
+  calibration: Pick<Calibration, 'inputs'>,
+  calibrationPath: string,
+): RecordedInputCheck[] {
   return calibration.inputs.map((input): RecordedInputCheck => {
     const resolvedPath = recordedInputPath(calibrationPath, input.path);
     try {
       const current = sha256OfFile(resolvedPath);
-      return current === input.sha256 ? { ...input, resolvedPath, status: 'unchanged' } : { ...input, resolvedPath, status: 'changed', currentSha256: current };
+      return current === input.sha256
+        ? { ...input, resolvedPath, status: 'unchanged' }
+        : { ...input, resolvedPath, status: 'changed', currentSha256: current };
     } catch (error) {
-      if (error instanceof BandwrightError && error.code === 'FILE_NOT_FOUND') return { ...input, resolvedPath, status: 'missing' };
-      if (error instanceof BandwrightError) return { ...input, resolvedPath, status: 'unreadable', message: error.message };
+      if (error instanceof BandwrightError && error.code === 'FILE_NOT_FOUND')
+        return { ...input, resolvedPath, status: 'missing' };
+      if (error instanceof BandwrightError)
+        return { ...input, resolvedPath, status: 'unreadable', message: error.message };
       throw error;
     }
   });
@@ -81,5 +88,10 @@ export function checkInputs(calibration: Pick<Calibration, 'inputs'>, calibratio
 export function verifyInputs(calibrationPath: string): IntegrityReport {
   const calibration = readCalibration(calibrationPath);
   const inputs = checkInputs(calibration, calibrationPath);
-  return { calibration: calibrationPath, sha256: calibration.sha256, inputs, ok: inputs.every((input) => input.status === 'unchanged') };
+  return {
+    calibration: calibrationPath,
+    sha256: calibration.sha256,
+    inputs,
+    ok: inputs.every((input) => input.status === 'unchanged'),
+  };
 }

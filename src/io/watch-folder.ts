@@ -12,7 +12,18 @@
  * files processed (name, size, modification time) makes each version of a file processed once;
  * it can be kept in a JSON-lines file so a later run (cron with `watch --once`) goes on from there.
  */
-import { closeSync, existsSync, openSync, readFileSync, readdirSync, statSync, truncateSync, watch, writeSync, type FSWatcher } from 'node:fs';
+import {
+  closeSync,
+  existsSync,
+  openSync,
+  readFileSync,
+  readdirSync,
+  statSync,
+  truncateSync,
+  watch,
+  writeSync,
+  type FSWatcher,
+} from 'node:fs';
 import { resolve } from 'node:path';
 import { BandwrightError } from '../errors.js';
 import { SCAN_EXTENSIONS } from './scan-paths.js';
@@ -113,11 +124,22 @@ export function createFolderWatcher(folder: string, options: FolderWatcherOption
   const observations = new Map<string, Observation>();
   let notifier: FSWatcher | undefined;
   try {
-    if (!statSync(folder).isDirectory()) throw new BandwrightError('FILE_READ', `${folder} is not a folder; watch needs the folder scans are written into`, { file: folder });
+    if (!statSync(folder).isDirectory())
+      throw new BandwrightError(
+        'FILE_READ',
+        `${folder} is not a folder; watch needs the folder scans are written into`,
+        { file: folder },
+      );
   } catch (error) {
     if (error instanceof BandwrightError) throw error;
-    if ((error as NodeJS.ErrnoException).code === 'ENOENT') throw new BandwrightError('FILE_NOT_FOUND', `${folder}: no such folder`, { file: folder });
-    throw new BandwrightError('FILE_READ', `${folder}: cannot read: ${(error as Error).message}`, { file: folder }, { cause: error });
+    if ((error as NodeJS.ErrnoException).code === 'ENOENT')
+      throw new BandwrightError('FILE_NOT_FOUND', `${folder}: no such folder`, { file: folder });
+    throw new BandwrightError(
+      'FILE_READ',
+      `${folder}: cannot read: ${(error as Error).message}`,
+      { file: folder },
+      { cause: error },
+    );
   }
   const isScanName = (name: string): boolean => {
     if (name.startsWith('.')) return false;
@@ -132,8 +154,18 @@ export function createFolderWatcher(folder: string, options: FolderWatcherOption
         names = readdirSync(folder);
       } catch (error) {
         const code = (error as NodeJS.ErrnoException).code;
-        if (code === 'ENOENT') throw new BandwrightError('FILE_NOT_FOUND', `${folder}: no such folder (it was removed or unmounted)`, { file: folder });
-        throw new BandwrightError('FILE_READ', `${folder}: cannot list: ${(error as Error).message}`, { file: folder }, { cause: error });
+        if (code === 'ENOENT')
+          throw new BandwrightError(
+            'FILE_NOT_FOUND',
+            `${folder}: no such folder (it was removed or unmounted)`,
+            { file: folder },
+          );
+        throw new BandwrightError(
+          'FILE_READ',
+          `${folder}: cannot list: ${(error as Error).message}`,
+          { file: folder },
+          { cause: error },
+        );
       }
       const time = now();
       const present = new Set<string>();
@@ -163,7 +195,13 @@ export function createFolderWatcher(folder: string, options: FolderWatcherOption
         const renamed = stats.ctimeNs > stats.mtimeNs;
         const settled = !changed && time - (seen as Observation).since >= settleMs;
         if (renamed || settled) {
-          ready.push({ name, path, stamp, how: renamed ? 'renamed' : 'settled', ...(before === undefined ? {} : { previously: before }) });
+          ready.push({
+            name,
+            path,
+            stamp,
+            how: renamed ? 'renamed' : 'settled',
+            ...(before === undefined ? {} : { previously: before }),
+          });
         }
       }
       for (const name of observations.keys()) if (!present.has(name)) observations.delete(name);
@@ -175,7 +213,8 @@ export function createFolderWatcher(folder: string, options: FolderWatcherOption
     nextDelayMs(): number {
       const time = now();
       let delay = pollMs;
-      for (const observation of observations.values()) delay = Math.min(delay, observation.since + settleMs - time);
+      for (const observation of observations.values())
+        delay = Math.min(delay, observation.since + settleMs - time);
       return Math.max(10, Math.ceil(delay));
     },
     markProcessed(file: ReadyFile): void {
@@ -217,7 +256,12 @@ export function readProcessedRecord(path: string): Map<string, FileStamp> {
   try {
     text = readFileSync(path, 'utf8');
   } catch (error) {
-    throw new BandwrightError('FILE_READ', `${path}: cannot read: ${(error as Error).message}`, { file: path }, { cause: error });
+    throw new BandwrightError(
+      'FILE_READ',
+      `${path}: cannot read: ${(error as Error).message}`,
+      { file: path },
+      { cause: error },
+    );
   }
   const lines = text.split('\n');
   // What follows the last line break is empty, or a line cut short: either way not a record.
@@ -231,8 +275,18 @@ export function readProcessedRecord(path: string): Map<string, FileStamp> {
       value = undefined;
     }
     const entry = value as { name?: unknown; size?: unknown; mtimeMs?: unknown } | undefined;
-    if (typeof entry !== 'object' || entry === null || typeof entry.name !== 'string' || typeof entry.size !== 'number' || typeof entry.mtimeMs !== 'number') {
-      throw new BandwrightError('PARSE', `${path} line ${i + 1}: not a processed-file record ({"name", "size", "mtimeMs"}); delete the file to process the folder afresh`, { file: path, line: i + 1 });
+    if (
+      typeof entry !== 'object' ||
+      entry === null ||
+      typeof entry.name !== 'string' ||
+      typeof entry.size !== 'number' ||
+      typeof entry.mtimeMs !== 'number'
+    ) {
+      throw new BandwrightError(
+        'PARSE',
+        `${path} line ${i + 1}: not a processed-file record ({"name", "size", "mtimeMs"}); delete the file to process the folder afresh`,
+        { file: path, line: i + 1 },
+      );
     }
     record.set(entry.name, { size: entry.size, mtimeMs: entry.mtimeMs });
   }
@@ -264,7 +318,12 @@ export function openProcessedRecord(path: string): ProcessedRecordFile {
     }
     descriptor = openSync(path, 'a');
   } catch (error) {
-    throw new BandwrightError('FILE_READ', `${path}: cannot write: ${(error as Error).message}`, { file: path }, { cause: error });
+    throw new BandwrightError(
+      'FILE_READ',
+      `${path}: cannot write: ${(error as Error).message}`,
+      { file: path },
+      { cause: error },
+    );
   }
   let open = true;
   return {

@@ -81,12 +81,28 @@ export function fitBandCls(data: BandClsData, options: BandClsFitOptions = {}): 
   const bandCount = data.bands.length;
   const names = new Set<string>();
   data.bands.forEach((band, k) => {
-    if (typeof band !== 'string' || band === '') throw new BandwrightError('INVALID_VALUE', `bands[${k}] = ${JSON.stringify(band)}, must be a non-empty band name`, { parameter: 'bands' });
-    if (names.has(band)) throw new BandwrightError('INVALID_VALUE', `bands[${k}] = "${band}" appears twice, band names must be unique`, { parameter: 'bands' });
+    if (typeof band !== 'string' || band === '')
+      throw new BandwrightError(
+        'INVALID_VALUE',
+        `bands[${k}] = ${JSON.stringify(band)}, must be a non-empty band name`,
+        { parameter: 'bands' },
+      );
+    if (names.has(band))
+      throw new BandwrightError(
+        'INVALID_VALUE',
+        `bands[${k}] = "${band}" appears twice, band names must be unique`,
+        { parameter: 'bands' },
+      );
     names.add(band);
   });
   const validated = validateClsInputs(
-    { responses: data.areas, concentrations: data.concentrations, phi: data.phi, components: data.components, standardLabels: data.standardLabels },
+    {
+      responses: data.areas,
+      concentrations: data.concentrations,
+      phi: data.phi,
+      components: data.components,
+      standardLabels: data.standardLabels,
+    },
     options,
     { channelCount: bandCount, channelWord: 'band', responsesName: 'areas' },
   );
@@ -99,7 +115,12 @@ export function fitBandCls(data: BandClsData, options: BandClsFitOptions = {}): 
     );
   }
   const core = fitClsCore(
-    { responses: data.areas, concentrations: data.concentrations, phi: data.phi, components: data.components },
+    {
+      responses: data.areas,
+      concentrations: data.concentrations,
+      phi: data.phi,
+      components: data.components,
+    },
     {
       level: validated.level,
       conditionLimit: validated.conditionLimit,
@@ -125,7 +146,11 @@ const prepared = new WeakMap<BandClsModel, ClsState>();
  * @returns estimates with prediction intervals, band residuals, `poor-fit` flag
  * @throws BandwrightError `INVALID_VALUE` for a wrong number of areas, a non-finite area, φ ≤ 0
  */
-export function predictBandCls(model: BandClsModel, areas: ArrayLike<number>, options: BandClsPredictOptions): ClsPrediction {
+export function predictBandCls(
+  model: BandClsModel,
+  areas: ArrayLike<number>,
+  options: BandClsPredictOptions,
+): ClsPrediction {
   let state = prepared.get(model);
   if (state === undefined) {
     state = prepareClsState(model, []);

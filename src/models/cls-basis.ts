@@ -35,14 +35,17 @@ export interface ChannelSegment {
 export function channelSegments(regionOf: ArrayLike<number>, positions: ArrayLike<number>): ChannelSegment[] {
   const count = regionOf.length;
   const steps: number[] = [];
-  for (let i = 1; i < count; i++) if (regionOf[i] === regionOf[i - 1]) steps.push(Math.abs(positions[i]! - positions[i - 1]!));
+  for (let i = 1; i < count; i++)
+    if (regionOf[i] === regionOf[i - 1]) steps.push(Math.abs(positions[i]! - positions[i - 1]!));
   steps.sort((a, b) => a - b);
   const median = steps.length > 0 ? steps[Math.floor(steps.length / 2)]! : 0;
   const segments: ChannelSegment[] = [];
   let start = 0;
   for (let i = 1; i <= count; i++) {
     const breakHere =
-      i === count || regionOf[i] !== regionOf[i - 1] || Math.abs(positions[i]! - positions[i - 1]!) > 1.5 * median;
+      i === count ||
+      regionOf[i] !== regionOf[i - 1] ||
+      Math.abs(positions[i]! - positions[i - 1]!) > 1.5 * median;
     if (breakHere) {
       segments.push({ start, end: i, region: regionOf[start]! });
       start = i;
@@ -142,9 +145,13 @@ export function nuisanceBasis(options: {
           { parameter: 'background' },
         );
       }
-      throw new BandwrightError('INSUFFICIENT_DATA', `baseline term ${j} is degenerate (too few distinct channel positions)`, {
-        parameter: 'baselineOrder',
-      });
+      throw new BandwrightError(
+        'INSUFFICIENT_DATA',
+        `baseline term ${j} is degenerate (too few distinct channel positions)`,
+        {
+          parameter: 'baselineOrder',
+        },
+      );
     }
   }
   const basis: Float64Array[] = [];

@@ -399,7 +399,9 @@ function quadraticForm(matrix: readonly (readonly number[])[], v: ArrayLike<numb
 function formatNumber(value: number): string {
   if (!Number.isFinite(value)) return 'infinite';
   const size = Math.abs(value);
-  return size >= 1e5 || (size < 1e-2 && value !== 0) ? value.toExponential(1).replace('e+', 'e') : String(Number(value.toPrecision(3)));
+  return size >= 1e5 || (size < 1e-2 && value !== 0)
+    ? value.toExponential(1).replace('e+', 'e')
+    : String(Number(value.toPrecision(3)));
 }
 
 /** "CO", "CO and N2O", "CO, N2O and H2O" */
@@ -512,7 +514,9 @@ function fitState(input: StateInput): FittedState {
   });
   const calibrationResidualSum = fit.residualSumOfSquares.reduce((a, b) => a + b, 0);
   const correlation =
-    input.correlation === 'estimate' ? estimateCorrelation(residuals, segments, { independentFraction: (n - q) / n }) : input.correlation.slice();
+    input.correlation === 'estimate'
+      ? estimateCorrelation(residuals, segments, { independentFraction: (n - q) / n })
+      : input.correlation.slice();
 
   // Pseudo-inverse of Kᵀ by Householder QR, directly with ml-matrix: the shared solver returns
   // coefficients for given right-hand sides, whereas here the operator (Kᵀ)⁺ itself is kept so
@@ -527,9 +531,13 @@ function fitState(input: StateInput): FittedState {
   const qFactor = qr.orthogonalMatrix;
   const rankOk = rFactor.every((row, t) => Number.isFinite(1 / row[t]!) && row[t] !== 0);
   if (!rankOk) {
-    throw new BandwrightError('SINGULAR', `pure spectra of ${listNames(names)} are linearly dependent over the ${input.channelWord}s`, {
-      parameter: 'spectra',
-    });
+    throw new BandwrightError(
+      'SINGULAR',
+      `pure spectra of ${listNames(names)} are linearly dependent over the ${input.channelWord}s`,
+      {
+        parameter: 'spectra',
+      },
+    );
   }
   const rInverse = invertUpperTriangular(rFactor);
   const predictionMatrix: Float64Array[] = [];
@@ -563,7 +571,8 @@ function fitState(input: StateInput): FittedState {
   const linearCovarianceFactor = multiplyMatrices(multiplyMatrices(rInverse, noiseGram), transpose(rInverse));
 
   let responseScale = 0;
-  for (const row of projected) for (let j = 0; j < channels; j++) responseScale = Math.max(responseScale, Math.abs(row[j]!));
+  for (const row of projected)
+    for (let j = 0; j < channels; j++) responseScale = Math.max(responseScale, Math.abs(row[j]!));
 
   const state: ClsState = {
     componentCount: components.length,
@@ -612,7 +621,12 @@ interface CheckInput {
  * of ±{@link RESIDUAL_PROFILE_HALF_WIDTH} channels inside the channel's segment, divided by its
  * mean over the channels; all ones when `local` is false.
  */
-function residualProfile(residuals: readonly Float64Array[], segments: readonly ChannelSegment[], channels: number, local: boolean): Float64Array {
+function residualProfile(
+  residuals: readonly Float64Array[],
+  segments: readonly ChannelSegment[],
+  channels: number,
+  local: boolean,
+): Float64Array {
   const profile = new Float64Array(channels).fill(1);
   if (!local) return profile;
   const energy = new Float64Array(channels);
@@ -646,15 +660,22 @@ function checkPureSpectra(input: CheckInput): PureSpectrumChecks {
   const { rFactor } = fitted;
   const q = terms.length;
   const names = terms.map((term) => termName(components, term));
-  const columnNorms = Array.from({ length: q }, (_, t) => Math.sqrt(rFactor.reduce((sum, row) => sum + row[t]! * row[t]!, 0)));
+  const columnNorms = Array.from({ length: q }, (_, t) =>
+    Math.sqrt(rFactor.reduce((sum, row) => sum + row[t]! * row[t]!, 0)),
+  );
   const zero = columnNorms.findIndex((norm) => !(norm > 0));
   if (zero >= 0) {
-    throw new BandwrightError('SINGULAR', `pure spectrum of ${names[zero]!} is zero on every ${channelWord}: it has no absorption in the method's ${channelWord}s`, { parameter: 'spectra' });
+    throw new BandwrightError(
+      'SINGULAR',
+      `pure spectrum of ${names[zero]!} is zero on every ${channelWord}: it has no absorption in the method's ${channelWord}s`,
+      { parameter: 'spectra' },
+    );
   }
   let condition = 1;
   if (q > 1) {
     const scaled = new Matrix(q, q);
-    for (let i = 0; i < q; i++) for (let t = 0; t < q; t++) scaled.set(i, t, rFactor[i]![t]! / columnNorms[t]!);
+    for (let i = 0; i < q; i++)
+      for (let t = 0; t < q; t++) scaled.set(i, t, rFactor[i]![t]! / columnNorms[t]!);
     const svd = new SingularValueDecomposition(scaled, { computeLeftSingularVectors: false });
     const singular = svd.diagonal;
     const largest = Math.max(...singular);
@@ -666,7 +687,12 @@ function checkPureSpectra(input: CheckInput): PureSpectrumChecks {
       const magnitudes = names.map((_, t) => Math.abs(v.get(t, smallestIndex)));
       const biggest = Math.max(...magnitudes);
       let involved = names.map((_, t) => t).filter((t) => magnitudes[t]! >= 0.25 * biggest);
-      if (involved.length < 2) involved = names.map((_, t) => t).sort((a, b) => magnitudes[b]! - magnitudes[a]!).slice(0, 2).sort((a, b) => a - b);
+      if (involved.length < 2)
+        involved = names
+          .map((_, t) => t)
+          .sort((a, b) => magnitudes[b]! - magnitudes[a]!)
+          .slice(0, 2)
+          .sort((a, b) => a - b);
       throw new BandwrightError(
         'SINGULAR',
         `pure spectra of ${listNames(involved.map((t) => names[t]!))} nearly coincide over the method's ${channelWord}s (condition number ${formatNumber(condition)} of the column-scaled pure-spectrum matrix, limit ${formatNumber(conditionLimit)}): their bands cannot be separated; extend the regions to where their bands differ, or drop one of them`,
@@ -676,7 +702,9 @@ function checkPureSpectra(input: CheckInput): PureSpectrumChecks {
   }
 
   const ratios = separationRatios(input);
-  const weak = ratios.components.find((entry) => entry.signal !== null && entry.signal < MINIMUM_SEPARATION_RATIO);
+  const weak = ratios.components.find(
+    (entry) => entry.signal !== null && entry.signal < MINIMUM_SEPARATION_RATIO,
+  );
   if (weak !== undefined) throw signalRefusal(input, weak.component, weak.signal!);
   const alike = ratios.pairs.find((pair) => pair.ratio < MINIMUM_SEPARATION_RATIO);
   if (alike !== undefined) throw shapeRefusal(input, alike.component, alike.other, alike.ratio);
@@ -699,21 +727,39 @@ function termsOf(terms: readonly ClsTerm[], component: number): number[] {
 
 /** Signal and separation ratios of every component (see the header); nothing is thrown. */
 interface SeparationRatios {
-  components: { component: number; signal: number | null; secondOrderSignal: (number | null)[]; separation: number | null }[];
+  components: {
+    component: number;
+    signal: number | null;
+    secondOrderSignal: (number | null)[];
+    separation: number | null;
+  }[];
   /** Pairs (component, other) with their separation ratio, in the order they are checked. */
   pairs: { component: number; other: number; ratio: number }[];
 }
 
-function separationRatios(input: Pick<CheckInput, 'fitted' | 'design' | 'components' | 'terms' | 'segments' | 'localWeights'>): SeparationRatios {
+function separationRatios(
+  input: Pick<CheckInput, 'fitted' | 'design' | 'components' | 'terms' | 'segments' | 'localWeights'>,
+): SeparationRatios {
   const { fitted, components, terms } = input;
   const { state } = fitted;
   const q = terms.length;
   const p = components.length;
   const channels = state.pureSpectra[0]!.length;
   const n = fitted.residuals.length;
-  const variance = state.calibrationResidualCount > 0 ? state.calibrationResidualSum / state.calibrationResidualCount : 0;
+  const variance =
+    state.calibrationResidualCount > 0 ? state.calibrationResidualSum / state.calibrationResidualCount : 0;
   if (!(variance > 0)) {
-    return { components: components.map((_, c) => ({ component: c, signal: null, secondOrderSignal: termsOf(terms, c).slice(1).map(() => null), separation: null })), pairs: [] };
+    return {
+      components: components.map((_, c) => ({
+        component: c,
+        signal: null,
+        secondOrderSignal: termsOf(terms, c)
+          .slice(1)
+          .map(() => null),
+        separation: null,
+      })),
+      pairs: [],
+    };
   }
   const baseCount = state.calibrationResidualCount / (n - q);
   const gram = state.concentrationGramInverse;
@@ -729,9 +775,14 @@ function separationRatios(input: Pick<CheckInput, 'fitted' | 'design' | 'compone
       products[a]![b] = products[b]![a] = sum;
     }
   }
-  const bilinear = (a: readonly number[], matrix: readonly (readonly number[])[], b: readonly number[]): number => {
+  const bilinear = (
+    a: readonly number[],
+    matrix: readonly (readonly number[])[],
+    b: readonly number[],
+  ): number => {
     let sum = 0;
-    for (let i = 0; i < q; i++) if (a[i] !== 0) for (let k = 0; k < q; k++) sum += a[i]! * matrix[i]![k]! * b[k]!;
+    for (let i = 0; i < q; i++)
+      if (a[i] !== 0) for (let k = 0; k < q; k++) sum += a[i]! * matrix[i]![k]! * b[k]!;
     return sum;
   };
   // Response spectra as combinations of the term rows: k₁ + u_max k₂.
@@ -746,11 +797,16 @@ function separationRatios(input: Pick<CheckInput, 'fitted' | 'design' | 'compone
   const entries = components.map((_, c) => {
     const block = termsOf(terms, c);
     // Wald energy Σ_j k_Tᵀ G_TT⁻¹ k_T / h_j per term.
-    const inverse = solveSmall(block.map((a) => block.map((b) => gram[a]![b]!)), identity(block.length));
+    const inverse = solveSmall(
+      block.map((a) => block.map((b) => gram[a]![b]!)),
+      identity(block.length),
+    );
     let energy = 0;
     block.forEach((a, i) => block.forEach((b, k) => (energy += inverse[i]![k]! * products[a]![b]!)));
     const signal = energy / block.length / (variance * baseCount);
-    const secondOrderSignal = block.slice(1).map((t) => products[t]![t]! / (variance * gram[t]![t]! * baseCount));
+    const secondOrderSignal = block
+      .slice(1)
+      .map((t) => products[t]![t]! / (variance * gram[t]![t]! * baseCount));
     let separation: number | null = null;
     const va = combinations[c]!;
     for (let other = 0; other < p; other++) {
@@ -778,9 +834,13 @@ function separationRatios(input: Pick<CheckInput, 'fitted' | 'design' | 'compone
 function withHelpfulSecondOrder(input: CheckInput): { names: string[]; ratios: SeparationRatios } | null {
   const helpful = helpfulGains(input.lackOfFit);
   if (helpful.length === 0) return null;
-  const added = helpful.map((gain) => input.components.findIndex((component) => component.name === gain.component));
+  const added = helpful.map((gain) =>
+    input.components.findIndex((component) => component.name === gain.component),
+  );
   const terms: ClsTerm[] = [...input.terms, ...added.map((component) => ({ component, power: 2 as const }))];
-  const design = input.design.map((row) => Float64Array.from([...Array.from(row), ...added.map((component) => row[component]! * row[component]!)]));
+  const design = input.design.map((row) =>
+    Float64Array.from([...Array.from(row), ...added.map((component) => row[component]! * row[component]!)]),
+  );
   if (input.projected.length < terms.length + 1) return null;
   try {
     const fitted = fitState({
@@ -794,7 +854,10 @@ function withHelpfulSecondOrder(input: CheckInput): { names: string[]; ratios: S
       conditionLimit: input.conditionLimit,
       channelWord: input.channelWord,
     });
-    return { names: helpful.map((gain) => gain.component), ratios: separationRatios({ ...input, fitted, design, terms }) };
+    return {
+      names: helpful.map((gain) => gain.component),
+      ratios: separationRatios({ ...input, fitted, design, terms }),
+    };
   } catch (error) {
     if (isBandwrightError(error, 'SINGULAR') || isBandwrightError(error, 'INSUFFICIENT_DATA')) return null;
     throw error;
@@ -809,7 +872,11 @@ function signalRefusal(input: CheckInput, component: number, ratio: number): Ban
   const measured = `signal ${formatNumber(ratio)} times the energy the calibration residual leaves in it where it absorbs, must be >= ${MINIMUM_SEPARATION_RATIO}`;
   const absent = `it does not absorb measurably in the method's ${channelWord}s, or its standards are too weak`;
   if (!lackOfFit.detected) {
-    return new BandwrightError('SINGULAR', `${subject} is not distinguishable from the calibration noise (${measured}): ${absent}`, { parameter: 'spectra' });
+    return new BandwrightError(
+      'SINGULAR',
+      `${subject} is not distinguishable from the calibration noise (${measured}): ${absent}`,
+      { parameter: 'spectra' },
+    );
   }
   const diagnosis = describeLackOfFit(lackOfFit, input.fitted.state);
   const remedy = withHelpfulSecondOrder(input);
@@ -842,12 +909,18 @@ function shapeRefusal(input: CheckInput, component: number, other: number, ratio
   const measured = `their difference carries ${formatNumber(ratio)} times the energy the calibration residual leaves in it, must be >= ${MINIMUM_SEPARATION_RATIO}`;
   const coincide = `their bands coincide and cannot be separated; extend the regions to where their bands differ, or drop one of them`;
   if (!lackOfFit.detected) {
-    return new BandwrightError('SINGULAR', `pure spectra of ${pair} have the same shape within the calibration noise (${measured}): ${coincide}`, { parameter: 'spectra' });
+    return new BandwrightError(
+      'SINGULAR',
+      `pure spectra of ${pair} have the same shape within the calibration noise (${measured}): ${coincide}`,
+      { parameter: 'spectra' },
+    );
   }
   const diagnosis = describeLackOfFit(lackOfFit, input.fitted.state);
   const remedy = withHelpfulSecondOrder(input);
   if (remedy !== null) {
-    const after = remedy.ratios.pairs.find((entry) => entry.component === component && entry.other === other)?.ratio;
+    const after = remedy.ratios.pairs.find(
+      (entry) => entry.component === component && entry.other === other,
+    )?.ratio;
     if (after !== undefined && after >= MINIMUM_SEPARATION_RATIO) {
       return new BandwrightError(
         'SINGULAR',
@@ -877,11 +950,15 @@ function describeLackOfFit(lackOfFit: ClsLackOfFit, state: ClsState): string {
       `the calibration residual (SD ${formatNumber(sd)} a channel) is ${formatNumber(Math.sqrt(lackOfFit.residualOverBlank))} times the noise of the ${lackOfFit.blanks} zero-gas standard(s) (SD ${formatNumber(Math.sqrt(lackOfFit.blankVariance))}), so it is mostly lack of fit rather than noise`,
     );
   } else {
-    parts.push(`the calibration residual (SD ${formatNumber(sd)} a channel) is lack of fit rather than noise`);
+    parts.push(
+      `the calibration residual (SD ${formatNumber(sd)} a channel) is lack of fit rather than noise`,
+    );
   }
   const helpful = helpfulGains(lackOfFit);
   if (helpful.length > 0) {
-    parts.push(`a second-order term would remove ${listNames(helpful.map((gain) => `${Math.round(100 * gain.residualReduction)} % of it for ${gain.component}`))} (significant at 99 %)`);
+    parts.push(
+      `a second-order term would remove ${listNames(helpful.map((gain) => `${Math.round(100 * gain.residualReduction)} % of it for ${gain.component}`))} (significant at 99 %)`,
+    );
   }
   return parts.join('; ');
 }
@@ -896,7 +973,8 @@ function helpfulGains(lackOfFit: ClsLackOfFit): ClsSecondOrderGain[] {
 /** What to do about a lack of fit. */
 function lackOfFitAdvice(lackOfFit: ClsLackOfFit): string {
   const helpful = helpfulGains(lackOfFit);
-  if (helpful.length > 0) return `give ${listNames(helpful.map((gain) => gain.component))} a second-order term (secondOrder), or choose regions with weaker lines`;
+  if (helpful.length > 0)
+    return `give ${listNames(helpful.map((gain) => gain.component))} a second-order term (secondOrder), or choose regions with weaker lines`;
   return 'no second-order term of a gas that lacks one removes it: look for curvature beyond second order (saturated lines: choose regions with weaker lines or a narrower calibrated range), lines of different gases that overlap (they multiply in transmittance), an absorber in the standards the method does not model, or a baseline the polynomial order does not follow';
 }
 
@@ -919,9 +997,12 @@ function diagnoseLackOfFit(input: {
   const p = components.length;
   const baseCount = state.calibrationResidualCount / (n - q);
   const squareSum = correlationSquareSum(fitted.correlation);
-  const residualVariance = state.calibrationResidualCount > 0 ? state.calibrationResidualSum / state.calibrationResidualCount : 0;
+  const residualVariance =
+    state.calibrationResidualCount > 0 ? state.calibrationResidualSum / state.calibrationResidualCount : 0;
 
-  const blankRows = design.map((row, i) => (Array.from({ length: p }, (_, j) => row[j]!).every((value) => value === 0) ? i : -1)).filter((i) => i >= 0);
+  const blankRows = design
+    .map((row, i) => (Array.from({ length: p }, (_, j) => row[j]!).every((value) => value === 0) ? i : -1))
+    .filter((i) => i >= 0);
   let blankVariance: number | null = null;
   let residualOverBlank: number | null = null;
   let residualOverBlankLimit: number | null = null;
@@ -931,7 +1012,11 @@ function diagnoseLackOfFit(input: {
     blankVariance = energy / (blankRows.length * baseCount);
     if (blankVariance > 0 && residualVariance > 0) {
       residualOverBlank = residualVariance / blankVariance;
-      residualOverBlankLimit = fQuantile(TEST_PROBABILITY, state.calibrationDegreesOfFreedom, (blankRows.length * baseCount) / squareSum);
+      residualOverBlankLimit = fQuantile(
+        TEST_PROBABILITY,
+        state.calibrationDegreesOfFreedom,
+        (blankRows.length * baseCount) / squareSum,
+      );
     }
   }
 
@@ -955,7 +1040,8 @@ function diagnoseLackOfFit(input: {
         throw error;
       }
       const removed = Math.max(state.calibrationResidualSum - reduced, 0);
-      const fStatistic = reduced > 0 ? removed / baseCount / (reduced / ((n - q - 1) * baseCount)) : Number.POSITIVE_INFINITY;
+      const fStatistic =
+        reduced > 0 ? removed / baseCount / (reduced / ((n - q - 1) * baseCount)) : Number.POSITIVE_INFINITY;
       secondOrderGains.push({
         component: components[c]!.name,
         residualReduction: removed / state.calibrationResidualSum,
@@ -964,8 +1050,18 @@ function diagnoseLackOfFit(input: {
       });
     }
   }
-  const aboveNoise = residualOverBlank !== null && residualOverBlankLimit !== null && residualOverBlank > Math.max(residualOverBlankLimit, DEFAULT_POOR_FIT_RATIO ** 2);
-  const partial: ClsLackOfFit = { blanks: blankRows.length, blankVariance, residualOverBlank, residualOverBlankLimit, secondOrderGains, detected: false };
+  const aboveNoise =
+    residualOverBlank !== null &&
+    residualOverBlankLimit !== null &&
+    residualOverBlank > Math.max(residualOverBlankLimit, DEFAULT_POOR_FIT_RATIO ** 2);
+  const partial: ClsLackOfFit = {
+    blanks: blankRows.length,
+    blankVariance,
+    residualOverBlank,
+    residualOverBlankLimit,
+    secondOrderGains,
+    detected: false,
+  };
   return { ...partial, detected: aboveNoise || helpfulGains(partial).length > 0 };
 }
 
@@ -982,14 +1078,22 @@ export interface ClsStatePredictOptions {
 
 /** Least-squares solution of a small system by Householder QR (ml-matrix); rows ≥ columns. */
 function solveSmall(matrix: readonly (readonly number[])[], rhs: readonly (readonly number[])[]): number[][] {
-  return toArrays(new QrDecomposition(new Matrix(matrix.map((row) => Array.from(row)))).solve(new Matrix(rhs.map((row) => Array.from(row)))));
+  return toArrays(
+    new QrDecomposition(new Matrix(matrix.map((row) => Array.from(row)))).solve(
+      new Matrix(rhs.map((row) => Array.from(row))),
+    ),
+  );
 }
 
 /**
  * Predicts φ-scaled concentrations of one sample (responses on the model's channels, not
  * modified) with standard errors, residual and fit diagnostics.
  */
-function predictRaw(state: ClsState, sample: ArrayLike<number>, options: ClsStatePredictOptions): RawPrediction {
+function predictRaw(
+  state: ClsState,
+  sample: ArrayLike<number>,
+  options: ClsStatePredictOptions,
+): RawPrediction {
   const { terms, pureSpectra, predictionMatrix, responseFactor } = state;
   const p = state.componentCount;
   const q = terms.length;
@@ -1056,7 +1160,10 @@ function predictRaw(state: ClsState, sample: ArrayLike<number>, options: ClsStat
     }
     if (!converged) warnings.push('second-order solution: Gauss–Newton did not converge in 50 iterations');
     const pseudoInverse = solveSmall(jacobian(c), identity(q)); // p × q
-    covarianceFactor = multiplyMatrices(multiplyMatrices(pseudoInverse, state.noiseGram), transpose(pseudoInverse));
+    covarianceFactor = multiplyMatrices(
+      multiplyMatrices(pseudoInverse, state.noiseGram),
+      transpose(pseudoInverse),
+    );
   }
 
   const theta = termValues(terms, c);
@@ -1072,10 +1179,15 @@ function predictRaw(state: ClsState, sample: ArrayLike<number>, options: ClsStat
   const sampleVariance = state.sampleResidualCount > 0 ? residualSum / state.sampleResidualCount : Number.NaN;
   const hasCalibrationResidual = state.calibrationResidualCount > 0;
   const floor = (1e-13 * state.responseScale) ** 2;
-  const calibrationVariance = hasCalibrationResidual ? Math.max(state.calibrationResidualSum / state.calibrationResidualCount, floor) : Number.NaN;
+  const calibrationVariance = hasCalibrationResidual
+    ? Math.max(state.calibrationResidualSum / state.calibrationResidualCount, floor)
+    : Number.NaN;
   const fitRatio = hasCalibrationResidual ? sampleVariance / calibrationVariance : Number.NaN;
   const fitRatioLimit = hasCalibrationResidual
-    ? Math.max(fQuantile(TEST_PROBABILITY, state.sampleDegreesOfFreedom, state.calibrationDegreesOfFreedom), options.poorFitRatio ** 2)
+    ? Math.max(
+        fQuantile(TEST_PROBABILITY, state.sampleDegreesOfFreedom, state.calibrationDegreesOfFreedom),
+        options.poorFitRatio ** 2,
+      )
     : Number.NaN;
   const poorFit = hasCalibrationResidual && fitRatio > fitRatioLimit;
   let variance: number;
@@ -1084,7 +1196,9 @@ function predictRaw(state: ClsState, sample: ArrayLike<number>, options: ClsStat
     variance = sampleVariance;
     degreesOfFreedom = state.sampleDegreesOfFreedom;
   } else {
-    variance = (residualSum + state.calibrationResidualSum) / (state.sampleResidualCount + state.calibrationResidualCount);
+    variance =
+      (residualSum + state.calibrationResidualSum) /
+      (state.sampleResidualCount + state.calibrationResidualCount);
     degreesOfFreedom = state.sampleDegreesOfFreedom + state.calibrationDegreesOfFreedom;
   }
   const leverage = 1 + quadraticForm(state.concentrationGramInverse, theta);
@@ -1094,7 +1208,18 @@ function predictRaw(state: ClsState, sample: ArrayLike<number>, options: ClsStat
     const inflation = options.inflate ? state.inflation[j]! : 1;
     standardErrors[j] = Math.sqrt(variance * leverage * factor) * inflation;
   }
-  return { scaled: c, standardErrors, residual, residualSum, fitRatio, fitRatioLimit, poorFit, degreesOfFreedom, iterations: q > p ? iterations : 0, warnings };
+  return {
+    scaled: c,
+    standardErrors,
+    residual,
+    residualSum,
+    fitRatio,
+    fitRatioLimit,
+    poorFit,
+    degreesOfFreedom,
+    iterations: q > p ? iterations : 0,
+    warnings,
+  };
 }
 
 /**
@@ -1116,18 +1241,30 @@ export function predictClsState(
   options: { phi: number; level: number; poorFitRatio: number; channelWord: string },
 ): ClsPrediction {
   if (sample.length !== model.channelCount) {
-    throw new BandwrightError('INVALID_VALUE', `sample has ${sample.length} ${options.channelWord}s, the model was fitted on ${model.channelCount}, must be equal`, { parameter: 'spectrum' });
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `sample has ${sample.length} ${options.channelWord}s, the model was fitted on ${model.channelCount}, must be equal`,
+      { parameter: 'spectrum' },
+    );
   }
   for (let j = 0; j < sample.length; j++) {
     if (!Number.isFinite(sample[j])) {
-      throw new BandwrightError('INVALID_VALUE', `sample ${options.channelWord} ${j} = ${sample[j]}, must be a finite number`, { parameter: 'spectrum' });
+      throw new BandwrightError(
+        'INVALID_VALUE',
+        `sample ${options.channelWord} ${j} = ${sample[j]}, must be a finite number`,
+        { parameter: 'spectrum' },
+      );
     }
   }
   if (!(Number.isFinite(options.phi) && options.phi > 0)) {
-    throw new BandwrightError('INVALID_VALUE', `phi = ${options.phi}, must be a finite number > 0`, { parameter: 'phi' });
+    throw new BandwrightError('INVALID_VALUE', `phi = ${options.phi}, must be a finite number > 0`, {
+      parameter: 'phi',
+    });
   }
   if (!(options.poorFitRatio >= 1)) {
-    throw new BandwrightError('INVALID_VALUE', `poorFitRatio = ${options.poorFitRatio}, must be >= 1`, { parameter: 'poorFitRatio' });
+    throw new BandwrightError('INVALID_VALUE', `poorFitRatio = ${options.poorFitRatio}, must be >= 1`, {
+      parameter: 'poorFitRatio',
+    });
   }
   const raw = predictRaw(state, sample, { poorFitRatio: options.poorFitRatio, inflate: true });
   const t = criticalT(options.level, raw.degreesOfFreedom);
@@ -1137,10 +1274,19 @@ export function predictClsState(
     const scaled = raw.scaled[j]!;
     const se = raw.standardErrors[j]!;
     const range = model.ranges[j]!;
-    const flags: 'extrapolated'[] = scaled > range.max + se || scaled < range.min - se ? ['extrapolated'] : [];
+    const flags: 'extrapolated'[] =
+      scaled > range.max + se || scaled < range.min - se ? ['extrapolated'] : [];
     const value = scaled / options.phi;
     const seValue = se / options.phi;
-    const estimate: ClsEstimate = { name: component.name, unit: component.unit, value, se: seValue, low: value - t * seValue, high: value + t * seValue, flags };
+    const estimate: ClsEstimate = {
+      name: component.name,
+      unit: component.unit,
+      value,
+      se: seValue,
+      low: value - t * seValue,
+      high: value + t * seValue,
+      flags,
+    };
     (component.reported ? estimates : interferents).push(estimate);
   });
   return {
@@ -1176,7 +1322,10 @@ export function prepareClsState(model: ClsCoreModel, nuisance: readonly Float64A
     responseFactor: model.responseFactor,
     noiseGram: model.noiseGram,
     concentrationGramInverse: model.concentrationGramInverse,
-    linearCovarianceFactor: multiplyMatrices(multiplyMatrices(rInverse, model.noiseGram), transpose(rInverse)),
+    linearCovarianceFactor: multiplyMatrices(
+      multiplyMatrices(rInverse, model.noiseGram),
+      transpose(rInverse),
+    ),
     nuisance,
     calibrationResidualSum: model.calibration.residualVariance * model.calibration.residualCount,
     calibrationResidualCount: model.calibration.residualCount,
@@ -1257,7 +1406,14 @@ export function fitClsCore(data: ClsCoreData, options: ClsCoreOptions): ClsCoreM
       { parameter: 'spectra' },
     );
   }
-  const lackOfFit = diagnoseLackOfFit({ projected, design, components, terms, fitted, conditionLimit: options.conditionLimit });
+  const lackOfFit = diagnoseLackOfFit({
+    projected,
+    design,
+    components,
+    terms,
+    fitted,
+    conditionLimit: options.conditionLimit,
+  });
   const checks = checkPureSpectra({
     fitted,
     projected,
@@ -1296,7 +1452,10 @@ export function fitClsCore(data: ClsCoreData, options: ClsCoreOptions): ClsCoreM
       if (isBandwrightError(error, 'SINGULAR') || isBandwrightError(error, 'INSUFFICIENT_DATA')) continue;
       throw error;
     }
-    const raw = predictRaw(reduced.state, data.responses[left]!, { poorFitRatio: DEFAULT_POOR_FIT_RATIO, inflate: false });
+    const raw = predictRaw(reduced.state, data.responses[left]!, {
+      poorFitRatio: DEFAULT_POOR_FIT_RATIO,
+      inflate: false,
+    });
     predictions++;
     const phi = data.phi[left]!;
     for (let j = 0; j < p; j++) {
@@ -1306,7 +1465,8 @@ export function fitClsCore(data: ClsCoreData, options: ClsCoreOptions): ClsCoreM
       if (se > 0 && Number.isFinite(se)) standardized[j]!.push(error / se);
     }
   }
-  const meanSquare = (values: readonly number[]): number | null => (values.length > 0 ? values.reduce((sum, v) => sum + v * v, 0) / values.length : null);
+  const meanSquare = (values: readonly number[]): number | null =>
+    values.length > 0 ? values.reduce((sum, v) => sum + v * v, 0) / values.length : null;
   const rmsecv = errors.map((values) => {
     const ms = meanSquare(values);
     return ms === null ? null : Math.sqrt(ms);
@@ -1323,7 +1483,10 @@ export function fitClsCore(data: ClsCoreData, options: ClsCoreOptions): ClsCoreM
     return ms > limit ? Math.sqrt(ms) : 1;
   });
   const thresholdCount = Math.max(...standardized.map((values) => values.length));
-  const threshold = thresholdCount > 0 && calibrationDf > 0 ? fQuantile(TEST_PROBABILITY, thresholdCount, calibrationDf) : null;
+  const threshold =
+    thresholdCount > 0 && calibrationDf > 0
+      ? fQuantile(TEST_PROBABILITY, thresholdCount, calibrationDf)
+      : null;
 
   const ranges = components.map((_, j) => {
     let min = Infinity;
@@ -1334,9 +1497,14 @@ export function fitClsCore(data: ClsCoreData, options: ClsCoreOptions): ClsCoreM
     }
     return { min, max };
   });
-  const calibrationVariance = state.calibrationResidualCount > 0 ? state.calibrationResidualSum / state.calibrationResidualCount : 0;
+  const calibrationVariance =
+    state.calibrationResidualCount > 0 ? state.calibrationResidualSum / state.calibrationResidualCount : 0;
   return {
-    components: components.map((component) => ({ name: component.name, reported: component.reported, unit: component.unit })),
+    components: components.map((component) => ({
+      name: component.name,
+      reported: component.reported,
+      unit: component.unit,
+    })),
     terms,
     channelCount: channels,
     pureSpectra: state.pureSpectra.map((row) => Array.from(row)),
@@ -1345,7 +1513,11 @@ export function fitClsCore(data: ClsCoreData, options: ClsCoreOptions): ClsCoreM
     noiseGram: state.noiseGram.map((row) => row.slice()),
     concentrationGramInverse: state.concentrationGramInverse.map((row) => row.slice()),
     noiseCorrelation: correlation,
-    segments: options.segments.map((segment) => ({ start: segment.start, end: segment.end, region: segment.region })),
+    segments: options.segments.map((segment) => ({
+      start: segment.start,
+      end: segment.end,
+      region: segment.region,
+    })),
     sampleResidualCount: state.sampleResidualCount,
     sampleDegreesOfFreedom: state.sampleDegreesOfFreedom,
     ranges,
@@ -1369,14 +1541,23 @@ export function fitClsCore(data: ClsCoreData, options: ClsCoreOptions): ClsCoreM
 }
 
 /** The warning a calibration that passes its checks carries when its residual is lack of fit. */
-function lackOfFitWarnings(lackOfFit: ClsLackOfFit, state: ClsState, components: readonly ClsComponent[], inflation: readonly number[]): string[] {
+function lackOfFitWarnings(
+  lackOfFit: ClsLackOfFit,
+  state: ClsState,
+  components: readonly ClsComponent[],
+  inflation: readonly number[],
+): string[] {
   if (!lackOfFit.detected) return [];
-  const widened = components.map((component, j) => ({ name: component.name, factor: inflation[j]! })).filter((entry) => entry.factor > 1);
+  const widened = components
+    .map((component, j) => ({ name: component.name, factor: inflation[j]! }))
+    .filter((entry) => entry.factor > 1);
   const consequence =
     widened.length > 0
       ? `cross-validation widens the intervals (${widened.map((entry) => `${entry.name} ×${entry.factor.toFixed(2)}`).join(', ')}) to cover it`
       : 'cross-validation does not show it in the estimates, but results near the ends of the calibrated range may be biased';
-  return [`lack of fit: ${describeLackOfFit(lackOfFit, state)}; ${consequence}; ${lackOfFitAdvice(lackOfFit)}`];
+  return [
+    `lack of fit: ${describeLackOfFit(lackOfFit, state)}; ${consequence}; ${lackOfFitAdvice(lackOfFit)}`,
+  ];
 }
 
 /** Puts the shared engine's collinearity message in the words of a calibration. */

@@ -77,7 +77,11 @@ export function estimateCorrelation(
  * @param segments - contiguous channel runs covering the channels
  * @returns a new array R v
  */
-export function multiplyCorrelation(v: ArrayLike<number>, correlation: readonly number[], segments: readonly ChannelSegment[]): Float64Array {
+export function multiplyCorrelation(
+  v: ArrayLike<number>,
+  correlation: readonly number[],
+  segments: readonly ChannelSegment[],
+): Float64Array {
   const out = Float64Array.from(v);
   const maxLag = correlation.length - 1;
   if (maxLag === 0) return out;

@@ -15,8 +15,24 @@ import type { ClsComponent, ClsCoreModel, ClsPrediction, ClsState } from './cls-
 import { DEFAULT_POOR_FIT_RATIO, fitClsCore, prepareClsState, predictClsState } from './cls-core.js';
 import { validateClsInputs } from './cls-validate.js';
 
-export type { ClsComponent, ClsEstimate, ClsFlag, ClsPrediction, ClsCalibrationStatistics, ClsCrossValidation, ClsLackOfFit, ClsRange, ClsSecondOrderGain, ClsTerm } from './cls-core.js';
-export { DEFAULT_CLS_CONDITION_LIMIT, DEFAULT_POOR_FIT_RATIO, MINIMUM_SEPARATION_RATIO, SUBSTANTIAL_REDUCTION } from './cls-core.js';
+export type {
+  ClsComponent,
+  ClsEstimate,
+  ClsFlag,
+  ClsPrediction,
+  ClsCalibrationStatistics,
+  ClsCrossValidation,
+  ClsLackOfFit,
+  ClsRange,
+  ClsSecondOrderGain,
+  ClsTerm,
+} from './cls-core.js';
+export {
+  DEFAULT_CLS_CONDITION_LIMIT,
+  DEFAULT_POOR_FIT_RATIO,
+  MINIMUM_SEPARATION_RATIO,
+  SUBSTANTIAL_REDUCTION,
+} from './cls-core.js';
 
 /** Standards for a spectral CLS fit. Nothing here is modified. */
 export interface ClsData {
@@ -108,45 +124,84 @@ function positionsOf(channels: number | Float64Array): ArrayLike<number> {
 export function fitCls(data: ClsData, options: ClsFitOptions = {}): ClsModel {
   const channelCount = typeof data.channels === 'number' ? data.channels : data.channels.length;
   const validated = validateClsInputs(
-    { responses: data.spectra, concentrations: data.concentrations, phi: data.phi, components: data.components, standardLabels: data.standardLabels },
+    {
+      responses: data.spectra,
+      concentrations: data.concentrations,
+      phi: data.phi,
+      components: data.components,
+      standardLabels: data.standardLabels,
+    },
     options,
     { channelCount, channelWord: 'channel', responsesName: 'spectra' },
   );
   const baselineOrder = options.baselineOrder ?? 1;
   if (!(Number.isInteger(baselineOrder) && baselineOrder >= 0 && baselineOrder <= MAX_BASELINE_ORDER)) {
-    throw new BandwrightError('INVALID_VALUE', `baselineOrder = ${baselineOrder}, must be an integer 0…${MAX_BASELINE_ORDER}`, { parameter: 'baselineOrder' });
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `baselineOrder = ${baselineOrder}, must be an integer 0…${MAX_BASELINE_ORDER}`,
+      { parameter: 'baselineOrder' },
+    );
   }
   if (typeof data.channels !== 'number') {
     for (let j = 0; j < channelCount; j++) {
       if (!Number.isFinite(data.channels[j])) {
-        throw new BandwrightError('INVALID_VALUE', `channels[${j}] = ${data.channels[j]}, grid values must be finite numbers (cm⁻¹)`, { parameter: 'channels' });
+        throw new BandwrightError(
+          'INVALID_VALUE',
+          `channels[${j}] = ${data.channels[j]}, grid values must be finite numbers (cm⁻¹)`,
+          { parameter: 'channels' },
+        );
       }
     }
   }
   const regionOf = Float64Array.from({ length: channelCount }, (_, j) => data.regionOf?.[j] ?? 0);
   if (data.regionOf !== undefined && data.regionOf.length !== channelCount) {
-    throw new BandwrightError('INVALID_VALUE', `regionOf has ${data.regionOf.length} labels for ${channelCount} channels, must be equal`, { parameter: 'regionOf' });
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `regionOf has ${data.regionOf.length} labels for ${channelCount} channels, must be equal`,
+      { parameter: 'regionOf' },
+    );
   }
   regionOf.forEach((label, j) => {
     if (!(Number.isInteger(label) && label >= 0)) {
-      throw new BandwrightError('INVALID_VALUE', `regionOf[${j}] = ${label}, must be an integer >= 0`, { parameter: 'regionOf' });
+      throw new BandwrightError('INVALID_VALUE', `regionOf[${j}] = ${label}, must be an integer >= 0`, {
+        parameter: 'regionOf',
+      });
     }
   });
   let background: Float64Array | undefined;
   if (options.background !== undefined) {
     if (options.background.length !== channelCount) {
-      throw new BandwrightError('INVALID_VALUE', `background has ${options.background.length} values for ${channelCount} channels, must be equal`, { parameter: 'background' });
+      throw new BandwrightError(
+        'INVALID_VALUE',
+        `background has ${options.background.length} values for ${channelCount} channels, must be equal`,
+        { parameter: 'background' },
+      );
     }
     background = Float64Array.from(options.background);
     background.forEach((value, j) => {
-      if (!Number.isFinite(value)) throw new BandwrightError('INVALID_VALUE', `background channel ${j} = ${value}, must be a finite number`, { parameter: 'background' });
+      if (!Number.isFinite(value))
+        throw new BandwrightError(
+          'INVALID_VALUE',
+          `background channel ${j} = ${value}, must be a finite number`,
+          { parameter: 'background' },
+        );
     });
   }
   const positions = positionsOf(data.channels);
-  const nuisance = nuisanceBasis({ positions, regionOf, order: baselineOrder, ...(background ? { background } : {}) });
+  const nuisance = nuisanceBasis({
+    positions,
+    regionOf,
+    order: baselineOrder,
+    ...(background ? { background } : {}),
+  });
   const segments = channelSegments(regionOf, positions);
   const core = fitClsCore(
-    { responses: data.spectra, concentrations: data.concentrations, phi: data.phi, components: data.components },
+    {
+      responses: data.spectra,
+      concentrations: data.concentrations,
+      phi: data.phi,
+      components: data.components,
+    },
     {
       level: validated.level,
       conditionLimit: validated.conditionLimit,
@@ -206,7 +261,11 @@ function stateOf(model: ClsModel): ClsState {
  * const result = predictCls(model, sampleAbsorbance, { phi: 1 });
  * result.estimates[0]; // { name: 'CO', value: 71.3, se: 0.4, low: 70.5, high: 72.1, ... }
  */
-export function predictCls(model: ClsModel, spectrum: ArrayLike<number>, options: ClsPredictOptions): ClsPrediction {
+export function predictCls(
+  model: ClsModel,
+  spectrum: ArrayLike<number>,
+  options: ClsPredictOptions,
+): ClsPrediction {
   const prediction = predictClsState(model, stateOf(model), spectrum, {
     phi: options.phi,
     level: options.level ?? model.level,
@@ -215,7 +274,9 @@ export function predictCls(model: ClsModel, spectrum: ArrayLike<number>, options
   });
   // Finite but huge absorbances (a corrupt or mis-scaled file) overflow the least squares; such an
   // estimate must be an error, never a concentration.
-  const broken = [...prediction.estimates, ...prediction.interferents].find((e) => ![e.value, e.se, e.low, e.high].every(Number.isFinite));
+  const broken = [...prediction.estimates, ...prediction.interferents].find(
+    (e) => ![e.value, e.se, e.low, e.high].every(Number.isFinite),
+  );
   if (broken !== undefined || !Number.isFinite(prediction.residualRms)) {
     let largest = 0;
     for (let j = 0; j < spectrum.length; j++) largest = Math.max(largest, Math.abs(spectrum[j] as number));

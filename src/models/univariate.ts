@@ -37,7 +37,12 @@ import { BandwrightError } from '../errors.js';
 import { criticalT } from '../stats/distributions.js';
 import { leastSquares, type LeastSquaresFit } from '../stats/least-squares.js';
 import { mandelTest, type MandelResult } from '../stats/mandel.js';
-import { curveLimits, straightLineLimits, type CalibrationLimits, type LimitValue } from '../stats/detection.js';
+import {
+  curveLimits,
+  straightLineLimits,
+  type CalibrationLimits,
+  type LimitValue,
+} from '../stats/detection.js';
 
 /** Shape of the calibration curve. */
 export type CurveForm = 'linear' | 'origin' | 'quadratic';
@@ -220,13 +225,22 @@ function short(value: number): string {
 }
 
 function checkSeries(values: unknown, name: string): number[] {
-  if (!Array.isArray(values)) throw new BandwrightError('INVALID_VALUE', `${name} must be an array of numbers`, { parameter: name });
+  if (!Array.isArray(values))
+    throw new BandwrightError('INVALID_VALUE', `${name} must be an array of numbers`, { parameter: name });
   return values.map((value: unknown, i: number) => {
     if (typeof value !== 'number' || !Number.isFinite(value)) {
-      throw new BandwrightError('INVALID_VALUE', `${name}[${i}] = ${String(value)}, must be a finite number`, { parameter: `${name}[${i}]` });
+      throw new BandwrightError(
+        'INVALID_VALUE',
+        `${name}[${i}] = ${String(value)}, must be a finite number`,
+        { parameter: `${name}[${i}]` },
+      );
     }
     if (Math.abs(value) > MAX_MAGNITUDE) {
-      throw new BandwrightError('INVALID_VALUE', `${name}[${i}] = ${String(value)}, must be within ±${MAX_MAGNITUDE} (sums of squares must stay finite in double precision)`, { parameter: `${name}[${i}]` });
+      throw new BandwrightError(
+        'INVALID_VALUE',
+        `${name}[${i}] = ${String(value)}, must be within ±${MAX_MAGNITUDE} (sums of squares must stay finite in double precision)`,
+        { parameter: `${name}[${i}]` },
+      );
     }
     return value;
   });
@@ -279,14 +293,19 @@ export function weightAt(model: Pick<UnivariateModel, 'weighting'>, concentratio
   return model.weighting.scale * rawWeight(model.weighting, concentration);
 }
 
-function groupLevels(concentration: readonly number[], response: readonly number[]): { level: number; responses: number[] }[] {
+function groupLevels(
+  concentration: readonly number[],
+  response: readonly number[],
+): { level: number; responses: number[] }[] {
   const byLevel = new Map<number, number[]>();
   concentration.forEach((x, i) => {
     const list = byLevel.get(x) ?? [];
     list.push(response[i] as number);
     byLevel.set(x, list);
   });
-  return [...byLevel.entries()].sort((p, q) => p[0] - q[0]).map(([level, responses]) => ({ level, responses }));
+  return [...byLevel.entries()]
+    .sort((p, q) => p[0] - q[0])
+    .map(([level, responses]) => ({ level, responses }));
 }
 
 function sampleSD(values: readonly number[]): number {
@@ -312,14 +331,18 @@ function toOriginalUnits(degree: 1 | 2, centre: number, scale: number): number[]
   const t: number[][] = [0, 1, 2].map(() => new Array<number>(degree + 1).fill(0));
   for (let j = 0; j <= degree; j++) {
     for (let i = 0; i <= j; i++) {
-      (t[i] as number[])[j] = ((binomial[j] as number[])[i] as number) * (-centre) ** (j - i) / scale ** j;
+      (t[i] as number[])[j] = (((binomial[j] as number[])[i] as number) * (-centre) ** (j - i)) / scale ** j;
     }
   }
   return t;
 }
 
 function multiply(a: readonly (readonly number[])[], b: readonly (readonly number[])[]): number[][] {
-  return a.map((row) => (b[0] as readonly number[]).map((_, j) => row.reduce((sum, value, k) => sum + value * ((b[k] as readonly number[])[j] as number), 0)));
+  return a.map((row) =>
+    (b[0] as readonly number[]).map((_, j) =>
+      row.reduce((sum, value, k) => sum + value * ((b[k] as readonly number[])[j] as number), 0),
+    ),
+  );
 }
 
 function transpose(a: readonly (readonly number[])[]): number[][] {
@@ -332,24 +355,53 @@ interface FormFit {
   covariance: number[][];
 }
 
-function fitForm(form: CurveForm, x: readonly number[], y: readonly number[], weights: readonly number[], centre: number, scale: number): FormFit {
+function fitForm(
+  form: CurveForm,
+  x: readonly number[],
+  y: readonly number[],
+  weights: readonly number[],
+  centre: number,
+  scale: number,
+): FormFit {
   if (form === 'origin') {
-    const fit = leastSquares(x.map((value) => [value]), y, { weights, columnNames: ['concentration'] });
+    const fit = leastSquares(
+      x.map((value) => [value]),
+      y,
+      { weights, columnNames: ['concentration'] },
+    );
     const b = fit.coefficients[0] as number;
     const variance = (fit.covariance[0] as number[])[0] as number;
-    return { fit, coefficients: { a: 0, b, c: 0 }, covariance: [[0, 0, 0], [0, variance, 0], [0, 0, 0]] };
+    return {
+      fit,
+      coefficients: { a: 0, b, c: 0 },
+      covariance: [
+        [0, 0, 0],
+        [0, variance, 0],
+        [0, 0, 0],
+      ],
+    };
   }
   const degree = form === 'linear' ? 1 : 2;
-  const names = degree === 1 ? ['intercept', 'concentration'] : ['intercept', 'concentration', 'concentration²'];
+  const names =
+    degree === 1 ? ['intercept', 'concentration'] : ['intercept', 'concentration', 'concentration²'];
   const fit = leastSquares(polynomialDesign(x, degree, centre, scale), y, { weights, columnNames: names });
   const t = toOriginalUnits(degree, centre, scale);
-  const original = t.map((row) => row.reduce((sum, value, j) => sum + value * (fit.coefficients[j] as number), 0));
+  const original = t.map((row) =>
+    row.reduce((sum, value, j) => sum + value * (fit.coefficients[j] as number), 0),
+  );
   const covariance = multiply(multiply(t, fit.covariance), transpose(t));
-  return { fit, coefficients: { a: original[0] as number, b: original[1] as number, c: original[2] as number }, covariance };
+  return {
+    fit,
+    coefficients: { a: original[0] as number, b: original[1] as number, c: original[2] as number },
+    covariance,
+  };
 }
 
 function unavailableLimits(reason: string, alpha: number, df: number): CalibrationLimits {
-  const none = (name: string): LimitValue => ({ value: null, definition: `${name}: not computed, ${reason}` });
+  const none = (name: string): LimitValue => ({
+    value: null,
+    definition: `${name}: not computed, ${reason}`,
+  });
   return {
     decision: none('decision limit'),
     detection: none('detection limit'),
@@ -367,7 +419,9 @@ function unavailableLimits(reason: string, alpha: number, df: number): Calibrati
 function quadraticForm(covariance: readonly (readonly number[])[], x: number): number {
   const g = [1, x, x * x];
   let sum = 0;
-  for (let i = 0; i < 3; i++) for (let j = 0; j < 3; j++) sum += (g[i] as number) * ((covariance[i] as readonly number[])[j] as number) * (g[j] as number);
+  for (let i = 0; i < 3; i++)
+    for (let j = 0; j < 3; j++)
+      sum += (g[i] as number) * ((covariance[i] as readonly number[])[j] as number) * (g[j] as number);
   return Math.max(0, sum);
 }
 
@@ -392,27 +446,52 @@ export function fitUnivariate(data: UnivariateData, options: UnivariateOptions):
   const x = checkSeries(data?.concentration, 'concentration');
   const y = checkSeries(data?.response, 'response');
   if (x.length !== y.length) {
-    throw new BandwrightError('INVALID_VALUE', `concentration has ${x.length} values and response has ${y.length}, must be equal (one response per standard)`, { parameter: 'response' });
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `concentration has ${x.length} values and response has ${y.length}, must be equal (one response per standard)`,
+      { parameter: 'response' },
+    );
   }
   const form = options?.form;
   if (!CURVE_FORMS.includes(form)) {
-    throw new BandwrightError('INVALID_VALUE', `form = ${JSON.stringify(form)}, must be one of ${CURVE_FORMS.join(', ')}`, { parameter: 'form' });
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `form = ${JSON.stringify(form)}, must be one of ${CURVE_FORMS.join(', ')}`,
+      { parameter: 'form' },
+    );
   }
   const scheme = options.weights ?? 'none';
   if (!WEIGHT_SCHEMES.includes(scheme)) {
-    throw new BandwrightError('INVALID_VALUE', `weights = ${JSON.stringify(scheme)}, must be one of ${WEIGHT_SCHEMES.join(', ')}`, { parameter: 'weights' });
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `weights = ${JSON.stringify(scheme)}, must be one of ${WEIGHT_SCHEMES.join(', ')}`,
+      { parameter: 'weights' },
+    );
   }
   const alpha = options.alpha ?? 0.05;
-  if (!(alpha > 0 && alpha < 0.5)) throw new BandwrightError('INVALID_VALUE', `alpha = ${alpha}, must be between 0 and 0.5`, { parameter: 'alpha' });
+  if (!(alpha > 0 && alpha < 0.5))
+    throw new BandwrightError('INVALID_VALUE', `alpha = ${alpha}, must be between 0 and 0.5`, {
+      parameter: 'alpha',
+    });
   x.forEach((value, i) => {
-    if (value < 0) throw new BandwrightError('INVALID_VALUE', `concentration[${i}] = ${value}, must be >= 0 (a certified concentration)`, { parameter: `concentration[${i}]` });
+    if (value < 0)
+      throw new BandwrightError(
+        'INVALID_VALUE',
+        `concentration[${i}] = ${value}, must be >= 0 (a certified concentration)`,
+        { parameter: `concentration[${i}]` },
+      );
   });
   const n = x.length;
   const parameters = FORM_PARAMETERS[form];
   const p = parameters.length;
   const groups = groupLevels(x, y);
   const levels = groups.map((group) => group.level);
-  if (n === 0) throw new BandwrightError('INSUFFICIENT_DATA', `no standards: a ${FORM_NAMES[form]} calibration needs at least ${p + 1} distinct concentration levels`, { parameter: 'concentration' });
+  if (n === 0)
+    throw new BandwrightError(
+      'INSUFFICIENT_DATA',
+      `no standards: a ${FORM_NAMES[form]} calibration needs at least ${p + 1} distinct concentration levels`,
+      { parameter: 'concentration' },
+    );
   if (levels.length === 1) {
     throw new BandwrightError(
       'INSUFFICIENT_DATA',
@@ -428,7 +507,11 @@ export function fitUnivariate(data: UnivariateData, options: UnivariateOptions):
     );
   }
   if (y.every((value) => value === y[0])) {
-    throw new BandwrightError('INVALID_VALUE', `every response is ${y[0] as number}: the response does not change with concentration, so no calibration can be made`, { parameter: 'response' });
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `every response is ${y[0] as number}: the response does not change with concentration, so no calibration can be made`,
+      { parameter: 'response' },
+    );
   }
 
   const warnings: string[] = [];
@@ -438,7 +521,11 @@ export function fitUnivariate(data: UnivariateData, options: UnivariateOptions):
   if (scheme === '1/x' || scheme === '1/x2') {
     if (options.weightFloor !== undefined) {
       if (!(Number.isFinite(options.weightFloor) && options.weightFloor > 0)) {
-        throw new BandwrightError('INVALID_VALUE', `weightFloor = ${options.weightFloor}, must be a finite concentration > 0 (it stands in for x in 1/x weights at and below it)`, { parameter: 'weightFloor' });
+        throw new BandwrightError(
+          'INVALID_VALUE',
+          `weightFloor = ${options.weightFloor}, must be a finite concentration > 0 (it stands in for x in 1/x weights at and below it)`,
+          { parameter: 'weightFloor' },
+        );
       }
       floor = options.weightFloor;
     } else {
@@ -448,7 +535,9 @@ export function fitUnivariate(data: UnivariateData, options: UnivariateOptions):
     rule = `w = 1/${power} with floor ${floor}${options.weightFloor === undefined ? ' (the lowest non-zero concentration)' : ''}, normalised so Σw = n`;
     const blanks = x.filter((value) => value < (floor as number)).length;
     if (blanks > 0) {
-      warnings.push(`weights ${scheme}: ${blanks} standard${blanks === 1 ? '' : 's'} below the floor ${floor} (e.g. zero-concentration blanks) weighted as if at ${floor}${options.weightFloor === undefined ? '; set weightFloor to choose another floor' : ''}`);
+      warnings.push(
+        `weights ${scheme}: ${blanks} standard${blanks === 1 ? '' : 's'} below the floor ${floor} (e.g. zero-concentration blanks) weighted as if at ${floor}${options.weightFloor === undefined ? '; set weightFloor to choose another floor' : ''}`,
+      );
     }
   } else if (scheme === 'replicates') {
     replicateLevels = groups.map((group) => {
@@ -461,11 +550,16 @@ export function fitUnivariate(data: UnivariateData, options: UnivariateOptions):
       }
       const sd = sampleSD(group.responses);
       if (!(sd > 0)) {
-        throw new BandwrightError('INVALID_VALUE', `weights replicates: the ${group.responses.length} replicates at concentration ${group.level} have identical responses (SD 0), so 1/s² is undefined`, { parameter: 'weights' });
+        throw new BandwrightError(
+          'INVALID_VALUE',
+          `weights replicates: the ${group.responses.length} replicates at concentration ${group.level} have identical responses (SD 0), so 1/s² is undefined`,
+          { parameter: 'weights' },
+        );
       }
       return { concentration: group.level, count: group.responses.length, sd };
     });
-    rule = 'w = 1/s(x)² with s the replicate SD at each level, linearly interpolated between levels and constant beyond them, normalised so Σw = n';
+    rule =
+      'w = 1/s(x)² with s the replicate SD at each level, linearly interpolated between levels and constant beyond them, normalised so Σw = n';
   }
   const provisional = { scheme, floor, levels: replicateLevels };
   const raw = x.map((value) => rawWeight(provisional, value));
@@ -494,13 +588,19 @@ export function fitUnivariate(data: UnivariateData, options: UnivariateOptions):
     try {
       const linear = form === 'linear' ? fit : fitForm('linear', x, y, weights, meanX, spread).fit;
       const quadratic = form === 'quadratic' ? fit : fitForm('quadratic', x, y, weights, meanX, spread).fit;
-      mandel = mandelTest({ n, linearResidualVariance: linear.rss / (n - 2), quadraticResidualVariance: quadratic.rss / (n - 3) });
+      mandel = mandelTest({
+        n,
+        linearResidualVariance: linear.rss / (n - 2),
+        quadraticResidualVariance: quadratic.rss / (n - 3),
+      });
     } catch (error) {
       if (!(error instanceof BandwrightError && error.code === 'SINGULAR')) throw error;
       warnings.push(`Mandel test not run: ${error.message}`);
     }
   } else {
-    warnings.push(`Mandel test not run: it needs at least 4 standards at 3 or more concentration levels (found ${n} at ${levels.length})`);
+    warnings.push(
+      `Mandel test not run: it needs at least 4 standards at 3 or more concentration levels (found ${n} at ${levels.length})`,
+    );
   }
   if (mandel !== null) {
     if (mandel.significant && form !== 'quadratic') warnings.push(`Mandel test: ${mandel.recommendation}`);
@@ -512,20 +612,26 @@ export function fitUnivariate(data: UnivariateData, options: UnivariateOptions):
     const interceptSE = Math.sqrt(Math.max(0, (straight.covariance[0] as number[])[0] as number));
     const tIntercept = criticalT(0.95, straight.fit.df);
     if (Math.abs(straight.coefficients.a) > tIntercept * interceptSE) {
-      warnings.push(`a straight line with intercept gives a = ${short(straight.coefficients.a)} ± ${short(interceptSE)} (standard error), significantly different from 0 at 95 %: a through-origin calibration is biased on these standards`);
+      warnings.push(
+        `a straight line with intercept gives a = ${short(straight.coefficients.a)} ± ${short(interceptSE)} (standard error), significantly different from 0 at 95 %: a through-origin calibration is biased on these standards`,
+      );
     }
   }
 
   const df = fit.df;
   const tSlope = criticalT(0.95, df);
   if (Math.abs(coefficients.b) < tSlope * standardErrors.b && form !== 'quadratic') {
-    warnings.push(`the slope b = ${short(coefficients.b)} is not significantly different from zero (standard error ${short(standardErrors.b)}, 95 %): concentrations inferred from this calibration are unreliable`);
+    warnings.push(
+      `the slope b = ${short(coefficients.b)} is not significantly different from zero (standard error ${short(standardErrors.b)}, 95 %): concentrations inferred from this calibration are unreliable`,
+    );
   }
   const range: [number, number] = [levels[0] as number, levels[levels.length - 1] as number];
   if (form === 'quadratic' && coefficients.c !== 0) {
     const vertex = -coefficients.b / (2 * coefficients.c);
     if (vertex > range[0] && vertex < range[1]) {
-      warnings.push(`the second-order curve turns at concentration ${short(vertex)}, inside the calibrated range ${range[0]}–${range[1]}: responses near the turn do not determine one concentration`);
+      warnings.push(
+        `the second-order curve turns at concentration ${short(vertex)}, inside the calibrated range ${range[0]}–${range[1]}: responses near the turn do not determine one concentration`,
+      );
     }
   }
 
@@ -565,16 +671,33 @@ export function fitUnivariate(data: UnivariateData, options: UnivariateOptions):
 function limitsFor(model: UnivariateModel): CalibrationLimits {
   const { form, coefficients, covariance, residualSD, df, alpha } = model;
   const slopeAtZero = coefficients.b;
-  if (!(residualSD > 0)) return unavailableLimits('the residual SD is 0 (the curve passes through every standard), so the noise cannot be estimated', alpha, df);
+  if (!(residualSD > 0))
+    return unavailableLimits(
+      'the residual SD is 0 (the curve passes through every standard), so the noise cannot be estimated',
+      alpha,
+      df,
+    );
   if (slopeAtZero === 0) return unavailableLimits('the slope at zero concentration is 0', alpha, df);
   if (form === 'linear' && model.weights === 'none') {
-    return straightLineLimits({ n: model.n, slope: coefficients.b, residualSD, meanX: model.meanX, sxx: model.sxx }, { alpha });
+    return straightLineLimits(
+      { n: model.n, slope: coefficients.b, residualSD, meanX: model.meanX, sxx: model.sxx },
+      { alpha },
+    );
   }
   const parts: string[] = [];
-  if (form === 'origin') parts.push('straight line through the origin: the blank response is fixed at 0, so Var ŷ(0) = 0 and df = n − 1');
+  if (form === 'origin')
+    parts.push(
+      'straight line through the origin: the blank response is fixed at 0, so Var ŷ(0) = 0 and df = n − 1',
+    );
   if (form === 'linear') parts.push('straight line');
-  if (form === 'quadratic') parts.push('second-order curve, linearised at zero concentration (slope b) for x_C and x_D and at x_Q for x_Q; df = n − 3');
-  if (model.weights !== 'none') parts.push(`weighted (${model.weighting.rule}): a new observation at x has variance s²/w(x), at zero concentration w(0) = w(${model.weighting.floor ?? 0})`);
+  if (form === 'quadratic')
+    parts.push(
+      'second-order curve, linearised at zero concentration (slope b) for x_C and x_D and at x_Q for x_Q; df = n − 3',
+    );
+  if (model.weights !== 'none')
+    parts.push(
+      `weighted (${model.weighting.rule}): a new observation at x has variance s²/w(x), at zero concentration w(0) = w(${model.weighting.floor ?? 0})`,
+    );
   return curveLimits(
     {
       df,
@@ -590,12 +713,20 @@ function limitsFor(model: UnivariateModel): CalibrationLimits {
 
 function checkResponses(responses: readonly number[]): { mean: number; m: number } {
   if (!Array.isArray(responses) || responses.length === 0) {
-    throw new BandwrightError('INVALID_VALUE', 'responses must be a non-empty array of numbers (the sample\'s replicate responses)', { parameter: 'responses' });
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      "responses must be a non-empty array of numbers (the sample's replicate responses)",
+      { parameter: 'responses' },
+    );
   }
   let sum = 0;
   responses.forEach((value: unknown, i: number) => {
     if (typeof value !== 'number' || !Number.isFinite(value)) {
-      throw new BandwrightError('INVALID_VALUE', `responses[${i}] = ${String(value)}, must be a finite number`, { parameter: `responses[${i}]` });
+      throw new BandwrightError(
+        'INVALID_VALUE',
+        `responses[${i}] = ${String(value)}, must be a finite number`,
+        { parameter: `responses[${i}]` },
+      );
     }
     sum += value;
   });
@@ -642,7 +773,12 @@ function invertQuadratic(model: UnivariateModel, target: number): number {
     const side = Math.sign((low + high) / 2 - vertex);
     const onBranch = roots.filter((candidate) => Math.sign(candidate - vertex) === side || side === 0);
     const pool = onBranch.length > 0 ? onBranch : roots;
-    root = pool.reduce((best, candidate) => (Math.min(Math.abs(candidate - low), Math.abs(candidate - high)) < Math.min(Math.abs(best - low), Math.abs(best - high)) ? candidate : best));
+    root = pool.reduce((best, candidate) =>
+      Math.min(Math.abs(candidate - low), Math.abs(candidate - high)) <
+      Math.min(Math.abs(best - low), Math.abs(best - high))
+        ? candidate
+        : best,
+    );
   }
   // One Newton step removes the last rounding of the closed form.
   const slope = b + 2 * c * root;
@@ -655,7 +791,14 @@ function invertQuadratic(model: UnivariateModel, target: number): number {
  * until the inequality fails and then bisecting. An end that is not found within 1e8 times the
  * calibrated range is unbounded (null).
  */
-function fiellerByBracketing(model: UnivariateModel, mean: number, m: number, t: number, start: number, se: number): { low: number | null; high: number | null } {
+function fiellerByBracketing(
+  model: UnivariateModel,
+  mean: number,
+  m: number,
+  t: number,
+  start: number,
+  se: number,
+): { low: number | null; high: number | null } {
   const { a, b, c } = model.coefficients;
   const s2 = model.residualSD * model.residualSD;
   const excess = (x: number): number => {
@@ -704,15 +847,30 @@ function fiellerByBracketing(model: UnivariateModel, mean: number, m: number, t:
  * const estimate = predictConcentration(model, [6.02, 6.11], { level: 0.95 });
  * [estimate.low, estimate.value, estimate.high];
  */
-export function predictConcentration(model: UnivariateModel, responses: readonly number[], options: PredictOptions = {}): ConcentrationEstimate {
+export function predictConcentration(
+  model: UnivariateModel,
+  responses: readonly number[],
+  options: PredictOptions = {},
+): ConcentrationEstimate {
   const level = options.level ?? 0.95;
   const method = options.method ?? 'standard';
-  if (!(level > 0 && level < 1)) throw new BandwrightError('INVALID_VALUE', `level = ${level}, must be strictly between 0 and 1`, { parameter: 'level' });
+  if (!(level > 0 && level < 1))
+    throw new BandwrightError('INVALID_VALUE', `level = ${level}, must be strictly between 0 and 1`, {
+      parameter: 'level',
+    });
   if (method !== 'standard' && method !== 'fieller') {
-    throw new BandwrightError('INVALID_VALUE', `method = ${JSON.stringify(method)}, must be standard or fieller`, { parameter: 'method' });
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `method = ${JSON.stringify(method)}, must be standard or fieller`,
+      { parameter: 'method' },
+    );
   }
   if (method === 'fieller' && model.form === 'quadratic') {
-    throw new BandwrightError('INVALID_VALUE', 'method = "fieller" applies to straight-line calibrations (linear or origin), the model is second-order', { parameter: 'method' });
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      'method = "fieller" applies to straight-line calibrations (linear or origin), the model is second-order',
+      { parameter: 'method' },
+    );
   }
   const { mean, m } = checkResponses(responses);
   const { a, b } = model.coefficients;
@@ -737,7 +895,9 @@ export function predictConcentration(model: UnivariateModel, responses: readonly
     value = (mean - a) / b;
     const w0 = weightAt(model, value);
     newObservationTerm = 1 / (m * w0);
-    variance = ((s * s) / (b * b)) * (newObservationTerm + 1 / model.sumWeights + (mean - model.meanResponse) ** 2 / (b * b * model.sxx));
+    variance =
+      ((s * s) / (b * b)) *
+      (newObservationTerm + 1 / model.sumWeights + (mean - model.meanResponse) ** 2 / (b * b * model.sxx));
     g = (t * t * s * s) / (b * b * model.sxx);
     description = `straight-line inverse prediction: x̂0 = (ȳ0 − a)/b ± t(${1 - (1 - level) / 2}, ${df})·s_x0, s_x0 = (s/|b|)·√(1/(m·w0) + 1/n + (ȳ0 − ȳ)²/(b²·Sxx))`;
   } else {
@@ -748,7 +908,8 @@ export function predictConcentration(model: UnivariateModel, responses: readonly
     g = (t * t * s * s) / (b * b * model.sumXSquared);
     description = `through-origin inverse prediction: x̂0 = ȳ0/b ± t(${1 - (1 - level) / 2}, ${df})·s_x0, s_x0 = (s/|b|)·√(1/(m·w0) + x̂0²/Σx²)`;
   }
-  if (model.weights !== 'none') description += `; w0 = w(x̂0) = ${short(weightAt(model, value))} from the calibration's weighting`;
+  if (model.weights !== 'none')
+    description += `; w0 = w(x̂0) = ${short(weightAt(model, value))} from the calibration's weighting`;
   const se = Math.sqrt(variance);
   // A response far outside the calibration (or a damaged model) can overflow the arithmetic; a
   // NaN or infinite estimate must never leave here looking like a result.
@@ -770,7 +931,11 @@ export function predictConcentration(model: UnivariateModel, responses: readonly
       if (model.form === 'linear') {
         // (D − b·z)² = t²s²(1/m + 1/n + z²/Sxx) with z = x − x̄ and D = ȳ0 − ȳ.
         const D = mean - model.meanResponse;
-        quadratic = [b * b * (1 - gValue), -2 * b * D, D * D - t * t * s * s * (newObservationTerm + 1 / model.sumWeights)];
+        quadratic = [
+          b * b * (1 - gValue),
+          -2 * b * D,
+          D * D - t * t * s * s * (newObservationTerm + 1 / model.sumWeights),
+        ];
         shift = model.meanX;
       } else {
         quadratic = [b * b * (1 - gValue), -2 * b * mean, mean * mean - t * t * s * s * newObservationTerm];
@@ -797,16 +962,38 @@ export function predictConcentration(model: UnivariateModel, responses: readonly
     }
     if (unbounded) {
       description += '; the slope is too poorly determined at this level, so the interval is unbounded';
-      warnings.push(`the Fieller interval is unbounded (g = ${short(gValue)}): the calibration's slope is too poorly determined to bound this concentration at level ${level}`);
+      warnings.push(
+        `the Fieller interval is unbounded (g = ${short(gValue)}): the calibration's slope is too poorly determined to bound this concentration at level ${level}`,
+      );
     }
   } else if (g !== null && g > 0.1) {
-    warnings.push(`the slope is poorly determined (g = ${short(g)} > 0.1): the standard interval is only approximate; use the Fieller method`);
+    warnings.push(
+      `the slope is poorly determined (g = ${short(g)} > 0.1): the standard interval is only approximate; use the Fieller method`,
+    );
   }
   const [rangeLow, rangeHigh] = model.range;
   const tolerance = 1e-9 * (rangeHigh - rangeLow);
   const extrapolated = value < rangeLow - tolerance || value > rangeHigh + tolerance;
-  if (extrapolated) warnings.push(`concentration ${short(value)} is outside the calibrated range ${rangeLow}–${rangeHigh} (extrapolated)`);
-  return { value, se, low, high, level, df, tCritical: t, m, meanResponse: mean, method: description, extrapolated, unbounded, g, warnings };
+  if (extrapolated)
+    warnings.push(
+      `concentration ${short(value)} is outside the calibrated range ${rangeLow}–${rangeHigh} (extrapolated)`,
+    );
+  return {
+    value,
+    se,
+    low,
+    high,
+    level,
+    df,
+    tCritical: t,
+    m,
+    meanResponse: mean,
+    method: description,
+    extrapolated,
+    unbounded,
+    g,
+    warnings,
+  };
 }
 
 /** Fitted response at a concentration with its confidence and prediction bands. */
@@ -832,16 +1019,25 @@ export interface ResponseBandPoint {
  * @returns one point per concentration
  * @throws BandwrightError `INVALID_VALUE` for a non-finite concentration or a level outside (0, 1)
  */
-export function responseBand(model: UnivariateModel, concentrations: readonly number[], options: { level?: number } = {}): ResponseBandPoint[] {
+export function responseBand(
+  model: UnivariateModel,
+  concentrations: readonly number[],
+  options: { level?: number } = {},
+): ResponseBandPoint[] {
   const level = options.level ?? 0.95;
   const t = criticalT(level, model.df);
   const { a, b, c } = model.coefficients;
   return concentrations.map((x, i) => {
-    if (!Number.isFinite(x)) throw new BandwrightError('INVALID_VALUE', `concentrations[${i}] = ${x}, must be a finite number`, { parameter: `concentrations[${i}]` });
+    if (!Number.isFinite(x))
+      throw new BandwrightError('INVALID_VALUE', `concentrations[${i}] = ${x}, must be a finite number`, {
+        parameter: `concentrations[${i}]`,
+      });
     const response = a + b * x + c * x * x;
     const fittedVariance = quadraticForm(model.covariance, x);
     const se = Math.sqrt(fittedVariance);
-    const predictionSE = Math.sqrt(fittedVariance + (model.residualSD * model.residualSD) / weightAt(model, x));
+    const predictionSE = Math.sqrt(
+      fittedVariance + (model.residualSD * model.residualSD) / weightAt(model, x),
+    );
     return {
       concentration: x,
       response,

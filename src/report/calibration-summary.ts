@@ -7,7 +7,11 @@ import { formatWindow } from '../bands/windows.js';
 import { unitLabel } from '../gas/units.js';
 import { formatNumber } from './table.js';
 
-const CURVE_WORDS = { linear: 'straight line r = a + b·c', origin: 'straight line through the origin r = b·c', quadratic: 'second order r = a + b·c + c2·c²' } as const;
+const CURVE_WORDS = {
+  linear: 'straight line r = a + b·c',
+  origin: 'straight line through the origin r = b·c',
+  quadratic: 'second order r = a + b·c + c2·c²',
+} as const;
 
 function gasSummary(gas: GasCalibration): string[] {
   const model = gas.model;
@@ -19,17 +23,32 @@ function gasSummary(gas: GasCalibration): string[] {
       ? 'from tabulated responses'
       : `${feature.response === 'area' ? 'band area' : 'peak height'} over ${formatWindow(feature.band)}${feature.baseline.length > 0 ? `, baseline order ${feature.baselineOrder} through ${feature.baseline.map(formatWindow).join(', ')}` : ', no baseline correction'}`;
   lines.push(`${gas.gas}: ${where}`);
-  lines.push(`  curve: ${CURVE_WORDS[model.form]}, ${model.weights === 'none' ? 'unweighted' : `weighted ${model.weights}`}; ${model.n} standards at ${model.levels.length} levels, ${formatNumber(model.range[0])}–${formatNumber(model.range[1])} ${unit}`);
-  const coefficient = (name: 'a' | 'b' | 'c', label: string): string => `${label} = ${formatNumber(model.coefficients[name], 6)} ± ${formatNumber(model.standardErrors[name], 2)}`;
-  lines.push(`  coefficients: ${model.parameters.map((p) => coefficient(p, p === 'c' ? 'c2' : p)).join(', ')}`);
-  lines.push(`  residual SD ${formatNumber(model.residualSD, 4)} (df ${model.df}), R² ${model.rSquared.toFixed(6)} (${model.rSquaredKind}), condition number ${formatNumber(model.conditionNumber, 3)}`);
+  lines.push(
+    `  curve: ${CURVE_WORDS[model.form]}, ${model.weights === 'none' ? 'unweighted' : `weighted ${model.weights}`}; ${model.n} standards at ${model.levels.length} levels, ${formatNumber(model.range[0])}–${formatNumber(model.range[1])} ${unit}`,
+  );
+  const coefficient = (name: 'a' | 'b' | 'c', label: string): string =>
+    `${label} = ${formatNumber(model.coefficients[name], 6)} ± ${formatNumber(model.standardErrors[name], 2)}`;
+  lines.push(
+    `  coefficients: ${model.parameters.map((p) => coefficient(p, p === 'c' ? 'c2' : p)).join(', ')}`,
+  );
+  lines.push(
+    `  residual SD ${formatNumber(model.residualSD, 4)} (df ${model.df}), R² ${model.rSquared.toFixed(6)} (${model.rSquaredKind}), condition number ${formatNumber(model.conditionNumber, 3)}`,
+  );
   if (model.mandel !== null) lines.push(`  linearity (Mandel test): ${model.mandel.recommendation}`);
-  const limit = (name: string, value: number | null): string => `${name} ${value === null ? 'not available' : `${formatNumber(value, 3)} ${unit}`}`;
+  const limit = (name: string, value: number | null): string =>
+    `${name} ${value === null ? 'not available' : `${formatNumber(value, 3)} ${unit}`}`;
   const limits = model.limits;
-  lines.push(`  limits: ${limit('decision', limits.decision.value)}, ${limit('detection', limits.detection.value)}, ${limit('determination', limits.determination.value)}`);
+  lines.push(
+    `  limits: ${limit('decision', limits.decision.value)}, ${limit('detection', limits.detection.value)}, ${limit('determination', limits.determination.value)}`,
+  );
   lines.push(`    (${limits.detection.definition})`);
-  lines.push(`  simple limits: ${limit('3.3σ/b', limits.ichDetection.value)}, ${limit('10σ/b', limits.ichQuantitation.value)} (ICH Q2)`);
-  if (gas.zeroGasLimit !== undefined) lines.push(`  zero-gas limit: ${formatNumber(gas.zeroGasLimit.value, 3)} ${unit} (${gas.zeroGasLimit.definition})`);
+  lines.push(
+    `  simple limits: ${limit('3.3σ/b', limits.ichDetection.value)}, ${limit('10σ/b', limits.ichQuantitation.value)} (ICH Q2)`,
+  );
+  if (gas.zeroGasLimit !== undefined)
+    lines.push(
+      `  zero-gas limit: ${formatNumber(gas.zeroGasLimit.value, 3)} ${unit} (${gas.zeroGasLimit.definition})`,
+    );
   for (const warning of model.warnings) lines.push(`  note: ${warning}`);
   return lines;
 }
@@ -74,7 +93,9 @@ export function formatCalibrationSummary(calibration: Calibration): string {
     `Reference conditions: path ${reference.pathLength_m} m, ${formatNumber(reference.temperature_K, 5)} K, ${formatNumber(reference.pressure_kPa, 6)} kPa (responses are scaled by φ = (L/L_ref)(P/P_ref)(T_ref/T))`,
     `Recheck: every ${calibration.method.recheck.everyDays} days, tolerance ±${calibration.method.recheck.tolerancePct} %`,
   ];
-  if (calibration.warnings.length > 0) lines.push('', 'Warnings:', ...calibration.warnings.map((w) => `  ${w}`));
-  if (calibration.cautions.length > 0) lines.push('', 'Caution:', ...calibration.cautions.map((c) => `  ${c}`));
+  if (calibration.warnings.length > 0)
+    lines.push('', 'Warnings:', ...calibration.warnings.map((w) => `  ${w}`));
+  if (calibration.cautions.length > 0)
+    lines.push('', 'Caution:', ...calibration.cautions.map((c) => `  ${c}`));
   return lines.join('\n');
 }

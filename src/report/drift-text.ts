@@ -49,7 +49,9 @@ export function trendCell(trend: DriftTrend): string {
   if (trend.status === 'none') return 'no significant drift';
   const projection = trend.projection;
   if (projection === undefined) return 'drift';
-  return projection.alreadyOutside ? `crossed ${projection.limitPct} % ${projection.date.slice(0, 10)}` : `${projection.limitPct} % by ${projection.date.slice(0, 10)}`;
+  return projection.alreadyOutside
+    ? `crossed ${projection.limitPct} % ${projection.date.slice(0, 10)}`
+    : `${projection.limitPct} % by ${projection.date.slice(0, 10)}`;
 }
 
 /**
@@ -67,29 +69,58 @@ export function formatRecheckText(outcome: RecheckOutcome): string {
   const tolerance = judged.evaluation.policy.tolerancePct;
   const rows: [string, string][] = [
     ['scan', `${record.scan} (sha256 ${record.scanSha256.slice(0, 12)}…)`],
-    ['measured at', `${record.time}${record.time === record.recordedAt ? '' : ` (recorded ${record.recordedAt})`}`],
+    [
+      'measured at',
+      `${record.time}${record.time === record.recordedAt ? '' : ` (recorded ${record.recordedAt})`}`,
+    ],
     ['certified', `${formatNumber(m.certified)} ${unit}${m.certified === 0 ? ' (zero gas)' : ''}`],
-    ['measured', `${formatNumber(m.measured)} ${unit}, ${level} interval ${formatNumber(m.low)} to ${formatNumber(m.high)} ${unit} (se ${formatNumber(m.se, 3)})`],
+    [
+      'measured',
+      `${formatNumber(m.measured)} ${unit}, ${level} interval ${formatNumber(m.low)} to ${formatNumber(m.high)} ${unit} (se ${formatNumber(m.se, 3)})`,
+    ],
   ];
   if (check.kind === 'span') {
-    rows.push(['recovery', `${percent(check.recoveryPct)} % (interval ${percent(check.recoveryLowPct)} to ${percent(check.recoveryHighPct)} %); tolerance ${percent(100 - tolerance)} to ${percent(100 + tolerance)} %`]);
+    rows.push([
+      'recovery',
+      `${percent(check.recoveryPct)} % (interval ${percent(check.recoveryLowPct)} to ${percent(check.recoveryHighPct)} %); tolerance ${percent(100 - tolerance)} to ${percent(100 + tolerance)} %`,
+    ]);
   } else if (m.detectionLimit !== undefined) {
     rows.push(['zero gas', `judged against the detection limit ${formatNumber(m.detectionLimit)} ${unit}`]);
   }
   if (m.z !== undefined) rows.push(['z', `${percent(m.z)}: (measured − certified) / se of the prediction`]);
   if (check.sigma !== undefined && check.limits !== undefined) {
     rows.push(['σ', check.sigma.reason]);
-    rows.push(['limits', `±2σ ${percent(check.limits.warning[0])}–${percent(check.limits.warning[1])} %, ±3σ ${percent(check.limits.action[0])}–${percent(check.limits.action[1])} %`]);
+    rows.push([
+      'limits',
+      `±2σ ${percent(check.limits.warning[0])}–${percent(check.limits.warning[1])} %, ±3σ ${percent(check.limits.action[0])}–${percent(check.limits.action[1])} %`,
+    ]);
   }
-  rows.push(['rules fired', check.rules.length === 0 ? 'none' : check.rules.map((r) => `${r.rule} (${r.severity})`).join(', ')]);
+  rows.push([
+    'rules fired',
+    check.rules.length === 0 ? 'none' : check.rules.map((r) => `${r.rule} (${r.severity})`).join(', '),
+  ]);
   for (const rule of check.rules) rows.push(['', `${rule.rule}: ${rule.reason}`]);
   rows.push(['verdict', `${check.verdict.toUpperCase()}: ${check.reasons[0] ?? ''}`]);
-  for (const reason of check.reasons.slice(1).filter((r) => !check.rules.some((rule) => r.startsWith(`${rule.rule}:`)))) rows.push(['', reason]);
+  for (const reason of check.reasons
+    .slice(1)
+    .filter((r) => !check.rules.some((rule) => r.startsWith(`${rule.rule}:`))))
+    rows.push(['', reason]);
   rows.push(['trend', judged.evaluation.trend.summary]);
-  rows.push(['next due', schedule.nextDue === undefined ? `none: ${schedule.reason}` : `${minute(schedule.nextDue)} (${schedule.reason})`]);
-  rows.push(['history', `${outcome.history} line ${record.line ?? '?'}${outcome.created ? ' (new history)' : ''}, ${judged.evaluation.checks.length} check(s) of ${m.gas}`]);
+  rows.push([
+    'next due',
+    schedule.nextDue === undefined
+      ? `none: ${schedule.reason}`
+      : `${minute(schedule.nextDue)} (${schedule.reason})`,
+  ]);
+  rows.push([
+    'history',
+    `${outcome.history} line ${record.line ?? '?'}${outcome.created ? ' (new history)' : ''}, ${judged.evaluation.checks.length} check(s) of ${m.gas}`,
+  ]);
   const width = Math.max(...rows.map(([k]) => k.length));
-  const lines = [`Recheck of ${m.gas} with ${outcome.calibration.file} (sha256 ${outcome.calibration.sha256.slice(0, 12)}…)`, ...rows.map(([k, v]) => `  ${k.padEnd(width)}  ${v}`)];
+  const lines = [
+    `Recheck of ${m.gas} with ${outcome.calibration.file} (sha256 ${outcome.calibration.sha256.slice(0, 12)}…)`,
+    ...rows.map(([k, v]) => `  ${k.padEnd(width)}  ${v}`),
+  ];
   const notes = [...m.notes, ...judged.evaluation.notes];
   if (notes.length > 0) lines.push('Notes:', ...notes.map((n) => `  ${n}`));
   if (m.result.cautions.length > 0) lines.push('Caution:', ...m.result.cautions.map((c) => `  ${c}`));
@@ -136,7 +167,12 @@ export function recheckDocument(outcome: RecheckOutcome): Record<string, unknown
     limits: check.limits ?? null,
     reasons: check.reasons,
     schedule,
-    history: { file: outcome.history, line: judged.record.line ?? null, created: outcome.created, checks: judged.evaluation.checks.length },
+    history: {
+      file: outcome.history,
+      line: judged.record.line ?? null,
+      created: outcome.created,
+      checks: judged.evaluation.checks.length,
+    },
     notes: [...m.notes, ...judged.evaluation.notes],
     cautions: m.result.cautions,
   };
@@ -186,7 +222,11 @@ export function formatStatusText(report: StatusReport): string {
     row.gas,
     minute(row.lastCheck?.time),
     row.lastCheck?.verdict ?? 'never checked',
-    row.lastCheck?.recoveryPct === undefined ? (row.lastCheck === undefined ? '' : 'zero gas') : percent(row.lastCheck.recoveryPct),
+    row.lastCheck?.recoveryPct === undefined
+      ? row.lastCheck === undefined
+        ? ''
+        : 'zero gas'
+      : percent(row.lastCheck.recoveryPct),
     row.schedule.nextDue === undefined ? 'now' : minute(row.schedule.nextDue),
     row.schedule.daysOverdue > 0 ? row.schedule.daysOverdue.toFixed(1) : '',
     row.schedule.state.toUpperCase(),
@@ -197,13 +237,17 @@ export function formatStatusText(report: StatusReport): string {
   else parts.push('no calibrations found');
   const notes: string[] = [];
   for (const row of report.rows) {
-    notes.push(`${row.file} ${row.gas}: ${row.schedule.reason}; every ${row.policy.everyDays} days, tolerance ±${row.policy.tolerancePct} %`);
+    notes.push(
+      `${row.file} ${row.gas}: ${row.schedule.reason}; every ${row.policy.everyDays} days, tolerance ±${row.policy.tolerancePct} %`,
+    );
     if (row.trend.status !== 'insufficient') notes.push(`${row.file} ${row.gas}: trend ${row.trend.summary}`);
     for (const note of row.notes) notes.push(`${row.file} ${row.gas}: ${note}`);
   }
   if (notes.length > 0) parts.push(notes.join('\n'));
-  if (report.skipped.length > 0) parts.push(['Skipped:', ...report.skipped.map((s) => `  ${s.file}: ${s.message}`)].join('\n'));
-  if (report.errors.length > 0) parts.push(['Errors:', ...report.errors.map((e) => `  ${e.file}: ${e.message}`)].join('\n'));
+  if (report.skipped.length > 0)
+    parts.push(['Skipped:', ...report.skipped.map((s) => `  ${s.file}: ${s.message}`)].join('\n'));
+  if (report.errors.length > 0)
+    parts.push(['Errors:', ...report.errors.map((e) => `  ${e.file}: ${e.message}`)].join('\n'));
   return parts.join('\n\n');
 }
 

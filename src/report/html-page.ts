@@ -11,7 +11,8 @@
 import { element, escapeText } from './svg/markup.js';
 
 /** Content security policy of every report: no scripts, no fetches; inline styles and data: images only. */
-export const REPORT_CSP = "default-src 'none'; style-src 'unsafe-inline'; img-src data:; base-uri 'none'; form-action 'none'";
+export const REPORT_CSP =
+  "default-src 'none'; style-src 'unsafe-inline'; img-src data:; base-uri 'none'; form-action 'none'";
 
 const STYLE = `
 :root { color-scheme: light; }
@@ -89,7 +90,8 @@ export function htmlPage(spec: HtmlPageSpec): string {
 }
 
 /** A table cell: text (escaped), or markup with a class. */
-export type Cell = string | number | { html: string; className?: string } | { text: string; className?: string };
+export type Cell =
+  string | number | { html: string; className?: string } | { text: string; className?: string };
 
 function cellMarkup(tag: 'td' | 'th', cell: Cell): string {
   if (typeof cell === 'number') return element(tag, { class: 'number' }, escapeText(String(cell)));
@@ -109,10 +111,24 @@ export function numberCell(text: string): Cell {
  * @param spec - caption (plain text), header cells, rows, optional class per row
  * @returns `<table>` markup
  */
-export function htmlTable(spec: { caption?: string; header: readonly Cell[]; rows: readonly (readonly Cell[])[]; rowClasses?: readonly (string | undefined)[]; className?: string }): string {
+export function htmlTable(spec: {
+  caption?: string;
+  header: readonly Cell[];
+  rows: readonly (readonly Cell[])[];
+  rowClasses?: readonly (string | undefined)[];
+  className?: string;
+}): string {
   const caption = spec.caption === undefined ? '' : element('caption', {}, escapeText(spec.caption));
   const head = element('thead', {}, element('tr', {}, spec.header.map((c) => cellMarkup('th', c)).join('')));
-  const body = element('tbody', {}, spec.rows.map((row, i) => element('tr', { class: spec.rowClasses?.[i] }, row.map((c) => cellMarkup('td', c)).join(''))).join(''));
+  const body = element(
+    'tbody',
+    {},
+    spec.rows
+      .map((row, i) =>
+        element('tr', { class: spec.rowClasses?.[i] }, row.map((c) => cellMarkup('td', c)).join('')),
+      )
+      .join(''),
+  );
   return element('table', { class: spec.className }, caption + head + body);
 }
 
@@ -122,7 +138,17 @@ export function htmlTable(spec: { caption?: string; header: readonly Cell[]; row
  * @param facts - pairs of plain-text term and value (value may be markup with `{ html }`)
  */
 export function factList(facts: readonly (readonly [string, string | { html: string }])[]): string {
-  return element('dl', { class: 'facts' }, facts.map(([term, value]) => element('dt', {}, escapeText(term)) + element('dd', {}, typeof value === 'string' ? escapeText(value) : value.html)).join(''));
+  return element(
+    'dl',
+    { class: 'facts' },
+    facts
+      .map(
+        ([term, value]) =>
+          element('dt', {}, escapeText(term)) +
+          element('dd', {}, typeof value === 'string' ? escapeText(value) : value.html),
+      )
+      .join(''),
+  );
 }
 
 /**
@@ -161,8 +187,17 @@ export function figure(svg: string, caption: string): string {
  * @param id - element id
  */
 export function cautionBox(cautions: readonly string[], id = 'safety'): string {
-  const items = cautions.length > 0 ? cautions : ['The gases involved carry no specific caution in the species table. Handle compressed-gas standards as their safety data sheets say.'];
-  return element('section', { class: 'caution', id, role: 'note' }, element('h2', {}, 'Safety') + bulletList(items));
+  const items =
+    cautions.length > 0
+      ? cautions
+      : [
+          'The gases involved carry no specific caution in the species table. Handle compressed-gas standards as their safety data sheets say.',
+        ];
+  return element(
+    'section',
+    { class: 'caution', id, role: 'note' },
+    element('h2', {}, 'Safety') + bulletList(items),
+  );
 }
 
 /**

@@ -9,7 +9,18 @@ import type { Spectrum } from '../spectrum/spectrum.js';
 import type { CellConditions } from '../gas/conditions.js';
 import { unitLabel } from '../gas/units.js';
 import { BandwrightError } from '../errors.js';
-import { bulletList, cautionBox, factList, figure, htmlPage, htmlTable, notice, numberCell, paragraph, type Cell } from './html-page.js';
+import {
+  bulletList,
+  cautionBox,
+  factList,
+  figure,
+  htmlPage,
+  htmlTable,
+  notice,
+  numberCell,
+  paragraph,
+  type Cell,
+} from './html-page.js';
 import { isFailure, type BatchEntry } from './results.js';
 import type { ClsFitPlotInput } from './svg/cls-fit.js';
 import { element, escapeText } from './svg/markup.js';
@@ -60,10 +71,15 @@ function gasesOf(calibration: Calibration): string {
   const cls = calibration.cls;
   if (cls !== undefined) {
     return cls.model.components
-      .map((c, i) => `${c.name} (${c.unit}${c.reported ? `, calibrated ${formatNumber(cls.model.ranges[i]?.min ?? 0)}–${formatNumber(cls.model.ranges[i]?.max ?? 0)} at reference conditions` : ', interferent'})`)
+      .map(
+        (c, i) =>
+          `${c.name} (${c.unit}${c.reported ? `, calibrated ${formatNumber(cls.model.ranges[i]?.min ?? 0)}–${formatNumber(cls.model.ranges[i]?.max ?? 0)} at reference conditions` : ', interferent'})`,
+      )
       .join('; ');
   }
-  return calibration.gases.map((g) => `${g.gas} (${unitLabel(g.unit)}, calibrated ${g.model.range[0]}–${g.model.range[1]})`).join('; ');
+  return calibration.gases
+    .map((g) => `${g.gas} (${unitLabel(g.unit)}, calibrated ${g.model.range[0]}–${g.model.range[1]})`)
+    .join('; ');
 }
 
 function levelText(level: number): string {
@@ -76,11 +92,17 @@ function levelText(level: number): string {
  * @param input - the report input
  * @param options - axis direction
  */
-export function quantifyReportPlots(input: QuantifyReportInput, options: QuantifyReportOptions = {}): NamedPlot[] {
+export function quantifyReportPlots(
+  input: QuantifyReportInput,
+  options: QuantifyReportOptions = {},
+): NamedPlot[] {
   return uniqueFileNames(
     input.spectra.flatMap((sample, i) => {
       const entry = input.entries.find((e) => e.scan === sample.scan);
-      return plotsOf(input.calibration, entry === undefined ? sample : withConditions(sample, entry), { ...options, idPrefix: `plot-${i}` }).plots;
+      return plotsOf(input.calibration, entry === undefined ? sample : withConditions(sample, entry), {
+        ...options,
+        idPrefix: `plot-${i}`,
+      }).plots;
     }),
   );
 }
@@ -92,11 +114,16 @@ function withConditions(sample: SampleSpectrum, entry: BatchEntry): SampleSpectr
 }
 
 /** A sample's plots; a plot that cannot be drawn (scan outside the regions) becomes a note. */
-function plotsOf(calibration: Calibration, sample: SampleSpectrum, options: QuantifyReportOptions & { idPrefix: string }): { plots: NamedPlot[]; problems: string[] } {
+function plotsOf(
+  calibration: Calibration,
+  sample: SampleSpectrum,
+  options: QuantifyReportOptions & { idPrefix: string },
+): { plots: NamedPlot[]; problems: string[] } {
   try {
     return { plots: samplePlots(calibration, sample, options), problems: [] };
   } catch (error) {
-    if (error instanceof BandwrightError) return { plots: [], problems: [`plot not drawn: ${error.message}`] };
+    if (error instanceof BandwrightError)
+      return { plots: [], problems: [`plot not drawn: ${error.message}`] };
     throw error;
   }
 }
@@ -134,13 +161,34 @@ export function quantifyReportHtml(input: QuantifyReportInput, options: Quantify
       ]);
       rowClasses.push(undefined);
       for (const conversion of gas.conversions ?? []) {
-        rows.push(['', `  ${conversion.kind}`, numberCell(formatNumber(conversion.value)), numberCell(`${formatNumber(conversion.low)} – ${formatNumber(conversion.high)}`), '', conversion.unit, conversion.assumption]);
+        rows.push([
+          '',
+          `  ${conversion.kind}`,
+          numberCell(formatNumber(conversion.value)),
+          numberCell(`${formatNumber(conversion.low)} – ${formatNumber(conversion.high)}`),
+          '',
+          conversion.unit,
+          conversion.assumption,
+        ]);
         rowClasses.push(undefined);
       }
     }
   }
   const failed = entries.filter(isFailure).length;
-  const table = htmlTable({ caption: `Results with ${level} prediction intervals`, header: ['scan', 'gas', numberCell('value'), numberCell(`${level} interval`), numberCell('se'), 'unit', 'flags / notes'], rows, rowClasses });
+  const table = htmlTable({
+    caption: `Results with ${level} prediction intervals`,
+    header: [
+      'scan',
+      'gas',
+      numberCell('value'),
+      numberCell(`${level} interval`),
+      numberCell('se'),
+      'unit',
+      'flags / notes',
+    ],
+    rows,
+    rowClasses,
+  });
 
   const sampleSections = entries.map((entry, i) => {
     const spectrum = input.spectra.find((s) => s.scan === entry.scan);
@@ -156,12 +204,23 @@ export function quantifyReportHtml(input: QuantifyReportInput, options: Quantify
       parts.push(bulletList(notes));
     }
     if (spectrum !== undefined) {
-      const drawn = plotsOf(calibration, withConditions(spectrum, entry), { ...options, idPrefix: `sample-${i}` });
+      const drawn = plotsOf(calibration, withConditions(spectrum, entry), {
+        ...options,
+        idPrefix: `sample-${i}`,
+      });
       for (const plot of drawn.plots) parts.push(figure(plot.svg, plot.title));
       for (const problem of drawn.problems) parts.push(notice(problem));
     } else if (!isFailure(entry)) parts.push(paragraph('No spectrum to draw for this entry.', 'muted'));
-    const flagged = isFailure(entry) ? ' — failed' : entry.gases.some((g) => g.flags.length > 0) ? ` — flags: ${[...new Set(entry.gases.flatMap((g) => g.flags))].join(', ')}` : '';
-    return element('details', { id: `sample-${i + 1}` }, element('summary', {}, escapeText(`${entry.scan}${flagged}`)) + parts.join(''));
+    const flagged = isFailure(entry)
+      ? ' — failed'
+      : entry.gases.some((g) => g.flags.length > 0)
+        ? ` — flags: ${[...new Set(entry.gases.flatMap((g) => g.flags))].join(', ')}`
+        : '';
+    return element(
+      'details',
+      { id: `sample-${i + 1}` },
+      element('summary', {}, escapeText(`${entry.scan}${flagged}`)) + parts.join(''),
+    );
   });
 
   const facts: [string, string | { html: string }][] = [
@@ -171,16 +230,63 @@ export function quantifyReportHtml(input: QuantifyReportInput, options: Quantify
     ['gases', gasesOf(calibration)],
     ['samples', `${entries.length}${failed > 0 ? `, ${failed} could not be quantified` : ''}`],
     ['interval level', level],
-    ...((input.options ?? []).length > 0 ? ([['reporting', (input.options ?? []).join('; ')]] as [string, string][]) : []),
+    ...((input.options ?? []).length > 0
+      ? ([['reporting', (input.options ?? []).join('; ')]] as [string, string][])
+      : []),
     ['report made', `${input.generatedAt} by ${input.tool.name} ${input.tool.version}`],
   ];
   const body = [
-    element('header', {}, element('h1', {}, escapeText(`Quantification report: ${calibration.title ?? input.calibrationFile.replace(/^.*[\\/]/, '')}`)) + paragraph(`${entries.length} sample(s) · ${reportedGases(calibration).map((g) => g.gas).join(', ')} · ${level} prediction intervals`, 'subtitle')),
+    element(
+      'header',
+      {},
+      element(
+        'h1',
+        {},
+        escapeText(
+          `Quantification report: ${calibration.title ?? input.calibrationFile.replace(/^.*[\\/]/, '')}`,
+        ),
+      ) +
+        paragraph(
+          `${entries.length} sample(s) · ${reportedGases(calibration)
+            .map((g) => g.gas)
+            .join(', ')} · ${level} prediction intervals`,
+          'subtitle',
+        ),
+    ),
     cautionBox([...cautions]),
-    element('section', { id: 'results' }, element('h2', {}, 'Results') + table + paragraph('Flags: below-lod (report as "< LOD"), below-loq, extrapolated (outside the calibrated range), saturated, poor-fit, over-limit (upper end of the interval above a given limit), conditions-far (far from the calibration’s conditions). The notes under each sample say why.', 'muted')),
-    element('section', { id: 'samples' }, element('h2', {}, 'Samples') + paragraph('Each sample’s notes and spectrum plot; open a sample to see them (all open when printed).', 'muted') + sampleSections.join('')),
-    element('section', { id: 'provenance' }, element('h2', {}, 'Calibration and provenance') + factList(facts)),
-    element('footer', {}, escapeText(`${input.tool.name} ${input.tool.version} · report made ${input.generatedAt}`)),
+    element(
+      'section',
+      { id: 'results' },
+      element('h2', {}, 'Results') +
+        table +
+        paragraph(
+          'Flags: below-lod (report as "< LOD"), below-loq, extrapolated (outside the calibrated range), saturated, poor-fit, over-limit (upper end of the interval above a given limit), conditions-far (far from the calibration’s conditions). The notes under each sample say why.',
+          'muted',
+        ),
+    ),
+    element(
+      'section',
+      { id: 'samples' },
+      element('h2', {}, 'Samples') +
+        paragraph(
+          'Each sample’s notes and spectrum plot; open a sample to see them (all open when printed).',
+          'muted',
+        ) +
+        sampleSections.join(''),
+    ),
+    element(
+      'section',
+      { id: 'provenance' },
+      element('h2', {}, 'Calibration and provenance') + factList(facts),
+    ),
+    element(
+      'footer',
+      {},
+      escapeText(`${input.tool.name} ${input.tool.version} · report made ${input.generatedAt}`),
+    ),
   ];
-  return htmlPage({ title: `Quantification report: ${input.calibrationFile.replace(/^.*[\\/]/, '')}`, body: body.join('\n') });
+  return htmlPage({
+    title: `Quantification report: ${input.calibrationFile.replace(/^.*[\\/]/, '')}`,
+    body: body.join('\n'),
+  });
 }

@@ -78,7 +78,8 @@ export function describeScan(scan: string, spectrum: Spectrum): ScanDescription 
  * @param descriptions - scans in order
  */
 export function formatScanDescriptions(descriptions: readonly ScanDescription[]): string {
-  const given = (value: number | undefined, digits = 5): string => (value === undefined ? 'not given' : formatNumber(value, digits));
+  const given = (value: number | undefined, digits = 5): string =>
+    value === undefined ? 'not given' : formatNumber(value, digits);
   return formatTextTable(
     [
       { header: 'scan' },

@@ -46,9 +46,25 @@ export function formatResultsText(entries: readonly BatchEntry[], level: number)
       continue;
     }
     for (const gas of entry.gases) {
-      rows.push([entry.scan, gas.gas, valueText(gas), `${formatNumber(gas.low)} – ${formatNumber(gas.high)}`, formatNumber(gas.se, 2), unitLabel(gas.unit), gas.flags.join(',')]);
+      rows.push([
+        entry.scan,
+        gas.gas,
+        valueText(gas),
+        `${formatNumber(gas.low)} – ${formatNumber(gas.high)}`,
+        formatNumber(gas.se, 2),
+        unitLabel(gas.unit),
+        gas.flags.join(','),
+      ]);
       for (const conversion of gas.conversions ?? []) {
-        rows.push(['', `  ${conversion.kind}`, formatNumber(conversion.value), `${formatNumber(conversion.low)} – ${formatNumber(conversion.high)}`, '', conversion.unit, '']);
+        rows.push([
+          '',
+          `  ${conversion.kind}`,
+          formatNumber(conversion.value),
+          `${formatNumber(conversion.low)} – ${formatNumber(conversion.high)}`,
+          '',
+          conversion.unit,
+          '',
+        ]);
         notes.push(`${entry.scan} ${gas.gas} ${conversion.kind}: ${conversion.assumption}`);
       }
       for (const note of gas.notes) notes.push(`${entry.scan} ${gas.gas}: ${note}`);
@@ -58,7 +74,15 @@ export function formatResultsText(entries: readonly BatchEntry[], level: number)
   }
   const percent = `${(level * 100).toFixed(level * 100 === Math.round(level * 100) ? 0 : 1)} %`;
   const table = formatTextTable(
-    [{ header: 'scan' }, { header: 'gas' }, { header: 'value', align: 'right' }, { header: `${percent} interval`, align: 'right' }, { header: 'se', align: 'right' }, { header: 'unit' }, { header: 'flags' }],
+    [
+      { header: 'scan' },
+      { header: 'gas' },
+      { header: 'value', align: 'right' },
+      { header: `${percent} interval`, align: 'right' },
+      { header: 'se', align: 'right' },
+      { header: 'unit' },
+      { header: 'flags' },
+    ],
     rows,
   );
   const parts = [table];
@@ -74,7 +98,11 @@ export function formatResultsText(entries: readonly BatchEntry[], level: number)
  * @param calibration - the calibration's file and hash
  * @param level - interval level
  */
-export function resultsDocument(entries: readonly BatchEntry[], calibration: { file: string; sha256: string }, level: number): object {
+export function resultsDocument(
+  entries: readonly BatchEntry[],
+  calibration: { file: string; sha256: string },
+  level: number,
+): object {
   return {
     tool: { name: TOOL.name, version: TOOL.version },
     calibration,
@@ -89,7 +117,13 @@ export function resultsDocument(entries: readonly BatchEntry[], calibration: { f
  * @param gases - gas names with units, in calibration order
  */
 export function resultColumns(gases: readonly { gas: string; unit: string }[]): string[] {
-  return ['scan', ...gases.flatMap(({ gas, unit }) => [`${gas}_${unit}`, `${gas}_low`, `${gas}_high`, `${gas}_flags`]), 'residual_rms', 'calibration_sha256', 'error'];
+  return [
+    'scan',
+    ...gases.flatMap(({ gas, unit }) => [`${gas}_${unit}`, `${gas}_low`, `${gas}_high`, `${gas}_flags`]),
+    'residual_rms',
+    'calibration_sha256',
+    'error',
+  ];
 }
 
 /**
@@ -99,8 +133,13 @@ export function resultColumns(gases: readonly { gas: string; unit: string }[]): 
  * @param gases - gases in column order
  * @param sha256 - the calibration's hash
  */
-export function resultRow(entry: BatchEntry, gases: readonly { gas: string }[], sha256: string): (string | number)[] {
-  if (isFailure(entry)) return [entry.scan, ...gases.flatMap(() => ['', '', '', '']), '', sha256, entry.error];
+export function resultRow(
+  entry: BatchEntry,
+  gases: readonly { gas: string }[],
+  sha256: string,
+): (string | number)[] {
+  if (isFailure(entry))
+    return [entry.scan, ...gases.flatMap(() => ['', '', '', '']), '', sha256, entry.error];
   const cells: (string | number)[] = [entry.scan];
   for (const { gas } of gases) {
     const result = entry.gases.find((g) => g.gas === gas);
@@ -118,6 +157,13 @@ export function resultRow(entry: BatchEntry, gases: readonly { gas: string }[], 
  * @param gases - gases with units in column order
  * @param sha256 - the calibration's hash
  */
-export function resultsCsv(entries: readonly BatchEntry[], gases: readonly { gas: string; unit: string }[], sha256: string): string {
-  return formatCsv(resultColumns(gases), entries.map((entry) => resultRow(entry, gases, sha256)));
+export function resultsCsv(
+  entries: readonly BatchEntry[],
+  gases: readonly { gas: string; unit: string }[],
+  sha256: string,
+): string {
+  return formatCsv(
+    resultColumns(gases),
+    entries.map((entry) => resultRow(entry, gases, sha256)),
+  );
 }

@@ -17,14 +17,25 @@ export interface TextColumn {
  * @param rows - cell texts, one array per row
  * @returns lines joined with newlines, no trailing newline
  */
-export function formatTextTable(columns: readonly TextColumn[], rows: readonly (readonly string[])[]): string {
-  const widths = columns.map((column, i) => Math.max(column.header.length, ...rows.map((row) => (row[i] ?? '').length)));
+export function formatTextTable(
+  columns: readonly TextColumn[],
+  rows: readonly (readonly string[])[],
+): string {
+  const widths = columns.map((column, i) =>
+    Math.max(column.header.length, ...rows.map((row) => (row[i] ?? '').length)),
+  );
   const line = (cells: readonly string[]): string =>
     cells
-      .map((cell, i) => (columns[i]?.align === 'right' ? cell.padStart(widths[i] as number) : cell.padEnd(widths[i] as number)))
+      .map((cell, i) =>
+        columns[i]?.align === 'right' ? cell.padStart(widths[i] as number) : cell.padEnd(widths[i] as number),
+      )
       .join('  ')
       .trimEnd();
-  return [line(columns.map((c) => c.header)), widths.map((w) => '─'.repeat(w)).join('  '), ...rows.map(line)].join('\n');
+  return [
+    line(columns.map((c) => c.header)),
+    widths.map((w) => '─'.repeat(w)).join('  '),
+    ...rows.map(line),
+  ].join('\n');
 }
 
 /**

@@ -148,7 +148,12 @@ export interface DiatomicGasModel extends GasModelBase {
   /** Line-by-line from constants. */
   approximate: false;
   /** Isotopologues with their natural abundance (fractions summing to 1) and molar mass. */
-  isotopologues: readonly { constants: DiatomicConstants; abundance: number; molarMass_g_mol: number; abundanceSource: string }[];
+  isotopologues: readonly {
+    constants: DiatomicConstants;
+    abundance: number;
+    molarMass_g_mol: number;
+    abundanceSource: string;
+  }[];
   /** Band strength of the 1 ← 0 band at 296 K, per molecule of the gas. */
   bandStrength: BandStrength;
 }
@@ -265,7 +270,8 @@ export const CARBON_MONOXIDE_12C16O: DiatomicConstants = {
   gammae: 0,
   De: 6.12147e-6, // Huber & Herzberg 1979, from memory
   betae: 0,
-  source: 'ωe, ωexe, ωeye, Be, αe: Huber & Herzberg 1979 (NIST WebBook), facts.md, from memory; De: Huber & Herzberg 1979, from memory',
+  source:
+    'ωe, ωexe, ωeye, Be, αe: Huber & Herzberg 1979 (NIST WebBook), facts.md, from memory; De: Huber & Herzberg 1979, from memory',
 };
 
 /**
@@ -284,7 +290,8 @@ export const HYDROGEN_CHLORIDE_H35CL: DiatomicConstants = {
   gammae: 0,
   De: 5.3194e-4, // Huber & Herzberg, from memory
   betae: 0,
-  source: 'ωe, ωexe, Be, αe: Huber & Herzberg (facts.md), from memory; ωeye, ωeze, De: Huber & Herzberg, from memory',
+  source:
+    'ωe, ωexe, Be, αe: Huber & Herzberg (facts.md), from memory; ωeye, ωeze, De: Huber & Herzberg, from memory',
 };
 
 /**
@@ -305,7 +312,11 @@ const ATOMIC_MASS_U = {
  * @param rho - √(μ_reference/μ_other), dimensionless
  * @param molecule - label of the new isotopologue
  */
-export function isotopeScaledConstants(constants: DiatomicConstants, rho: number, molecule: string): DiatomicConstants {
+export function isotopeScaledConstants(
+  constants: DiatomicConstants,
+  rho: number,
+  molecule: string,
+): DiatomicConstants {
   return {
     molecule,
     we: constants.we * rho,
@@ -322,10 +333,16 @@ export function isotopeScaledConstants(constants: DiatomicConstants, rho: number
 }
 
 const reducedMass = (a: number, b: number): number => (a * b) / (a + b);
-const RHO_H37CL = Math.sqrt(reducedMass(ATOMIC_MASS_U.H1, ATOMIC_MASS_U.Cl35) / reducedMass(ATOMIC_MASS_U.H1, ATOMIC_MASS_U.Cl37));
+const RHO_H37CL = Math.sqrt(
+  reducedMass(ATOMIC_MASS_U.H1, ATOMIC_MASS_U.Cl35) / reducedMass(ATOMIC_MASS_U.H1, ATOMIC_MASS_U.Cl37),
+);
 
 /** H³⁷Cl X¹Σ⁺, from {@link HYDROGEN_CHLORIDE_H35CL} by the isotope relations. */
-export const HYDROGEN_CHLORIDE_H37CL: DiatomicConstants = isotopeScaledConstants(HYDROGEN_CHLORIDE_H35CL, RHO_H37CL, 'H³⁷Cl');
+export const HYDROGEN_CHLORIDE_H37CL: DiatomicConstants = isotopeScaledConstants(
+  HYDROGEN_CHLORIDE_H35CL,
+  RHO_H37CL,
+  'H³⁷Cl',
+);
 
 /**
  * ¹⁴N¹⁶O X²Π (regular, Ω = ½ lowest). ωe, ωexe, Be, αe: Huber & Herzberg (facts.md, from
@@ -359,7 +376,8 @@ export const CARBON_DIOXIDE_NU3: LinearBandConstants = {
   lowerD: 1.333e-7, // from memory
   upperD: 1.331e-7, // from memory
   lowerStateJ: 'even', // ¹⁶O has nuclear spin 0: only even J in the Σg⁺ ground state (common practice)
-  source: 'ν0 = 2349.143, B″ = 0.390219, B′ = 0.387141, D″ ≈ D′ ≈ 1.33e-7 cm⁻¹: from memory (facts.md gives ν3 ≈ 2349.1); even-J-only ground state: nuclear-spin statistics, common practice',
+  source:
+    'ν0 = 2349.143, B″ = 0.390219, B′ = 0.387141, D″ ≈ D′ ≈ 1.33e-7 cm⁻¹: from memory (facts.md gives ν3 ≈ 2349.1); even-J-only ground state: nuclear-spin statistics, common practice',
 };
 
 /** ¹⁴N₂¹⁶O ν₃ (00⁰1 ← 00⁰0). Band origin and rotational constants from memory. */
@@ -372,7 +390,8 @@ export const NITROUS_OXIDE_NU3: LinearBandConstants = {
   lowerD: 1.76e-7, // from memory
   upperD: 1.75e-7, // from memory
   lowerStateJ: 'all', // NNO has no exchange symmetry
-  source: 'ν0 = 2223.757, B″ = 0.419011, B′ = 0.415559, D″ ≈ D′ ≈ 1.75e-7 cm⁻¹: from memory (facts.md gives ν3 ≈ 2224)',
+  source:
+    'ν0 = 2223.757, B″ = 0.419011, B′ = 0.415559, D″ ≈ D′ ≈ 1.75e-7 cm⁻¹: from memory (facts.md gives ν3 ≈ 2224)',
 };
 
 // ---------------------------------------------------------------------------------------------
@@ -385,8 +404,10 @@ function speciesMolarMass(name: string): number {
   return species.molarMass_g_mol;
 }
 
-const FROM_MEMORY_MODES = 'fundamental wavenumbers from memory (facts.md / species table where listed), harmonic approximation';
-const APPROXIMATE_NOTE = 'approximate band model: band centres from the species table, integrated strengths from memory (±30 % or worse), invented pseudo-line pattern; not for quantifying this gas';
+const FROM_MEMORY_MODES =
+  'fundamental wavenumbers from memory (facts.md / species table where listed), harmonic approximation';
+const APPROXIMATE_NOTE =
+  'approximate band model: band centres from the species table, integrated strengths from memory (±30 % or worse), invented pseudo-line pattern; not for quantifying this gas';
 
 /** The simulator's gas models, keyed by canonical gas name. */
 export const GAS_MODELS: Readonly<Record<string, GasModel>> = {
@@ -394,9 +415,24 @@ export const GAS_MODELS: Readonly<Record<string, GasModel>> = {
     kind: 'diatomic',
     gas: 'CO',
     approximate: false,
-    isotopologues: [{ constants: CARBON_MONOXIDE_12C16O, abundance: 1, molarMass_g_mol: speciesMolarMass('CO'), abundanceSource: 'treated as pure ¹²C¹⁶O (¹³CO near 2096 cm⁻¹ not modelled)' }],
-    bandStrength: { value_cm_per_molecule: 1.013e-17, source: 'Zou & Varanasi, JQSRT 2002: (1.013 ± 0.007)e-17 cm/molecule at 296 K' },
-    broadening: { airBroadening_cm_atm: 0.065, temperatureExponent: 0.7, source: 'γ_air ≈ 0.05–0.08 cm⁻¹/atm at 296 K (facts.md, from memory), 0.065 taken for every line; n ≈ 0.7 from memory' },
+    isotopologues: [
+      {
+        constants: CARBON_MONOXIDE_12C16O,
+        abundance: 1,
+        molarMass_g_mol: speciesMolarMass('CO'),
+        abundanceSource: 'treated as pure ¹²C¹⁶O (¹³CO near 2096 cm⁻¹ not modelled)',
+      },
+    ],
+    bandStrength: {
+      value_cm_per_molecule: 1.013e-17,
+      source: 'Zou & Varanasi, JQSRT 2002: (1.013 ± 0.007)e-17 cm/molecule at 296 K',
+    },
+    broadening: {
+      airBroadening_cm_atm: 0.065,
+      temperatureExponent: 0.7,
+      source:
+        'γ_air ≈ 0.05–0.08 cm⁻¹/atm at 296 K (facts.md, from memory), 0.065 taken for every line; n ≈ 0.7 from memory',
+    },
     notes: ['Herman–Wallis factors not applied (no sourced coefficients); hot bands omitted'],
   },
   HCl: {
@@ -405,11 +441,29 @@ export const GAS_MODELS: Readonly<Record<string, GasModel>> = {
     approximate: false,
     // Each isotopologue keeps its own molar mass (Doppler width), from the atomic masses above.
     isotopologues: [
-      { constants: HYDROGEN_CHLORIDE_H35CL, abundance: 0.7576, molarMass_g_mol: ATOMIC_MASS_U.H1 + ATOMIC_MASS_U.Cl35, abundanceSource: '³⁵Cl 75.76 %, IUPAC isotopic abundances, from memory' },
-      { constants: HYDROGEN_CHLORIDE_H37CL, abundance: 0.2424, molarMass_g_mol: ATOMIC_MASS_U.H1 + ATOMIC_MASS_U.Cl37, abundanceSource: '³⁷Cl 24.24 %, IUPAC isotopic abundances, from memory' },
+      {
+        constants: HYDROGEN_CHLORIDE_H35CL,
+        abundance: 0.7576,
+        molarMass_g_mol: ATOMIC_MASS_U.H1 + ATOMIC_MASS_U.Cl35,
+        abundanceSource: '³⁵Cl 75.76 %, IUPAC isotopic abundances, from memory',
+      },
+      {
+        constants: HYDROGEN_CHLORIDE_H37CL,
+        abundance: 0.2424,
+        molarMass_g_mol: ATOMIC_MASS_U.H1 + ATOMIC_MASS_U.Cl37,
+        abundanceSource: '³⁷Cl 24.24 %, IUPAC isotopic abundances, from memory',
+      },
     ],
-    bandStrength: { value_cm_per_molecule: 5.0e-18, source: 'HCl 1–0 band ≈ 5.0e-18 cm/molecule at 296 K (≈ 130 cm⁻² atm⁻¹ at 273 K), from memory, uncertain by about 20 %' },
-    broadening: { airBroadening_cm_atm: 0.05, temperatureExponent: 0.7, source: 'from memory; the real γ falls from ≈ 0.08 at low J to ≈ 0.03 at high J' },
+    bandStrength: {
+      value_cm_per_molecule: 5.0e-18,
+      source:
+        'HCl 1–0 band ≈ 5.0e-18 cm/molecule at 296 K (≈ 130 cm⁻² atm⁻¹ at 273 K), from memory, uncertain by about 20 %',
+    },
+    broadening: {
+      airBroadening_cm_atm: 0.05,
+      temperatureExponent: 0.7,
+      source: 'from memory; the real γ falls from ≈ 0.08 at low J to ≈ 0.03 at high J',
+    },
     notes: ['H³⁵Cl and H³⁷Cl at natural abundance; Herman–Wallis factors not applied'],
   },
   NO: {
@@ -418,9 +472,15 @@ export const GAS_MODELS: Readonly<Record<string, GasModel>> = {
     approximate: false,
     constants: NITRIC_OXIDE_14N16O,
     molarMass_g_mol: speciesMolarMass('NO'),
-    bandStrength: { value_cm_per_molecule: 4.1e-18, source: 'NO 1–0 band ≈ 4.1e-18 cm/molecule at 296 K (≈ 110 cm⁻² atm⁻¹ at 273 K), from memory, uncertain by about 20 %' },
+    bandStrength: {
+      value_cm_per_molecule: 4.1e-18,
+      source:
+        'NO 1–0 band ≈ 4.1e-18 cm/molecule at 296 K (≈ 110 cm⁻² atm⁻¹ at 273 K), from memory, uncertain by about 20 %',
+    },
     broadening: { airBroadening_cm_atm: 0.055, temperatureExponent: 0.75, source: 'from memory' },
-    notes: ['simplified ²Π model: Hund\'s case (a) Ω = ½ and 3/2 sub-bands with P, Q and R branches, Λ-doubling and spin uncoupling neglected; high-J line positions are off by up to tenths of a cm⁻¹'],
+    notes: [
+      "simplified ²Π model: Hund's case (a) Ω = ½ and 3/2 sub-bands with P, Q and R branches, Λ-doubling and spin uncoupling neglected; high-J line positions are off by up to tenths of a cm⁻¹",
+    ],
   },
   CO2: {
     kind: 'linear-band',
@@ -428,7 +488,11 @@ export const GAS_MODELS: Readonly<Record<string, GasModel>> = {
     approximate: false,
     constants: CARBON_DIOXIDE_NU3,
     molarMass_g_mol: speciesMolarMass('CO2'),
-    bandStrength: { value_cm_per_molecule: 9.5e-17, source: 'CO₂ ν3 (626 fundamental) ≈ 9.5e-17 cm/molecule at 296 K (≈ 2500 cm⁻² atm⁻¹ at 273 K), from memory, uncertain by about 10 %' },
+    bandStrength: {
+      value_cm_per_molecule: 9.5e-17,
+      source:
+        'CO₂ ν3 (626 fundamental) ≈ 9.5e-17 cm/molecule at 296 K (≈ 2500 cm⁻² atm⁻¹ at 273 K), from memory, uncertain by about 10 %',
+    },
     broadening: { airBroadening_cm_atm: 0.07, temperatureExponent: 0.75, source: 'from memory' },
     vibrationalModes: [
       { wavenumber_cm: 1333, degeneracy: 1 },
@@ -444,7 +508,11 @@ export const GAS_MODELS: Readonly<Record<string, GasModel>> = {
     approximate: false,
     constants: NITROUS_OXIDE_NU3,
     molarMass_g_mol: speciesMolarMass('N2O'),
-    bandStrength: { value_cm_per_molecule: 5.0e-17, source: 'N₂O ν3 ≈ 5.0e-17 cm/molecule at 296 K (≈ 1300 cm⁻² atm⁻¹ at 273 K), from memory, uncertain by about 20 %' },
+    bandStrength: {
+      value_cm_per_molecule: 5.0e-17,
+      source:
+        'N₂O ν3 ≈ 5.0e-17 cm/molecule at 296 K (≈ 1300 cm⁻² atm⁻¹ at 273 K), from memory, uncertain by about 20 %',
+    },
     broadening: { airBroadening_cm_atm: 0.075, temperatureExponent: 0.75, source: 'from memory' },
     vibrationalModes: [
       { wavenumber_cm: 1285, degeneracy: 1 },
@@ -461,22 +529,55 @@ export const GAS_MODELS: Readonly<Record<string, GasModel>> = {
     molarMass_g_mol: speciesMolarMass('H2O'),
     bands: [
       {
-        mode: 'ν2', center_cm: 1594.7,
-        bandStrength: { value_cm_per_molecule: 1.05e-17, source: 'H₂O ν2 ≈ 1.05e-17 cm/molecule at 296 K, from memory (approximate)' },
-        envelopeB_cm: 20, lineSpacing_cm: 1.3, positionJitter: 1, clusterComponents: 1, clusterSpread_cm: 0,
-        qBranchFraction: 0.05, qBranchWidth_cm: 25, maxOffset_cm: 420, intensityScatter: 'exponential',
+        mode: 'ν2',
+        center_cm: 1594.7,
+        bandStrength: {
+          value_cm_per_molecule: 1.05e-17,
+          source: 'H₂O ν2 ≈ 1.05e-17 cm/molecule at 296 K, from memory (approximate)',
+        },
+        envelopeB_cm: 20,
+        lineSpacing_cm: 1.3,
+        positionJitter: 1,
+        clusterComponents: 1,
+        clusterSpread_cm: 0,
+        qBranchFraction: 0.05,
+        qBranchWidth_cm: 25,
+        maxOffset_cm: 420,
+        intensityScatter: 'exponential',
       },
       {
-        mode: 'ν3', center_cm: 3755.9,
-        bandStrength: { value_cm_per_molecule: 6.9e-18, source: 'H₂O ν3 ≈ 6.9e-18 cm/molecule at 296 K, from memory (approximate)' },
-        envelopeB_cm: 20, lineSpacing_cm: 1.3, positionJitter: 1, clusterComponents: 1, clusterSpread_cm: 0,
-        qBranchFraction: 0, qBranchWidth_cm: 0, maxOffset_cm: 380, intensityScatter: 'exponential',
+        mode: 'ν3',
+        center_cm: 3755.9,
+        bandStrength: {
+          value_cm_per_molecule: 6.9e-18,
+          source: 'H₂O ν3 ≈ 6.9e-18 cm/molecule at 296 K, from memory (approximate)',
+        },
+        envelopeB_cm: 20,
+        lineSpacing_cm: 1.3,
+        positionJitter: 1,
+        clusterComponents: 1,
+        clusterSpread_cm: 0,
+        qBranchFraction: 0,
+        qBranchWidth_cm: 0,
+        maxOffset_cm: 380,
+        intensityScatter: 'exponential',
       },
       {
-        mode: 'ν1', center_cm: 3657.1,
-        bandStrength: { value_cm_per_molecule: 5e-19, source: 'H₂O ν1 ≈ 5e-19 cm/molecule at 296 K, from memory (approximate)' },
-        envelopeB_cm: 20, lineSpacing_cm: 2.5, positionJitter: 1, clusterComponents: 1, clusterSpread_cm: 0,
-        qBranchFraction: 0.1, qBranchWidth_cm: 20, maxOffset_cm: 300, intensityScatter: 'exponential',
+        mode: 'ν1',
+        center_cm: 3657.1,
+        bandStrength: {
+          value_cm_per_molecule: 5e-19,
+          source: 'H₂O ν1 ≈ 5e-19 cm/molecule at 296 K, from memory (approximate)',
+        },
+        envelopeB_cm: 20,
+        lineSpacing_cm: 2.5,
+        positionJitter: 1,
+        clusterComponents: 1,
+        clusterSpread_cm: 0,
+        qBranchFraction: 0.1,
+        qBranchWidth_cm: 20,
+        maxOffset_cm: 300,
+        intensityScatter: 'exponential',
       },
     ],
     vibrationalModes: [
@@ -485,7 +586,11 @@ export const GAS_MODELS: Readonly<Record<string, GasModel>> = {
       { wavenumber_cm: 3755.9, degeneracy: 1 },
     ],
     modesSource: FROM_MEMORY_MODES,
-    broadening: { airBroadening_cm_atm: 0.08, temperatureExponent: 0.7, source: 'typical H₂O air broadening, from memory' },
+    broadening: {
+      airBroadening_cm_atm: 0.08,
+      temperatureExponent: 0.7,
+      source: 'typical H₂O air broadening, from memory',
+    },
     notes: [APPROXIMATE_NOTE],
   },
   CH4: {
@@ -495,18 +600,40 @@ export const GAS_MODELS: Readonly<Record<string, GasModel>> = {
     molarMass_g_mol: speciesMolarMass('CH4'),
     bands: [
       {
-        mode: 'ν3', center_cm: 3019,
-        bandStrength: { value_cm_per_molecule: 1.1e-17, source: 'CH₄ ν3 ≈ 1.1e-17 cm/molecule at 296 K, from memory (approximate)' },
+        mode: 'ν3',
+        center_cm: 3019,
+        bandStrength: {
+          value_cm_per_molecule: 1.1e-17,
+          source: 'CH₄ ν3 ≈ 1.1e-17 cm/molecule at 296 K, from memory (approximate)',
+        },
         // spherical-top P/R lines 2B(1 − ζ3) ≈ 9.9 cm⁻¹ apart (B ≈ 5.24, ζ3 ≈ 0.05; from memory), tetrahedral multiplets
-        envelopeB_cm: 4.95, lineSpacing_cm: 9.9, positionJitter: 0, clusterComponents: 3, clusterSpread_cm: 0.6,
-        qBranchFraction: 0.25, qBranchWidth_cm: 4, maxOffset_cm: 200, intensityScatter: 'uniform',
+        envelopeB_cm: 4.95,
+        lineSpacing_cm: 9.9,
+        positionJitter: 0,
+        clusterComponents: 3,
+        clusterSpread_cm: 0.6,
+        qBranchFraction: 0.25,
+        qBranchWidth_cm: 4,
+        maxOffset_cm: 200,
+        intensityScatter: 'uniform',
       },
       {
-        mode: 'ν4', center_cm: 1306,
-        bandStrength: { value_cm_per_molecule: 5.3e-18, source: 'CH₄ ν4 ≈ 5.3e-18 cm/molecule at 296 K, from memory (approximate)' },
+        mode: 'ν4',
+        center_cm: 1306,
+        bandStrength: {
+          value_cm_per_molecule: 5.3e-18,
+          source: 'CH₄ ν4 ≈ 5.3e-18 cm/molecule at 296 K, from memory (approximate)',
+        },
         // line spacing 2B(1 − ζ4) ≈ 5.8 cm⁻¹ (ζ4 ≈ 0.45; from memory)
-        envelopeB_cm: 2.9, lineSpacing_cm: 5.8, positionJitter: 0, clusterComponents: 3, clusterSpread_cm: 0.5,
-        qBranchFraction: 0.3, qBranchWidth_cm: 3, maxOffset_cm: 140, intensityScatter: 'uniform',
+        envelopeB_cm: 2.9,
+        lineSpacing_cm: 5.8,
+        positionJitter: 0,
+        clusterComponents: 3,
+        clusterSpread_cm: 0.5,
+        qBranchFraction: 0.3,
+        qBranchWidth_cm: 3,
+        maxOffset_cm: 140,
+        intensityScatter: 'uniform',
       },
     ],
     vibrationalModes: [
@@ -516,7 +643,11 @@ export const GAS_MODELS: Readonly<Record<string, GasModel>> = {
       { wavenumber_cm: 1306, degeneracy: 3 },
     ],
     modesSource: FROM_MEMORY_MODES,
-    broadening: { airBroadening_cm_atm: 0.055, temperatureExponent: 0.75, source: 'typical CH₄ air broadening, from memory' },
+    broadening: {
+      airBroadening_cm_atm: 0.055,
+      temperatureExponent: 0.75,
+      source: 'typical CH₄ air broadening, from memory',
+    },
     notes: [APPROXIMATE_NOTE],
   },
   NH3: {
@@ -526,16 +657,40 @@ export const GAS_MODELS: Readonly<Record<string, GasModel>> = {
     molarMass_g_mol: speciesMolarMass('NH3'),
     bands: [
       {
-        mode: 'ν2 (s)', center_cm: 931.6,
-        bandStrength: { value_cm_per_molecule: 6e-18, source: 'NH₃ ν2 ≈ 1.2e-17 cm/molecule at 296 K shared between the inversion components at 931.6 and 968.1 cm⁻¹, from memory (approximate)' },
-        envelopeB_cm: 9.94, lineSpacing_cm: 19.9, positionJitter: 0, clusterComponents: 4, clusterSpread_cm: 2.5,
-        qBranchFraction: 0.3, qBranchWidth_cm: 6, maxOffset_cm: 300, intensityScatter: 'uniform',
+        mode: 'ν2 (s)',
+        center_cm: 931.6,
+        bandStrength: {
+          value_cm_per_molecule: 6e-18,
+          source:
+            'NH₃ ν2 ≈ 1.2e-17 cm/molecule at 296 K shared between the inversion components at 931.6 and 968.1 cm⁻¹, from memory (approximate)',
+        },
+        envelopeB_cm: 9.94,
+        lineSpacing_cm: 19.9,
+        positionJitter: 0,
+        clusterComponents: 4,
+        clusterSpread_cm: 2.5,
+        qBranchFraction: 0.3,
+        qBranchWidth_cm: 6,
+        maxOffset_cm: 300,
+        intensityScatter: 'uniform',
       },
       {
-        mode: 'ν2 (a)', center_cm: 968.1,
-        bandStrength: { value_cm_per_molecule: 6e-18, source: 'NH₃ ν2 ≈ 1.2e-17 cm/molecule at 296 K shared between the inversion components at 931.6 and 968.1 cm⁻¹, from memory (approximate)' },
-        envelopeB_cm: 9.94, lineSpacing_cm: 19.9, positionJitter: 0, clusterComponents: 4, clusterSpread_cm: 2.5,
-        qBranchFraction: 0.3, qBranchWidth_cm: 6, maxOffset_cm: 300, intensityScatter: 'uniform',
+        mode: 'ν2 (a)',
+        center_cm: 968.1,
+        bandStrength: {
+          value_cm_per_molecule: 6e-18,
+          source:
+            'NH₃ ν2 ≈ 1.2e-17 cm/molecule at 296 K shared between the inversion components at 931.6 and 968.1 cm⁻¹, from memory (approximate)',
+        },
+        envelopeB_cm: 9.94,
+        lineSpacing_cm: 19.9,
+        positionJitter: 0,
+        clusterComponents: 4,
+        clusterSpread_cm: 2.5,
+        qBranchFraction: 0.3,
+        qBranchWidth_cm: 6,
+        maxOffset_cm: 300,
+        intensityScatter: 'uniform',
       },
     ],
     vibrationalModes: [
@@ -545,7 +700,11 @@ export const GAS_MODELS: Readonly<Record<string, GasModel>> = {
       { wavenumber_cm: 1627, degeneracy: 2 },
     ],
     modesSource: FROM_MEMORY_MODES,
-    broadening: { airBroadening_cm_atm: 0.085, temperatureExponent: 0.7, source: 'typical NH₃ air broadening, from memory' },
+    broadening: {
+      airBroadening_cm_atm: 0.085,
+      temperatureExponent: 0.7,
+      source: 'typical NH₃ air broadening, from memory',
+    },
     notes: [APPROXIMATE_NOTE],
   },
   SO2: {
@@ -555,16 +714,38 @@ export const GAS_MODELS: Readonly<Record<string, GasModel>> = {
     molarMass_g_mol: speciesMolarMass('SO2'),
     bands: [
       {
-        mode: 'ν3', center_cm: 1362,
-        bandStrength: { value_cm_per_molecule: 2.7e-17, source: 'SO₂ ν3 ≈ 2.7e-17 cm/molecule at 296 K, from memory (approximate)' },
-        envelopeB_cm: 0.32, lineSpacing_cm: 0.12, positionJitter: 1, clusterComponents: 1, clusterSpread_cm: 0,
-        qBranchFraction: 0.05, qBranchWidth_cm: 4, maxOffset_cm: 60, intensityScatter: 'exponential',
+        mode: 'ν3',
+        center_cm: 1362,
+        bandStrength: {
+          value_cm_per_molecule: 2.7e-17,
+          source: 'SO₂ ν3 ≈ 2.7e-17 cm/molecule at 296 K, from memory (approximate)',
+        },
+        envelopeB_cm: 0.32,
+        lineSpacing_cm: 0.12,
+        positionJitter: 1,
+        clusterComponents: 1,
+        clusterSpread_cm: 0,
+        qBranchFraction: 0.05,
+        qBranchWidth_cm: 4,
+        maxOffset_cm: 60,
+        intensityScatter: 'exponential',
       },
       {
-        mode: 'ν1', center_cm: 1151,
-        bandStrength: { value_cm_per_molecule: 3.5e-18, source: 'SO₂ ν1 ≈ 3.5e-18 cm/molecule at 296 K, from memory (approximate)' },
-        envelopeB_cm: 0.32, lineSpacing_cm: 0.15, positionJitter: 1, clusterComponents: 1, clusterSpread_cm: 0,
-        qBranchFraction: 0.15, qBranchWidth_cm: 5, maxOffset_cm: 55, intensityScatter: 'exponential',
+        mode: 'ν1',
+        center_cm: 1151,
+        bandStrength: {
+          value_cm_per_molecule: 3.5e-18,
+          source: 'SO₂ ν1 ≈ 3.5e-18 cm/molecule at 296 K, from memory (approximate)',
+        },
+        envelopeB_cm: 0.32,
+        lineSpacing_cm: 0.15,
+        positionJitter: 1,
+        clusterComponents: 1,
+        clusterSpread_cm: 0,
+        qBranchFraction: 0.15,
+        qBranchWidth_cm: 5,
+        maxOffset_cm: 55,
+        intensityScatter: 'exponential',
       },
     ],
     vibrationalModes: [
@@ -573,7 +754,11 @@ export const GAS_MODELS: Readonly<Record<string, GasModel>> = {
       { wavenumber_cm: 1362, degeneracy: 1 },
     ],
     modesSource: 'NIST CCCBDB (facts.md), harmonic approximation',
-    broadening: { airBroadening_cm_atm: 0.1, temperatureExponent: 0.75, source: 'typical SO₂ air broadening, from memory' },
+    broadening: {
+      airBroadening_cm_atm: 0.1,
+      temperatureExponent: 0.75,
+      source: 'typical SO₂ air broadening, from memory',
+    },
     notes: [APPROXIMATE_NOTE],
   },
 };

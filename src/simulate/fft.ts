@@ -27,7 +27,10 @@ export function nextPowerOfTwo(n: number): number {
 export function fftInPlace(re: Float64Array, im: Float64Array, options: { inverse?: boolean } = {}): void {
   const n = re.length;
   if (im.length !== n || n === 0 || (n & (n - 1)) !== 0) {
-    throw new BandwrightError('INVALID_VALUE', `FFT length = ${n} (imaginary ${im.length}), must be equal powers of two`);
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `FFT length = ${n} (imaginary ${im.length}), must be equal powers of two`,
+    );
   }
   // Bit-reversal permutation.
   for (let i = 1, j = 0; i < n; i++) {

@@ -3,8 +3,21 @@
  * instrument functions and seeded noise. See `simulate.ts` for the physics.
  */
 export { simulateSpectrum } from './simulate.js';
-export type { SimulationOptions, SimulationResult, SimulatedGasInput, SimulatedGasTruth } from './simulate.js';
-export { faddeeva, faddeevaReal, voigtProfile, voigtHWHM, dopplerHWHM, lorentzHWHM, accumulateVoigt } from './lineshape.js';
+export type {
+  SimulationOptions,
+  SimulationResult,
+  SimulatedGasInput,
+  SimulatedGasTruth,
+} from './simulate.js';
+export {
+  faddeeva,
+  faddeevaReal,
+  voigtProfile,
+  voigtHWHM,
+  dopplerHWHM,
+  lorentzHWHM,
+  accumulateVoigt,
+} from './lineshape.js';
 export type { Complex, LorentzWidthOptions } from './lineshape.js';
 export {
   lineList,
@@ -21,7 +34,12 @@ export {
 } from './lines.js';
 export type { LineList, SpectralLine, Branch } from './lines.js';
 export * from './constants.js';
-export { APODIZATIONS, apodizationFunction, instrumentLineShape, convolveWithInstrument } from './instrument.js';
+export {
+  APODIZATIONS,
+  apodizationFunction,
+  instrumentLineShape,
+  convolveWithInstrument,
+} from './instrument.js';
 export type { Apodization, InstrumentConvolutionOptions } from './instrument.js';
 export { createRandom, createGaussian, seedFromText } from './random.js';
 export { fftInPlace, nextPowerOfTwo } from './fft.js';

@@ -45,7 +45,11 @@ export function apodizationFunction(opd_cm: number, maxOpd_cm: number, apodizati
  * @param apodization - `boxcar` (sinc) or `triangular` (sinc²)
  * @returns ILS value, 1/cm⁻¹
  */
-export function instrumentLineShape(offset_cm: number, resolution_cm: number, apodization: Apodization): number {
+export function instrumentLineShape(
+  offset_cm: number,
+  resolution_cm: number,
+  apodization: Apodization,
+): number {
   const L = 1 / resolution_cm;
   if (apodization === 'boxcar') {
     const u = 2 * Math.PI * L * offset_cm;
@@ -81,10 +85,17 @@ export interface InstrumentConvolutionOptions {
  * @returns the convolved values on the same grid
  * @throws BandwrightError `INVALID_VALUE` when the grid is too coarse for the resolution
  */
-export function convolveWithInstrument(signal: Float64Array, options: InstrumentConvolutionOptions): Float64Array {
+export function convolveWithInstrument(
+  signal: Float64Array,
+  options: InstrumentConvolutionOptions,
+): Float64Array {
   const { step_cm, resolution_cm, apodization } = options;
   if (!(step_cm > 0) || !(resolution_cm > 0) || !(step_cm < resolution_cm / 2)) {
-    throw new BandwrightError('INVALID_VALUE', `instrument grid step = ${step_cm} cm⁻¹ at resolution ${resolution_cm} cm⁻¹, must be > 0 and below resolution/2`, { parameter: 'step_cm' });
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `instrument grid step = ${step_cm} cm⁻¹ at resolution ${resolution_cm} cm⁻¹, must be > 0 and below resolution/2`,
+      { parameter: 'step_cm' },
+    );
   }
   const size = nextPowerOfTwo(signal.length + Math.max(0, Math.ceil(options.padding ?? signal.length)));
   const re = new Float64Array(size);

@@ -194,13 +194,19 @@ function vibrationalLevels(constants: DiatomicConstants, temperature_K: number):
  * @example
  * diatomicPartitionSum(CARBON_MONOXIDE_12C16O, 296).rotational // ≈ 107.4 (≈ T/(c₂B₀) + 1/3)
  */
-export function diatomicPartitionSum(constants: DiatomicConstants, temperature_K: number): { rotational: number; total: number } {
+export function diatomicPartitionSum(
+  constants: DiatomicConstants,
+  temperature_K: number,
+): { rotational: number; total: number } {
   const g0 = vibrationalTerm(constants, 0);
   let total = 0;
   let rotational = 0;
   for (const v of vibrationalLevels(constants, temperature_K)) {
     const gv = vibrationalTerm(constants, v) - g0;
-    const sum = sumOverJ(0, (J) => (2 * J + 1) * Math.exp((-C2 * (gv + rotationalTerm(constants, v, J))) / temperature_K));
+    const sum = sumOverJ(
+      0,
+      (J) => (2 * J + 1) * Math.exp((-C2 * (gv + rotationalTerm(constants, v, J))) / temperature_K),
+    );
     if (v === 0) rotational = sum;
     total += sum;
   }
@@ -213,9 +219,13 @@ export function diatomicPartitionSum(constants: DiatomicConstants, temperature_K
  * @param modes - normal modes with degeneracies, cm⁻¹
  * @param temperature_K - K
  */
-export function harmonicVibrationalPartitionSum(modes: readonly VibrationalMode[], temperature_K: number): number {
+export function harmonicVibrationalPartitionSum(
+  modes: readonly VibrationalMode[],
+  temperature_K: number,
+): number {
   let q = 1;
-  for (const mode of modes) q *= (1 - Math.exp((-C2 * mode.wavenumber_cm) / temperature_K)) ** -mode.degeneracy;
+  for (const mode of modes)
+    q *= (1 - Math.exp((-C2 * mode.wavenumber_cm) / temperature_K)) ** -mode.degeneracy;
   return q;
 }
 
@@ -237,7 +247,8 @@ export function linearRotationalPartitionSum(constants: LinearBandConstants, tem
   let sum = 0;
   let largest = 0;
   for (let J = 0; J <= J_LIMIT; J += step) {
-    const value = (2 * J + 1) * Math.exp((-C2 * linearTerm(constants.lowerB, constants.lowerD, J)) / temperature_K);
+    const value =
+      (2 * J + 1) * Math.exp((-C2 * linearTerm(constants.lowerB, constants.lowerD, J)) / temperature_K);
     sum += value;
     if (value > largest) largest = value;
     else if (value < NEGLIGIBLE * sum) break;
@@ -260,8 +271,20 @@ interface RawLine {
   group: number;
 }
 
-function lineWeight(position_cm: number, honlLondon: number, lowerStateEnergy_cm: number, partitionSum: number, temperature_K: number): number {
-  return (position_cm * honlLondon * Math.exp((-C2 * lowerStateEnergy_cm) / temperature_K) * -Math.expm1((-C2 * position_cm) / temperature_K)) / partitionSum;
+function lineWeight(
+  position_cm: number,
+  honlLondon: number,
+  lowerStateEnergy_cm: number,
+  partitionSum: number,
+  temperature_K: number,
+): number {
+  return (
+    (position_cm *
+      honlLondon *
+      Math.exp((-C2 * lowerStateEnergy_cm) / temperature_K) *
+      -Math.expm1((-C2 * position_cm) / temperature_K)) /
+    partitionSum
+  );
 }
 
 /** Lines of one group with weights at T and at 296 K and the group's share of the band strength. */
@@ -300,7 +323,15 @@ function diatomicGroups(model: DiatomicGasModel, temperature_K: number): Group[]
         const upperJ = branch === 'R' ? J + 1 : J - 1;
         const position = origin + rotationalTerm(constants, 1, upperJ) - lower;
         const honlLondon = branch === 'R' ? J + 1 : J;
-        group.lines.push({ position_cm: position, lowerStateEnergy_cm: lower, lowerJ: J, branch, label: `${name}${branch}(${J})`, molarMass_g_mol, group: 0 });
+        group.lines.push({
+          position_cm: position,
+          lowerStateEnergy_cm: lower,
+          lowerJ: J,
+          branch,
+          label: `${name}${branch}(${J})`,
+          molarMass_g_mol,
+          group: 0,
+        });
         group.weights.push(lineWeight(position, honlLondon, lower, q, temperature_K));
         group.weights296.push(lineWeight(position, honlLondon, lower, q296, REFERENCE_TEMPERATURE_K));
       }
@@ -314,7 +345,13 @@ function piTerm(model: PiGasModel, v: number, omega: number, J: number): number 
   const c = model.constants;
   const x = J * (J + 1) - omega * omega;
   const spinOrbit = omega > 1 ? c.spinOrbitA : 0;
-  return vibrationalTerm(c, v) - vibrationalTerm(c, 0) + spinOrbit + rotationalConstant(c, v) * x - centrifugalConstant(c, v) * x * x;
+  return (
+    vibrationalTerm(c, v) -
+    vibrationalTerm(c, 0) +
+    spinOrbit +
+    rotationalConstant(c, v) * x -
+    centrifugalConstant(c, v) * x * x
+  );
 }
 
 const OMEGAS = [0.5, 1.5] as const;
@@ -351,7 +388,15 @@ function piGroups(model: PiGasModel, temperature_K: number): Group[] {
       for (const [branch, upperJ, honlLondon] of candidates) {
         if (upperJ < omega || !(honlLondon > 0)) continue;
         const position = piTerm(model, 1, omega, upperJ) - lowest - lower;
-        group.lines.push({ position_cm: position, lowerStateEnergy_cm: lower, lowerJ: J, branch, label: `${branch}(${J}) ${subBand}`, molarMass_g_mol: model.molarMass_g_mol, group: 0 });
+        group.lines.push({
+          position_cm: position,
+          lowerStateEnergy_cm: lower,
+          lowerJ: J,
+          branch,
+          label: `${branch}(${J}) ${subBand}`,
+          molarMass_g_mol: model.molarMass_g_mol,
+          group: 0,
+        });
         group.weights.push(lineWeight(position, honlLondon, lower, q, temperature_K));
         group.weights296.push(lineWeight(position, honlLondon, lower, q296, REFERENCE_TEMPERATURE_K));
       }
@@ -362,8 +407,12 @@ function piGroups(model: PiGasModel, temperature_K: number): Group[] {
 
 function linearGroups(model: LinearGasModel, temperature_K: number): Group[] {
   const c = model.constants;
-  const q = linearRotationalPartitionSum(c, temperature_K) * harmonicVibrationalPartitionSum(model.vibrationalModes, temperature_K);
-  const q296 = linearRotationalPartitionSum(c, REFERENCE_TEMPERATURE_K) * harmonicVibrationalPartitionSum(model.vibrationalModes, REFERENCE_TEMPERATURE_K);
+  const q =
+    linearRotationalPartitionSum(c, temperature_K) *
+    harmonicVibrationalPartitionSum(model.vibrationalModes, temperature_K);
+  const q296 =
+    linearRotationalPartitionSum(c, REFERENCE_TEMPERATURE_K) *
+    harmonicVibrationalPartitionSum(model.vibrationalModes, REFERENCE_TEMPERATURE_K);
   const step = c.lowerStateJ === 'even' ? 2 : 1;
   const maxJ = lowerJLimit((J) => linearTerm(c.lowerB, c.lowerD, J), 0, temperature_K);
   const group: Group = { lines: [], weights: [], weights296: [], share: 1 };
@@ -374,7 +423,15 @@ function linearGroups(model: LinearGasModel, temperature_K: number): Group[] {
       const upperJ = branch === 'R' ? J + 1 : J - 1;
       const position = c.bandOrigin_cm + linearTerm(c.upperB, c.upperD, upperJ) - lower;
       const honlLondon = branch === 'R' ? J + 1 : J;
-      group.lines.push({ position_cm: position, lowerStateEnergy_cm: lower, lowerJ: J, branch, label: `${branch}(${J})`, molarMass_g_mol: model.molarMass_g_mol, group: 0 });
+      group.lines.push({
+        position_cm: position,
+        lowerStateEnergy_cm: lower,
+        lowerJ: J,
+        branch,
+        label: `${branch}(${J})`,
+        molarMass_g_mol: model.molarMass_g_mol,
+        group: 0,
+      });
       group.weights.push(lineWeight(position, honlLondon, lower, q, temperature_K));
       group.weights296.push(lineWeight(position, honlLondon, lower, q296, REFERENCE_TEMPERATURE_K));
     }
@@ -411,10 +468,30 @@ function bandModelGroups(model: BandGasModel, temperature_K: number): Group[] {
     const q = pseudoRotorPartitionSum(B, temperature_K) * qVib;
     const q296 = pseudoRotorPartitionSum(B, REFERENCE_TEMPERATURE_K) * qVib296;
     const share = band.bandStrength.value_cm_per_molecule / total;
-    const sides: Group = { lines: [], weights: [], weights296: [], share: share * (1 - band.qBranchFraction) };
-    const add = (target: Group, position: number, J: number, honlLondon: number, branch: Branch, label: string): void => {
+    const sides: Group = {
+      lines: [],
+      weights: [],
+      weights296: [],
+      share: share * (1 - band.qBranchFraction),
+    };
+    const add = (
+      target: Group,
+      position: number,
+      J: number,
+      honlLondon: number,
+      branch: Branch,
+      label: string,
+    ): void => {
       const lower = B * J * (J + 1);
-      target.lines.push({ position_cm: position, lowerStateEnergy_cm: lower, lowerJ: J, branch, label, molarMass_g_mol: model.molarMass_g_mol, group: 0 });
+      target.lines.push({
+        position_cm: position,
+        lowerStateEnergy_cm: lower,
+        lowerJ: J,
+        branch,
+        label,
+        molarMass_g_mol: model.molarMass_g_mol,
+        group: 0,
+      });
       target.weights.push(lineWeight(position, honlLondon, lower, q, temperature_K));
       target.weights296.push(lineWeight(position, honlLondon, lower, q296, REFERENCE_TEMPERATURE_K));
     };
@@ -429,7 +506,14 @@ function bandModelGroups(model: BandGasModel, temperature_K: number): Group[] {
         for (let c = 0; c < n; c++) {
           const spread = n === 1 ? 0 : band.clusterSpread_cm * (c / (n - 1) - 0.5);
           const componentWeight = n === 1 ? 1 : 0.5 + random();
-          add(sides, band.center_cm + sign * offset + spread, J, (honlLondon * componentWeight) / n, branch, `${band.mode} pseudo-line ${branch} ${k}${n > 1 ? `.${c + 1}` : ''}`);
+          add(
+            sides,
+            band.center_cm + sign * offset + spread,
+            J,
+            (honlLondon * componentWeight) / n,
+            branch,
+            `${band.mode} pseudo-line ${branch} ${k}${n > 1 ? `.${c + 1}` : ''}`,
+          );
         }
       }
     }
@@ -441,7 +525,14 @@ function bandModelGroups(model: BandGasModel, temperature_K: number): Group[] {
       for (let J = 1; J <= maxJ; J++) {
         const offset = (band.qBranchWidth_cm * J * (J + 1)) / (reference * (reference + 1));
         if (offset > band.maxOffset_cm) break;
-        add(qBranch, band.center_cm - offset, J, (2 * J + 1) * scatterFactor(band.intensityScatter, random), 'Q', `${band.mode} pseudo-line Q ${J}`);
+        add(
+          qBranch,
+          band.center_cm - offset,
+          J,
+          (2 * J + 1) * scatterFactor(band.intensityScatter, random),
+          'Q',
+          `${band.mode} pseudo-line Q ${J}`,
+        );
       }
       groups.push(qBranch);
     }
@@ -481,17 +572,26 @@ function modelSources(model: GasModel): string[] {
   const sources = [`broadening: ${model.broadening.source}`];
   switch (model.kind) {
     case 'diatomic':
-      for (const iso of model.isotopologues) sources.push(`${iso.constants.molecule}: ${iso.constants.source}; abundance: ${iso.abundanceSource}`);
+      for (const iso of model.isotopologues)
+        sources.push(`${iso.constants.molecule}: ${iso.constants.source}; abundance: ${iso.abundanceSource}`);
       sources.push(`band strength: ${model.bandStrength.source}`);
       break;
     case 'diatomic-pi':
-      sources.push(`${model.constants.molecule}: ${model.constants.source}`, `band strength: ${model.bandStrength.source}`);
+      sources.push(
+        `${model.constants.molecule}: ${model.constants.source}`,
+        `band strength: ${model.bandStrength.source}`,
+      );
       break;
     case 'linear-band':
-      sources.push(`${model.constants.molecule} ${model.constants.band}: ${model.constants.source}`, `band strength: ${model.bandStrength.source}`, `vibrational modes: ${model.modesSource}`);
+      sources.push(
+        `${model.constants.molecule} ${model.constants.band}: ${model.constants.source}`,
+        `band strength: ${model.bandStrength.source}`,
+        `vibrational modes: ${model.modesSource}`,
+      );
       break;
     case 'band-model':
-      for (const band of model.bands) sources.push(`${band.mode} at ${band.center_cm} cm⁻¹: ${band.bandStrength.source}`);
+      for (const band of model.bands)
+        sources.push(`${band.mode} at ${band.center_cm} cm⁻¹: ${band.bandStrength.source}`);
       sources.push(`vibrational modes: ${model.modesSource}`);
       break;
   }
@@ -499,7 +599,9 @@ function modelSources(model: GasModel): string[] {
 }
 
 function bandStrengthOf(model: GasModel): number {
-  return model.kind === 'band-model' ? model.bands.reduce((sum, band) => sum + band.bandStrength.value_cm_per_molecule, 0) : model.bandStrength.value_cm_per_molecule;
+  return model.kind === 'band-model'
+    ? model.bands.reduce((sum, band) => sum + band.bandStrength.value_cm_per_molecule, 0)
+    : model.bandStrength.value_cm_per_molecule;
 }
 
 /**
@@ -517,13 +619,23 @@ function bandStrengthOf(model: GasModel): number {
  */
 export function lineList(gas: string, temperature_K: number): LineList {
   const model = requireGasModel(gas);
-  if (typeof temperature_K !== 'number' || !(temperature_K >= TEMPERATURE_LIMITS_K[0] && temperature_K <= TEMPERATURE_LIMITS_K[1])) {
-    throw new BandwrightError('INVALID_VALUE', `temperature_K = ${String(temperature_K)}, must be between ${TEMPERATURE_LIMITS_K[0]} and ${TEMPERATURE_LIMITS_K[1]} K`, { parameter: 'temperature_K' });
+  if (
+    typeof temperature_K !== 'number' ||
+    !(temperature_K >= TEMPERATURE_LIMITS_K[0] && temperature_K <= TEMPERATURE_LIMITS_K[1])
+  ) {
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `temperature_K = ${String(temperature_K)}, must be between ${TEMPERATURE_LIMITS_K[0]} and ${TEMPERATURE_LIMITS_K[1]} K`,
+      { parameter: 'temperature_K' },
+    );
   }
   const groups =
-    model.kind === 'diatomic' ? diatomicGroups(model, temperature_K)
-      : model.kind === 'diatomic-pi' ? piGroups(model, temperature_K)
-        : model.kind === 'linear-band' ? linearGroups(model, temperature_K)
+    model.kind === 'diatomic'
+      ? diatomicGroups(model, temperature_K)
+      : model.kind === 'diatomic-pi'
+        ? piGroups(model, temperature_K)
+        : model.kind === 'linear-band'
+          ? linearGroups(model, temperature_K)
           : bandModelGroups(model, temperature_K);
   const strength = bandStrengthOf(model);
   const lines: SpectralLine[] = [];

@@ -8,7 +8,13 @@
  * rational approximation (J. Humlíček, JQSRT 27 (1982) 437), whose relative accuracy is about
  * 1e-4 over the upper half-plane.
  */
-import { BOLTZMANN_J_K, AVOGADRO_PER_MOL, SPEED_OF_LIGHT_M_S, REFERENCE_PRESSURE_KPA, REFERENCE_TEMPERATURE_K } from './constants.js';
+import {
+  BOLTZMANN_J_K,
+  AVOGADRO_PER_MOL,
+  SPEED_OF_LIGHT_M_S,
+  REFERENCE_PRESSURE_KPA,
+  REFERENCE_TEMPERATURE_K,
+} from './constants.js';
 
 const SQRT_LN2 = Math.sqrt(Math.LN2);
 const SQRT_PI = Math.sqrt(Math.PI);
@@ -163,7 +169,9 @@ export function faddeevaReal(x: number, y: number): number {
 export function dopplerHWHM(center_cm: number, temperature_K: number, molarMass_g_mol: number): number {
   if (!(center_cm > 0) || !(temperature_K > 0) || !(molarMass_g_mol > 0)) return Number.NaN;
   const massKg = (molarMass_g_mol * 1e-3) / AVOGADRO_PER_MOL;
-  return (center_cm / SPEED_OF_LIGHT_M_S) * Math.sqrt((2 * Math.LN2 * BOLTZMANN_J_K * temperature_K) / massKg);
+  return (
+    (center_cm / SPEED_OF_LIGHT_M_S) * Math.sqrt((2 * Math.LN2 * BOLTZMANN_J_K * temperature_K) / massKg)
+  );
 }
 
 /** Inputs of {@link lorentzHWHM}. */
@@ -189,8 +197,18 @@ export interface LorentzWidthOptions {
 export function lorentzHWHM(options: LorentzWidthOptions): number {
   const { airBroadening_cm_atm, temperature_K, pressure_kPa } = options;
   const exponent = options.temperatureExponent ?? 0.7;
-  if (!(airBroadening_cm_atm >= 0) || !(temperature_K > 0) || !(pressure_kPa >= 0) || !Number.isFinite(exponent)) return Number.NaN;
-  return airBroadening_cm_atm * (pressure_kPa / REFERENCE_PRESSURE_KPA) * (REFERENCE_TEMPERATURE_K / temperature_K) ** exponent;
+  if (
+    !(airBroadening_cm_atm >= 0) ||
+    !(temperature_K > 0) ||
+    !(pressure_kPa >= 0) ||
+    !Number.isFinite(exponent)
+  )
+    return Number.NaN;
+  return (
+    airBroadening_cm_atm *
+    (pressure_kPa / REFERENCE_PRESSURE_KPA) *
+    (REFERENCE_TEMPERATURE_K / temperature_K) ** exponent
+  );
 }
 
 /**
@@ -229,11 +247,20 @@ export function voigtProfile(offset_cm: number, dopplerHWHM_cm: number, lorentzH
 export function accumulateVoigt(
   target: Float64Array,
   grid: { start_cm: number; step_cm: number },
-  line: { center_cm: number; scale: number; dopplerHWHM_cm: number; lorentzHWHM_cm: number; cutoff_cm: number },
+  line: {
+    center_cm: number;
+    scale: number;
+    dopplerHWHM_cm: number;
+    lorentzHWHM_cm: number;
+    cutoff_cm: number;
+  },
 ): void {
   const { start_cm, step_cm } = grid;
   const first = Math.max(0, Math.ceil((line.center_cm - line.cutoff_cm - start_cm) / step_cm));
-  const last = Math.min(target.length - 1, Math.floor((line.center_cm + line.cutoff_cm - start_cm) / step_cm));
+  const last = Math.min(
+    target.length - 1,
+    Math.floor((line.center_cm + line.cutoff_cm - start_cm) / step_cm),
+  );
   if (last < first) return;
   if (line.dopplerHWHM_cm === 0) {
     const gamma = line.lorentzHWHM_cm;
@@ -265,5 +292,8 @@ export function accumulateVoigt(
  * @returns HWHM in cm⁻¹
  */
 export function voigtHWHM(dopplerHWHM_cm: number, lorentzHWHM_cm: number): number {
-  return 0.5346 * lorentzHWHM_cm + Math.sqrt(0.2166 * lorentzHWHM_cm * lorentzHWHM_cm + dopplerHWHM_cm * dopplerHWHM_cm);
+  return (
+    0.5346 * lorentzHWHM_cm +
+    Math.sqrt(0.2166 * lorentzHWHM_cm * lorentzHWHM_cm + dopplerHWHM_cm * dopplerHWHM_cm)
+  );
 }

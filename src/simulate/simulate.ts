@@ -131,12 +131,18 @@ const TRANSMITTANCE_FLOOR = 1e-5;
 const MAX_BASELINE_TERMS = 10;
 
 function invalid(parameter: string, value: unknown, rule: string): never {
-  const shown = typeof value === 'string' ? JSON.stringify(value) : Array.isArray(value) ? `[${value.join(', ')}]` : String(value);
+  const shown =
+    typeof value === 'string'
+      ? JSON.stringify(value)
+      : Array.isArray(value)
+        ? `[${value.join(', ')}]`
+        : String(value);
   throw new BandwrightError('INVALID_VALUE', `${parameter} = ${shown}, ${rule}`, { parameter });
 }
 
 function finiteNumber(value: unknown, parameter: string): number {
-  if (typeof value !== 'number' || !Number.isFinite(value)) invalid(parameter, value, 'must be a finite number');
+  if (typeof value !== 'number' || !Number.isFinite(value))
+    invalid(parameter, value, 'must be a finite number');
   return value;
 }
 
@@ -180,30 +186,41 @@ function resolveOptions(options: SimulationOptions): Resolved {
     const ppm = finiteNumber(gas.ppm, `${where}.ppm`);
     if (ppm < 0 || ppm > 1e6) invalid(`${where}.ppm`, ppm, 'must be between 0 and 1000000');
     const earlier = seen.get(model.gas);
-    if (earlier !== undefined) invalid(`${where}.name`, gas.name, `${model.gas} is already given as gases[${earlier}]`);
+    if (earlier !== undefined)
+      invalid(`${where}.name`, gas.name, `${model.gas} is already given as gases[${earlier}]`);
     seen.set(model.gas, i);
     totalPpm += ppm;
     gases.push({ model, ppm });
   });
-  if (totalPpm > 1e6 * (1 + 1e-12)) invalid('gases', `${totalPpm} ppm in total`, 'the mole fractions must add up to at most 1000000 ppm');
+  if (totalPpm > 1e6 * (1 + 1e-12))
+    invalid('gases', `${totalPpm} ppm in total`, 'the mole fractions must add up to at most 1000000 ppm');
 
   const pathLength_m = positive(options.pathLength_m ?? DEFAULTS.pathLength_m, 'pathLength_m');
   const temperature_K = finiteNumber(options.temperature_K ?? DEFAULTS.temperature_K, 'temperature_K');
   if (temperature_K < TEMPERATURE_LIMITS_K[0] || temperature_K > TEMPERATURE_LIMITS_K[1]) {
-    invalid('temperature_K', temperature_K, `must be between ${TEMPERATURE_LIMITS_K[0]} and ${TEMPERATURE_LIMITS_K[1]} K`);
+    invalid(
+      'temperature_K',
+      temperature_K,
+      `must be between ${TEMPERATURE_LIMITS_K[0]} and ${TEMPERATURE_LIMITS_K[1]} K`,
+    );
   }
   const pressure_kPa = positive(options.pressure_kPa ?? DEFAULTS.pressure_kPa, 'pressure_kPa');
   if (pressure_kPa > 10_000) invalid('pressure_kPa', pressure_kPa, 'must be at most 10000 kPa');
   const resolution_cm = positive(options.resolution_cm ?? DEFAULTS.resolution_cm, 'resolution_cm');
-  if (resolution_cm < 0.01 || resolution_cm > 32) invalid('resolution_cm', resolution_cm, 'must be between 0.01 and 32 cm⁻¹');
+  if (resolution_cm < 0.01 || resolution_cm > 32)
+    invalid('resolution_cm', resolution_cm, 'must be between 0.01 and 32 cm⁻¹');
   const apodization = options.apodization ?? DEFAULTS.apodization;
-  if (!APODIZATIONS.includes(apodization)) invalid('apodization', apodization, `must be one of ${APODIZATIONS.join(', ')}`);
+  if (!APODIZATIONS.includes(apodization))
+    invalid('apodization', apodization, `must be one of ${APODIZATIONS.join(', ')}`);
 
   let range: [number, number];
   if (options.range_cm === undefined) {
     if (gases.length === 0) invalid('range_cm', undefined, 'must be given when no gas is simulated');
     const centres = gases.flatMap(({ model }) => bandCentres(model));
-    range = [Math.max(10, Math.floor((Math.min(...centres) - 150) / 10) * 10), Math.ceil((Math.max(...centres) + 150) / 10) * 10];
+    range = [
+      Math.max(10, Math.floor((Math.min(...centres) - 150) / 10) * 10),
+      Math.ceil((Math.max(...centres) + 150) / 10) * 10,
+    ];
   } else {
     const given = options.range_cm;
     if (!Array.isArray(given) || given.length !== 2) invalid('range_cm', given, 'must be [lo, hi] in cm⁻¹');
@@ -216,20 +233,45 @@ function resolveOptions(options: SimulationOptions): Resolved {
   }
   const pointSpacing_cm = positive(options.pointSpacing_cm ?? resolution_cm / 2, 'pointSpacing_cm');
   const outputPoints = Math.floor((range[1] - range[0]) / pointSpacing_cm + 1e-9) + 1;
-  if (outputPoints < 2) invalid('pointSpacing_cm', pointSpacing_cm, `must leave at least 2 points in ${range[0]}–${range[1]} cm⁻¹`);
+  if (outputPoints < 2)
+    invalid(
+      'pointSpacing_cm',
+      pointSpacing_cm,
+      `must leave at least 2 points in ${range[0]}–${range[1]} cm⁻¹`,
+    );
   if (outputPoints > MAX_OUTPUT_POINTS) {
-    throw new BandwrightError('LIMIT', `pointSpacing_cm = ${pointSpacing_cm} over ${range[0]}–${range[1]} cm⁻¹ gives ${outputPoints} points, at most ${MAX_OUTPUT_POINTS} are allowed`, { parameter: 'pointSpacing_cm' });
+    throw new BandwrightError(
+      'LIMIT',
+      `pointSpacing_cm = ${pointSpacing_cm} over ${range[0]}–${range[1]} cm⁻¹ gives ${outputPoints} points, at most ${MAX_OUTPUT_POINTS} are allowed`,
+      { parameter: 'pointSpacing_cm' },
+    );
   }
   const baselineInput = options.baseline ?? [];
-  if (!Array.isArray(baselineInput) || baselineInput.length > MAX_BASELINE_TERMS) invalid('baseline', baselineInput, `must be an array of at most ${MAX_BASELINE_TERMS} coefficients`);
+  if (!Array.isArray(baselineInput) || baselineInput.length > MAX_BASELINE_TERMS)
+    invalid('baseline', baselineInput, `must be an array of at most ${MAX_BASELINE_TERMS} coefficients`);
   const baseline = baselineInput.map((c: unknown, k: number) => finiteNumber(c, `baseline[${k}]`));
   const noiseRms_AU = finiteNumber(options.noiseRms_AU ?? DEFAULTS.noiseRms_AU, 'noiseRms_AU');
   if (noiseRms_AU < 0) invalid('noiseRms_AU', noiseRms_AU, 'must be >= 0');
   const seed = finiteNumber(options.seed ?? DEFAULTS.seed, 'seed');
   if (!Number.isInteger(seed)) invalid('seed', seed, 'must be an integer');
-  const title = options.title ?? `simulated: ${gases.length === 0 ? 'no absorber' : gases.map(({ model, ppm }) => `${model.gas} ${ppm} ppm`).join(', ')}`;
+  const title =
+    options.title ??
+    `simulated: ${gases.length === 0 ? 'no absorber' : gases.map(({ model, ppm }) => `${model.gas} ${ppm} ppm`).join(', ')}`;
   if (typeof title !== 'string') invalid('title', title, 'must be a string');
-  return { gases, pathLength_m, temperature_K, pressure_kPa, range, resolution_cm, apodization, pointSpacing_cm, baseline, noiseRms_AU, seed, title };
+  return {
+    gases,
+    pathLength_m,
+    temperature_K,
+    pressure_kPa,
+    range,
+    resolution_cm,
+    apodization,
+    pointSpacing_cm,
+    baseline,
+    noiseRms_AU,
+    seed,
+    title,
+  };
 }
 
 function bandCentres(model: GasModel): number[] {
@@ -294,7 +336,7 @@ export function simulateSpectrum(options: SimulationOptions): SimulationResult {
   const notes: string[] = [];
   const approximateGases: string[] = [];
 
-  const numberDensityFactor = (o.pressure_kPa * 1e3) / (BOLTZMANN_J_K * o.temperature_K) * 1e-6; // molecules/cm³ per unit mole fraction
+  const numberDensityFactor = ((o.pressure_kPa * 1e3) / (BOLTZMANN_J_K * o.temperature_K)) * 1e-6; // molecules/cm³ per unit mole fraction
   const pathLength_cm = o.pathLength_m * 100;
   const edge = 50 * o.resolution_cm + 2; // margin beyond the output range, cm⁻¹
   const fineLo = lo - edge;
@@ -308,12 +350,23 @@ export function simulateSpectrum(options: SimulationOptions): SimulationResult {
     let count = 0;
     for (const line of list.lines) {
       const doppler = dopplerHWHM(line.position_cm, o.temperature_K, line.molarMass_g_mol);
-      const lorentz = lorentzHWHM({ airBroadening_cm_atm: line.airBroadening_cm_atm, temperatureExponent: line.temperatureExponent, temperature_K: o.temperature_K, pressure_kPa: o.pressure_kPa });
+      const lorentz = lorentzHWHM({
+        airBroadening_cm_atm: line.airBroadening_cm_atm,
+        temperatureExponent: line.temperatureExponent,
+        temperature_K: o.temperature_K,
+        pressure_kPa: o.pressure_kPa,
+      });
       const cutoff = Math.min(LINE_CUTOFF_CM, LINE_CUTOFF_WIDTHS * voigtHWHM(doppler, lorentz));
       if (line.position_cm + cutoff < fineLo || line.position_cm - cutoff > fineHi) continue;
       count++;
       if (numberDensity > 0) {
-        prepared.push({ center_cm: line.position_cm, scale: line.intensity_cm_per_molecule * numberDensity * pathLength_cm, dopplerHWHM_cm: doppler, lorentzHWHM_cm: lorentz, cutoff_cm: cutoff });
+        prepared.push({
+          center_cm: line.position_cm,
+          scale: line.intensity_cm_per_molecule * numberDensity * pathLength_cm,
+          dopplerHWHM_cm: doppler,
+          lorentzHWHM_cm: lorentz,
+          cutoff_cm: cutoff,
+        });
       }
     }
     truth.push({
@@ -321,20 +374,25 @@ export function simulateSpectrum(options: SimulationOptions): SimulationResult {
       ppm,
       numberDensity_per_cm3: numberDensity,
       bandStrength_cm_per_molecule: list.totalIntensity_cm_per_molecule,
-      weakLimitBandArea_AU_cm: (list.totalIntensity_cm_per_molecule * numberDensity * pathLength_cm) / Math.LN10,
+      weakLimitBandArea_AU_cm:
+        (list.totalIntensity_cm_per_molecule * numberDensity * pathLength_cm) / Math.LN10,
       lineCount: count,
       approximate: model.approximate,
     });
     if (model.approximate) {
       approximateGases.push(model.gas);
-      warnings.push(`${model.gas}: approximate band model (band centres right, strengths from memory, invented line pattern); use it as an interferent or for demonstrations, not to judge how well ${model.gas} is quantified`);
+      warnings.push(
+        `${model.gas}: approximate band model (band centres right, strengths from memory, invented line pattern); use it as an interferent or for demonstrations, not to judge how well ${model.gas} is quantified`,
+      );
     } else {
       for (const note of model.notes) notes.push(`${model.gas}: ${note}`);
     }
     if (count === 0) warnings.push(`${model.gas}: no modelled absorption between ${lo} and ${hi} cm⁻¹`);
   }
   if (o.temperature_K < 200 || o.temperature_K > 800) {
-    warnings.push(`temperature_K = ${o.temperature_K}: broadening exponents and the approximate band models are meant for about 200–800 K`);
+    warnings.push(
+      `temperature_K = ${o.temperature_K}: broadening exponents and the approximate band models are meant for about 200–800 K`,
+    );
   }
 
   // Fine grid: resolve the narrowest line and the instrument function.
@@ -366,7 +424,12 @@ export function simulateSpectrum(options: SimulationOptions): SimulationResult {
     const weight = fromEdge >= taper ? 1 : 0.5 * (1 - Math.cos((Math.PI * Math.max(0, fromEdge)) / taper));
     absorptance[k] = -Math.expm1(-(opticalDepth[k] as number)) * weight;
   }
-  const apparent = convolveWithInstrument(absorptance, { step_cm: step, resolution_cm: o.resolution_cm, apodization: o.apodization, padding: Math.ceil((2 * edge) / step) });
+  const apparent = convolveWithInstrument(absorptance, {
+    step_cm: step,
+    resolution_cm: o.resolution_cm,
+    apodization: o.apodization,
+    padding: Math.ceil((2 * edge) / step),
+  });
 
   const outputPoints = Math.floor((hi - lo) / o.pointSpacing_cm + 1e-9) + 1;
   const x = new Float64Array(outputPoints);
@@ -406,7 +469,9 @@ export function simulateSpectrum(options: SimulationOptions): SimulationResult {
     );
   }
   if (peak > 1) {
-    warnings.push(`peak absorbance ${peak.toFixed(2)} AU at ${peakAt.toFixed(2)} cm⁻¹ is above 1 AU: lines saturate and band areas grow less than linearly with concentration`);
+    warnings.push(
+      `peak absorbance ${peak.toFixed(2)} AU at ${peakAt.toFixed(2)} cm⁻¹ is above 1 AU: lines saturate and band areas grow less than linearly with concentration`,
+    );
   }
 
   const spectrum = makeSpectrum({
@@ -421,5 +486,12 @@ export function simulateSpectrum(options: SimulationOptions): SimulationResult {
       resolution_cm: o.resolution_cm,
     },
   });
-  return { spectrum, warnings, approximateGases, notes, gases: truth, fineGrid: { step_cm: step, points: finePoints, maxCutoff_cm: maxCutoff } };
+  return {
+    spectrum,
+    warnings,
+    approximateGases,
+    notes,
+    gases: truth,
+    fineGrid: { step_cm: step, points: finePoints, maxCutoff_cm: maxCutoff },
+  };
 }

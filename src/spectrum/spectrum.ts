@@ -14,10 +14,17 @@ import { BandwrightError, assertAscending } from '../errors.js';
  * - `transmittance-percent`: percent, 0…100
  * - `single-beam`: sample single-beam intensity; needs a `background` of the same grid
  */
-export type YKind = 'absorbance' | 'absorbance-natural' | 'transmittance' | 'transmittance-percent' | 'single-beam';
+export type YKind =
+  'absorbance' | 'absorbance-natural' | 'transmittance' | 'transmittance-percent' | 'single-beam';
 
 /** All y-kinds, for validating options and column names. */
-export const Y_KINDS: readonly YKind[] = ['absorbance', 'absorbance-natural', 'transmittance', 'transmittance-percent', 'single-beam'];
+export const Y_KINDS: readonly YKind[] = [
+  'absorbance',
+  'absorbance-natural',
+  'transmittance',
+  'transmittance-percent',
+  'single-beam',
+];
 
 /** Cell conditions and labels a scan file may carry. Units are fixed by the field names. */
 export interface ScanMetadata {
@@ -74,14 +81,26 @@ export function makeSpectrum(init: Spectrum): Spectrum {
   const where = label(init);
   const { x, y, background } = init;
   if (x.length !== y.length) {
-    throw new BandwrightError('INVALID_VALUE', `${where}: ${x.length} x values but ${y.length} y values, must be equal`, { file: init.metadata.source });
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `${where}: ${x.length} x values but ${y.length} y values, must be equal`,
+      { file: init.metadata.source },
+    );
   }
   if (x.length < 2) {
-    throw new BandwrightError('INVALID_VALUE', `${where}: ${x.length} point(s), a spectrum needs at least 2`, { file: init.metadata.source });
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `${where}: ${x.length} point(s), a spectrum needs at least 2`,
+      { file: init.metadata.source },
+    );
   }
   for (let i = 0; i < x.length; i++) {
     if (!Number.isFinite(x[i]) || !Number.isFinite(y[i])) {
-      throw new BandwrightError('INVALID_VALUE', `${where}: point ${i + 1}: x = ${x[i]}, y = ${y[i]}, must be finite numbers`, { file: init.metadata.source });
+      throw new BandwrightError(
+        'INVALID_VALUE',
+        `${where}: point ${i + 1}: x = ${x[i]}, y = ${y[i]}, must be finite numbers`,
+        { file: init.metadata.source },
+      );
     }
   }
   assertAscending(x, { file: where });
@@ -96,11 +115,19 @@ export function makeSpectrum(init: Spectrum): Spectrum {
   }
   if (background !== undefined) {
     if (background.length !== x.length) {
-      throw new BandwrightError('INVALID_VALUE', `${where}: background has ${background.length} points, sample ${x.length}, must be equal`, { file: init.metadata.source });
+      throw new BandwrightError(
+        'INVALID_VALUE',
+        `${where}: background has ${background.length} points, sample ${x.length}, must be equal`,
+        { file: init.metadata.source },
+      );
     }
     for (let i = 0; i < background.length; i++) {
       if (!Number.isFinite(background[i])) {
-        throw new BandwrightError('INVALID_VALUE', `${where}: background point ${i + 1} = ${background[i]}, must be a finite number`, { file: init.metadata.source });
+        throw new BandwrightError(
+          'INVALID_VALUE',
+          `${where}: background point ${i + 1} = ${background[i]}, must be a finite number`,
+          { file: init.metadata.source },
+        );
       }
     }
   }
@@ -120,7 +147,12 @@ export function makeSpectrum(init: Spectrum): Spectrum {
  *   points (cheap checks kept as a guard against misuse)
  */
 export function spectrumFromCheckedArrays(init: Spectrum): Spectrum {
-  if (init.x.length !== init.y.length || init.x.length < 2 || (init.yKind === 'single-beam') !== (init.background !== undefined)) return makeSpectrum(init);
+  if (
+    init.x.length !== init.y.length ||
+    init.x.length < 2 ||
+    (init.yKind === 'single-beam') !== (init.background !== undefined)
+  )
+    return makeSpectrum(init);
   return init;
 }
 
@@ -185,7 +217,11 @@ export function toAbsorbance(spectrum: Spectrum): Spectrum {
  */
 export function toTransmittance(spectrum: Spectrum): Spectrum {
   if (spectrum.yKind !== 'absorbance') {
-    throw new BandwrightError('INVALID_VALUE', `${label(spectrum)}: y-kind ${spectrum.yKind}, convert to absorbance first`, { file: spectrum.metadata.source });
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `${label(spectrum)}: y-kind ${spectrum.yKind}, convert to absorbance first`,
+      { file: spectrum.metadata.source },
+    );
   }
   const out = new Float64Array(spectrum.y.length);
   for (let i = 0; i < out.length; i++) out[i] = 10 ** -(spectrum.y[i] as number);
@@ -257,7 +293,10 @@ export function resample(spectrum: Spectrum, grid: Float64Array): Spectrum {
     const t = (value - x1) / (x2 - x1);
     out[i] = (y[j - 1] as number) + t * ((y[j] as number) - (y[j - 1] as number));
   }
-  const background = spectrum.background === undefined ? undefined : resample({ ...spectrum, y: spectrum.background, background: undefined, yKind: 'absorbance' }, grid).y;
+  const background =
+    spectrum.background === undefined
+      ? undefined
+      : resample({ ...spectrum, y: spectrum.background, background: undefined, yKind: 'absorbance' }, grid).y;
   return background === undefined
     ? { x: grid, y: out, yKind: spectrum.yKind, metadata: spectrum.metadata }
     : { x: grid, y: out, yKind: spectrum.yKind, background, metadata: spectrum.metadata };

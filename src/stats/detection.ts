@@ -84,12 +84,21 @@ function resolve(options: LimitOptions): ResolvedOptions {
   const beta = options.beta ?? alpha;
   const k = options.k ?? 3;
   const replicates = options.replicates ?? 1;
-  for (const [name, value] of [['alpha', alpha], ['beta', beta]] as const) {
-    if (!(value > 0 && value < 0.5)) throw new BandwrightError('INVALID_VALUE', `${name} = ${value}, must be between 0 and 0.5`, { parameter: name });
+  for (const [name, value] of [
+    ['alpha', alpha],
+    ['beta', beta],
+  ] as const) {
+    if (!(value > 0 && value < 0.5))
+      throw new BandwrightError('INVALID_VALUE', `${name} = ${value}, must be between 0 and 0.5`, {
+        parameter: name,
+      });
   }
-  if (!(Number.isFinite(k) && k > 0)) throw new BandwrightError('INVALID_VALUE', `k = ${k}, must be a finite number > 0`, { parameter: 'k' });
+  if (!(Number.isFinite(k) && k > 0))
+    throw new BandwrightError('INVALID_VALUE', `k = ${k}, must be a finite number > 0`, { parameter: 'k' });
   if (!(Number.isInteger(replicates) && replicates >= 1)) {
-    throw new BandwrightError('INVALID_VALUE', `replicates = ${replicates}, must be an integer >= 1`, { parameter: 'replicates' });
+    throw new BandwrightError('INVALID_VALUE', `replicates = ${replicates}, must be an integer >= 1`, {
+      parameter: 'replicates',
+    });
   }
   return { alpha, beta, k, replicates };
 }
@@ -134,11 +143,26 @@ export interface StraightLineInput {
 export function straightLineLimits(input: StraightLineInput, options: LimitOptions = {}): StraightLineLimits {
   const { alpha, beta, k, replicates } = resolve(options);
   const { n, slope, residualSD, meanX, sxx } = input;
-  if (!(Number.isInteger(n) && n >= 3)) throw new BandwrightError('INVALID_VALUE', `n = ${n}, must be an integer >= 3 for a straight line`, { parameter: 'n' });
-  if (!(Number.isFinite(slope) && slope !== 0)) throw new BandwrightError('INVALID_VALUE', `slope = ${slope}, must be a finite non-zero number`, { parameter: 'slope' });
-  if (!(Number.isFinite(residualSD) && residualSD > 0)) throw new BandwrightError('INVALID_VALUE', `residualSD = ${residualSD}, must be a finite number > 0`, { parameter: 'residualSD' });
-  if (!(Number.isFinite(sxx) && sxx > 0)) throw new BandwrightError('INVALID_VALUE', `sxx = ${sxx}, must be a finite number > 0`, { parameter: 'sxx' });
-  if (!Number.isFinite(meanX)) throw new BandwrightError('INVALID_VALUE', `meanX = ${meanX}, must be a finite number`, { parameter: 'meanX' });
+  if (!(Number.isInteger(n) && n >= 3))
+    throw new BandwrightError('INVALID_VALUE', `n = ${n}, must be an integer >= 3 for a straight line`, {
+      parameter: 'n',
+    });
+  if (!(Number.isFinite(slope) && slope !== 0))
+    throw new BandwrightError('INVALID_VALUE', `slope = ${slope}, must be a finite non-zero number`, {
+      parameter: 'slope',
+    });
+  if (!(Number.isFinite(residualSD) && residualSD > 0))
+    throw new BandwrightError('INVALID_VALUE', `residualSD = ${residualSD}, must be a finite number > 0`, {
+      parameter: 'residualSD',
+    });
+  if (!(Number.isFinite(sxx) && sxx > 0))
+    throw new BandwrightError('INVALID_VALUE', `sxx = ${sxx}, must be a finite number > 0`, {
+      parameter: 'sxx',
+    });
+  if (!Number.isFinite(meanX))
+    throw new BandwrightError('INVALID_VALUE', `meanX = ${meanX}, must be a finite number`, {
+      parameter: 'meanX',
+    });
   const df = n - 2;
   const methodSD = residualSD / Math.abs(slope);
   const tAlpha = tQuantile(1 - alpha, df);
@@ -147,22 +171,35 @@ export function straightLineLimits(input: StraightLineInput, options: LimitOptio
   const blankFactor = Math.sqrt(1 / replicates + 1 / n + (meanX * meanX) / sxx);
   const decision = methodSD * tAlpha * blankFactor;
   const detection = methodSD * (tAlpha + tBeta) * blankFactor;
-  const determination = fixedPoint((x) => k * methodSD * tTwoSided * Math.sqrt(1 / replicates + 1 / n + ((x - meanX) ** 2) / sxx), k * decision);
+  const determination = fixedPoint(
+    (x) => k * methodSD * tTwoSided * Math.sqrt(1 / replicates + 1 / n + (x - meanX) ** 2 / sxx),
+    k * decision,
+  );
   const common = `α = ${alpha}, f = n − 2 = ${df}, m = ${replicates}`;
   return {
-    decision: { value: decision, definition: `decision limit, DIN 32645 / ISO 11843-2 calibration method: x_C = s_x0·t(1−α, f)·√(1/m + 1/n + x̄²/Sxx), ${common}` },
+    decision: {
+      value: decision,
+      definition: `decision limit, DIN 32645 / ISO 11843-2 calibration method: x_C = s_x0·t(1−α, f)·√(1/m + 1/n + x̄²/Sxx), ${common}`,
+    },
     detection: {
       value: detection,
       definition: `detection limit, DIN 32645 calibration method: x_D = s_x0·(t(1−α, f) + t(1−β, f))·√(1/m + 1/n + x̄²/Sxx), ${common}, β = ${beta}${alpha === beta ? ' (α = β, so x_D = 2·x_C exactly)' : ''}`,
     },
     determination: {
       value: determination,
-      definition: determination === null
-        ? `determination limit, DIN 32645: the iteration for x_Q did not converge (k = ${k}, ${common})`
-        : `determination limit, DIN 32645 calibration method: x_Q = k·s_x0·t(1−α/2, f)·√(1/m + 1/n + (x_Q − x̄)²/Sxx), solved iteratively, k = ${k}, ${common}`,
+      definition:
+        determination === null
+          ? `determination limit, DIN 32645: the iteration for x_Q did not converge (k = ${k}, ${common})`
+          : `determination limit, DIN 32645 calibration method: x_Q = k·s_x0·t(1−α/2, f)·√(1/m + 1/n + (x_Q − x̄)²/Sxx), solved iteratively, k = ${k}, ${common}`,
     },
-    ichDetection: { value: (3.3 * residualSD) / Math.abs(slope), definition: 'detection limit, ICH Q2: 3.3·σ/b with σ the residual SD of the calibration' },
-    ichQuantitation: { value: (10 * residualSD) / Math.abs(slope), definition: 'quantitation limit, ICH Q2: 10·σ/b with σ the residual SD of the calibration' },
+    ichDetection: {
+      value: (3.3 * residualSD) / Math.abs(slope),
+      definition: 'detection limit, ICH Q2: 3.3·σ/b with σ the residual SD of the calibration',
+    },
+    ichQuantitation: {
+      value: (10 * residualSD) / Math.abs(slope),
+      definition: 'quantitation limit, ICH Q2: 10·σ/b with σ the residual SD of the calibration',
+    },
     alpha,
     beta,
     k,
@@ -209,37 +246,69 @@ export interface CurveForLimits {
 export function curveLimits(curve: CurveForLimits, options: LimitOptions = {}): CalibrationLimits {
   const { alpha, beta, k, replicates } = resolve(options);
   const { df, residualSD } = curve;
-  if (!(Number.isFinite(df) && df >= 1)) throw new BandwrightError('INVALID_VALUE', `df = ${df}, must be >= 1`, { parameter: 'df' });
-  if (!(Number.isFinite(residualSD) && residualSD > 0)) throw new BandwrightError('INVALID_VALUE', `residualSD = ${residualSD}, must be a finite number > 0`, { parameter: 'residualSD' });
+  if (!(Number.isFinite(df) && df >= 1))
+    throw new BandwrightError('INVALID_VALUE', `df = ${df}, must be >= 1`, { parameter: 'df' });
+  if (!(Number.isFinite(residualSD) && residualSD > 0))
+    throw new BandwrightError('INVALID_VALUE', `residualSD = ${residualSD}, must be a finite number > 0`, {
+      parameter: 'residualSD',
+    });
   const tAlpha = tQuantile(1 - alpha, df);
   const tBeta = tQuantile(1 - beta, df);
   const tTwoSided = tQuantile(1 - alpha / 2, df);
-  const variance = (x: number): number => (residualSD * residualSD) / (replicates * curve.weightAt(x)) + curve.fittedVarianceAt(x);
+  const variance = (x: number): number =>
+    (residualSD * residualSD) / (replicates * curve.weightAt(x)) + curve.fittedVarianceAt(x);
   const slopeAtZero = Math.abs(curve.slopeAt(0));
   const common = `α = ${alpha}, df = ${df}, m = ${replicates}; ${curve.description}`;
-  const noSlope = slopeAtZero > 0 && Number.isFinite(slopeAtZero) ? null : `the curve's slope at zero concentration is ${curve.slopeAt(0)}, so no limit can be derived from it`;
+  const noSlope =
+    slopeAtZero > 0 && Number.isFinite(slopeAtZero)
+      ? null
+      : `the curve's slope at zero concentration is ${curve.slopeAt(0)}, so no limit can be derived from it`;
   const blank = Math.sqrt(variance(0));
   const decision = noSlope === null ? (tAlpha * blank) / slopeAtZero : null;
   const detection = noSlope === null ? ((tAlpha + tBeta) * blank) / slopeAtZero : null;
-  const determination = decision === null
-    ? null
-    : fixedPoint((x) => (k * tTwoSided * Math.sqrt(variance(x))) / Math.abs(curve.slopeAt(x)), k * decision);
+  const determination =
+    decision === null
+      ? null
+      : fixedPoint(
+          (x) => (k * tTwoSided * Math.sqrt(variance(x))) / Math.abs(curve.slopeAt(x)),
+          k * decision,
+        );
   const sigmaBlank = residualSD / Math.sqrt(curve.weightAt(0));
   const why = (text: string): string => (noSlope === null ? text : `${text}: not computed, ${noSlope}`);
   return {
-    decision: { value: decision, definition: why(`decision limit, DIN 32645 calibration method by the delta method: x_C = t(1−α, df)·√(s²/(m·w(0)) + Var ŷ(0))/|ŷ′(0)|, ${common}`) },
+    decision: {
+      value: decision,
+      definition: why(
+        `decision limit, DIN 32645 calibration method by the delta method: x_C = t(1−α, df)·√(s²/(m·w(0)) + Var ŷ(0))/|ŷ′(0)|, ${common}`,
+      ),
+    },
     detection: {
       value: detection,
-      definition: why(`detection limit, DIN 32645 calibration method by the delta method: x_D = (t(1−α, df) + t(1−β, df))·√(s²/(m·w(0)) + Var ŷ(0))/|ŷ′(0)|, β = ${beta}${alpha === beta ? ' (α = β, so x_D = 2·x_C)' : ''}, ${common}`),
+      definition: why(
+        `detection limit, DIN 32645 calibration method by the delta method: x_D = (t(1−α, df) + t(1−β, df))·√(s²/(m·w(0)) + Var ŷ(0))/|ŷ′(0)|, β = ${beta}${alpha === beta ? ' (α = β, so x_D = 2·x_C)' : ''}, ${common}`,
+      ),
     },
     determination: {
       value: determination,
-      definition: determination === null && noSlope === null
-        ? `determination limit: the iteration for x_Q did not converge (k = ${k}, ${common})`
-        : why(`determination limit, DIN 32645 calibration method by the delta method: x_Q = k·t(1−α/2, df)·√(s²/(m·w(x_Q)) + Var ŷ(x_Q))/|ŷ′(x_Q)|, solved iteratively, k = ${k}, ${common}`),
+      definition:
+        determination === null && noSlope === null
+          ? `determination limit: the iteration for x_Q did not converge (k = ${k}, ${common})`
+          : why(
+              `determination limit, DIN 32645 calibration method by the delta method: x_Q = k·t(1−α/2, df)·√(s²/(m·w(x_Q)) + Var ŷ(x_Q))/|ŷ′(x_Q)|, solved iteratively, k = ${k}, ${common}`,
+            ),
     },
-    ichDetection: { value: noSlope === null ? (3.3 * sigmaBlank) / slopeAtZero : null, definition: why(`detection limit, ICH Q2: 3.3·σ/|ŷ′(0)| with σ = s/√w(0) the residual SD at zero concentration; ${curve.description}`) },
-    ichQuantitation: { value: noSlope === null ? (10 * sigmaBlank) / slopeAtZero : null, definition: why(`quantitation limit, ICH Q2: 10·σ/|ŷ′(0)| with σ = s/√w(0) the residual SD at zero concentration; ${curve.description}`) },
+    ichDetection: {
+      value: noSlope === null ? (3.3 * sigmaBlank) / slopeAtZero : null,
+      definition: why(
+        `detection limit, ICH Q2: 3.3·σ/|ŷ′(0)| with σ = s/√w(0) the residual SD at zero concentration; ${curve.description}`,
+      ),
+    },
+    ichQuantitation: {
+      value: noSlope === null ? (10 * sigmaBlank) / slopeAtZero : null,
+      definition: why(
+        `quantitation limit, ICH Q2: 10·σ/|ŷ′(0)| with σ = s/√w(0) the residual SD at zero concentration; ${curve.description}`,
+      ),
+    },
     alpha,
     beta,
     k,

@@ -69,7 +69,8 @@ export function computedQuantiles(): [string, number][] {
  * @param entries - pairs of (arguments key, quantile)
  */
 export function adoptQuantiles(entries: readonly (readonly [string, number])[]): void {
-  for (const [key, value] of entries) if (quantiles.size < MAX_REMEMBERED_QUANTILES) quantiles.set(key, value);
+  for (const [key, value] of entries)
+    if (quantiles.size < MAX_REMEMBERED_QUANTILES) quantiles.set(key, value);
 }
 
 /**
@@ -147,10 +148,14 @@ export function fCdf(x: number, d1: number, d2: number): number {
 export function criticalT(level: number, df: number, options: { sides?: 1 | 2 } = {}): number {
   const sides = options.sides ?? 2;
   if (!(level > 0 && level < 1)) {
-    throw new BandwrightError('INVALID_VALUE', `level = ${level}, must be strictly between 0 and 1`, { parameter: 'level' });
+    throw new BandwrightError('INVALID_VALUE', `level = ${level}, must be strictly between 0 and 1`, {
+      parameter: 'level',
+    });
   }
   if (!(df > 0) || !Number.isFinite(df)) {
-    throw new BandwrightError('INVALID_VALUE', `degrees of freedom = ${df}, must be a finite number > 0`, { parameter: 'df' });
+    throw new BandwrightError('INVALID_VALUE', `degrees of freedom = ${df}, must be a finite number > 0`, {
+      parameter: 'df',
+    });
   }
   const p = sides === 2 ? 1 - (1 - level) / 2 : level;
   return tQuantile(p, df);

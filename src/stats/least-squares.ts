@@ -144,26 +144,47 @@ function invertUpperTriangular(r: Matrix): number[][] {
 function prepare(design: Design, n: number, options: LeastSquaresOptions): PreparedDesign {
   const rows = toRows(design);
   if (rows.length !== n) {
-    throw new BandwrightError('INVALID_VALUE', `design has ${rows.length} rows but there are ${n} observations, must be equal`, { parameter: 'design' });
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `design has ${rows.length} rows but there are ${n} observations, must be equal`,
+      { parameter: 'design' },
+    );
   }
   const columns = rows[0]?.length ?? 0;
-  if (columns < 1) throw new BandwrightError('INVALID_VALUE', 'design has no columns, must have at least one', { parameter: 'design' });
+  if (columns < 1)
+    throw new BandwrightError('INVALID_VALUE', 'design has no columns, must have at least one', {
+      parameter: 'design',
+    });
   const names = Array.from({ length: columns }, (_, j) => options.columnNames?.[j] ?? `x${j + 1}`);
   if (options.columnNames !== undefined && options.columnNames.length !== columns) {
-    throw new BandwrightError('INVALID_VALUE', `columnNames has ${options.columnNames.length} names for ${columns} design columns, must be equal`, { parameter: 'columnNames' });
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `columnNames has ${options.columnNames.length} names for ${columns} design columns, must be equal`,
+      { parameter: 'columnNames' },
+    );
   }
   if (n < columns) {
-    throw new BandwrightError('INSUFFICIENT_DATA', `design has ${n} observations for ${columns} coefficients (${listNames(names)}): least squares needs at least as many observations as coefficients`, { parameter: 'design' });
+    throw new BandwrightError(
+      'INSUFFICIENT_DATA',
+      `design has ${n} observations for ${columns} coefficients (${listNames(names)}): least squares needs at least as many observations as coefficients`,
+      { parameter: 'design' },
+    );
   }
   const rootWeights = new Array<number>(n).fill(1);
   if (options.weights !== undefined) {
     if (options.weights.length !== n) {
-      throw new BandwrightError('INVALID_VALUE', `weights has ${options.weights.length} values for ${n} observations, must be equal`, { parameter: 'weights' });
+      throw new BandwrightError(
+        'INVALID_VALUE',
+        `weights has ${options.weights.length} values for ${n} observations, must be equal`,
+        { parameter: 'weights' },
+      );
     }
     for (let i = 0; i < n; i++) {
       const w = options.weights[i] as number;
       if (!(Number.isFinite(w) && w > 0)) {
-        throw new BandwrightError('INVALID_VALUE', `weights[${i}] = ${w}, must be a finite number > 0`, { parameter: 'weights' });
+        throw new BandwrightError('INVALID_VALUE', `weights[${i}] = ${w}, must be a finite number > 0`, {
+          parameter: 'weights',
+        });
       }
       rootWeights[i] = Math.sqrt(w);
     }
@@ -173,14 +194,22 @@ function prepare(design: Design, n: number, options: LeastSquaresOptions): Prepa
   for (let i = 0; i < n; i++) {
     const row = rows[i] as number[];
     if (row.length !== columns) {
-      throw new BandwrightError('INVALID_VALUE', `design row ${i} has ${row.length} entries, must have ${columns} like row 0`, { parameter: 'design' });
+      throw new BandwrightError(
+        'INVALID_VALUE',
+        `design row ${i} has ${row.length} entries, must have ${columns} like row 0`,
+        { parameter: 'design' },
+      );
     }
     const rw = rootWeights[i] as number;
     const out = new Array<number>(columns);
     for (let j = 0; j < columns; j++) {
       const value = row[j] as number;
       if (!Number.isFinite(value)) {
-        throw new BandwrightError('INVALID_VALUE', `design row ${i}, column ${names[j] as string} = ${value}, must be a finite number`, { parameter: 'design' });
+        throw new BandwrightError(
+          'INVALID_VALUE',
+          `design row ${i}, column ${names[j] as string} = ${value}, must be a finite number`,
+          { parameter: 'design' },
+        );
       }
       out[j] = value * rw;
     }
@@ -191,16 +220,24 @@ function prepare(design: Design, n: number, options: LeastSquaresOptions): Prepa
     let largest = 0;
     for (let i = 0; i < n; i++) largest = Math.max(largest, Math.abs((weighted[i] as number[])[j]!));
     if (largest === 0) {
-      throw new BandwrightError('SINGULAR', `design column ${names[j] as string} is all zero: its coefficient cannot be estimated`, { parameter: 'design' });
+      throw new BandwrightError(
+        'SINGULAR',
+        `design column ${names[j] as string} is all zero: its coefficient cannot be estimated`,
+        { parameter: 'design' },
+      );
     }
     let sum = 0;
     for (let i = 0; i < n; i++) sum += ((weighted[i] as number[])[j]! / largest) ** 2;
     norms[j] = largest * Math.sqrt(sum);
   }
   const scaled = new Matrix(n, columns);
-  for (let i = 0; i < n; i++) for (let j = 0; j < columns; j++) scaled.set(i, j, (weighted[i] as number[])[j]! / norms[j]!);
+  for (let i = 0; i < n; i++)
+    for (let j = 0; j < columns; j++) scaled.set(i, j, (weighted[i] as number[])[j]! / norms[j]!);
 
-  const svd = new SingularValueDecomposition(scaled, { computeLeftSingularVectors: false, autoTranspose: false });
+  const svd = new SingularValueDecomposition(scaled, {
+    computeLeftSingularVectors: false,
+    autoTranspose: false,
+  });
   const singular = svd.diagonal;
   let largest = 0;
   let smallest = Number.POSITIVE_INFINITY;
@@ -215,18 +252,26 @@ function prepare(design: Design, n: number, options: LeastSquaresOptions): Prepa
   const conditionNumber = smallest > 0 ? largest / smallest : Number.POSITIVE_INFINITY;
   const rank = svd.rank;
   const limit = options.conditionLimit ?? DEFAULT_CONDITION_LIMIT;
-  if (!(limit >= 1)) throw new BandwrightError('INVALID_VALUE', `conditionLimit = ${limit}, must be >= 1`, { parameter: 'conditionLimit' });
+  if (!(limit >= 1))
+    throw new BandwrightError('INVALID_VALUE', `conditionLimit = ${limit}, must be >= 1`, {
+      parameter: 'conditionLimit',
+    });
   if (columns > 1 && (rank < columns || !(conditionNumber <= limit))) {
     const v = svd.rightSingularVectors;
     const magnitudes = names.map((_, j) => Math.abs(v.get(j, smallestIndex)));
     const biggest = Math.max(...magnitudes);
     let involved = names.map((_, j) => j).filter((j) => magnitudes[j]! >= 0.25 * biggest);
     if (involved.length < 2) {
-      involved = names.map((_, j) => j).sort((a, b) => magnitudes[b]! - magnitudes[a]!).slice(0, 2).sort((a, b) => a - b);
+      involved = names
+        .map((_, j) => j)
+        .sort((a, b) => magnitudes[b]! - magnitudes[a]!)
+        .slice(0, 2)
+        .sort((a, b) => a - b);
     }
-    const detail = rank < columns
-      ? `rank ${rank} of ${columns}, condition number ${formatCondition(conditionNumber)}`
-      : `condition number ${formatCondition(conditionNumber)} exceeds the limit ${formatCondition(limit)}`;
+    const detail =
+      rank < columns
+        ? `rank ${rank} of ${columns}, condition number ${formatCondition(conditionNumber)}`
+        : `condition number ${formatCondition(conditionNumber)} exceeds the limit ${formatCondition(limit)}`;
     throw new BandwrightError(
       'SINGULAR',
       `design columns ${listNames(involved.map((j) => names[j] as string))} are collinear (${detail}): their effects cannot be separated; drop one of them or add observations that vary them independently`,
@@ -246,7 +291,8 @@ function unscaledCovarianceOf(prepared: PreparedDesign): number[][] {
     for (let j = 0; j < columns; j++) {
       let sum = 0;
       // (R⁻¹ R⁻ᵀ)_ij = Σ_k R⁻¹_ik R⁻¹_jk, R⁻¹ upper triangular so k ≥ max(i, j).
-      for (let k = Math.max(i, j); k < columns; k++) sum += (rInverse[i] as number[])[k]! * (rInverse[j] as number[])[k]!;
+      for (let k = Math.max(i, j); k < columns; k++)
+        sum += (rInverse[i] as number[])[k]! * (rInverse[j] as number[])[k]!;
       row[j] = sum / (norms[i]! * norms[j]!);
     }
     out.push(row);
@@ -257,7 +303,10 @@ function unscaledCovarianceOf(prepared: PreparedDesign): number[][] {
 function checkResponse(y: ArrayLike<number>, label: string): number[] {
   const out = Array.from(y);
   out.forEach((value, i) => {
-    if (!Number.isFinite(value)) throw new BandwrightError('INVALID_VALUE', `${label}[${i}] = ${value}, must be a finite number`, { parameter: label });
+    if (!Number.isFinite(value))
+      throw new BandwrightError('INVALID_VALUE', `${label}[${i}] = ${value}, must be a finite number`, {
+        parameter: label,
+      });
   });
   return out;
 }
@@ -277,7 +326,11 @@ function checkResponse(y: ArrayLike<number>, label: string): number[] {
  * const fit = leastSquares([[1, 0], [1, 1], [1, 2]], [1, 3, 5], { columnNames: ['intercept', 'x'] });
  * fit.coefficients; // [1, 2]
  */
-export function leastSquares(design: Design, y: ArrayLike<number>, options: LeastSquaresOptions = {}): LeastSquaresFit {
+export function leastSquares(
+  design: Design,
+  y: ArrayLike<number>,
+  options: LeastSquaresOptions = {},
+): LeastSquaresFit {
   const response = checkResponse(y, 'y');
   const n = response.length;
   const prepared = prepare(design, n, options);
@@ -358,17 +411,35 @@ export function solveLeastSquaresMany(
   responses: readonly (readonly number[])[] | AbstractMatrix,
   options: { columnNames?: readonly string[]; conditionLimit?: number } = {},
 ): LeastSquaresManyFit {
-  const responseRows = AbstractMatrix.isMatrix(responses) ? responses.to2DArray() : responses.map((row) => Array.from(row));
+  const responseRows = AbstractMatrix.isMatrix(responses)
+    ? responses.to2DArray()
+    : responses.map((row) => Array.from(row));
   const n = responseRows.length;
   const k = responseRows[0]?.length ?? 0;
-  if (k < 1) throw new BandwrightError('INVALID_VALUE', 'responses has no columns, must have at least one', { parameter: 'responses' });
+  if (k < 1)
+    throw new BandwrightError('INVALID_VALUE', 'responses has no columns, must have at least one', {
+      parameter: 'responses',
+    });
   responseRows.forEach((row, i) => {
-    if (row.length !== k) throw new BandwrightError('INVALID_VALUE', `responses row ${i} has ${row.length} entries, must have ${k} like row 0`, { parameter: 'responses' });
+    if (row.length !== k)
+      throw new BandwrightError(
+        'INVALID_VALUE',
+        `responses row ${i} has ${row.length} entries, must have ${k} like row 0`,
+        { parameter: 'responses' },
+      );
     row.forEach((value, j) => {
-      if (!Number.isFinite(value)) throw new BandwrightError('INVALID_VALUE', `responses row ${i}, column ${j} = ${value}, must be a finite number`, { parameter: 'responses' });
+      if (!Number.isFinite(value))
+        throw new BandwrightError(
+          'INVALID_VALUE',
+          `responses row ${i}, column ${j} = ${value}, must be a finite number`,
+          { parameter: 'responses' },
+        );
     });
   });
-  const prepared = prepare(design, n, { ...(options.columnNames ? { columnNames: options.columnNames } : {}), ...(options.conditionLimit !== undefined ? { conditionLimit: options.conditionLimit } : {}) });
+  const prepared = prepare(design, n, {
+    ...(options.columnNames ? { columnNames: options.columnNames } : {}),
+    ...(options.conditionLimit !== undefined ? { conditionLimit: options.conditionLimit } : {}),
+  });
   const { columns, norms } = prepared;
   const solution = prepared.qr.solve(new Matrix(responseRows));
   const coefficients: number[][] = [];

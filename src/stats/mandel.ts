@@ -62,14 +62,29 @@ export function mandelTest(input: MandelInput, options: { confidence?: number } 
   const confidence = options.confidence ?? 0.99;
   const { n, linearResidualVariance: linear, quadraticResidualVariance: quadratic } = input;
   if (!(confidence > 0 && confidence < 1)) {
-    throw new BandwrightError('INVALID_VALUE', `confidence = ${confidence}, must be strictly between 0 and 1`, { parameter: 'confidence' });
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `confidence = ${confidence}, must be strictly between 0 and 1`,
+      { parameter: 'confidence' },
+    );
   }
   if (!Number.isInteger(n) || n < 4) {
-    throw new BandwrightError('INSUFFICIENT_DATA', `Mandel test: n = ${n} standards, needs at least 4 (the second-order fit must keep one residual degree of freedom)`, { parameter: 'n' });
+    throw new BandwrightError(
+      'INSUFFICIENT_DATA',
+      `Mandel test: n = ${n} standards, needs at least 4 (the second-order fit must keep one residual degree of freedom)`,
+      { parameter: 'n' },
+    );
   }
-  for (const [name, value] of [['linearResidualVariance', linear], ['quadraticResidualVariance', quadratic]] as const) {
+  for (const [name, value] of [
+    ['linearResidualVariance', linear],
+    ['quadraticResidualVariance', quadratic],
+  ] as const) {
     if (!(Number.isFinite(value) && value >= 0)) {
-      throw new BandwrightError('INVALID_VALUE', `Mandel test: ${name} = ${value}, must be a finite number >= 0`, { parameter: name });
+      throw new BandwrightError(
+        'INVALID_VALUE',
+        `Mandel test: ${name} = ${value}, must be a finite number >= 0`,
+        { parameter: name },
+      );
     }
   }
   const ds2 = Math.max(0, (n - 2) * linear - (n - 3) * quadratic);
@@ -92,6 +107,7 @@ export function mandelTest(input: MandelInput, options: { confidence?: number } 
     pValue,
     significant,
     recommendation,
-    definition: 'Mandel fitting test (ISO 8466-1, DIN 38402-51): DS² = (n−2)s²_lin − (n−3)s²_quad, PW = DS²/s²_quad against F(1, n−3)',
+    definition:
+      'Mandel fitting test (ISO 8466-1, DIN 38402-51): DS² = (n−2)s²_lin − (n−3)s²_quad, PW = DS²/s²_quad against F(1, n−3)',
   };
 }

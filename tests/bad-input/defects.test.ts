@@ -6,7 +6,12 @@
 import { mkdirSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
-import { calibrationHash, sealCalibration, verifyCalibration, type Calibration } from '../../src/calibration/calibration.js';
+import {
+  calibrationHash,
+  sealCalibration,
+  verifyCalibration,
+  type Calibration,
+} from '../../src/calibration/calibration.js';
 import { buildBandCalibration } from '../../src/calibration/build.js';
 import { parseMethod, type BandMethod } from '../../src/calibration/method.js';
 import { quantifyBandScan } from '../../src/calibration/quantify.js';
@@ -35,7 +40,10 @@ function thrown(run: () => unknown): BandwrightError {
 }
 
 // Invented standards on a straight line (response = 0.02·x + 0.001), for the model checks only.
-const line: UnivariateModel = fitUnivariate({ concentration: [0, 50, 100, 200, 400], response: [0.0011, 1.0009, 2.0012, 4.0008, 8.0011] }, { form: 'linear' });
+const line: UnivariateModel = fitUnivariate(
+  { concentration: [0, 50, 100, 200, 400], response: [0.0011, 1.0009, 2.0012, 4.0008, 8.0011] },
+  { form: 'linear' },
+);
 
 describe('univariate model', () => {
   it('a response so far outside the calibration that its standard error overflows is NO_SOLUTION, not an interval of ±Infinity', () => {
@@ -52,7 +60,9 @@ describe('univariate model', () => {
 
   it('concentrations or responses whose squares overflow are refused by name before the fit', () => {
     // Before: "sxx = Infinity, must be a finite number > 0", naming no input.
-    const error = thrown(() => fitUnivariate({ concentration: [0, 1e300, 2e300], response: [0, 1, 2] }, { form: 'linear' }));
+    const error = thrown(() =>
+      fitUnivariate({ concentration: [0, 1e300, 2e300], response: [0, 1, 2] }, { form: 'linear' }),
+    );
     expect(error.code).toBe('INVALID_VALUE');
     expect(error.message).toMatch(/concentration\[1\] = 1e\+300, must be within ±1e\+100/);
   });
@@ -61,7 +71,9 @@ describe('univariate model', () => {
 describe('manifest', () => {
   it('a concentration above 100 % by volume is refused (a mole fraction cannot exceed 1; common practice)', () => {
     const error = thrown(() => parseManifest('scan,CO_pct\na.csv,0\nb.csv,100.5\n', 'm.csv'));
-    expect(error.message).toBe('m.csv line 3: CO_pct = 100.5, above 100 % by volume (10⁶ ppm); a concentration cannot exceed the whole gas');
+    expect(error.message).toBe(
+      'm.csv line 3: CO_pct = 100.5, above 100 % by volume (10⁶ ppm); a concentration cannot exceed the whole gas',
+    );
     expect(parseManifest('scan,CO_pct\na.csv,100\n', 'm.csv').entries[0]?.concentrations[0]?.value).toBe(100);
   });
 });
@@ -91,42 +103,107 @@ describe('scans with CR-only line ends', () => {
   const table = '# path_length_m = 1\rwavenumber_cm-1,absorbance\r2000,0.1\r2001,0.2\r';
   it('a spectrum table says so instead of quoting the whole file as one comment value', () => {
     const error = thrown(() => parseSpectrumTable(bytes(table), { source: 'old.csv' }));
-    expect(error.message).toBe('old.csv: lines end with CR alone (an old Mac OS export); save the file with LF or CRLF line ends');
+    expect(error.message).toBe(
+      'old.csv: lines end with CR alone (an old Mac OS export); save the file with LF or CRLF line ends',
+    );
   });
   it('a JCAMP-DX file says so instead of "##JCAMP-DX= must follow ##TITLE="', () => {
     const error = thrown(() => parseJcamp('##TITLE=t\r##JCAMP-DX=5.01\r##END=\r', { source: 'old.jdx' }));
     expect(error.message).toMatch(/^old.jdx: lines end with CR alone/);
   });
   it('a long comment value is shortened in the message', () => {
-    const error = thrown(() => parseSpectrumTable(bytes(`# path_length_m = ${'9'.repeat(500)}x\nx,A\n1,2\n2,3\n`), { source: 'long.csv' }));
+    const error = thrown(() =>
+      parseSpectrumTable(bytes(`# path_length_m = ${'9'.repeat(500)}x\nx,A\n1,2\n2,3\n`), {
+        source: 'long.csv',
+      }),
+    );
     expect(error.message.length).toBeLessThan(200);
   });
 });
 
 describe('band responses that overflow', () => {
-  const method = parseMethod({ gases: [{ name: 'CO', band: [2040, 2245], baseline: [[2000, 2030], [2255, 2290]] }] }, 'method') as BandMethod;
+  const method = parseMethod(
+    {
+      gases: [
+        {
+          name: 'CO',
+          band: [2040, 2245],
+          baseline: [
+            [2000, 2030],
+            [2255, 2290],
+          ],
+        },
+      ],
+    },
+    'method',
+  ) as BandMethod;
   const hot = (): ReturnType<typeof bandScan> => {
     const scan = bandScan(100, { metadata: conditions, step: 2 });
-    const y = Float64Array.from(scan.y, (v, i) => ((scan.x[i] as number) > 2100 && (scan.x[i] as number) < 2180 ? 1e308 : v));
-    return makeSpectrum({ x: scan.x, y, yKind: 'absorbance', metadata: { ...conditions, source: 'hot.csv' } });
+    const y = Float64Array.from(scan.y, (v, i) =>
+      (scan.x[i] as number) > 2100 && (scan.x[i] as number) < 2180 ? 1e308 : v,
+    );
+    return makeSpectrum({
+      x: scan.x,
+      y,
+      yKind: 'absorbance',
+      metadata: { ...conditions, source: 'hot.csv' },
+    });
   };
 
   it('quantify names the scan and the band (before: "responses[0] = Infinity, must be a finite number")', () => {
-    const standards = [0, 50, 100, 200].map((ppm, i) => ({ scan: `s${ppm}.csv`, line: i + 2, spectrum: bandScan(ppm, { metadata: conditions, step: 2 }), concentrations: [{ gas: 'CO', unit: 'ppm' as const, value: ppm }], conditions: {} }));
+    const standards = [0, 50, 100, 200].map((ppm, i) => ({
+      scan: `s${ppm}.csv`,
+      line: i + 2,
+      spectrum: bandScan(ppm, { metadata: conditions, step: 2 }),
+      concentrations: [{ gas: 'CO', unit: 'ppm' as const, value: ppm }],
+      conditions: {},
+    }));
     const calibration = buildBandCalibration(method, standards, { inputs: [] });
     const error = thrown(() => quantifyBandScan(calibration, hot()));
-    expect(error.message).toMatch(/^hot.csv: CO band 2040–2245 cm⁻¹ gives an area of Infinity, must be finite/);
+    expect(error.message).toMatch(
+      /^hot.csv: CO band 2040–2245 cm⁻¹ gives an area of Infinity, must be finite/,
+    );
   });
 
   it('calibrate names the standard and its manifest line', () => {
-    const standards = [{ scan: 'hot.csv', line: 2, spectrum: hot(), concentrations: [{ gas: 'CO', unit: 'ppm' as const, value: 10 }], conditions: {} }];
-    expect(thrown(() => buildBandCalibration(method, standards, { inputs: [] })).message).toMatch(/^hot.csv \(manifest line 2\): CO band .* gives an area of Infinity/);
+    const standards = [
+      {
+        scan: 'hot.csv',
+        line: 2,
+        spectrum: hot(),
+        concentrations: [{ gas: 'CO', unit: 'ppm' as const, value: 10 }],
+        conditions: {},
+      },
+    ];
+    expect(thrown(() => buildBandCalibration(method, standards, { inputs: [] })).message).toMatch(
+      /^hot.csv \(manifest line 2\): CO band .* gives an area of Infinity/,
+    );
   });
 });
 
 describe('a calibration whose hash matches but whose content is malformed', () => {
-  const method = parseMethod({ gases: [{ name: 'CO', band: [2040, 2245], baseline: [[2000, 2030], [2255, 2290]] }] }, 'method') as BandMethod;
-  const standards = [0, 50, 100, 200].map((ppm, i) => ({ scan: `s${ppm}.csv`, line: i + 2, spectrum: bandScan(ppm, { metadata: conditions, step: 2 }), concentrations: [{ gas: 'CO', unit: 'ppm' as const, value: ppm }], conditions: {} }));
+  const method = parseMethod(
+    {
+      gases: [
+        {
+          name: 'CO',
+          band: [2040, 2245],
+          baseline: [
+            [2000, 2030],
+            [2255, 2290],
+          ],
+        },
+      ],
+    },
+    'method',
+  ) as BandMethod;
+  const standards = [0, 50, 100, 200].map((ppm, i) => ({
+    scan: `s${ppm}.csv`,
+    line: i + 2,
+    spectrum: bandScan(ppm, { metadata: conditions, step: 2 }),
+    concentrations: [{ gas: 'CO', unit: 'ppm' as const, value: ppm }],
+    conditions: {},
+  }));
   const good = buildBandCalibration(method, standards, { inputs: [], createdAt: '2026-01-01T00:00:00.000Z' });
   /** The calibration with one edit, re-sealed so the hash matches the edited content. */
   const resealed = (edit: (c: Record<string, any>) => void): Calibration => {
@@ -138,16 +215,40 @@ describe('a calibration whose hash matches but whose content is malformed', () =
 
   it.each([
     // Before: TypeError "Cannot read properties of undefined (reading 'coefficients')".
-    ['a missing model', (c: Record<string, any>) => delete c.gases[0].model, /gases\[0\]\.model = missing, must be an object/],
+    [
+      'a missing model',
+      (c: Record<string, any>) => delete c.gases[0].model,
+      /gases\[0\]\.model = missing, must be an object/,
+    ],
     // Before: TypeError "calibration.gases is not iterable".
     ['gases not a list', (c: Record<string, any>) => (c.gases = {}), /gases = \{\}, must be a list/],
     // Before: a concentration of null (NaN) with exit status 0.
-    ['a text coefficient', (c: Record<string, any>) => (c.gases[0].model.coefficients.b = 'x'), /gases\[0\]\.model\.coefficients\.b = "x", must be a finite number/],
+    [
+      'a text coefficient',
+      (c: Record<string, any>) => (c.gases[0].model.coefficients.b = 'x'),
+      /gases\[0\]\.model\.coefficients\.b = "x", must be a finite number/,
+    ],
     // Before: -100 ppm for a 100 ppm sample, exit status 0.
-    ['a negative reference path length', (c: Record<string, any>) => (c.reference.pathLength_m = -1), /reference\.pathLength_m = -1, must be a number > 0/],
-    ['an inverted band', (c: Record<string, any>) => (c.gases[0].feature.band = [2245, 2040]), /gases\[0\]\.feature\.band = \[2245,2040\], must be \[low, high\]/],
-    ['an unknown method kind', (c: Record<string, any>) => (c.method.model = 'neural'), /method\.model = "neural", must be one of band, responses, cls/],
-    ['an input without a proper hash', (c: Record<string, any>) => (c.inputs = [{ role: 'standard', path: 'a.csv', sha256: 'xyz' }]), /inputs\[0\]\.sha256 = "xyz", must be 64 lower-case hexadecimal digits/],
+    [
+      'a negative reference path length',
+      (c: Record<string, any>) => (c.reference.pathLength_m = -1),
+      /reference\.pathLength_m = -1, must be a number > 0/,
+    ],
+    [
+      'an inverted band',
+      (c: Record<string, any>) => (c.gases[0].feature.band = [2245, 2040]),
+      /gases\[0\]\.feature\.band = \[2245,2040\], must be \[low, high\]/,
+    ],
+    [
+      'an unknown method kind',
+      (c: Record<string, any>) => (c.method.model = 'neural'),
+      /method\.model = "neural", must be one of band, responses, cls/,
+    ],
+    [
+      'an input without a proper hash',
+      (c: Record<string, any>) => (c.inputs = [{ role: 'standard', path: 'a.csv', sha256: 'xyz' }]),
+      /inputs\[0\]\.sha256 = "xyz", must be 64 lower-case hexadecimal digits/,
+    ],
   ])('%s is a SCHEMA error naming the field', (_name, edit, message) => {
     const calibration = resealed(edit);
     expect(calibrationHash(calibration)).toBe(calibration.sha256);
@@ -168,14 +269,21 @@ describe('standards that are not files', () => {
     mkdirSync(join(folder.path, 'd'));
     writeFileSync(join(folder.path, 'm.csv'), 'scan,CO_ppm\nd,0\n');
     const manifest = readManifest(join(folder.path, 'm.csv'));
-    expect(thrown(() => loadStandards(manifest)).message).toMatch(/m\.csv line 2: .*d is a folder, expected a file/);
+    expect(thrown(() => loadStandards(manifest)).message).toMatch(
+      /m\.csv line 2: .*d is a folder, expected a file/,
+    );
   });
 });
 
 describe('JCAMP-DX writer', () => {
   it('writes a spectrum with subnormal ordinates (before: YFACTOR 1E-331 underflowed and the writer refused it)', async () => {
     const { formatJcamp } = await import('../../src/io/jcamp-write.js');
-    const spectrum = makeSpectrum({ x: Float64Array.from([2000, 2001, 2002]), y: Float64Array.from([9e-323, 0, 0.5e-300]), yKind: 'absorbance', metadata: {} });
+    const spectrum = makeSpectrum({
+      x: Float64Array.from([2000, 2001, 2002]),
+      y: Float64Array.from([9e-323, 0, 0.5e-300]),
+      yKind: 'absorbance',
+      metadata: {},
+    });
     const text = formatJcamp(spectrum, { title: 'tiny', compression: 'affn' });
     expect(text).toMatch(/##YFACTOR=1E-300/);
     expect(Array.from(parseJcamp(text, { source: 'tiny.jdx' }).y)).toEqual([0, 0, 1e-300]);
@@ -185,17 +293,37 @@ describe('JCAMP-DX writer', () => {
 describe('interval ends that were NaN or infinite', () => {
   it('a Fieller interval at a level near 0 has finite ends (before: both NaN when the discriminant rounded below 0)', () => {
     // The standards of the fuzz counterexample (seed 20261201): a nearly flat response.
-    const model = fitUnivariate({ concentration: [10, 0.5, 1, 5, 10, 100, 1e6, 1], response: [0.01, 0.01, 0.01, 0.010001874890664796, 0.01, 0.01, 0.01, 0.01] }, { form: 'linear' });
-    const estimate = predictConcentration(model, [-1, -0], { level: 8.890919915373989e-104, method: 'fieller' });
-    expect(estimate.unbounded || (Number.isFinite(estimate.low) && Number.isFinite(estimate.high))).toBe(true);
+    const model = fitUnivariate(
+      {
+        concentration: [10, 0.5, 1, 5, 10, 100, 1e6, 1],
+        response: [0.01, 0.01, 0.01, 0.010001874890664796, 0.01, 0.01, 0.01, 0.01],
+      },
+      { form: 'linear' },
+    );
+    const estimate = predictConcentration(model, [-1, -0], {
+      level: 8.890919915373989e-104,
+      method: 'fieller',
+    });
+    expect(estimate.unbounded || (Number.isFinite(estimate.low) && Number.isFinite(estimate.high))).toBe(
+      true,
+    );
     if (!estimate.unbounded) expect(estimate.low as number).toBeLessThanOrEqual(estimate.high as number);
   });
 
   it('a CLS sample with absorbances of 1e200 is NO_SOLUTION (before: an infinite concentration)', async () => {
     const { fitCls, predictCls } = await import('../../src/models/cls.js');
     // Invented pure spectrum: a Gaussian on 11 channels; standards at 2 and 5 ppm.
-    const pure = Array.from({ length: 11 }, (_, j) => Math.exp(-0.5 * ((j / 10) / 0.2) ** 2));
-    const model = fitCls({ channels: 11, spectra: [2, 5].map((c) => pure.map((v, j) => c * v + 1e-4 * Math.sin(7 * j + c))), concentrations: [[2], [5]], phi: [1, 1], components: [{ name: 'CO', reported: true, unit: 'ppm' }] }, { baselineOrder: 0 });
+    const pure = Array.from({ length: 11 }, (_, j) => Math.exp(-0.5 * (j / 10 / 0.2) ** 2));
+    const model = fitCls(
+      {
+        channels: 11,
+        spectra: [2, 5].map((c) => pure.map((v, j) => c * v + 1e-4 * Math.sin(7 * j + c))),
+        concentrations: [[2], [5]],
+        phi: [1, 1],
+        components: [{ name: 'CO', reported: true, unit: 'ppm' }],
+      },
+      { baselineOrder: 0 },
+    );
     const sample = pure.map((v) => 10 * v);
     sample[2] = 1e200;
     const error = thrown(() => predictCls(model, sample, { phi: 1 }));
@@ -207,40 +335,90 @@ describe('interval ends that were NaN or infinite', () => {
 describe('a CLS calibration whose model is damaged but re-sealed', () => {
   it('a negative interval inflation is a SCHEMA error (before: intervals with low above high, found by the calibration fuzz test)', async () => {
     const { buildClsCalibration } = await import('../../src/calibration/build-cls.js');
-    const standards = [0, 50, 100, 200, 400].map((ppm, i) => ({ scan: `s${ppm}.csv`, line: i + 2, spectrum: bandScan(ppm, { metadata: conditions, step: 4, from: 1990, to: 2300 }), concentrations: [{ gas: 'CO', unit: 'ppm' as const, value: ppm }], conditions: {} }));
-    const method = parseMethod({ model: 'cls', gases: ['CO'], regions: [[2060, 2230]], baselineOrder: 1 }, 'method');
-    const good = buildClsCalibration(method as Parameters<typeof buildClsCalibration>[0], standards, { inputs: [], createdAt: '2026-01-01T00:00:00.000Z' });
+    const standards = [0, 50, 100, 200, 400].map((ppm, i) => ({
+      scan: `s${ppm}.csv`,
+      line: i + 2,
+      spectrum: bandScan(ppm, { metadata: conditions, step: 4, from: 1990, to: 2300 }),
+      concentrations: [{ gas: 'CO', unit: 'ppm' as const, value: ppm }],
+      conditions: {},
+    }));
+    const method = parseMethod(
+      { model: 'cls', gases: ['CO'], regions: [[2060, 2230]], baselineOrder: 1 },
+      'method',
+    );
+    const good = buildClsCalibration(method as Parameters<typeof buildClsCalibration>[0], standards, {
+      inputs: [],
+      createdAt: '2026-01-01T00:00:00.000Z',
+    });
     const copy = JSON.parse(JSON.stringify(good)) as Record<string, any>;
     delete copy.sha256;
     copy.cls.model.crossValidation.inflation[0] = -2.8e165;
-    const error = thrown(() => verifyCalibration(JSON.parse(JSON.stringify(sealCalibration(copy as unknown as Calibration))), 'c.json'));
+    const error = thrown(() =>
+      verifyCalibration(
+        JSON.parse(JSON.stringify(sealCalibration(copy as unknown as Calibration))),
+        'c.json',
+      ),
+    );
     expect(error.code).toBe('SCHEMA');
-    expect(error.message).toMatch(/c.json: cls.model = .*cannot predict \(a blank gives CO = .*not a finite estimate with a standard error >= 0\)/);
+    expect(error.message).toMatch(
+      /c.json: cls.model = .*cannot predict \(a blank gives CO = .*not a finite estimate with a standard error >= 0\)/,
+    );
   });
 
   it('a channel moved far outside the regions is a SCHEMA error, and a scan that does not reach the channels is WINDOW (before: the resampling kernel looped forever, found by the calibration fuzz test)', async () => {
     const { buildClsCalibration, onChannels } = await import('../../src/calibration/build-cls.js');
-    const standards = [0, 50, 100, 200, 400].map((ppm, i) => ({ scan: `s${ppm}.csv`, line: i + 2, spectrum: bandScan(ppm, { metadata: conditions, step: 4, from: 1990, to: 2300 }), concentrations: [{ gas: 'CO', unit: 'ppm' as const, value: ppm }], conditions: {} }));
-    const method = parseMethod({ model: 'cls', gases: ['CO'], regions: [[2060, 2230]], baselineOrder: 1 }, 'method');
-    const good = buildClsCalibration(method as Parameters<typeof buildClsCalibration>[0], standards, { inputs: [], createdAt: '2026-01-01T00:00:00.000Z' });
+    const standards = [0, 50, 100, 200, 400].map((ppm, i) => ({
+      scan: `s${ppm}.csv`,
+      line: i + 2,
+      spectrum: bandScan(ppm, { metadata: conditions, step: 4, from: 1990, to: 2300 }),
+      concentrations: [{ gas: 'CO', unit: 'ppm' as const, value: ppm }],
+      conditions: {},
+    }));
+    const method = parseMethod(
+      { model: 'cls', gases: ['CO'], regions: [[2060, 2230]], baselineOrder: 1 },
+      'method',
+    );
+    const good = buildClsCalibration(method as Parameters<typeof buildClsCalibration>[0], standards, {
+      inputs: [],
+      createdAt: '2026-01-01T00:00:00.000Z',
+    });
     const copy = JSON.parse(JSON.stringify(good)) as Record<string, any>;
     delete copy.sha256;
     const grid = copy.cls.model.grid as number[];
     grid[grid.length - 1] = 2.2278701032325086e74;
-    const error = thrown(() => verifyCalibration(JSON.parse(JSON.stringify(sealCalibration(copy as unknown as Calibration))), 'c.json'));
+    const error = thrown(() =>
+      verifyCalibration(
+        JSON.parse(JSON.stringify(sealCalibration(copy as unknown as Calibration))),
+        'c.json',
+      ),
+    );
     expect(error.code).toBe('SCHEMA');
-    expect(error.message).toMatch(/cls.model.grid\[\d+\] = 2.22787\d*e\+74, must lie inside one of cls.regions/);
-    const offset = bandScan(100, { metadata: { ...conditions, source: 'short.csv' }, step: 3, from: 1990, to: 2300 });
+    expect(error.message).toMatch(
+      /cls.model.grid\[\d+\] = 2.22787\d*e\+74, must lie inside one of cls.regions/,
+    );
+    const offset = bandScan(100, {
+      metadata: { ...conditions, source: 'short.csv' },
+      step: 3,
+      from: 1990,
+      to: 2300,
+    });
     const channels = Float64Array.from([2060, 2100, 2400]);
-    expect(thrown(() => onChannels(offset, channels, [[2060, 2230]])).message).toMatch(/short.csv: covers 1990–2299 cm⁻¹, which does not contain the calibration's channels 2060–2400 cm⁻¹/);
+    expect(thrown(() => onChannels(offset, channels, [[2060, 2230]])).message).toMatch(
+      /short.csv: covers 1990–2299 cm⁻¹, which does not contain the calibration's channels 2060–2400 cm⁻¹/,
+    );
   });
 });
 
 describe('JSON numbers beyond the double range', () => {
   it('1e400 in a method is refused where it is written (before: read as Infinity and shown as "[2040,null]")', async () => {
     const { parseJson } = await import('../../src/io/json-file.js');
-    const error = thrown(() => parseJson('{\n "gases": [{"name": "CO",\n "band": [2040, 1e400]}]}', 'm.json'));
+    const error = thrown(() =>
+      parseJson('{\n "gases": [{"name": "CO",\n "band": [2040, 1e400]}]}', 'm.json'),
+    );
     expect(error.message).toBe('m.json line 3: number 1e400 is too large for a double-precision number');
-    expect(parseJson('{"title": "1e400 in a string is text", "x": 1e300}', 'm.json')).toEqual({ title: '1e400 in a string is text', x: 1e300 });
+    expect(parseJson('{"title": "1e400 in a string is text", "x": 1e300}', 'm.json')).toEqual({
+      title: '1e400 in a string is text',
+      x: 1e300,
+    });
   });
 });

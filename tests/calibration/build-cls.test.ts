@@ -17,10 +17,21 @@ import { predictCls } from '../../src/models/cls.js';
 import { simulateSpectrum } from '../../src/simulate/index.js';
 import { resample, type Spectrum } from '../../src/spectrum/spectrum.js';
 
-const CELL = { pathLength_m: 2, temperature_K: 453.15, pressure_kPa: 101.325, resolution_cm: 0.5, apodization: 'triangular' as const, noiseRms_AU: 3e-4 };
+const CELL = {
+  pathLength_m: 2,
+  temperature_K: 453.15,
+  pressure_kPa: 101.325,
+  resolution_cm: 0.5,
+  apodization: 'triangular' as const,
+  noiseRms_AU: 3e-4,
+};
 const RANGE = [1985, 2085] as const;
 
-function scan(gases: { CO?: number; H2O?: number }, seed: number, options: { range?: readonly [number, number]; pathLength_m?: number; noise?: number } = {}): Spectrum {
+function scan(
+  gases: { CO?: number; H2O?: number },
+  seed: number,
+  options: { range?: readonly [number, number]; pathLength_m?: number; noise?: number } = {},
+): Spectrum {
   const spectrum = simulateSpectrum({
     ...CELL,
     pathLength_m: options.pathLength_m ?? CELL.pathLength_m,
@@ -66,7 +77,9 @@ const DESIGN: [number, number][] = [
   [150, 60000],
 ];
 
-function standards(options: { shiftEvery?: number; design?: readonly [number, number][]; omitWater?: boolean } = {}): StandardScan[] {
+function standards(
+  options: { shiftEvery?: number; design?: readonly [number, number][]; omitWater?: boolean } = {},
+): StandardScan[] {
   return (options.design ?? DESIGN).map(([co, h2o], i) => {
     // Every `shiftEvery`-th standard comes from an instrument whose grid is offset by 0.125 cm⁻¹.
     const shifted = options.shiftEvery !== undefined && i % options.shiftEvery === 1;
@@ -75,7 +88,10 @@ function standards(options: { shiftEvery?: number; design?: readonly [number, nu
       scan: `standards/std-${i}.jdx`,
       line: i + 2,
       spectrum: scan({ CO: co, H2O: h2o }, 700 + i, { range }),
-      concentrations: [{ gas: 'CO', unit: 'ppm' as const, value: co }, ...(options.omitWater ? [] : [{ gas: 'H2O', unit: 'pct' as const, value: h2o / 1e4 }])],
+      concentrations: [
+        { gas: 'CO', unit: 'ppm' as const, value: co },
+        ...(options.omitWater ? [] : [{ gas: 'H2O', unit: 'pct' as const, value: h2o / 1e4 }]),
+      ],
       conditions: {},
     };
   });
@@ -110,11 +126,15 @@ describe('channel grid', () => {
     const narrow = scan({}, 1, { range: [2000, 2085], noise: 0 });
     const error = thrown(() => channelsFromScan(narrow, method().regions));
     expect(isBandwrightError(error, 'WINDOW')).toBe(true);
-    expect(error.message).toMatch(/scan-1: covers 2000–2085 cm⁻¹, which does not contain the calibration's region 1992–2025 cm⁻¹/);
+    expect(error.message).toMatch(
+      /scan-1: covers 2000–2085 cm⁻¹, which does not contain the calibration's region 1992–2025 cm⁻¹/,
+    );
     const tiny = thrown(() => channelsFromScan(scan({}, 1, { noise: 0 }), [[2000.1, 2000.4]]));
     expect(tiny.message).toMatch(/region 2000.1–2000.4 cm⁻¹ holds 1 grid point\(s\), needs at least 3/);
     // A sample is refused the same way when quantified.
-    expect(() => onChannels(narrow, Float64Array.from([2000, 2001]), method().regions)).toThrow(/scan-1: covers 2000–2085 cm⁻¹, which does not contain the calibration's region 1992–2025 cm⁻¹/);
+    expect(() => onChannels(narrow, Float64Array.from([2000, 2001]), method().regions)).toThrow(
+      /scan-1: covers 2000–2085 cm⁻¹, which does not contain the calibration's region 1992–2025 cm⁻¹/,
+    );
   });
 });
 
@@ -151,7 +171,11 @@ describe('scans on other grids (onChannels)', () => {
   it('falls back to linear interpolation for a scan on a non-uniform grid', () => {
     const sample = scan(truth, 91, { noise: 0 });
     const keep = Array.from(sample.x.keys()).filter((i) => i % 7 !== 3);
-    const irregular: Spectrum = { ...sample, x: Float64Array.from(keep, (i) => sample.x[i]!), y: Float64Array.from(keep, (i) => sample.y[i]!) };
+    const irregular: Spectrum = {
+      ...sample,
+      x: Float64Array.from(keep, (i) => sample.x[i]!),
+      y: Float64Array.from(keep, (i) => sample.y[i]!),
+    };
     expect(Array.from(onChannels(irregular, grid, regions))).toEqual(Array.from(resample(irregular, grid).y));
   });
 });
@@ -195,18 +219,28 @@ describe('buildClsCalibration', () => {
   it('refuses a manifest that lacks a modelled component, naming the standard and the gas', () => {
     const error = thrown(() => buildClsCalibration(method(), standards({ omitWater: true }), context));
     expect(isBandwrightError(error, 'INVALID_VALUE')).toBe(true);
-    expect(error.message).toMatch(/standards\/std-0.jdx \(manifest line 2\): the manifest has no H2O column, but the method models H2O; give its concentration \(0 when absent\)/);
+    expect(error.message).toMatch(
+      /standards\/std-0.jdx \(manifest line 2\): the manifest has no H2O column, but the method models H2O; give its concentration \(0 when absent\)/,
+    );
   });
 
   it('warns when the standards reach the saturation absorbance of the method', () => {
     const strict = buildClsCalibration(method({ saturationAbsorbance: 0.3 }), standards(), context);
-    expect(strict.warnings.join('\n')).toMatch(/the standards reach absorbance 0\.\d\d in the regions, above 0.3: lines saturate/);
+    expect(strict.warnings.join('\n')).toMatch(
+      /the standards reach absorbance 0\.\d\d in the regions, above 0.3: lines saturate/,
+    );
     expect(calibration.warnings.join('\n')).not.toMatch(/lines saturate/);
   });
 
   it('carries the model’s lack-of-fit warning: water without its second-order term', () => {
-    const linearWater = buildClsCalibration(method({ interferents: [{ name: 'H2O', unit: 'pct' }] }), standards(), context);
-    expect(linearWater.warnings.join('\n')).toMatch(/lack of fit: .*a second-order term would remove \d+ % of it for H2O.*give H2O a second-order term/);
+    const linearWater = buildClsCalibration(
+      method({ interferents: [{ name: 'H2O', unit: 'pct' }] }),
+      standards(),
+      context,
+    );
+    expect(linearWater.warnings.join('\n')).toMatch(
+      /lack of fit: .*a second-order term would remove \d+ % of it for H2O.*give H2O a second-order term/,
+    );
   });
 });
 
@@ -228,7 +262,11 @@ describe('quantifyClsScan', () => {
     const sample = scan({ CO: 60, H2O: 140000 }, 92);
     const wet = quantifyClsScan(calibration, sample);
     const dry = quantifyClsScan(calibration, sample, { dryBasis: {} });
-    const values = onChannels(sample, Float64Array.from(calibration.cls!.model.grid!), calibration.cls!.regions);
+    const values = onChannels(
+      sample,
+      Float64Array.from(calibration.cls!.model.grid!),
+      calibration.cls!.regions,
+    );
     const water = predictCls(calibration.cls!.model, values, { phi: 1 }).interferents[0]!.value / 100;
     const conversion = dry.gases[0]!.conversions![0]!;
     expect(conversion.kind).toBe('dry');
@@ -247,14 +285,20 @@ describe('quantifyClsScan', () => {
   it('refuses a scan that does not cover the regions, naming the scan and the region', () => {
     const error = thrown(() => quantifyClsScan(calibration, scan({ CO: 60 }, 95, { range: [2000, 2085] })));
     expect(isBandwrightError(error, 'WINDOW')).toBe(true);
-    expect(error.message).toMatch(/scan-95: covers 2000–2085 cm⁻¹, which does not contain the calibration's region 1992–2025 cm⁻¹/);
+    expect(error.message).toMatch(
+      /scan-95: covers 2000–2085 cm⁻¹, which does not contain the calibration's region 1992–2025 cm⁻¹/,
+    );
   });
 
   it('water far above its standards: poor-fit, with the out-of-range interferent named as the likely cause', () => {
     const result = quantifyClsScan(calibration, scan({ CO: 60, H2O: 320000 }, 96));
     const co = result.gases[0]!;
     expect(co.flags).toContain('poor-fit');
-    expect(co.notes.join('\n')).toMatch(/the fit leaves a residual [\d.]+× the calibration's \(limit [\d.]+\): H2O outside the standards' range/);
-    expect(result.warnings.join('\n')).toMatch(/interferent H2O modelled at [\d.]+ % \(not reported\), outside the standards' 0–20(\.\d+)? %/);
+    expect(co.notes.join('\n')).toMatch(
+      /the fit leaves a residual [\d.]+× the calibration's \(limit [\d.]+\): H2O outside the standards' range/,
+    );
+    expect(result.warnings.join('\n')).toMatch(
+      /interferent H2O modelled at [\d.]+ % \(not reported\), outside the standards' 0–20(\.\d+)? %/,
+    );
   });
 });

@@ -1,5 +1,11 @@
 import { describe, expect, it } from 'vitest';
-import { canonicalJson, calibrationHash, sealCalibration, verifyCalibration, type CalibrationBody } from '../../src/calibration/calibration.js';
+import {
+  canonicalJson,
+  calibrationHash,
+  sealCalibration,
+  verifyCalibration,
+  type CalibrationBody,
+} from '../../src/calibration/calibration.js';
 import { parseMethod } from '../../src/calibration/method.js';
 
 function body(): CalibrationBody {
@@ -19,7 +25,9 @@ function body(): CalibrationBody {
 
 describe('calibration integrity', () => {
   it('canonical JSON sorts keys at every level, so formatting and key order do not change the hash', () => {
-    expect(canonicalJson({ b: 1, a: { d: [1, { z: 0, y: 1 }], c: 2 } })).toBe('{"a":{"c":2,"d":[1,{"y":1,"z":0}]},"b":1}');
+    expect(canonicalJson({ b: 1, a: { d: [1, { z: 0, y: 1 }], c: 2 } })).toBe(
+      '{"a":{"c":2,"d":[1,{"y":1,"z":0}]},"b":1}',
+    );
     const sealed = sealCalibration(body());
     const reordered = Object.fromEntries(Object.entries(sealed).reverse()) as unknown as typeof sealed;
     expect(calibrationHash(reordered)).toBe(sealed.sha256);
@@ -27,17 +35,23 @@ describe('calibration integrity', () => {
 
   it('verifies a sealed calibration read back from pretty-printed JSON', () => {
     const sealed = sealCalibration(body());
-    expect(verifyCalibration(JSON.parse(JSON.stringify(sealed, null, 2)), 'c.json').sha256).toBe(sealed.sha256);
+    expect(verifyCalibration(JSON.parse(JSON.stringify(sealed, null, 2)), 'c.json').sha256).toBe(
+      sealed.sha256,
+    );
   });
 
   it('refuses a tampered calibration, saying it was changed', () => {
     const sealed = sealCalibration(body());
     const tampered = { ...sealed, reference: { ...sealed.reference, pathLength_m: 2 } };
-    expect(() => verifyCalibration(tampered, 'c.json')).toThrow(/c.json: content does not match its recorded sha256/);
+    expect(() => verifyCalibration(tampered, 'c.json')).toThrow(
+      /c.json: content does not match its recorded sha256/,
+    );
   });
 
   it('refuses a newer major schema and reads a newer minor one', () => {
-    expect(() => verifyCalibration({ ...sealCalibration(body()), schemaVersion: '2.0' }, 'c.json')).toThrow(/schemaVersion 2.0 is newer than this tool reads/);
+    expect(() => verifyCalibration({ ...sealCalibration(body()), schemaVersion: '2.0' }, 'c.json')).toThrow(
+      /schemaVersion 2.0 is newer than this tool reads/,
+    );
     const minor = sealCalibration({ ...body(), schemaVersion: '1.7' });
     expect(verifyCalibration(minor, 'c.json').schemaVersion).toBe('1.7');
   });

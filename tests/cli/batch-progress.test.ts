@@ -8,7 +8,13 @@ import { createProgress } from '../../src/cli/progress.js';
 
 function context(interactive: boolean): CommandContext & { text: () => string } {
   let text = '';
-  return { stdout: { write: () => true }, stderr: { write: (s: string) => (text += s) }, interactive, status: 0, text: () => text };
+  return {
+    stdout: { write: () => true },
+    stderr: { write: (s: string) => (text += s) },
+    interactive,
+    status: 0,
+    text: () => text,
+  };
 }
 
 describe('createProgress', () => {

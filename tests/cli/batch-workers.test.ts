@@ -33,6 +33,7 @@ describe('workerCount', () => {
     expect(workersOption('auto')).toBe('auto');
     expect(workersOption('0')).toBe(0);
     expect(workersOption('12')).toBe(12);
-    for (const bad of ['-1', '1.5', 'two', '', '65']) expect(() => workersOption(bad)).toThrow(/--workers = .*, must be auto or a whole number from 0 to 64/);
+    for (const bad of ['-1', '1.5', 'two', '', '65'])
+      expect(() => workersOption(bad)).toThrow(/--workers = .*, must be auto or a whole number from 0 to 64/);
   });
 });

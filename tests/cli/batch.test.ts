@@ -31,8 +31,12 @@ const CORRUPT = new Map<number, (path: string) => void>([
   [1_000, (path) => writeFileSync(path, 'this is not a spectrum\n')],
   [1_998, (path) => writeFileSync(path, 'wavenumber_cm-1,absorbance\n2000,0.1\n2001,NaN\n')],
 ]);
-const names = Array.from({ length: SCANS }, (_, i) => `scans/s${String(i).padStart(4, '0')}.${i % 2 === 0 ? 'csv' : 'jdx'}`);
-const csvRows = (path: string) => Papa.parse<Record<string, string>>(readFileSync(path, 'utf8'), { header: true, skipEmptyLines: true });
+const names = Array.from(
+  { length: SCANS },
+  (_, i) => `scans/s${String(i).padStart(4, '0')}.${i % 2 === 0 ? 'csv' : 'jdx'}`,
+);
+const csvRows = (path: string) =>
+  Papa.parse<Record<string, string>>(readFileSync(path, 'utf8'), { header: true, skipEmptyLines: true });
 
 beforeAll(async () => {
   writeStandardSeries(at, reference);
@@ -48,7 +52,18 @@ afterAll(() => folder.cleanup());
 describe('a 2,000-scan batch with 3 corrupt files', () => {
   let inThread: string;
   it('gives 1,997 results and 3 error rows, in input order, and exit status 1', async () => {
-    const run = await runCli('quantify', at('co.json'), at('scans'), '--csv', at('thread.csv'), '--jsonl', at('thread.jsonl'), '--workers', '0', '--quiet');
+    const run = await runCli(
+      'quantify',
+      at('co.json'),
+      at('scans'),
+      '--csv',
+      at('thread.csv'),
+      '--jsonl',
+      at('thread.jsonl'),
+      '--workers',
+      '0',
+      '--quiet',
+    );
     expect(run.status).toBe(1);
     expect(run.stdout).toBe('');
     expect(run.stderr).toMatch(/3 of 2000 scan\(s\) could not be quantified/);
@@ -61,21 +76,44 @@ describe('a 2,000-scan batch with 3 corrupt files', () => {
     expect(parsed.data[1_000]?.error).toMatch(/s1000\.csv line 1: .* has no delimiter/);
     expect(parsed.data[1_998]?.error).toMatch(/s1998\.csv line 3/);
     // Good rows carry the concentration the scan was made with (5 + i mod 380 ppm).
-    for (const i of [0, 1, 2, 999, 1_999]) expect(Number(parsed.data[i]?.CO_ppm)).toBeCloseTo(5 + (i % 380), 0);
+    for (const i of [0, 1, 2, 999, 1_999])
+      expect(Number(parsed.data[i]?.CO_ppm)).toBeCloseTo(5 + (i % 380), 0);
     inThread = readFileSync(at('thread.csv'), 'utf8');
     // No partial file is left behind.
     expect(readdirSync(folder.path).filter((name) => name.includes('.partial-'))).toEqual([]);
   });
 
   it('gives byte-identical CSV, JSON lines and JSON with two worker threads', async () => {
-    const run = await runCli('quantify', at('co.json'), at('scans'), '--csv', at('workers.csv'), '--jsonl', at('workers.jsonl'), '--workers', '2', '--json');
+    const run = await runCli(
+      'quantify',
+      at('co.json'),
+      at('scans'),
+      '--csv',
+      at('workers.csv'),
+      '--jsonl',
+      at('workers.jsonl'),
+      '--workers',
+      '2',
+      '--json',
+    );
     expect(run.status).toBe(1);
     expect(readFileSync(at('workers.csv'), 'utf8')).toBe(inThread);
     expect(readFileSync(at('workers.jsonl'), 'utf8')).toBe(readFileSync(at('thread.jsonl'), 'utf8'));
     const threadJson = await runCli('quantify', at('co.json'), at('scans'), '--workers', '0', '--json');
     expect(run.stdout).toBe(threadJson.stdout);
     // Without --json the workers send only the result lines, not the entries: same files.
-    const quiet = await runCli('quantify', at('co.json'), at('scans'), '--csv', at('workers-quiet.csv'), '--jsonl', at('workers-quiet.jsonl'), '--workers', '2', '--quiet');
+    const quiet = await runCli(
+      'quantify',
+      at('co.json'),
+      at('scans'),
+      '--csv',
+      at('workers-quiet.csv'),
+      '--jsonl',
+      at('workers-quiet.jsonl'),
+      '--workers',
+      '2',
+      '--quiet',
+    );
     expect(quiet.status).toBe(1);
     expect(quiet.stderr).toMatch(/2 worker threads/);
     expect(readFileSync(at('workers-quiet.csv'), 'utf8')).toBe(inThread);
@@ -85,10 +123,19 @@ describe('a 2,000-scan batch with 3 corrupt files', () => {
   it('finishes in this thread, with the same items, when the workers run out of heap', async () => {
     const calibration = readCalibration(at('co.json'));
     const paths = names.slice(0, 120).map((name) => at(name));
-    const setup: BatchSetup = { calibration, options: {}, lineFormats: [{ kind: 'csv', gases: [{ gas: 'CO', unit: 'ppm' }], sha256: calibration.sha256 }], keepEntries: true };
+    const setup: BatchSetup = {
+      calibration,
+      options: {},
+      lineFormats: [{ kind: 'csv', gases: [{ gas: 'CO', unit: 'ppm' }], sha256: calibration.sha256 }],
+      keepEntries: true,
+    };
     const collect = async (workers: number, workerHeap?: WorkerHeapLimits) => {
       const items: { item: BatchItem; index: number }[] = [];
-      const outcome = await runBatch(setup, paths, { workers, onItem: (item, index) => items.push({ item, index }), ...(workerHeap === undefined ? {} : { workerHeap }) });
+      const outcome = await runBatch(setup, paths, {
+        workers,
+        onItem: (item, index) => items.push({ item, index }),
+        ...(workerHeap === undefined ? {} : { workerHeap }),
+      });
       return { items, outcome };
     };
     const here = await collect(0);
@@ -102,7 +149,10 @@ describe('a 2,000-scan batch with 3 corrupt files', () => {
 
   it('writes one results element per JSON line, each with the calibration hash', () => {
     const calibrationSha256 = JSON.parse(readFileSync(at('co.json'), 'utf8')).sha256;
-    const lines = readFileSync(at('thread.jsonl'), 'utf8').trimEnd().split('\n').map((line) => JSON.parse(line));
+    const lines = readFileSync(at('thread.jsonl'), 'utf8')
+      .trimEnd()
+      .split('\n')
+      .map((line) => JSON.parse(line));
     expect(lines).toHaveLength(SCANS);
     for (const line of lines) expect(line.calibrationSha256).toBe(calibrationSha256);
     expect(lines[0].gases[0]).toMatchObject({ gas: 'CO', unit: 'ppm' });
@@ -113,9 +163,44 @@ describe('a 2,000-scan batch with 3 corrupt files', () => {
 describe('streamed outputs give the whole-batch text', () => {
   const calibration = { file: 'co.json', sha256: 'a'.repeat(64) };
   const entries: BatchEntry[] = [
-    { scan: 'a.jdx', conditions: reference, gases: [{ gas: 'CO', value: 71.3, unit: 'ppm', low: 70.5, high: 72.1, se: 0.4, flags: ['extrapolated'], notes: ['outside'] }], residualRms: 3e-4, cautions: ['caution text'], warnings: [] },
+    {
+      scan: 'a.jdx',
+      conditions: reference,
+      gases: [
+        {
+          gas: 'CO',
+          value: 71.3,
+          unit: 'ppm',
+          low: 70.5,
+          high: 72.1,
+          se: 0.4,
+          flags: ['extrapolated'],
+          notes: ['outside'],
+        },
+      ],
+      residualRms: 3e-4,
+      cautions: ['caution text'],
+      warnings: [],
+    },
     { scan: 'b.csv', error: 'b.csv line 2: "abc" is not a number' },
-    { scan: 'c.csv', conditions: reference, gases: [{ gas: 'CO', value: -0.2, unit: 'ppm', low: Number.NEGATIVE_INFINITY, high: 1, se: 0.5, flags: ['below-lod'], notes: [] }], cautions: [], warnings: ['w'] },
+    {
+      scan: 'c.csv',
+      conditions: reference,
+      gases: [
+        {
+          gas: 'CO',
+          value: -0.2,
+          unit: 'ppm',
+          low: Number.NEGATIVE_INFINITY,
+          high: 1,
+          se: 0.5,
+          flags: ['below-lod'],
+          notes: [],
+        },
+      ],
+      cautions: [],
+      warnings: ['w'],
+    },
   ];
   const collect = () => {
     let text = '';
@@ -128,7 +213,9 @@ describe('streamed outputs give the whole-batch text', () => {
       const sink = jsonDocumentSink(out.sink, calibration, 0.95);
       for (const entry of entries.slice(0, count)) sink.add({ lines: [], entry });
       sink.finish();
-      expect(out.text()).toBe(`${JSON.stringify(resultsDocument(entries.slice(0, count), calibration, 0.95), null, 2)}\n`);
+      expect(out.text()).toBe(
+        `${JSON.stringify(resultsDocument(entries.slice(0, count), calibration, 0.95), null, 2)}\n`,
+      );
     }
   });
 
@@ -142,41 +229,67 @@ describe('streamed outputs give the whole-batch text', () => {
     const pages = textTableSink(paged.sink, 0.95, 2);
     for (const entry of entries) pages.add({ lines: [], entry });
     pages.finish();
-    expect(paged.text()).toBe(`${formatResultsText(entries.slice(0, 2), 0.95)}\n\n${formatResultsText(entries.slice(2), 0.95)}\n`);
+    expect(paged.text()).toBe(
+      `${formatResultsText(entries.slice(0, 2), 0.95)}\n\n${formatResultsText(entries.slice(2), 0.95)}\n`,
+    );
   });
 
   it('CSV rows one at a time equal resultsCsv of the batch', () => {
     const gases = [{ gas: 'CO', unit: 'ppm' }];
     const whole = resultsCsv(entries, gases, calibration.sha256);
     const header = whole.slice(0, whole.indexOf('\n') + 1);
-    expect(header + entries.map((entry) => resultsCsvRow(entry, gases, calibration.sha256)).join('')).toBe(whole);
+    expect(header + entries.map((entry) => resultsCsvRow(entry, gases, calibration.sha256)).join('')).toBe(
+      whole,
+    );
   });
 });
 
 describe('--from lists and output files', () => {
   it('reads paths from a list (comments, blank lines, CRLF); a missing listed file is an error row', async () => {
-    writeFileSync(at('list.txt'), `# first two scans, then one that is gone\r\n${at(names[0] as string)}\r\n\r\n${at(names[1] as string)}\n${at('scans/gone.csv')}\n`);
+    writeFileSync(
+      at('list.txt'),
+      `# first two scans, then one that is gone\r\n${at(names[0] as string)}\r\n\r\n${at(names[1] as string)}\n${at('scans/gone.csv')}\n`,
+    );
     const run = await runCli('quantify', at('co.json'), '--from', at('list.txt'), '--csv', at('from.csv'));
     expect(run.status).toBe(1);
     const parsed = csvRows(at('from.csv'));
-    expect(parsed.data.map((row) => row.scan)).toEqual([at(names[0] as string), at(names[1] as string), at('scans/gone.csv')]);
+    expect(parsed.data.map((row) => row.scan)).toEqual([
+      at(names[0] as string),
+      at(names[1] as string),
+      at('scans/gone.csv'),
+    ]);
     expect(parsed.data[2]?.error).toMatch(/gone\.csv: no such file/);
     expect(run.stdout).toMatch(/s0000\.csv\s+CO/);
   });
 
   it('refuses an existing --jsonl file without --force before reading a scan, and replaces it with --force', async () => {
     writeFileSync(at('kept.jsonl'), 'earlier results\n');
-    const refused = await runCli('quantify', at('co.json'), at(names[0] as string), '--jsonl', at('kept.jsonl'));
+    const refused = await runCli(
+      'quantify',
+      at('co.json'),
+      at(names[0] as string),
+      '--jsonl',
+      at('kept.jsonl'),
+    );
     expect(refused.status).toBe(1);
     expect(refused.stderr).toMatch(/kept\.jsonl exists; use --force to replace it/);
     expect(readFileSync(at('kept.jsonl'), 'utf8')).toBe('earlier results\n');
-    const forced = await runCli('quantify', at('co.json'), at(names[0] as string), '--jsonl', at('kept.jsonl'), '--force');
+    const forced = await runCli(
+      'quantify',
+      at('co.json'),
+      at(names[0] as string),
+      '--jsonl',
+      at('kept.jsonl'),
+      '--force',
+    );
     expect(forced.status).toBe(0);
     expect(JSON.parse(readFileSync(at('kept.jsonl'), 'utf8')).scan).toBe(at(names[0] as string));
   });
 
   it('treats --json with --quiet, and a bad --workers value, as usage errors', async () => {
-    expect((await runCli('quantify', at('co.json'), at(names[0] as string), '--json', '--quiet')).status).toBe(2);
+    expect(
+      (await runCli('quantify', at('co.json'), at(names[0] as string), '--json', '--quiet')).status,
+    ).toBe(2);
     const bad = await runCli('quantify', at('co.json'), at(names[0] as string), '--workers', 'many');
     expect(bad.status).toBe(2);
     expect(bad.stderr).toMatch(/--workers = "many", must be auto or a whole number/);
@@ -190,13 +303,34 @@ describe('SIGTERM during a batch', () => {
     writeFileSync(at('long.txt'), `${listed.join('\n')}\n`);
     const tsx = pathToFileURL(createRequire(import.meta.url).resolve('tsx')).href;
     const cli = join(import.meta.dirname, '..', '..', 'src', 'cli', 'main.ts');
-    const child = spawn(process.execPath, ['--import', tsx, cli, 'quantify', at('co.json'), '--from', at('long.txt'), '--csv', at('stopped.csv'), '--workers', '0', '--quiet'], { stdio: ['ignore', 'ignore', 'pipe'] });
+    const child = spawn(
+      process.execPath,
+      [
+        '--import',
+        tsx,
+        cli,
+        'quantify',
+        at('co.json'),
+        '--from',
+        at('long.txt'),
+        '--csv',
+        at('stopped.csv'),
+        '--workers',
+        '0',
+        '--quiet',
+      ],
+      { stdio: ['ignore', 'ignore', 'pipe'] },
+    );
     let stderr = '';
     child.stderr.on('data', (chunk: Buffer) => (stderr += chunk.toString()));
     const exited = new Promise<number | null>((resolve) => child.on('exit', (code) => resolve(code)));
     const partial = at(`.stopped.csv.partial-${child.pid}`);
     // Wait until rows are being written, then stop the batch.
-    for (let waited = 0; !(existsSync(partial) && readFileSync(partial, 'utf8').split('\n').length > 20); waited += 20) {
+    for (
+      let waited = 0;
+      !(existsSync(partial) && readFileSync(partial, 'utf8').split('\n').length > 20);
+      waited += 20
+    ) {
       if (waited > 60_000) throw new Error(`no rows after 60 s; stderr: ${stderr}`);
       await new Promise((resolve) => setTimeout(resolve, 20));
     }
@@ -209,7 +343,16 @@ describe('SIGTERM during a batch', () => {
     expect(text.endsWith('\n')).toBe(true);
     const parsed = Papa.parse<Record<string, string>>(text, { header: true, skipEmptyLines: true });
     expect(parsed.errors).toEqual([]);
-    expect(parsed.meta.fields).toEqual(['scan', 'CO_ppm', 'CO_low', 'CO_high', 'CO_flags', 'residual_rms', 'calibration_sha256', 'error']);
+    expect(parsed.meta.fields).toEqual([
+      'scan',
+      'CO_ppm',
+      'CO_low',
+      'CO_high',
+      'CO_flags',
+      'residual_rms',
+      'calibration_sha256',
+      'error',
+    ]);
     const done = parsed.data.length;
     expect(done).toBeGreaterThan(18);
     expect(done).toBeLessThan(listed.length);

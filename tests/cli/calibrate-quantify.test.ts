@@ -29,7 +29,10 @@ beforeAll(() => {
   writeFileSync(at('standards.csv'), `${rows.join('\n')}\n`);
   // A sample at 150 ppm in a 2 m cell at 310 K: φ = 2 × 296.15/310.
   const phi = (2 * 296.15) / 310;
-  writeScan(at('sample.jdx'), bandScan(150, { phi, metadata: { pathLength_m: 2, temperature_K: 310, pressure_kPa: 101.325 } }));
+  writeScan(
+    at('sample.jdx'),
+    bandScan(150, { phi, metadata: { pathLength_m: 2, temperature_K: 310, pressure_kPa: 101.325 } }),
+  );
   writeScan(at('zero.csv'), bandScan(0, { metadata: reference }));
 });
 afterAll(() => folder.cleanup());
@@ -79,8 +82,19 @@ describe('calibrate then quantify', () => {
   it('writes one CSV row per scan with the DESIGN §4 columns', async () => {
     const run = await runCli('quantify', at('co.json'), at('sample.jdx'), '--csv', at('results.csv'));
     expect(run.status).toBe(0);
-    const parsed = Papa.parse<Record<string, string>>(readFileSync(at('results.csv'), 'utf8').trim(), { header: true });
-    expect(parsed.meta.fields).toEqual(['scan', 'CO_ppm', 'CO_low', 'CO_high', 'CO_flags', 'residual_rms', 'calibration_sha256', 'error']);
+    const parsed = Papa.parse<Record<string, string>>(readFileSync(at('results.csv'), 'utf8').trim(), {
+      header: true,
+    });
+    expect(parsed.meta.fields).toEqual([
+      'scan',
+      'CO_ppm',
+      'CO_low',
+      'CO_high',
+      'CO_flags',
+      'residual_rms',
+      'calibration_sha256',
+      'error',
+    ]);
     expect(Number(parsed.data[0]?.CO_ppm)).toBeCloseTo(150, 0);
     const again = await runCli('quantify', at('co.json'), at('sample.jdx'), '--csv', at('results.csv'));
     expect(again.status).toBe(1);
@@ -88,7 +102,16 @@ describe('calibrate then quantify', () => {
   });
 
   it('quantifies given responses, and mg/m³ with its reference conditions printed', async () => {
-    const run = await runCli('quantify', at('co.json'), '--response', '2.0', '--response', '2.02', '--mg-m3', '--json');
+    const run = await runCli(
+      'quantify',
+      at('co.json'),
+      '--response',
+      '2.0',
+      '--response',
+      '2.02',
+      '--mg-m3',
+      '--json',
+    );
     expect(run.status).toBe(0);
     const gas = JSON.parse(run.stdout).results[0].gases[0];
     expect(gas.value).toBeCloseTo(100.5, 0);
@@ -99,8 +122,19 @@ describe('calibrate then quantify', () => {
   });
 
   it('calibrates from a responses table', async () => {
-    writeFileSync(at('responses.csv'), 'concentration,response\n0,0.01\n0,-0.01\n10,1.02\n10,0.99\n20,2.01\n20,1.98\n40,4.0\n40,4.02\n');
-    const run = await runCli('calibrate', '--responses', at('responses.csv'), '--gas', 'CO', '-o', at('responses.cal.json'));
+    writeFileSync(
+      at('responses.csv'),
+      'concentration,response\n0,0.01\n0,-0.01\n10,1.02\n10,0.99\n20,2.01\n20,1.98\n40,4.0\n40,4.02\n',
+    );
+    const run = await runCli(
+      'calibrate',
+      '--responses',
+      at('responses.csv'),
+      '--gas',
+      'CO',
+      '-o',
+      at('responses.cal.json'),
+    );
     expect(run.status).toBe(0);
     const quantified = await runCli('quantify', at('responses.cal.json'), '--response', '3.0', '--json');
     expect(JSON.parse(quantified.stdout).results[0].gases[0].value).toBeCloseTo(30, 0);
@@ -118,8 +152,34 @@ describe('result flags', () => {
   });
 
   it('flags saturation against the method threshold', async () => {
-    writeFileSync(at('low-threshold.json'), JSON.stringify({ gases: [{ name: 'CO', band: [2040, 2245], baseline: [[2000, 2030], [2255, 2290]] }], saturationAbsorbance: 0.05 }));
-    expect((await runCli('calibrate', at('standards.csv'), '--method', at('low-threshold.json'), '-o', at('low-threshold.cal.json'))).status).toBe(0);
+    writeFileSync(
+      at('low-threshold.json'),
+      JSON.stringify({
+        gases: [
+          {
+            name: 'CO',
+            band: [2040, 2245],
+            baseline: [
+              [2000, 2030],
+              [2255, 2290],
+            ],
+          },
+        ],
+        saturationAbsorbance: 0.05,
+      }),
+    );
+    expect(
+      (
+        await runCli(
+          'calibrate',
+          at('standards.csv'),
+          '--method',
+          at('low-threshold.json'),
+          '-o',
+          at('low-threshold.cal.json'),
+        )
+      ).status,
+    ).toBe(0);
     const run = await runCli('quantify', at('low-threshold.cal.json'), at('sample.jdx'), '--json');
     expect(JSON.parse(run.stdout).results[0].gases[0].flags).toContain('saturated');
   });

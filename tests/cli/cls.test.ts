@@ -81,9 +81,21 @@ const METHOD = {
   baselineOrder: 1,
 };
 
-function manifest(name: string, rows: [string, Gases][], columns: readonly (keyof Gases)[] = ['CO', 'N2O', 'CO2', 'H2O']): string {
-  const header = ['scan', ...columns.map((gas) => (gas === 'CO2' || gas === 'H2O' ? `${gas}_pct` : `${gas}_ppm`))].join(',');
-  const lines = rows.map(([scan, gases]) => [`${scan}.jdx`, ...columns.map((gas) => (gas === 'CO2' || gas === 'H2O' ? gases[gas] / 1e4 : gases[gas]))].join(','));
+function manifest(
+  name: string,
+  rows: [string, Gases][],
+  columns: readonly (keyof Gases)[] = ['CO', 'N2O', 'CO2', 'H2O'],
+): string {
+  const header = [
+    'scan',
+    ...columns.map((gas) => (gas === 'CO2' || gas === 'H2O' ? `${gas}_pct` : `${gas}_ppm`)),
+  ].join(',');
+  const lines = rows.map(([scan, gases]) =>
+    [
+      `${scan}.jdx`,
+      ...columns.map((gas) => (gas === 'CO2' || gas === 'H2O' ? gases[gas] / 1e4 : gases[gas])),
+    ].join(','),
+  );
   writeFileSync(at(name), `${[header, ...lines].join('\n')}\n`);
   return at(name);
 }
@@ -96,7 +108,10 @@ beforeAll(() => {
   // A scan from a narrower export that does not reach the first region.
   writeScan(at('narrow.jdx'), simulate(SAMPLES[0]![1], 8100, [2100, 2300]));
   // Collinear standards: N2O always a tenth of CO.
-  const collinear: [string, Gases][] = [0, 40, 80, 120, 160, 200, 240, 280].map((co, i) => [`coll-${i}`, { CO: co, N2O: co / 10, CO2: [0, 4, 8, 12][i % 4]! * 1e4, H2O: [0, 8, 14, 20][(i + 1) % 4]! * 1e4 }]);
+  const collinear: [string, Gases][] = [0, 40, 80, 120, 160, 200, 240, 280].map((co, i) => [
+    `coll-${i}`,
+    { CO: co, N2O: co / 10, CO2: [0, 4, 8, 12][i % 4]! * 1e4, H2O: [0, 8, 14, 20][(i + 1) % 4]! * 1e4 },
+  ]);
   collinear.forEach(([name, gases], i) => writeScan(at(`${name}.jdx`), simulate(gases, 7500 + i)));
   manifest('collinear.csv', collinear);
   // A method without N2O, calibrated on the standards that hold none; a sample with N2O.
@@ -119,7 +134,14 @@ interface JsonGas {
   high: number;
   flags: string[];
   notes: string[];
-  conversions?: { kind: string; value: number; low: number; high: number; unit: string; assumption: string }[];
+  conversions?: {
+    kind: string;
+    value: number;
+    low: number;
+    high: number;
+    unit: string;
+    assumption: string;
+  }[];
 }
 interface JsonResult {
   scan: string;
@@ -143,15 +165,26 @@ function waterFraction(result: JsonResult): number {
 
 describe('calibrate a cls method from files', () => {
   it('builds the calibration and prints its regions, components and statistics', async () => {
-    const run = await runCli('calibrate', at('standards.csv'), '--method', at('method.json'), '-o', at('stack.json'));
+    const run = await runCli(
+      'calibrate',
+      at('standards.csv'),
+      '--method',
+      at('method.json'),
+      '-o',
+      at('stack.json'),
+    );
     expect(run.status, run.stderr).toBe(0);
-    expect(run.stdout).toMatch(/classical least squares over 1992–2025 cm⁻¹, 2030–2075.5 cm⁻¹, 2201.5–2250 cm⁻¹ \(\d+ channels\), baseline order 1 per region/);
+    expect(run.stdout).toMatch(
+      /classical least squares over 1992–2025 cm⁻¹, 2030–2075.5 cm⁻¹, 2201.5–2250 cm⁻¹ \(\d+ channels\), baseline order 1 per region/,
+    );
     expect(run.stdout).toMatch(/CO: first and second order, standards 0–\d+(\.\d+)? ppm/);
     expect(run.stdout).toMatch(/CO2 \(interferent, not reported\): first order/);
     expect(run.stdout).toMatch(/H2O \(interferent, not reported\): first and second order/);
     const calibration = JSON.parse(readFileSync(at('stack.json'), 'utf8'));
     expect(calibration.method.model).toBe('cls');
-    expect(calibration.inputs.filter((input: { role: string }) => input.role === 'standard')).toHaveLength(STANDARDS.length);
+    expect(calibration.inputs.filter((input: { role: string }) => input.role === 'standard')).toHaveLength(
+      STANDARDS.length,
+    );
   });
 });
 
@@ -177,8 +210,23 @@ describe('quantify with a cls calibration', () => {
   it('CSV: value, low, high and flags columns for each reported gas only', async () => {
     const run = await runCli('quantify', at('stack.json'), at('k2-a.jdx'), '--csv', at('results.csv'));
     expect(run.status, run.stderr).toBe(0);
-    const parsed = Papa.parse<Record<string, string>>(readFileSync(at('results.csv'), 'utf8').trim(), { header: true });
-    expect(parsed.meta.fields).toEqual(['scan', 'CO_ppm', 'CO_low', 'CO_high', 'CO_flags', 'N2O_ppm', 'N2O_low', 'N2O_high', 'N2O_flags', 'residual_rms', 'calibration_sha256', 'error']);
+    const parsed = Papa.parse<Record<string, string>>(readFileSync(at('results.csv'), 'utf8').trim(), {
+      header: true,
+    });
+    expect(parsed.meta.fields).toEqual([
+      'scan',
+      'CO_ppm',
+      'CO_low',
+      'CO_high',
+      'CO_flags',
+      'N2O_ppm',
+      'N2O_low',
+      'N2O_high',
+      'N2O_flags',
+      'residual_rms',
+      'calibration_sha256',
+      'error',
+    ]);
     expect(Number(parsed.data[0]!.CO_ppm)).toBeCloseTo(74, -0.5);
     expect(Number(parsed.data[0]!.N2O_ppm)).toBeCloseTo(22, 0);
     expect(run.stdout).not.toMatch(/\bCO2\s+\d/);
@@ -186,13 +234,23 @@ describe('quantify with a cls calibration', () => {
   });
 
   it('a scan whose grid does not cover the regions fails in its batch row, naming the scan and the region; exit status 1', async () => {
-    const run = await runCli('quantify', at('stack.json'), at('k2-a.jdx'), at('narrow.jdx'), '--csv', at('batch.csv'));
+    const run = await runCli(
+      'quantify',
+      at('stack.json'),
+      at('k2-a.jdx'),
+      at('narrow.jdx'),
+      '--csv',
+      at('batch.csv'),
+    );
     expect(run.status).toBe(1);
-    const message = /narrow\.jdx: covers 2100–2300 cm⁻¹, which does not contain the calibration's region 1992–2025 cm⁻¹/;
+    const message =
+      /narrow\.jdx: covers 2100–2300 cm⁻¹, which does not contain the calibration's region 1992–2025 cm⁻¹/;
     expect(run.stderr).toMatch(message);
     expect(run.stderr).toMatch(/1 of 2 scan\(s\) could not be quantified/);
     expect(run.stdout).toMatch(/narrow\.jdx\s+—\s+failed/);
-    const rows = Papa.parse<Record<string, string>>(readFileSync(at('batch.csv'), 'utf8').trim(), { header: true }).data;
+    const rows = Papa.parse<Record<string, string>>(readFileSync(at('batch.csv'), 'utf8').trim(), {
+      header: true,
+    }).data;
     expect(rows[0]!.error).toBe('');
     expect(rows[1]!.error).toMatch(message);
     expect(rows[1]!.CO_ppm).toBe('');
@@ -202,9 +260,18 @@ describe('quantify with a cls calibration', () => {
 describe('refusals', () => {
   it('collinear standards (N2O always a tenth of CO) are refused naming both gases, and nothing is written', async () => {
     const before = folder.files();
-    const run = await runCli('calibrate', at('collinear.csv'), '--method', at('method.json'), '-o', at('collinear.json'));
+    const run = await runCli(
+      'calibrate',
+      at('collinear.csv'),
+      '--method',
+      at('method.json'),
+      '-o',
+      at('collinear.json'),
+    );
     expect(run.status).toBe(1);
-    expect(run.stderr).toMatch(/standards' concentrations cannot separate the gases: (.*\bCO\b.*\bN2O\b|.*\bN2O\b.*\bCO\b)/);
+    expect(run.stderr).toMatch(
+      /standards' concentrations cannot separate the gases: (.*\bCO\b.*\bN2O\b|.*\bN2O\b.*\bCO\b)/,
+    );
     expect(run.stderr).not.toMatch(/CO2|H2O/);
     expect(run.stderr).toMatch(/keep the same ratio/);
     expect(existsSync(at('collinear.json'))).toBe(false);
@@ -225,11 +292,15 @@ describe('stack reporting: each conversion printed with its assumptions', () => 
       // x is printed to 4 significant digits: relative tolerance 1e-4.
       expect(dry.value / (gas.value / (1 - x)) - 1).toBeLessThan(1e-4);
       expect(dry.low).toBeLessThan(dry.value);
-      expect(dry.assumption).toMatch(/dry basis: c_dry = c_wet \/ \(1 − x_H2O\), water vapour 16\.\d\d % measured in the same scan/);
+      expect(dry.assumption).toMatch(
+        /dry basis: c_dry = c_wet \/ \(1 − x_H2O\), water vapour 16\.\d\d % measured in the same scan/,
+      );
     }
     const text = await runCli('quantify', at('stack.json'), at('k2-a.jdx'), '--dry');
     expect(text.stdout).toMatch(/^\s+dry\s+[\d.]+\s+[\d.]+ – [\d.]+\s+ppm/m);
-    expect(text.stdout).toMatch(/k2-a\.jdx CO dry: dry basis: c_dry = c_wet \/ \(1 − x_H2O\), water vapour 16\.\d\d % measured in the same scan/);
+    expect(text.stdout).toMatch(
+      /k2-a\.jdx CO dry: dry basis: c_dry = c_wet \/ \(1 − x_H2O\), water vapour 16\.\d\d % measured in the same scan/,
+    );
   });
 
   it('--dry --h2o 12: the given water fraction instead, exactly c / 0.88', async () => {
@@ -242,14 +313,36 @@ describe('stack reporting: each conversion printed with its assumptions', () => 
   });
 
   it('--o2 10 --o2-ref 7 on the dry value: × (20.9 − 7)/(20.9 − 10) = 1.27523 (40 CFR 60, facts.md)', async () => {
-    const [result] = await quantifyJson(at('k2-a.jdx'), '--dry', '--h2o', '12', '--o2', '10', '--o2-ref', '7');
+    const [result] = await quantifyJson(
+      at('k2-a.jdx'),
+      '--dry',
+      '--h2o',
+      '12',
+      '--o2',
+      '10',
+      '--o2-ref',
+      '7',
+    );
     for (const gas of result!.gases) {
       const [dry, oxygen] = gas.conversions!;
       expect(oxygen!.kind).toBe('O2-corrected');
       expect(oxygen!.value / dry!.value).toBeCloseTo(1.27523, 5);
-      expect(oxygen!.assumption).toMatch(/corrected to 7 % O2: c × \(20.9 − 7\) \/ \(20.9 − 10\), O2 measured 10 %, O2 of air 20.9 %, on the dry basis above/);
+      expect(oxygen!.assumption).toMatch(
+        /corrected to 7 % O2: c × \(20.9 − 7\) \/ \(20.9 − 10\), O2 measured 10 %, O2 of air 20.9 %, on the dry basis above/,
+      );
     }
-    const text = await runCli('quantify', at('stack.json'), at('k2-a.jdx'), '--dry', '--h2o', '12', '--o2', '10', '--o2-ref', '7');
+    const text = await runCli(
+      'quantify',
+      at('stack.json'),
+      at('k2-a.jdx'),
+      '--dry',
+      '--h2o',
+      '12',
+      '--o2',
+      '10',
+      '--o2-ref',
+      '7',
+    );
     expect(text.stdout).toMatch(/k2-a\.jdx N2O O2-corrected: corrected to 7 % O2/);
   });
 
@@ -263,26 +356,45 @@ describe('stack reporting: each conversion printed with its assumptions', () => 
       expect(mass.kind).toBe('mg/m3');
       expect(mass.unit).toBe('mg/m3');
       expect(mass.value / gas.value).toBeCloseTo(factor[gas.gas as 'CO' | 'N2O'], 4);
-      expect(mass.assumption).toMatch(/mass concentration at 273.15 K and 101.325 kPa \(ideal gas, M = \d+\.\d{3} g\/mol\)/);
+      expect(mass.assumption).toMatch(
+        /mass concentration at 273.15 K and 101.325 kPa \(ideal gas, M = \d+\.\d{3} g\/mol\)/,
+      );
     }
     const chained = await quantifyJson(at('k2-a.jdx'), '--dry', '--mg-m3');
     expect(chained[0]!.gases[0]!.conversions![1]!.assumption).toMatch(/of the dry value/);
     const text = await runCli('quantify', at('stack.json'), at('k2-a.jdx'), '--mg-m3');
     expect(text.stdout).toMatch(/^\s+mg\/m3\s+[\d.]+\s+[\d.]+ – [\d.]+\s+mg\/m3/m);
-    expect(text.stdout).toMatch(/k2-a\.jdx CO mg\/m3: mass concentration at 273.15 K and 101.325 kPa \(ideal gas, M = 28.010 g\/mol\)/);
+    expect(text.stdout).toMatch(
+      /k2-a\.jdx CO mg\/m3: mass concentration at 273.15 K and 101.325 kPa \(ideal gas, M = 28.010 g\/mol\)/,
+    );
   });
 });
 
 describe('poor fit', () => {
   it('a sample with an absorber missing from the method (N2O, absent from a CO-only method) is flagged poor-fit; one without it is not', async () => {
-    const calibrate = await runCli('calibrate', at('standards-no-n2o.csv'), '--method', at('method-no-n2o.json'), '-o', at('no-n2o.json'));
+    const calibrate = await runCli(
+      'calibrate',
+      at('standards-no-n2o.csv'),
+      '--method',
+      at('method-no-n2o.json'),
+      '-o',
+      at('no-n2o.json'),
+    );
     expect(calibrate.status, calibrate.stderr).toBe(0);
-    const run = await runCli('quantify', at('no-n2o.json'), at('with-n2o.jdx'), at('without-n2o.jdx'), '--json');
+    const run = await runCli(
+      'quantify',
+      at('no-n2o.json'),
+      at('with-n2o.jdx'),
+      at('without-n2o.jdx'),
+      '--json',
+    );
     expect(run.status, run.stderr).toBe(0);
     const [withN2o, withoutN2o] = JSON.parse(run.stdout).results as JsonResult[];
     const co = withN2o!.gases[0]!;
     expect(co.flags).toContain('poor-fit');
-    expect(co.notes.join('\n')).toMatch(/the fit leaves a residual [\d.]+× the calibration's \(limit [\d.]+\): an absorber the method does not model may be present/);
+    expect(co.notes.join('\n')).toMatch(
+      /the fit leaves a residual [\d.]+× the calibration's \(limit [\d.]+\): an absorber the method does not model may be present/,
+    );
     expect(withoutN2o!.gases[0]!.flags).not.toContain('poor-fit');
     expect(withN2o!.residualRms).toBeGreaterThan(3 * withoutN2o!.residualRms);
   });

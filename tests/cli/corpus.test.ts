@@ -36,7 +36,9 @@ function snapshot(root: string): string[] {
       const path = join(dir, name);
       const stats = statSync(path);
       if (stats.isDirectory()) walk(path);
-      entries.push(`${relative(root, path)} ${stats.isDirectory() ? 'dir' : `${stats.size} ${stats.mtimeMs}`}`);
+      entries.push(
+        `${relative(root, path)} ${stats.isDirectory() ? 'dir' : `${stats.size} ${stats.mtimeMs}`}`,
+      );
     }
   };
   walk(root);
@@ -47,7 +49,10 @@ beforeAll(() => {
   cpSync(join(fixtures, 'lab'), lab, { recursive: true });
   // Over the 1 MiB method limit by 25 bytes: the good method padded with spaces (valid JSON).
   const method = readFileSync(join(lab, 'method.json'), 'utf8');
-  writeFileSync(join(lab, 'methods', 'huge.json'), method + ' '.repeat(1024 * 1024 + 25 - Buffer.byteLength(method)));
+  writeFileSync(
+    join(lab, 'methods', 'huge.json'),
+    method + ' '.repeat(1024 * 1024 + 25 - Buffer.byteLength(method)),
+  );
 });
 afterAll(() => folder.cleanup());
 
@@ -67,7 +72,9 @@ describe(`broken-input corpus: ${corpus.cases.length} cases, each with its messa
     const run = await runCli(...args);
     const text = c.stream === 'stdout' ? run.stdout : run.stderr;
     const expected = c.message.replaceAll('{lab}', lab);
-    expect(text, `bandwright ${args.join(' ')}\nstatus ${run.status}\nstderr: ${run.stderr}`).toContain(expected);
+    expect(text, `bandwright ${args.join(' ')}\nstatus ${run.status}\nstderr: ${run.stderr}`).toContain(
+      expected,
+    );
     expect(run.status, run.stderr).toBe(c.status);
     expect(run.stderr).not.toMatch(/internal error/);
     expect(snapshot(folder.path)).toEqual(before);
@@ -77,10 +84,20 @@ describe(`broken-input corpus: ${corpus.cases.length} cases, each with its messa
 describe('broken-looking manifests that are valid', () => {
   // CRLF line ends, a blank line between rows and -0 are all valid CSV (RFC 4180 allows CRLF;
   // blank lines carry no record); each must read to the same standards as the plain manifest.
-  const plain = parseManifest(decodeText(readFileSync(join(fixtures, 'lab', 'standards.csv')), 'standards.csv'), join(lab, 'standards.csv'));
-  const values = (m: ReturnType<typeof parseManifest>): [string, number][] => m.entries.map((e) => [e.scan, e.concentrations[0]?.value as number]);
-  it.each(['manifest-crlf.csv', 'manifest-blank-line-inside.csv', 'manifest-negative-zero.csv'])('%s reads to the same standards', (name) => {
-    const manifest = parseManifest(decodeText(readFileSync(join(fixtures, 'lab', name)), name), join(lab, name));
-    expect(values(manifest).map(([scan, value]) => [scan, value === 0 ? 0 : value])).toEqual(values(plain));
-  });
+  const plain = parseManifest(
+    decodeText(readFileSync(join(fixtures, 'lab', 'standards.csv')), 'standards.csv'),
+    join(lab, 'standards.csv'),
+  );
+  const values = (m: ReturnType<typeof parseManifest>): [string, number][] =>
+    m.entries.map((e) => [e.scan, e.concentrations[0]?.value as number]);
+  it.each(['manifest-crlf.csv', 'manifest-blank-line-inside.csv', 'manifest-negative-zero.csv'])(
+    '%s reads to the same standards',
+    (name) => {
+      const manifest = parseManifest(
+        decodeText(readFileSync(join(fixtures, 'lab', name)), name),
+        join(lab, name),
+      );
+      expect(values(manifest).map(([scan, value]) => [scan, value === 0 ? 0 : value])).toEqual(values(plain));
+    },
+  );
 });

@@ -42,10 +42,15 @@ interface ChildRun {
 function runChild(args: readonly string[], killAfterMs?: number): Promise<ChildRun> {
   return new Promise((done, fail) => {
     const started = performance.now();
-    const child = spawn(process.execPath, ['--import', 'tsx', join('src', 'cli', 'main.ts'), ...args], { cwd: repository, env: environment, stdio: ['ignore', 'ignore', 'pipe'] });
+    const child = spawn(process.execPath, ['--import', 'tsx', join('src', 'cli', 'main.ts'), ...args], {
+      cwd: repository,
+      env: environment,
+      stdio: ['ignore', 'ignore', 'pipe'],
+    });
     let stderr = '';
     child.stderr.on('data', (chunk: Buffer) => (stderr += chunk.toString()));
-    const timer = killAfterMs === undefined ? undefined : setTimeout(() => child.kill('SIGKILL'), killAfterMs);
+    const timer =
+      killAfterMs === undefined ? undefined : setTimeout(() => child.kill('SIGKILL'), killAfterMs);
     child.on('error', fail);
     child.on('close', (status, signal) => {
       if (timer !== undefined) clearTimeout(timer);
@@ -56,7 +61,9 @@ function runChild(args: readonly string[], killAfterMs?: number): Promise<ChildR
 
 /** Files in the folder that are neither the inputs nor the named outputs: must be writers' temporaries. */
 function strayFiles(keep: readonly string[]): string[] {
-  return readdirSync(folder.path).filter((name) => !keep.includes(name) && !/^\.[^/]+\.(tmp|partial)-/.test(name));
+  return readdirSync(folder.path).filter(
+    (name) => !keep.includes(name) && !/^\.[^/]+\.(tmp|partial)-/.test(name),
+  );
 }
 
 const inputs = ['s0.csv', 's50.csv', 's100.csv', 's200.csv', 's400.csv', 'standards.csv', 'samples'];
@@ -67,7 +74,11 @@ beforeAll(() => {
   for (const name of inputs.slice(0, 6)) cpSync(join(lab, name), at(name));
   // Enough sample scans that quantify spends a while reading before it writes its results.
   mkdirSync(at('samples'));
-  for (let i = 0; i < 200; i++) cpSync(join(lab, `s${[50, 100, 200][i % 3]}.csv`), at(join('samples', `sample-${String(i).padStart(3, '0')}.csv`)));
+  for (let i = 0; i < 200; i++)
+    cpSync(
+      join(lab, `s${[50, 100, 200][i % 3]}.csv`),
+      at(join('samples', `sample-${String(i).padStart(3, '0')}.csv`)),
+    );
 });
 afterAll(() => {
   for (const line of summaries) console.log(line);
@@ -75,7 +86,13 @@ afterAll(() => {
 });
 
 /** Kills the same command KILLS times at seeded moments over [0, 1.5 × its full run time]; checks after each. */
-async function killRepeatedly(name: string, seed: number, fullMs: number, args: (i: number) => string[], check: (i: number, run: ChildRun) => void): Promise<void> {
+async function killRepeatedly(
+  name: string,
+  seed: number,
+  fullMs: number,
+  args: (i: number) => string[],
+  check: (i: number, run: ChildRun) => void,
+): Promise<void> {
   const random = createRandom(seed);
   let killed = 0;
   let completed = 0;
@@ -87,7 +104,9 @@ async function killRepeatedly(name: string, seed: number, fullMs: number, args: 
     check(i, run);
   }
   const temporaries = readdirSync(folder.path).filter((file) => /^\.[^/]+\.(tmp|partial)-/.test(file)).length;
-  summaries.push(`crash safety ${name}: ${KILLS} runs with SIGKILL at seeded moments (seed ${seed}) over 0–${(1.5 * fullMs).toFixed(0)} ms: ${killed} killed, ${completed} finished first; invariants held after every run; writer temporaries left so far: ${temporaries}`);
+  summaries.push(
+    `crash safety ${name}: ${KILLS} runs with SIGKILL at seeded moments (seed ${seed}) over 0–${(1.5 * fullMs).toFixed(0)} ms: ${killed} killed, ${completed} finished first; invariants held after every run; writer temporaries left so far: ${temporaries}`,
+  );
 }
 
 describe(`crash safety: SIGKILL at random moments (seed ${SEED}, ${KILLS} kills per command)`, () => {
@@ -96,19 +115,37 @@ describe(`crash safety: SIGKILL at random moments (seed ${SEED}, ${KILLS} kills 
     const fresh = await runChild(['calibrate', at('standards.csv'), ...band, '-o', target]);
     expect(fresh.status, fresh.stderr).toBe(0);
     const next = readFileSync(target, 'utf8');
-    const before = await runChild(['calibrate', at('standards.csv'), ...band, '--model', 'origin', '-o', target, '--force']);
+    const before = await runChild([
+      'calibrate',
+      at('standards.csv'),
+      ...band,
+      '--model',
+      'origin',
+      '-o',
+      target,
+      '--force',
+    ]);
     expect(before.status, before.stderr).toBe(0);
     const previous = readFileSync(target, 'utf8');
     expect(previous).not.toBe(next);
-    await killRepeatedly('calibrate', SEED, fresh.ms, () => ['calibrate', at('standards.csv'), ...band, '-o', target, '--force'], (_i, run) => {
-      const now = readFileSync(target, 'utf8');
-      expect([previous, next], `after a run ${run.killed ? 'killed' : 'that finished'} after ${run.ms.toFixed(0)} ms`).toContain(now);
-      if (!run.killed) expect(run.status, run.stderr).toBe(0);
-      expect(readCalibration(target).sha256).toMatch(/^[0-9a-f]{64}$/);
-      expect(strayFiles([...inputs, 'co.calibration.json'])).toEqual([]);
-      // Put the previous calibration back so every run replaces it again.
-      if (now === next) writeFileSync(target, previous);
-    });
+    await killRepeatedly(
+      'calibrate',
+      SEED,
+      fresh.ms,
+      () => ['calibrate', at('standards.csv'), ...band, '-o', target, '--force'],
+      (_i, run) => {
+        const now = readFileSync(target, 'utf8');
+        expect(
+          [previous, next],
+          `after a run ${run.killed ? 'killed' : 'that finished'} after ${run.ms.toFixed(0)} ms`,
+        ).toContain(now);
+        if (!run.killed) expect(run.status, run.stderr).toBe(0);
+        expect(readCalibration(target).sha256).toMatch(/^[0-9a-f]{64}$/);
+        expect(strayFiles([...inputs, 'co.calibration.json'])).toEqual([]);
+        // Put the previous calibration back so every run replaces it again.
+        if (now === next) writeFileSync(target, previous);
+      },
+    );
   }, 300_000);
 
   it('quantify --csv --force: the results file is the previous one or the complete new one', async () => {
@@ -118,33 +155,68 @@ describe(`crash safety: SIGKILL at random moments (seed ${SEED}, ${KILLS} kills 
     expect(fresh.status, fresh.stderr).toBe(0);
     const next = readFileSync(target, 'utf8');
     expect(next.trimEnd().split('\n')).toHaveLength(201);
-    const previous = 'scan,CO_ppm,CO_low,CO_high,CO_flags,residual_rms,calibration_sha256,error\nearlier.csv,1,0.9,1.1,,0,0000,\n';
+    const previous =
+      'scan,CO_ppm,CO_low,CO_high,CO_flags,residual_rms,calibration_sha256,error\nearlier.csv,1,0.9,1.1,,0,0000,\n';
     writeFileSync(target, previous);
-    await killRepeatedly('quantify --csv', SEED + 1, fresh.ms, () => ['quantify', calibration, at('samples'), '--csv', target, '--force'], (_i, run) => {
-      const now = readFileSync(target, 'utf8');
-      expect([previous, next], `after a run ${run.killed ? 'killed' : 'that finished'} after ${run.ms.toFixed(0)} ms`).toContain(now);
-      if (!run.killed) expect(run.status, run.stderr).toBe(0);
-      expect(strayFiles([...inputs, 'co.calibration.json', 'results.csv'])).toEqual([]);
-      if (now === next) writeFileSync(target, previous);
-    });
+    await killRepeatedly(
+      'quantify --csv',
+      SEED + 1,
+      fresh.ms,
+      () => ['quantify', calibration, at('samples'), '--csv', target, '--force'],
+      (_i, run) => {
+        const now = readFileSync(target, 'utf8');
+        expect(
+          [previous, next],
+          `after a run ${run.killed ? 'killed' : 'that finished'} after ${run.ms.toFixed(0)} ms`,
+        ).toContain(now);
+        if (!run.killed) expect(run.status, run.stderr).toBe(0);
+        expect(strayFiles([...inputs, 'co.calibration.json', 'results.csv'])).toEqual([]);
+        if (now === next) writeFileSync(target, previous);
+      },
+    );
   }, 300_000);
 
   it('recheck: the history reads, with the previous records or one complete record more; the next recheck is not blocked', async () => {
     const calibration = at('co.calibration.json');
     const history = at('co.calibration.history.csv');
-    const check = (day: number): string[] => ['recheck', calibration, at('s100.csv'), '--certified', '100', '--at', new Date(Date.UTC(2026, 5, 1 + day, 9)).toISOString()];
+    const check = (day: number): string[] => [
+      'recheck',
+      calibration,
+      at('s100.csv'),
+      '--certified',
+      '100',
+      '--at',
+      new Date(Date.UTC(2026, 5, 1 + day, 9)).toISOString(),
+    ];
     const first = await runChild(check(0));
     expect([0, 3, 4], first.stderr).toContain(first.status);
     let records = readHistory(history).records.length;
     expect(records).toBe(1);
-    await killRepeatedly('recheck', SEED + 2, first.ms, (i) => check(i + 1), (i, run) => {
-      const now = readHistory(history).records;
-      expect([records, records + 1], `after a run ${run.killed ? 'killed' : 'that finished'} after ${run.ms.toFixed(0)} ms`).toContain(now.length);
-      if (now.length === records + 1) expect(now[now.length - 1]?.time).toBe(check(i + 1)[6]);
-      if (!run.killed) expect([0, 3, 4], run.stderr).toContain(run.status);
-      records = now.length;
-      expect(strayFiles([...inputs, 'co.calibration.json', 'results.csv', 'co.calibration.history.csv', 'co.calibration.history.csv.lock'])).toEqual([]);
-    });
+    await killRepeatedly(
+      'recheck',
+      SEED + 2,
+      first.ms,
+      (i) => check(i + 1),
+      (i, run) => {
+        const now = readHistory(history).records;
+        expect(
+          [records, records + 1],
+          `after a run ${run.killed ? 'killed' : 'that finished'} after ${run.ms.toFixed(0)} ms`,
+        ).toContain(now.length);
+        if (now.length === records + 1) expect(now[now.length - 1]?.time).toBe(check(i + 1)[6]);
+        if (!run.killed) expect([0, 3, 4], run.stderr).toContain(run.status);
+        records = now.length;
+        expect(
+          strayFiles([
+            ...inputs,
+            'co.calibration.json',
+            'results.csv',
+            'co.calibration.history.csv',
+            'co.calibration.history.csv.lock',
+          ]),
+        ).toEqual([]);
+      },
+    );
     const last = await runChild(check(KILLS + 1));
     expect([0, 3, 4], last.stderr).toContain(last.status);
     expect(readHistory(history).records).toHaveLength(records + 1);

@@ -13,10 +13,21 @@ afterAll(() => folder.cleanup());
 
 describe('inspect', () => {
   it('describes a JCAMP-DX and a CSV scan: points, range, spacing, y-kind, conditions', async () => {
-    const run = await runCli('inspect', join(examples, 'lab-co', 'standards', 'co-000a.jdx'), join(examples, 'lab-co', 'standards', 'co-020a.csv'), '--json');
+    const run = await runCli(
+      'inspect',
+      join(examples, 'lab-co', 'standards', 'co-000a.jdx'),
+      join(examples, 'lab-co', 'standards', 'co-020a.csv'),
+      '--json',
+    );
     expect(run.status).toBe(0);
     const [jcamp, csv] = JSON.parse(run.stdout).scans;
-    expect(jcamp).toMatchObject({ format: 'jcamp', points: 1601, range_cm: [1950, 2350], spacing_cm: 0.25, yKind: 'absorbance' });
+    expect(jcamp).toMatchObject({
+      format: 'jcamp',
+      points: 1601,
+      range_cm: [1950, 2350],
+      spacing_cm: 0.25,
+      yKind: 'absorbance',
+    });
     expect(jcamp.conditions.pathLength_m).toBe(1);
     expect(csv).toMatchObject({ format: 'csv', points: 1601 });
     // The CSV standards leave their conditions to the manifest (as many instrument exports do).
@@ -24,7 +35,11 @@ describe('inspect', () => {
   });
 
   it('names a path that does not exist before reading anything, and exits 1', async () => {
-    const run = await runCli('inspect', join(examples, 'lab-co', 'standards', 'co-000a.jdx'), join(folder.path, 'missing.jdx'));
+    const run = await runCli(
+      'inspect',
+      join(examples, 'lab-co', 'standards', 'co-000a.jdx'),
+      join(folder.path, 'missing.jdx'),
+    );
     expect(run.status).toBe(1);
     expect(run.stderr).toMatch(/missing.jdx: no such file or folder/);
   });
@@ -45,11 +60,21 @@ describe('demo', () => {
     const run = await runCli('demo', '--out', out);
     expect(run.stderr).toMatch(/bandwright calibrate/);
     expect(run.status).toBe(0);
-    for (const file of ['lab-co.calibration.json', 'lab-co.results.csv', 'lab-co.results.json']) expect(existsSync(join(out, file))).toBe(true);
+    for (const file of ['lab-co.calibration.json', 'lab-co.results.csv', 'lab-co.results.json'])
+      expect(existsSync(join(out, file))).toBe(true);
     const results = JSON.parse(readFileSync(join(out, 'lab-co.results.json'), 'utf8')).results;
     // The simulated truth of the cylinders (examples/generate.ts): 75, 180 and 460 ppm.
-    const byName = new Map(results.map((r: { scan: string; gases: { value: number; low: number; high: number }[] }) => [r.scan.replace(/.*\//, ''), r.gases[0]]));
-    for (const [name, truth] of [['cylinder-4471.jdx', 75], ['cylinder-4472.jdx', 180], ['cylinder-4475.jdx', 460]] as const) {
+    const byName = new Map(
+      results.map((r: { scan: string; gases: { value: number; low: number; high: number }[] }) => [
+        r.scan.replace(/.*\//, ''),
+        r.gases[0],
+      ]),
+    );
+    for (const [name, truth] of [
+      ['cylinder-4471.jdx', 75],
+      ['cylinder-4472.jdx', 180],
+      ['cylinder-4475.jdx', 460],
+    ] as const) {
       const gas = byName.get(name) as { value: number; low: number; high: number };
       expect(gas.low).toBeLessThan(truth);
       expect(gas.high).toBeGreaterThan(truth);

@@ -25,7 +25,10 @@ const PROCESSES = 6;
 /** Runs the CLI in a child process. */
 function runProcess(args: string[]): Promise<{ status: number | null; stdout: string; stderr: string }> {
   return new Promise((resolve, reject) => {
-    const child = spawn(process.execPath, ['--import', 'tsx', mainScript, ...args], { cwd: repository, stdio: ['ignore', 'pipe', 'pipe'] });
+    const child = spawn(process.execPath, ['--import', 'tsx', mainScript, ...args], {
+      cwd: repository,
+      stdio: ['ignore', 'pipe', 'pipe'],
+    });
     let stdout = '';
     let stderr = '';
     child.stdout.on('data', (chunk: Buffer) => (stdout += chunk.toString()));
@@ -37,7 +40,8 @@ function runProcess(args: string[]): Promise<{ status: number | null; stdout: st
 
 beforeAll(async () => {
   writeStandardSeries(at, reference);
-  for (let k = 0; k < PROCESSES; k++) writeScan(at(`check-${k}.csv`), bandScan(99.5 + 0.2 * k, { metadata: reference }));
+  for (let k = 0; k < PROCESSES; k++)
+    writeScan(at(`check-${k}.csv`), bandScan(99.5 + 0.2 * k, { metadata: reference }));
   const run = await runCli('calibrate', at('standards.csv'), ...BAND_OPTIONS, '-o', at('co.json'));
   expect(run.status, run.stderr).toBe(0);
 });
@@ -45,26 +49,52 @@ afterAll(() => folder.cleanup());
 
 describe('parallel rechecks on one calibration', () => {
   it(`${PROCESSES} processes at once give ${PROCESSES} intact records, none lost or interleaved`, async () => {
-    const times = Array.from({ length: PROCESSES }, (_, k) => `2026-09-${String(1 + k).padStart(2, '0')}T09:30:00.000Z`);
-    const runs = await Promise.all(times.map((time, k) => runProcess(['recheck', at('co.json'), at(`check-${k}.csv`), '--certified', '100', '--at', time, '--json'])));
+    const times = Array.from(
+      { length: PROCESSES },
+      (_, k) => `2026-09-${String(1 + k).padStart(2, '0')}T09:30:00.000Z`,
+    );
+    const runs = await Promise.all(
+      times.map((time, k) =>
+        runProcess([
+          'recheck',
+          at('co.json'),
+          at(`check-${k}.csv`),
+          '--certified',
+          '100',
+          '--at',
+          time,
+          '--json',
+        ]),
+      ),
+    );
     for (const run of runs) expect([0, 3], run.stderr).toContain(run.status);
     const text = readFileSync(at('co.history.csv'), 'utf8');
     expect(text.endsWith('\n')).toBe(true);
     // Every line is a whole record (the reader refuses torn, merged or damaged lines).
-    const history = readHistory(at('co.history.csv'), { calibrationSha256: JSON.parse(readFileSync(at('co.json'), 'utf8')).sha256 });
+    const history = readHistory(at('co.history.csv'), {
+      calibrationSha256: JSON.parse(readFileSync(at('co.json'), 'utf8')).sha256,
+    });
     expect(history.records).toHaveLength(PROCESSES);
     expect(history.records.map((r) => r.time).sort()).toEqual(times);
     expect(history.records.map((r) => r.line)).toEqual(Array.from({ length: PROCESSES }, (_, k) => k + 3));
     // Each process saw the records appended before its own: the line it reports is where its record is.
-    const reported = runs.map((run) => JSON.parse(run.stdout) as { time: string; history: { line: number; checks: number } });
+    const reported = runs.map(
+      (run) => JSON.parse(run.stdout) as { time: string; history: { line: number; checks: number } },
+    );
     for (const result of reported) {
       const onLine = history.records.find((r) => r.line === result.history.line);
       expect(onLine?.time).toBe(result.time);
     }
-    expect(reported.map((r) => r.history.checks).sort((a, b) => a - b)).toEqual(Array.from({ length: PROCESSES }, (_, k) => k + 1));
+    expect(reported.map((r) => r.history.checks).sort((a, b) => a - b)).toEqual(
+      Array.from({ length: PROCESSES }, (_, k) => k + 1),
+    );
     // Exactly one process created the history.
-    expect(runs.filter((run) => (JSON.parse(run.stdout) as { history: { created: boolean } }).history.created)).toHaveLength(1);
-    expect(readdirSync(folder.path).filter((name) => name.includes('.lock') || name.includes('.tmp-'))).toEqual([]);
+    expect(
+      runs.filter((run) => (JSON.parse(run.stdout) as { history: { created: boolean } }).history.created),
+    ).toHaveLength(1);
+    expect(
+      readdirSync(folder.path).filter((name) => name.includes('.lock') || name.includes('.tmp-')),
+    ).toEqual([]);
   }, 120_000);
 
   it('serialises read-judge-append under contention: 4 processes × 25 appends each see every earlier record', async () => {
@@ -84,11 +114,20 @@ describe('parallel rechecks on one calibration', () => {
         `}`,
       ].join('\n'),
     );
-    const writers = await Promise.all(Array.from({ length: 4 }, () => new Promise<number | null>((resolve, reject) => {
-      const child = spawn(process.execPath, ['--import', 'tsx', script], { cwd: repository, stdio: ['ignore', 'ignore', 'inherit'] });
-      child.on('error', reject);
-      child.on('close', resolve);
-    })));
+    const writers = await Promise.all(
+      Array.from(
+        { length: 4 },
+        () =>
+          new Promise<number | null>((resolve, reject) => {
+            const child = spawn(process.execPath, ['--import', 'tsx', script], {
+              cwd: repository,
+              stdio: ['ignore', 'ignore', 'inherit'],
+            });
+            child.on('error', reject);
+            child.on('close', resolve);
+          }),
+      ),
+    );
     expect(writers).toEqual([0, 0, 0, 0]);
     const records = readHistory(history).records;
     expect(records).toHaveLength(100);
@@ -103,9 +142,19 @@ describe('parallel rechecks on one calibration', () => {
     // What a crash during the single write of a line leaves: the start of the line, no end of line.
     const partial = `${whole}2026-09-20T09:30:00.000Z,2026-09-20T09:30:01.000Z,CO,ppm,100,99.8`;
     writeFileSync(path, partial);
-    const run = await runProcess(['recheck', at('co.json'), at('check-0.csv'), '--certified', '100', '--at', '2026-09-21T09:30:00Z']);
+    const run = await runProcess([
+      'recheck',
+      at('co.json'),
+      at('check-0.csv'),
+      '--certified',
+      '100',
+      '--at',
+      '2026-09-21T09:30:00Z',
+    ]);
     expect(run.status).toBe(1);
-    expect(run.stderr).toMatch(new RegExp(`co\\.history\\.csv line ${PROCESSES + 3}: the last line is incomplete`));
+    expect(run.stderr).toMatch(
+      new RegExp(`co\\.history\\.csv line ${PROCESSES + 3}: the last line is incomplete`),
+    );
     expect(readFileSync(path, 'utf8')).toBe(partial);
     expect(existsSync(`${path}.lock`)).toBe(false);
     const status = await runProcess(['status', at('co.json'), '--now', '2026-09-22T00:00:00Z']);

@@ -28,7 +28,8 @@ async function calibrate(name: string): Promise<string> {
 
 beforeAll(async () => {
   writeStandardSeries(at, reference);
-  for (const ppm of [0, 93, 96.5, 99.6, 100, 100.4]) writeScan(at(`check-${ppm}.csv`), bandScan(ppm, { metadata: reference }));
+  for (const ppm of [0, 93, 96.5, 99.6, 100, 100.4])
+    writeScan(at(`check-${ppm}.csv`), bandScan(ppm, { metadata: reference }));
   writeScan(at('bare.csv'), bandScan(100, { metadata: {} }));
 });
 afterAll(() => folder.cleanup());
@@ -40,11 +41,32 @@ function recheckJson(run: { stdout: string }): Record<string, any> {
 describe('a recheck', () => {
   it('quantifies the check, judges it, writes the history and gives the next due date (pass, exit 0)', async () => {
     const calibration = await calibrate('pass.json');
-    const run = await runCli('recheck', calibration, at('check-100.4.csv'), '--certified', '100', '--at', '2026-09-01T09:30Z', '--json');
+    const run = await runCli(
+      'recheck',
+      calibration,
+      at('check-100.4.csv'),
+      '--certified',
+      '100',
+      '--at',
+      '2026-09-01T09:30Z',
+      '--json',
+    );
     expect(run.status, run.stderr).toBe(0);
     const result = recheckJson(run);
     // DESIGN §4 fields.
-    expect(Object.keys(result)).toEqual(expect.arrayContaining(['measured', 'certified', 'recoveryPct', 'low', 'high', 'verdict', 'rules', 'nextDue', 'trend']));
+    expect(Object.keys(result)).toEqual(
+      expect.arrayContaining([
+        'measured',
+        'certified',
+        'recoveryPct',
+        'low',
+        'high',
+        'verdict',
+        'rules',
+        'nextDue',
+        'trend',
+      ]),
+    );
     expect(result.certified).toBe(100);
     expect(Math.abs(result.measured - 100.4)).toBeLessThan(0.3);
     expect(Math.abs(result.recoveryPct - 100.4)).toBeLessThan(0.3);
@@ -61,33 +83,60 @@ describe('a recheck', () => {
 
     const history = readFileSync(at('pass.history.csv'), 'utf8').split('\n');
     const sha = JSON.parse(readFileSync(calibration, 'utf8')).sha256 as string;
-    expect(history[0]).toBe(`# bandwright check history; format 1; calibration sha256 ${sha}; file pass.json`);
+    expect(history[0]).toBe(
+      `# bandwright check history; format 1; calibration sha256 ${sha}; file pass.json`,
+    );
     expect(history[1]).toMatch(/^time,recorded_at,gas,unit,certified,measured/);
     const cells = (history[2] as string).split(',');
     expect(cells[0]).toBe('2026-09-01T09:30:00.000Z');
     expect(cells[12]).toBe('pass');
     expect(cells[16]).toBe(at('check-100.4.csv'));
-    expect(cells[17]).toBe(createHash('sha256').update(readFileSync(at('check-100.4.csv'))).digest('hex'));
+    expect(cells[17]).toBe(
+      createHash('sha256')
+        .update(readFileSync(at('check-100.4.csv')))
+        .digest('hex'),
+    );
     expect(history[3]).toBe('');
     expect(result.history).toMatchObject({ file: at('pass.history.csv'), line: 3, created: true, checks: 1 });
   });
 
   it('prints the σ used and why, the verdict, next due and the caution as text', async () => {
     const calibration = await calibrate('text.json');
-    const run = await runCli('recheck', calibration, at('check-96.5.csv'), '--certified', '100', '--at', '2026-09-01T09:30Z');
+    const run = await runCli(
+      'recheck',
+      calibration,
+      at('check-96.5.csv'),
+      '--certified',
+      '100',
+      '--at',
+      '2026-09-01T09:30Z',
+    );
     expect(run.status).toBe(3);
     expect(run.stdout).toMatch(/Recheck of CO with .*text\.json/);
-    expect(run.stdout).toMatch(/σ\s+σ = tolerance\/3 = 5 %\/3 = 1\.667 %: 0 of the 8 baseline checks within tolerance exist so far/);
+    expect(run.stdout).toMatch(
+      /σ\s+σ = tolerance\/3 = 5 %\/3 = 1\.667 %: 0 of the 8 baseline checks within tolerance exist so far/,
+    );
     expect(run.stdout).toMatch(/rules fired\s+1-2s \(warning\)/);
     expect(run.stdout).toMatch(/1-2s: the check of 2026-09-01 is at −2\.\d\dσ, beyond −2σ/);
-    expect(run.stdout).toMatch(/verdict\s+WARNING: recovery 96\.\d\d % is within the tolerance; warning rule 1-2s fired/);
+    expect(run.stdout).toMatch(
+      /verdict\s+WARNING: recovery 96\.\d\d % is within the tolerance; warning rule 1-2s fired/,
+    );
     expect(run.stdout).toMatch(/next due\s+2026-09-08 09:30Z/);
     expect(run.stdout).toMatch(/Caution:/);
   });
 
   it('fails outside the tolerance (exit 4), with no next due date', async () => {
     const calibration = await calibrate('fail.json');
-    const run = await runCli('recheck', calibration, at('check-93.csv'), '--certified', '100', '--at', '2026-09-01T09:30Z', '--json');
+    const run = await runCli(
+      'recheck',
+      calibration,
+      at('check-93.csv'),
+      '--certified',
+      '100',
+      '--at',
+      '2026-09-01T09:30Z',
+      '--json',
+    );
     expect(run.status).toBe(4);
     const result = recheckJson(run);
     expect(result.verdict).toBe('fail');
@@ -98,30 +147,88 @@ describe('a recheck', () => {
 
   it('applies the rules across the history: a second check beyond −2σ fails on 2-2s', async () => {
     const calibration = await calibrate('seq.json');
-    const first = await runCli('recheck', calibration, at('check-96.5.csv'), '--certified', '100', '--at', '2026-09-01T09:30Z');
+    const first = await runCli(
+      'recheck',
+      calibration,
+      at('check-96.5.csv'),
+      '--certified',
+      '100',
+      '--at',
+      '2026-09-01T09:30Z',
+    );
     expect(first.status).toBe(3);
-    const second = await runCli('recheck', calibration, at('check-96.5.csv'), '--certified', '100', '--at', '2026-09-08T09:30Z', '--json');
+    const second = await runCli(
+      'recheck',
+      calibration,
+      at('check-96.5.csv'),
+      '--certified',
+      '100',
+      '--at',
+      '2026-09-08T09:30Z',
+      '--json',
+    );
     expect(second.status).toBe(4);
     const result = recheckJson(second);
     expect(result.rules.map((r: { rule: string }) => r.rule)).toEqual(['1-2s', '2-2s']);
-    expect(result.reasons[0]).toMatch(/within the tolerance, but the check is out of statistical control: 2-2s fired/);
+    expect(result.reasons[0]).toMatch(
+      /within the tolerance, but the check is out of statistical control: 2-2s fired/,
+    );
     expect(result.history).toMatchObject({ line: 4, created: false, checks: 2 });
   });
 
   it('takes the interval and tolerance from the command when given', async () => {
     const calibration = await calibrate('policy.json');
-    const run = await runCli('recheck', calibration, at('check-96.5.csv'), '--certified', '100', '--at', '2026-09-01T09:30Z', '--tolerance-pct', '3', '--every-days', '1', '--json');
+    const run = await runCli(
+      'recheck',
+      calibration,
+      at('check-96.5.csv'),
+      '--certified',
+      '100',
+      '--at',
+      '2026-09-01T09:30Z',
+      '--tolerance-pct',
+      '3',
+      '--every-days',
+      '1',
+      '--json',
+    );
     const result = recheckJson(run);
     expect(result.tolerancePct).toBe(3);
     expect(result.verdict).toBe('fail');
     expect(run.status).toBe(4);
-    const relaxed = recheckJson(await runCli('recheck', calibration, at('check-100.csv'), '--certified', '100', '--at', '2026-09-02T09:30Z', '--every-days', '1', '--json'));
+    const relaxed = recheckJson(
+      await runCli(
+        'recheck',
+        calibration,
+        at('check-100.csv'),
+        '--certified',
+        '100',
+        '--at',
+        '2026-09-02T09:30Z',
+        '--every-days',
+        '1',
+        '--json',
+      ),
+    );
     expect(relaxed.nextDue).toBe('2026-09-03T09:30:00.000Z');
   });
 
   it('converts a certified value given in another unit (--unit ppb)', async () => {
     const calibration = await calibrate('unit.json');
-    const result = recheckJson(await runCli('recheck', calibration, at('check-99.6.csv'), '--certified', '100000', '--unit', 'ppb', '--at', '2026-09-01T09:30Z', '--json'));
+    const result = recheckJson(
+      await runCli(
+        'recheck',
+        calibration,
+        at('check-99.6.csv'),
+        '--certified',
+        '100000',
+        '--unit',
+        'ppb',
+        '--at',
+        '2026-09-01T09:30Z',
+        '--json',
+      ),
+    );
     expect(result.certified).toBeCloseTo(100, 10);
     expect(result.unit).toBe('ppm');
     expect(Math.abs(result.recoveryPct - 99.6)).toBeLessThan(0.3);
@@ -129,7 +236,16 @@ describe('a recheck', () => {
 
   it('judges a zero-gas check against the detection limit instead of a percentage', async () => {
     const calibration = await calibrate('zero.json');
-    const run = await runCli('recheck', calibration, at('check-0.csv'), '--certified', '0', '--at', '2026-09-01T09:30Z', '--json');
+    const run = await runCli(
+      'recheck',
+      calibration,
+      at('check-0.csv'),
+      '--certified',
+      '0',
+      '--at',
+      '2026-09-01T09:30Z',
+      '--json',
+    );
     expect(run.status).toBe(0);
     const result = recheckJson(run);
     expect(result.kind).toBe('zero');
@@ -138,14 +254,40 @@ describe('a recheck', () => {
     expect(result.detectionLimit).toBeGreaterThan(0);
     expect(result.reasons[0]).toMatch(/^zero gas: \|measured\| = \d+\.\d+ ppm is below the detection limit/);
     // The same zero-gas scan against a detection limit it exceeds: a 100 ppm scan certified as zero.
-    const shifted = await runCli('recheck', calibration, at('check-100.csv'), '--certified', '0', '--at', '2026-09-02T09:30Z', '--json');
+    const shifted = await runCli(
+      'recheck',
+      calibration,
+      at('check-100.csv'),
+      '--certified',
+      '0',
+      '--at',
+      '2026-09-02T09:30Z',
+      '--json',
+    );
     expect(shifted.status).toBe(4);
-    expect(recheckJson(shifted).reasons[0]).toMatch(/is not below the detection limit .*: the zero has shifted/);
+    expect(recheckJson(shifted).reasons[0]).toMatch(
+      /is not below the detection limit .*: the zero has shifted/,
+    );
   });
 
   it('takes conditions from options for a scan that does not state them', async () => {
     const calibration = await calibrate('bare.json');
-    const run = await runCli('recheck', calibration, at('bare.csv'), '--certified', '100', '--at', '2026-09-01T09:30Z', '--path-length', '1', '--temperature', '296.15', '--pressure', '101.325', '--json');
+    const run = await runCli(
+      'recheck',
+      calibration,
+      at('bare.csv'),
+      '--certified',
+      '100',
+      '--at',
+      '2026-09-01T09:30Z',
+      '--path-length',
+      '1',
+      '--temperature',
+      '296.15',
+      '--pressure',
+      '101.325',
+      '--json',
+    );
     expect(run.status, run.stderr).toBe(0);
     expect(Math.abs(recheckJson(run).recoveryPct - 100)).toBeLessThan(0.3);
   });
@@ -156,7 +298,15 @@ describe('recheck refuses bad input, writing nothing', () => {
   let history: string;
   beforeAll(async () => {
     calibration = await calibrate('guarded.json');
-    const first = await runCli('recheck', calibration, at('check-100.csv'), '--certified', '100', '--at', '2026-09-01T09:30Z');
+    const first = await runCli(
+      'recheck',
+      calibration,
+      at('check-100.csv'),
+      '--certified',
+      '100',
+      '--at',
+      '2026-09-01T09:30Z',
+    );
     expect(first.status).toBe(0);
     history = at('guarded.history.csv');
   });
@@ -174,18 +324,73 @@ describe('recheck refuses bad input, writing nothing', () => {
   const base = (): string[] => ['recheck', calibration, at('check-100.csv')];
   it.each([
     ['no --certified', () => base(), /required option '--certified <value>' not specified/, 2],
-    ['a negative certified value', () => [...base(), '--certified', '-5'], /--certified = -5, must be a concentration >= 0 \(0 for zero gas\)/, 2],
-    ['a certified value that is not a number', () => [...base(), '--certified', 'ten'], /--certified = "ten", must be a number/, 2],
-    ['an --at without a time zone', () => [...base(), '--certified', '100', '--at', '2026-09-08T09:30'], /--at = "2026-09-08T09:30" has no time zone; add Z \(UTC\) or an offset such as \+02:00/, 2],
-    ['an --at that is not a date', () => [...base(), '--certified', '100', '--at', 'last tuesday'], /--at = "last tuesday", must be an ISO 8601 date or time/, 2],
-    ['an --at on a day that does not exist', () => [...base(), '--certified', '100', '--at', '2026-02-30'], /--at = "2026-02-30" is not a calendar date/, 2],
-    ['an --at in the future', () => [...base(), '--certified', '100', '--at', '2999-01-01T00:00Z'], /--at = 2999-01-01T00:00Z is in the future/, 2],
-    ['a tolerance of 0', () => [...base(), '--certified', '100', '--tolerance-pct', '0'], /--tolerance-pct = 0, must be a percentage > 0 and < 100/, 2],
+    [
+      'a negative certified value',
+      () => [...base(), '--certified', '-5'],
+      /--certified = -5, must be a concentration >= 0 \(0 for zero gas\)/,
+      2,
+    ],
+    [
+      'a certified value that is not a number',
+      () => [...base(), '--certified', 'ten'],
+      /--certified = "ten", must be a number/,
+      2,
+    ],
+    [
+      'an --at without a time zone',
+      () => [...base(), '--certified', '100', '--at', '2026-09-08T09:30'],
+      /--at = "2026-09-08T09:30" has no time zone; add Z \(UTC\) or an offset such as \+02:00/,
+      2,
+    ],
+    [
+      'an --at that is not a date',
+      () => [...base(), '--certified', '100', '--at', 'last tuesday'],
+      /--at = "last tuesday", must be an ISO 8601 date or time/,
+      2,
+    ],
+    [
+      'an --at on a day that does not exist',
+      () => [...base(), '--certified', '100', '--at', '2026-02-30'],
+      /--at = "2026-02-30" is not a calendar date/,
+      2,
+    ],
+    [
+      'an --at in the future',
+      () => [...base(), '--certified', '100', '--at', '2999-01-01T00:00Z'],
+      /--at = 2999-01-01T00:00Z is in the future/,
+      2,
+    ],
+    [
+      'a tolerance of 0',
+      () => [...base(), '--certified', '100', '--tolerance-pct', '0'],
+      /--tolerance-pct = 0, must be a percentage > 0 and < 100/,
+      2,
+    ],
     ['an unknown unit', () => [...base(), '--certified', '100', '--unit', 'mg'], /--unit/, 1],
-    ['standard input as the scan', () => ['recheck', calibration, '-', '--certified', '100'], /recheck needs the check scan as a file/, 2],
-    ['a missing scan', () => ['recheck', calibration, at('nope.csv'), '--certified', '100'], /nope\.csv: no such file/, 1],
-    ['a gas the calibration does not have', () => [...base(), '--certified', '100', '--gas', 'NO'], /--gas = "NO", the calibration has CO/, 1],
-    ['a scan without conditions', () => ['recheck', calibration, at('bare.csv'), '--certified', '100'], /bare\.csv: no path length/, 1],
+    [
+      'standard input as the scan',
+      () => ['recheck', calibration, '-', '--certified', '100'],
+      /recheck needs the check scan as a file/,
+      2,
+    ],
+    [
+      'a missing scan',
+      () => ['recheck', calibration, at('nope.csv'), '--certified', '100'],
+      /nope\.csv: no such file/,
+      1,
+    ],
+    [
+      'a gas the calibration does not have',
+      () => [...base(), '--certified', '100', '--gas', 'NO'],
+      /--gas = "NO", the calibration has CO/,
+      1,
+    ],
+    [
+      'a scan without conditions',
+      () => ['recheck', calibration, at('bare.csv'), '--certified', '100'],
+      /bare\.csv: no path length/,
+      1,
+    ],
   ])('%s', async (_name, args, message, status) => {
     await expectFailure(args(), message, status);
   });
@@ -194,7 +399,10 @@ describe('recheck refuses bad input, writing nothing', () => {
     const content = JSON.parse(readFileSync(calibration, 'utf8'));
     content.method.recheck.tolerancePct = 50;
     writeFileSync(at('tampered.json'), JSON.stringify(content));
-    await expectFailure(['recheck', at('tampered.json'), at('check-100.csv'), '--certified', '100'], /tampered\.json: content does not match its recorded sha256/);
+    await expectFailure(
+      ['recheck', at('tampered.json'), at('check-100.csv'), '--certified', '100'],
+      /tampered\.json: content does not match its recorded sha256/,
+    );
     expect(existsSync(at('tampered.history.csv'))).toBe(false);
   });
 
@@ -209,8 +417,20 @@ describe('recheck refuses bad input, writing nothing', () => {
   });
 
   it('refuses a history that belongs to another calibration (rebuilt with --force)', async () => {
-    const rebuilt = await runCli('calibrate', at('standards.csv'), ...bandArgs, '--model', 'origin', '-o', at('guarded.json'), '--force');
+    const rebuilt = await runCli(
+      'calibrate',
+      at('standards.csv'),
+      ...bandArgs,
+      '--model',
+      'origin',
+      '-o',
+      at('guarded.json'),
+      '--force',
+    );
     expect(rebuilt.status).toBe(0);
-    await expectFailure([...base(), '--certified', '100'], /guarded\.history\.csv line 1: this history belongs to the calibration with sha256 [0-9a-f]{12}…, but .*guarded\.json has sha256 [0-9a-f]{12}…: the calibration was rebuilt/);
+    await expectFailure(
+      [...base(), '--certified', '100'],
+      /guarded\.history\.csv line 1: this history belongs to the calibration with sha256 [0-9a-f]{12}…, but .*guarded\.json has sha256 [0-9a-f]{12}…: the calibration was rebuilt/,
+    );
   });
 });

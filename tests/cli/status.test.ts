@@ -42,15 +42,36 @@ beforeAll(async () => {
   writeScan(at('check-90.csv'), bandScan(90, { metadata: reference }));
   for (const sub of ['current', 'failed', 'mixed', 'empty', 'never']) mkdirSync(at(sub));
   // current/: a checked on 09-01, b on 09-03 (weekly).
-  expect(await recheck(await calibration(at('current', 'a.calibration.json')), 'check-100.csv', '2026-09-01T09:30Z')).toBe(0);
-  expect(await recheck(await calibration(at('current', 'b.calibration.json')), 'check-100.csv', '2026-09-03T09:30Z')).toBe(0);
-  writeFileSync(at('current', 'method.json'), JSON.stringify({ gases: [{ name: 'CO', band: [2040, 2245] }] }));
+  expect(
+    await recheck(
+      await calibration(at('current', 'a.calibration.json')),
+      'check-100.csv',
+      '2026-09-01T09:30Z',
+    ),
+  ).toBe(0);
+  expect(
+    await recheck(
+      await calibration(at('current', 'b.calibration.json')),
+      'check-100.csv',
+      '2026-09-03T09:30Z',
+    ),
+  ).toBe(0);
+  writeFileSync(
+    at('current', 'method.json'),
+    JSON.stringify({ gases: [{ name: 'CO', band: [2040, 2245] }] }),
+  );
   // failed/: a pass, then a failed check on 09-08.
   const failing = await calibration(at('failed', 'c.calibration.json'));
   expect(await recheck(failing, 'check-100.csv', '2026-09-01T09:30Z')).toBe(0);
   expect(await recheck(failing, 'check-90.csv', '2026-09-08T09:30Z')).toBe(4);
   // mixed/: one current, one tampered.
-  expect(await recheck(await calibration(at('mixed', 'good.calibration.json')), 'check-100.csv', '2026-09-03T09:30Z')).toBe(0);
+  expect(
+    await recheck(
+      await calibration(at('mixed', 'good.calibration.json')),
+      'check-100.csv',
+      '2026-09-03T09:30Z',
+    ),
+  ).toBe(0);
   const tampered = JSON.parse(readFileSync(at('mixed', 'good.calibration.json'), 'utf8'));
   tampered.title = 'edited by hand';
   writeFileSync(at('mixed', 'edited.calibration.json'), JSON.stringify(tampered));
@@ -67,7 +88,9 @@ describe('exit statuses for cron and CI (DESIGN §4)', () => {
   it('0 when every calibration is current', async () => {
     const run = await runCli('status', at('current'), '--now', '2026-09-05T12:00Z');
     expect(run.status, run.stderr).toBe(0);
-    expect(run.stdout).toMatch(/a\.calibration\.json\s+CO\s+2026-09-01 09:30Z\s+pass\s+100\.\d\d\s+2026-09-08 09:30Z\s+OK/);
+    expect(run.stdout).toMatch(
+      /a\.calibration\.json\s+CO\s+2026-09-01 09:30Z\s+pass\s+100\.\d\d\s+2026-09-08 09:30Z\s+OK/,
+    );
     expect(run.stdout).toMatch(/b\.calibration\.json\s+CO\s+2026-09-03 09:30Z\s+pass/);
   });
 
@@ -82,29 +105,39 @@ describe('exit statuses for cron and CI (DESIGN §4)', () => {
   it('4 when one is overdue, with the days overdue', async () => {
     const run = await runCli('status', at('current'), '--now', '2026-09-09T21:30Z');
     expect(run.status).toBe(4);
-    expect(run.stdout).toMatch(/a\.calibration\.json\s+CO\s+2026-09-01 09:30Z\s+pass\s+100\.\d\d\s+2026-09-08 09:30Z\s+1\.5\s+OVERDUE/);
+    expect(run.stdout).toMatch(
+      /a\.calibration\.json\s+CO\s+2026-09-01 09:30Z\s+pass\s+100\.\d\d\s+2026-09-08 09:30Z\s+1\.5\s+OVERDUE/,
+    );
     expect(run.stdout).toMatch(/b\.calibration\.json\s+CO.*\s+DUE\s/);
   });
 
   it('4 when the last recheck failed, even if it is recent', async () => {
     const run = await runCli('status', at('failed'), '--now', '2026-09-08T10:00Z');
     expect(run.status).toBe(4);
-    expect(run.stdout).toMatch(/c\.calibration\.json\s+CO\s+2026-09-08 09:30Z\s+fail\s+90\.\d\d\s+now\s+0\.0\s+FAILED/);
-    expect(run.stdout).toMatch(/the latest check \(2026-09-08\) failed: find the cause, then recheck, or rebuild the calibration/);
+    expect(run.stdout).toMatch(
+      /c\.calibration\.json\s+CO\s+2026-09-08 09:30Z\s+fail\s+90\.\d\d\s+now\s+0\.0\s+FAILED/,
+    );
+    expect(run.stdout).toMatch(
+      /the latest check \(2026-09-08\) failed: find the cause, then recheck, or rebuild the calibration/,
+    );
   });
 
   it('counts from the calibration when it was never checked', async () => {
     expect((await runCli('status', at('never'), '--now', '2026-09-01T00:00Z')).status).toBe(0);
     const late = await runCli('status', at('never'), '--now', '2026-09-07T00:00Z');
     expect(late.status).toBe(4);
-    expect(late.stdout).toMatch(/n\.calibration\.json\s+CO\s+—\s+never checked\s+2026-09-06 00:00Z\s+1\.0\s+OVERDUE/);
+    expect(late.stdout).toMatch(
+      /n\.calibration\.json\s+CO\s+—\s+never checked\s+2026-09-06 00:00Z\s+1\.0\s+OVERDUE/,
+    );
   });
 
   it('1 when a calibration cannot be read, alongside the others (4 wins when one is overdue)', async () => {
     const run = await runCli('status', at('mixed'), '--now', '2026-09-05T00:00Z');
     expect(run.status).toBe(1);
     expect(run.stdout).toMatch(/good\.calibration\.json\s+CO.*OK/);
-    expect(run.stdout).toMatch(/Errors:\n\s+.*edited\.calibration\.json: .*content does not match its recorded sha256/);
+    expect(run.stdout).toMatch(
+      /Errors:\n\s+.*edited\.calibration\.json: .*content does not match its recorded sha256/,
+    );
     expect(run.stderr).toMatch(/edited\.calibration\.json: content does not match its recorded sha256/);
     expect((await runCli('status', at('mixed'), '--now', '2026-09-20T00:00Z')).status).toBe(4);
   });
@@ -114,7 +147,13 @@ describe('targets, options and output', () => {
   it('skips JSON that is not a calibration, with a note, and takes calibration files directly', async () => {
     const run = await runCli('status', at('current'), '--now', '2026-09-05T12:00Z');
     expect(run.stdout).toMatch(/Skipped:\n\s+.*method\.json: not a calibration \(no schemaVersion\)/);
-    const direct = await runCli('status', at('current', 'b.calibration.json'), at('failed', 'c.calibration.json'), '--now', '2026-09-05T12:00Z');
+    const direct = await runCli(
+      'status',
+      at('current', 'b.calibration.json'),
+      at('failed', 'c.calibration.json'),
+      '--now',
+      '2026-09-05T12:00Z',
+    );
     expect(direct.status).toBe(4);
     expect(direct.stdout).not.toMatch(/a\.calibration\.json/);
   });
@@ -138,18 +177,45 @@ describe('targets, options and output', () => {
     expect(run.stdout).toMatch(/calibrations\/stack-k2\.calibration\.json\s+CO\s+—\s+never checked/);
     expect(run.stdout).toMatch(/calibrations\/stack-k2\.calibration\.json\s+N2O\s+—\s+never checked/);
     // A day after the build, a calibration is due within a day when its interval is two days or less.
-    const dueSoon = [lab, stack].some((c) => c.method.recheck.everyDays <= 2 && c.createdAt === lab.createdAt);
+    const dueSoon = [lab, stack].some(
+      (c) => c.method.recheck.everyDays <= 2 && c.createdAt === lab.createdAt,
+    );
     expect(run.status).toBe(dueSoon ? 3 : 0);
   });
 
   it('applies --every-days and --tolerance-pct to every calibration, noting verdicts that change', async () => {
-    const run = await runCli('status', at('current'), '--now', '2026-09-05T12:00Z', '--every-days', '3', '--json');
+    const run = await runCli(
+      'status',
+      at('current'),
+      '--now',
+      '2026-09-05T12:00Z',
+      '--every-days',
+      '3',
+      '--json',
+    );
     expect(run.status).toBe(4);
     const document = JSON.parse(run.stdout);
-    expect(document.calibrations.map((c: { nextDue: string }) => c.nextDue)).toEqual(['2026-09-04T09:30:00.000Z', '2026-09-06T09:30:00.000Z']);
-    const strict = JSON.parse((await runCli('status', at('current'), '--now', '2026-09-05T12:00Z', '--tolerance-pct', '0.1', '--json')).stdout);
+    expect(document.calibrations.map((c: { nextDue: string }) => c.nextDue)).toEqual([
+      '2026-09-04T09:30:00.000Z',
+      '2026-09-06T09:30:00.000Z',
+    ]);
+    const strict = JSON.parse(
+      (
+        await runCli(
+          'status',
+          at('current'),
+          '--now',
+          '2026-09-05T12:00Z',
+          '--tolerance-pct',
+          '0.1',
+          '--json',
+        )
+      ).stdout,
+    );
     expect(strict.calibrations[0].lastCheck.verdict).toBe('fail');
-    expect(strict.calibrations[0].notes[0]).toMatch(/was recorded as pass \(tolerance ±5 %\) and is judged fail now \(tolerance ±0\.1 %\)/);
+    expect(strict.calibrations[0].notes[0]).toMatch(
+      /was recorded as pass \(tolerance ±5 %\) and is judged fail now \(tolerance ±0\.1 %\)/,
+    );
   });
 
   it('gives JSON for schedulers with the state, next due, days overdue and trend of each gas', async () => {
@@ -160,13 +226,28 @@ describe('targets, options and output', () => {
     expect(document.exitStatus).toBe(4);
     expect(document.calibrations).toHaveLength(3);
     const [a, b, c] = document.calibrations;
-    expect(a).toMatchObject({ gas: 'CO', unit: 'ppm', everyDays: 7, tolerancePct: 5, checks: 1, state: 'overdue', nextDue: '2026-09-08T09:30:00.000Z' });
+    expect(a).toMatchObject({
+      gas: 'CO',
+      unit: 'ppm',
+      everyDays: 7,
+      tolerancePct: 5,
+      checks: 1,
+      state: 'overdue',
+      nextDue: '2026-09-08T09:30:00.000Z',
+    });
     expect(a.daysOverdue).toBeCloseTo(1.5, 10);
-    expect(a.lastCheck).toMatchObject({ time: '2026-09-01T09:30:00.000Z', verdict: 'pass', certified: 100, line: 3 });
+    expect(a.lastCheck).toMatchObject({
+      time: '2026-09-01T09:30:00.000Z',
+      verdict: 'pass',
+      certified: 100,
+      line: 3,
+    });
     expect(a.trend.status).toBe('insufficient');
     expect(b.state).toBe('due');
     expect(c).toMatchObject({ state: 'failed', nextDue: null, checks: 2 });
-    expect(document.skipped).toEqual([{ file: at('current', 'method.json'), message: 'not a calibration (no schemaVersion)' }]);
+    expect(document.skipped).toEqual([
+      { file: at('current', 'method.json'), message: 'not a calibration (no schemaVersion)' },
+    ]);
   });
 
   it('refuses a --now without a time zone as a usage error', async () => {

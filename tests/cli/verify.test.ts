@@ -20,7 +20,10 @@ const levels = [0, 50, 100, 200, 400];
 
 beforeAll(async () => {
   levels.forEach((ppm) => writeScan(at(`s${ppm}.csv`), bandScan(ppm, { metadata: conditions, step: 2 })));
-  writeFileSync(at('standards.csv'), `scan,CO_ppm\n${levels.map((ppm) => `s${ppm}.csv,${ppm}`).join('\n')}\n`);
+  writeFileSync(
+    at('standards.csv'),
+    `scan,CO_ppm\n${levels.map((ppm) => `s${ppm}.csv,${ppm}`).join('\n')}\n`,
+  );
   const run = await runCli('calibrate', at('standards.csv'), ...bandArgs, '-o', at('cal/co.json'));
   expect(run.status, run.stderr).toBe(0);
 });
@@ -52,12 +55,24 @@ describe('verify', () => {
       const run = await runCli('verify', at('cal/co.json'), '--json');
       expect(run.status).toBe(1);
       const report = JSON.parse(run.stdout);
-      const states = Object.fromEntries(report.inputs.map((i: { path: string; status: string }) => [i.path, i.status]));
-      expect(states).toMatchObject({ '../s100.csv': 'changed', '../s400.csv': 'missing', '../s0.csv': 'unchanged' });
-      expect(report.inputs.find((i: { path: string }) => i.path === '../s100.csv').currentSha256).toBe(sha256(at('s100.csv')));
-      expect(run.stderr).toMatch(/2 of 6 input file\(s\) of .*co.json changed or missing since it was built: \.\.\/s100.csv \(changed\), \.\.\/s400.csv \(missing\)/);
+      const states = Object.fromEntries(
+        report.inputs.map((i: { path: string; status: string }) => [i.path, i.status]),
+      );
+      expect(states).toMatchObject({
+        '../s100.csv': 'changed',
+        '../s400.csv': 'missing',
+        '../s0.csv': 'unchanged',
+      });
+      expect(report.inputs.find((i: { path: string }) => i.path === '../s100.csv').currentSha256).toBe(
+        sha256(at('s100.csv')),
+      );
+      expect(run.stderr).toMatch(
+        /2 of 6 input file\(s\) of .*co.json changed or missing since it was built: \.\.\/s100.csv \(changed\), \.\.\/s400.csv \(missing\)/,
+      );
       const text = await runCli('verify', at('cal/co.json'));
-      expect(text.stdout).toMatch(/standard\s+\.\.\/s100\.csv\s+CHANGED\s+recorded [0-9a-f]{12}…, now [0-9a-f]{12}…/);
+      expect(text.stdout).toMatch(
+        /standard\s+\.\.\/s100\.csv\s+CHANGED\s+recorded [0-9a-f]{12}…, now [0-9a-f]{12}…/,
+      );
       expect(text.stdout).toMatch(/standard\s+\.\.\/s400\.csv\s+MISSING/);
     } finally {
       writeFileSync(at('s100.csv'), original);
@@ -84,16 +99,33 @@ describe('results carry the calibration hash', () => {
     expect(json.status).toBe(0);
     expect(JSON.parse(json.stdout).calibration.sha256).toBe(recorded);
     writeFileSync(at('broken.csv'), 'wavenumber_cm-1,absorbance\n2000,0.1\n2001,abc\n');
-    const csv = await runCli('quantify', at('cal/co.json'), at('s50.csv'), at('broken.csv'), '--csv', at('r.csv'));
+    const csv = await runCli(
+      'quantify',
+      at('cal/co.json'),
+      at('s50.csv'),
+      at('broken.csv'),
+      '--csv',
+      at('r.csv'),
+    );
     expect(csv.status).toBe(1);
     const [header, ...rows] = readFileSync(at('r.csv'), 'utf8').trimEnd().split('\n');
     const column = (header ?? '').split(',').indexOf('calibration_sha256');
     expect(column).toBeGreaterThan(0);
     expect(rows).toHaveLength(2);
     for (const row of rows) expect(row.split(',')[column]).toBe(recorded);
-    const jsonl = await runCli('quantify', at('cal/co.json'), at('s50.csv'), at('broken.csv'), '--jsonl', at('r.jsonl'));
+    const jsonl = await runCli(
+      'quantify',
+      at('cal/co.json'),
+      at('s50.csv'),
+      at('broken.csv'),
+      '--jsonl',
+      at('r.jsonl'),
+    );
     expect(jsonl.status).toBe(1);
-    const lines = readFileSync(at('r.jsonl'), 'utf8').trimEnd().split('\n').map((line) => JSON.parse(line) as { calibrationSha256: string });
+    const lines = readFileSync(at('r.jsonl'), 'utf8')
+      .trimEnd()
+      .split('\n')
+      .map((line) => JSON.parse(line) as { calibrationSha256: string });
     expect(lines).toHaveLength(2);
     for (const line of lines) expect(line.calibrationSha256).toBe(recorded);
   });

@@ -18,12 +18,15 @@ import { runCli, temporaryFolder } from '../helpers/cli.js';
 const folder = temporaryFolder('bandwright-watch-');
 const at = (name: string) => join(folder.path, name);
 const reference = { pathLength_m: 1, temperature_K: 296.15, pressure_kPa: 101.325 };
-const rowsOf = (path: string) => Papa.parse<Record<string, string>>(readFileSync(path, 'utf8'), { header: true, skipEmptyLines: true }).data;
+const rowsOf = (path: string) =>
+  Papa.parse<Record<string, string>>(readFileSync(path, 'utf8'), { header: true, skipEmptyLines: true }).data;
 const pause = (ms: number) => new Promise((resolve) => setTimeout(resolve, ms));
 
 beforeAll(async () => {
   writeStandardSeries(at, reference);
-  expect((await runCli('calibrate', at('standards.csv'), ...BAND_OPTIONS, '-o', at('co.json'))).status).toBe(0);
+  expect((await runCli('calibrate', at('standards.csv'), ...BAND_OPTIONS, '-o', at('co.json'))).status).toBe(
+    0,
+  );
 });
 afterAll(() => folder.cleanup());
 
@@ -32,7 +35,24 @@ describe('watch in a separate process', () => {
     mkdirSync(at('incoming'));
     const tsx = pathToFileURL(createRequire(import.meta.url).resolve('tsx')).href;
     const cli = join(import.meta.dirname, '..', '..', 'src', 'cli', 'main.ts');
-    const child = spawn(process.execPath, ['--import', tsx, cli, 'watch', at('co.json'), at('incoming'), '--csv', at('watched.csv'), '--settle', '1500', '--poll', '100'], { stdio: ['ignore', 'ignore', 'pipe'] });
+    const child = spawn(
+      process.execPath,
+      [
+        '--import',
+        tsx,
+        cli,
+        'watch',
+        at('co.json'),
+        at('incoming'),
+        '--csv',
+        at('watched.csv'),
+        '--settle',
+        '1500',
+        '--poll',
+        '100',
+      ],
+      { stdio: ['ignore', 'ignore', 'pipe'] },
+    );
     let stderr = '';
     child.stderr.on('data', (chunk: Buffer) => (stderr += chunk.toString()));
     const exited = new Promise<number | null>((resolve) => child.on('exit', (code) => resolve(code)));
@@ -52,7 +72,11 @@ describe('watch in a separate process', () => {
     writeScan(at('incoming/.tmp-renamed.csv'), bandScan(42, { metadata: reference }));
     await pause(30);
     renameSync(at('incoming/.tmp-renamed.csv'), at('incoming/renamed.csv'));
-    for (let waited = 0; !(existsSync(at('watched.csv')) && rowsOf(at('watched.csv')).length >= 2); waited += 20) {
+    for (
+      let waited = 0;
+      !(existsSync(at('watched.csv')) && rowsOf(at('watched.csv')).length >= 2);
+      waited += 20
+    ) {
       if (waited > 30_000) throw new Error(`no results; stderr: ${stderr}`);
       await pause(20);
     }
@@ -60,14 +84,20 @@ describe('watch in a separate process', () => {
     child.kill('SIGTERM');
     expect(await exited).toBe(0);
     const rows = rowsOf(at('watched.csv'));
-    expect(rows.map((row) => row.scan).sort()).toEqual([at('incoming/pieces.csv'), at('incoming/renamed.csv')]);
+    expect(rows.map((row) => row.scan).sort()).toEqual([
+      at('incoming/pieces.csv'),
+      at('incoming/renamed.csv'),
+    ]);
     const pieces = rows.find((row) => row.scan === at('incoming/pieces.csv'));
     expect(pieces?.error).toBe('');
     expect(Number(pieces?.CO_ppm)).toBeCloseTo(137, 0);
     expect(Number(rows.find((row) => row.scan === at('incoming/renamed.csv'))?.CO_ppm)).toBeCloseTo(42, 0);
     expect(stderr).toMatch(/2 scan\(s\) quantified, 0 failed, .*stopped by SIGTERM/);
     // The record of processed files names both, with their sizes.
-    const record = readFileSync(at('.watched.csv.watch-state'), 'utf8').trim().split('\n').map((line) => JSON.parse(line));
+    const record = readFileSync(at('.watched.csv.watch-state'), 'utf8')
+      .trim()
+      .split('\n')
+      .map((line) => JSON.parse(line));
     expect(record.map((r: { name: string }) => r.name).sort()).toEqual(['pieces.csv', 'renamed.csv']);
     expect(record.find((r: { name: string }) => r.name === 'pieces.csv').size).toBe(Buffer.byteLength(text));
   });
@@ -79,18 +109,47 @@ describe('watch --once', () => {
     writeScan(at('cron/a.csv'), bandScan(60, { metadata: reference }));
     writeScan(at('cron/b.jdx'), bandScan(120, { metadata: reference }));
     writeFileSync(at('cron/bad.csv'), 'not a scan\n');
-    const first = await runCli('watch', at('co.json'), at('cron'), '--jsonl', at('cron.jsonl'), '--once', '--settle', '50');
+    const first = await runCli(
+      'watch',
+      at('co.json'),
+      at('cron'),
+      '--jsonl',
+      at('cron.jsonl'),
+      '--once',
+      '--settle',
+      '50',
+    );
     expect(first.status).toBe(1);
     expect(first.stderr).toMatch(/bad\.csv line 1: .*no delimiter/);
-    const lines = readFileSync(at('cron.jsonl'), 'utf8').trim().split('\n').map((line) => JSON.parse(line));
+    const lines = readFileSync(at('cron.jsonl'), 'utf8')
+      .trim()
+      .split('\n')
+      .map((line) => JSON.parse(line));
     expect(lines.map((line) => line.scan)).toEqual([at('cron/a.csv'), at('cron/b.jdx'), at('cron/bad.csv')]);
     expect(lines[0].gases[0].value).toBeCloseTo(60, 0);
     expect(lines[2].error).toMatch(/bad\.csv/);
     writeScan(at('cron/c.csv'), bandScan(90, { metadata: reference }));
-    const second = await runCli('watch', at('co.json'), at('cron'), '--jsonl', at('cron.jsonl'), '--once', '--settle', '50');
+    const second = await runCli(
+      'watch',
+      at('co.json'),
+      at('cron'),
+      '--jsonl',
+      at('cron.jsonl'),
+      '--once',
+      '--settle',
+      '50',
+    );
     expect(second.status).toBe(0);
-    const after = readFileSync(at('cron.jsonl'), 'utf8').trim().split('\n').map((line) => JSON.parse(line));
-    expect(after.map((line) => line.scan)).toEqual([at('cron/a.csv'), at('cron/b.jdx'), at('cron/bad.csv'), at('cron/c.csv')]);
+    const after = readFileSync(at('cron.jsonl'), 'utf8')
+      .trim()
+      .split('\n')
+      .map((line) => JSON.parse(line));
+    expect(after.map((line) => line.scan)).toEqual([
+      at('cron/a.csv'),
+      at('cron/b.jdx'),
+      at('cron/bad.csv'),
+      at('cron/c.csv'),
+    ]);
     expect(after[3].gases[0].value).toBeCloseTo(90, 0);
   });
 
@@ -105,11 +164,25 @@ describe('watch --once', () => {
   it("refuses a results CSV whose header is not this calibration's, writing nothing", async () => {
     mkdirSync(at('other'));
     writeScan(at('other/x.csv'), bandScan(75, { metadata: reference }));
-    writeFileSync(at('other.csv'), 'scan,NO_ppm,NO_low,NO_high,NO_flags,residual_rms,calibration_sha256,error\n');
-    const run = await runCli('watch', at('co.json'), at('other'), '--csv', at('other.csv'), '--once', '--settle', '50');
+    writeFileSync(
+      at('other.csv'),
+      'scan,NO_ppm,NO_low,NO_high,NO_flags,residual_rms,calibration_sha256,error\n',
+    );
+    const run = await runCli(
+      'watch',
+      at('co.json'),
+      at('other'),
+      '--csv',
+      at('other.csv'),
+      '--once',
+      '--settle',
+      '50',
+    );
     expect(run.status).toBe(1);
     expect(run.stderr).toMatch(/other\.csv line 1: the header .* does not match this calibration's columns/);
-    expect(readFileSync(at('other.csv'), 'utf8')).toBe('scan,NO_ppm,NO_low,NO_high,NO_flags,residual_rms,calibration_sha256,error\n');
+    expect(readFileSync(at('other.csv'), 'utf8')).toBe(
+      'scan,NO_ppm,NO_low,NO_high,NO_flags,residual_rms,calibration_sha256,error\n',
+    );
     expect(existsSync(at('.other.csv.watch-state'))).toBe(false);
   });
 });

@@ -52,7 +52,9 @@ describe('σ: tolerance/3 until the baseline exists, then the baseline SD, froze
     const sigma = last(evaluation.checks).sigma;
     expect(sigma?.basis).toBe('tolerance');
     expect(sigma?.valuePct).toBeCloseTo(5 / 3, 14);
-    expect(sigma?.reason).toMatch(/σ = tolerance\/3 = 5 %\/3 = 1\.667 %: 2 of the 8 baseline checks within tolerance exist so far, so the ±3σ action limit is the tolerance/);
+    expect(sigma?.reason).toMatch(
+      /σ = tolerance\/3 = 5 %\/3 = 1\.667 %: 2 of the 8 baseline checks within tolerance exist so far, so the ±3σ action limit is the tolerance/,
+    );
     expect(last(evaluation.checks).limits?.action).toEqual([95, 105]);
   });
 
@@ -71,7 +73,9 @@ describe('σ: tolerance/3 until the baseline exists, then the baseline SD, froze
     expect(evaluation.checks[9]?.sigma).toMatchObject({ basis: 'baseline' });
     expect(evaluation.checks[9]?.sigma?.valuePct).toBeCloseTo(sd, 12);
     expect(evaluation.checks[10]?.sigma?.valuePct).toBeCloseTo(sd, 12);
-    expect(evaluation.sigma.reason).toMatch(/the SD of the first 8 checks within tolerance \(2026-03-02 to 2026-04-27, mean 100\.00 %\), frozen so that later drift cannot widen the limits/);
+    expect(evaluation.sigma.reason).toMatch(
+      /the SD of the first 8 checks within tolerance \(2026-03-02 to 2026-04-27, mean 100\.00 %\), frozen so that later drift cannot widen the limits/,
+    );
     expect(evaluation.limits.warning[0]).toBeCloseTo(100 - 2 * sd, 12);
   });
 
@@ -106,7 +110,9 @@ describe('verdicts', () => {
   });
 
   it('keeps a check exactly on the tolerance limit inside it (a warning: 1-2s, not 1-3s)', () => {
-    const latest = last(evaluateHistory([check(0, 100), check(7, 95, { low: 94.5, high: 95.5 })], { policy }).checks);
+    const latest = last(
+      evaluateHistory([check(0, 100), check(7, 95, { low: 94.5, high: 95.5 })], { policy }).checks,
+    );
     expect(latest.outsideTolerance).toBe(false);
     expect(latest.rules.map((r) => r.rule)).toEqual(['1-2s']);
     expect(latest.verdict).toBe('warning');
@@ -117,8 +123,16 @@ describe('verdicts', () => {
     const latest = last(evaluateHistory(series([100, 96.5, 96.5]), { policy }).checks);
     expect(latest.verdict).toBe('fail');
     expect(latest.rules.map((r) => r.rule)).toEqual(['1-2s', '2-2s']);
-    expect(latest.reasons[0]).toBe('recovery 96.50 % is within the tolerance, but the check is out of statistical control: 2-2s fired');
-    expect(latest.reasons.some((r) => r.startsWith('2-2s: the check of 2026-03-09 (−2.10σ) and the check of 2026-03-16 (−2.10σ) are both beyond −2σ'))).toBe(true);
+    expect(latest.reasons[0]).toBe(
+      'recovery 96.50 % is within the tolerance, but the check is out of statistical control: 2-2s fired',
+    );
+    expect(
+      latest.reasons.some((r) =>
+        r.startsWith(
+          '2-2s: the check of 2026-03-09 (−2.10σ) and the check of 2026-03-16 (−2.10σ) are both beyond −2σ',
+        ),
+      ),
+    ).toBe(true);
   });
 
   it('warns on 1-2s alone', () => {
@@ -128,17 +142,23 @@ describe('verdicts', () => {
   });
 
   it('warns when the prediction interval reaches beyond the tolerance although the recovery is inside', () => {
-    const latest = last(evaluateHistory([check(0, 100), check(7, 98, { low: 94.6, high: 101.4 })], { policy }).checks);
+    const latest = last(
+      evaluateHistory([check(0, 100), check(7, 98, { low: 94.6, high: 101.4 })], { policy }).checks,
+    );
     expect(latest.rules).toEqual([]);
     expect(latest.nearTolerance).toBe(true);
     expect(latest.verdict).toBe('warning');
-    expect(latest.reasons[0]).toMatch(/the prediction interval 94\.60–101\.40 % reaches beyond the tolerance 95\.00–105\.00 %/);
+    expect(latest.reasons[0]).toMatch(
+      /the prediction interval 94\.60–101\.40 % reaches beyond the tolerance 95\.00–105\.00 %/,
+    );
   });
 
   it('passes a check inside the tolerance with no rule fired', () => {
     const latest = last(evaluateHistory(series([100.5, 99.2]), { policy }).checks);
     expect(latest.verdict).toBe('pass');
-    expect(latest.reasons).toEqual(['recovery 99.20 % is within the tolerance 95.00–105.00 % and no control rule fired']);
+    expect(latest.reasons).toEqual([
+      'recovery 99.20 % is within the tolerance 95.00–105.00 % and no control rule fired',
+    ]);
   });
 
   it('evaluates 10-x and 4-1s on the history once σ is the baseline SD', () => {
@@ -156,14 +176,22 @@ describe('verdicts', () => {
 
 describe('zero-gas checks', () => {
   const zero = (day: number, measured: number, extra: Partial<CheckRecord> = {}): CheckRecord => {
-    const { recoveryPct: _none, ...rest } = check(day, 0, { certified: 0, measured, low: measured - 2, high: measured + 2, ...extra });
+    const { recoveryPct: _none, ...rest } = check(day, 0, {
+      certified: 0,
+      measured,
+      low: measured - 2,
+      high: measured + 2,
+      ...extra,
+    });
     return rest;
   };
 
   it('passes when |measured| is below the detection limit, fails when not, and says so', () => {
     const ok = last(evaluateHistory([zero(0, -1.2)], { policy }).checks);
     expect(ok).toMatchObject({ kind: 'zero', verdict: 'pass' });
-    expect(ok.reasons[0]).toBe('zero gas: |measured| = 1.200 ppm is below the detection limit 4.000 ppm, consistent with zero');
+    expect(ok.reasons[0]).toBe(
+      'zero gas: |measured| = 1.200 ppm is below the detection limit 4.000 ppm, consistent with zero',
+    );
     const shifted = last(evaluateHistory([zero(0, 4.5)], { policy }).checks);
     expect(shifted.verdict).toBe('fail');
     expect(shifted.reasons[0]).toMatch(/is not below the detection limit 4\.000 ppm: the zero has shifted/);
@@ -202,19 +230,29 @@ describe('order, gases, recorded verdicts', () => {
 
   it('needs the gas when the history holds several, and evaluates only that gas', () => {
     const records = [check(0, 100), check(0, 90, { gas: 'NO' }), check(7, 96.5), check(7, 99, { gas: 'NO' })];
-    expect(() => evaluateHistory(records, { policy })).toThrow(/the history holds checks of CO, NO; name the gas to evaluate \(--gas\)/);
+    expect(() => evaluateHistory(records, { policy })).toThrow(
+      /the history holds checks of CO, NO; name the gas to evaluate \(--gas\)/,
+    );
     const no = evaluateHistory(records, { policy, gas: 'NO' });
     expect(no.checks.map((c) => c.record.measured)).toEqual([90, 99]);
   });
 
   it('notes a recorded verdict that differs under another tolerance', () => {
-    const evaluation = evaluateHistory([check(0, 100), check(7, 96, { verdict: 'warning', line: 4 })], { policy: { everyDays: 7, tolerancePct: 3 } });
-    expect(evaluation.notes).toEqual(['the check of 2026-03-09 (history line 4) was recorded as warning (tolerance ±5 %) and is judged fail now (tolerance ±3 %)']);
+    const evaluation = evaluateHistory([check(0, 100), check(7, 96, { verdict: 'warning', line: 4 })], {
+      policy: { everyDays: 7, tolerancePct: 3 },
+    });
+    expect(evaluation.notes).toEqual([
+      'the check of 2026-03-09 (history line 4) was recorded as warning (tolerance ±5 %) and is judged fail now (tolerance ±3 %)',
+    ]);
   });
 
   it('judgeCheck completes the new record with its verdict, rules and σ, without a note about itself', () => {
     const { verdict: _v, rules: _rules, tolerancePct: _t, ...measurement } = check(14, 96.5);
-    const judged = judgeCheck([check(0, 100), check(7, 96.5, { verdict: 'warning', rules: ['1-2s'] })], measurement, { policy });
+    const judged = judgeCheck(
+      [check(0, 100), check(7, 96.5, { verdict: 'warning', rules: ['1-2s'] })],
+      measurement,
+      { policy },
+    );
     expect(judged.record.verdict).toBe('fail');
     expect(judged.record.rules).toEqual(['1-2s', '2-2s']);
     expect(judged.record.sigmaPct).toBeCloseTo(5 / 3, 14);
@@ -225,10 +263,19 @@ describe('order, gases, recorded verdicts', () => {
   });
 
   it('refuses a tolerance that is not a percentage between 0 and 100', () => {
-    expect(() => evaluateHistory([], { policy: { everyDays: 7, tolerancePct: 0 } })).toThrow(/tolerance = 0 %, must be a percentage > 0 and < 100/);
+    expect(() => evaluateHistory([], { policy: { everyDays: 7, tolerancePct: 0 } })).toThrow(
+      /tolerance = 0 %, must be a percentage > 0 and < 100/,
+    );
   });
 
   it('gives ±1σ, ±2σ, ±3σ and the tolerance around 100 %', () => {
-    expect(controlLimits(1.5, 5)).toEqual({ centrePct: 100, sigmaPct: 1.5, oneSigma: [98.5, 101.5], warning: [97, 103], action: [95.5, 104.5], tolerance: [95, 105] });
+    expect(controlLimits(1.5, 5)).toEqual({
+      centrePct: 100,
+      sigmaPct: 1.5,
+      oneSigma: [98.5, 101.5],
+      warning: [97, 103],
+      action: [95.5, 104.5],
+      tolerance: [95, 105],
+    });
   });
 });

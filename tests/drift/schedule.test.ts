@@ -15,14 +15,28 @@ const check = (time: string, verdict: 'pass' | 'warning' | 'fail') => ({ time, v
 
 describe('next due and state', () => {
   it('counts the interval from the latest passing check', () => {
-    const schedule = scheduleFor([check('2026-09-01T09:30:00Z', 'pass'), check('2026-09-08T09:30:00Z', 'pass')], { everyDays: 7, calibrationCreatedAt: created, now: '2026-09-10T09:30:00Z' });
-    expect(schedule).toMatchObject({ state: 'ok', basis: 'check', nextDue: '2026-09-15T09:30:00.000Z', daysOverdue: 0 });
+    const schedule = scheduleFor(
+      [check('2026-09-01T09:30:00Z', 'pass'), check('2026-09-08T09:30:00Z', 'pass')],
+      { everyDays: 7, calibrationCreatedAt: created, now: '2026-09-10T09:30:00Z' },
+    );
+    expect(schedule).toMatchObject({
+      state: 'ok',
+      basis: 'check',
+      nextDue: '2026-09-15T09:30:00.000Z',
+      daysOverdue: 0,
+    });
     expect(schedule.daysUntilDue).toBeCloseTo(5, 12);
     expect(schedule.lastCheck).toEqual({ time: '2026-09-08T09:30:00.000Z', verdict: 'pass' });
   });
 
   it('counts a warning as a passing check', () => {
-    expect(scheduleFor([check('2026-09-08T09:30:00Z', 'warning')], { everyDays: 7, calibrationCreatedAt: created, now: '2026-09-09T00:00:00Z' }).nextDue).toBe('2026-09-15T09:30:00.000Z');
+    expect(
+      scheduleFor([check('2026-09-08T09:30:00Z', 'warning')], {
+        everyDays: 7,
+        calibrationCreatedAt: created,
+        now: '2026-09-09T00:00:00Z',
+      }).nextDue,
+    ).toBe('2026-09-15T09:30:00.000Z');
   });
 
   it('is due within a day of the due time, overdue after it (the due time itself is still due)', () => {
@@ -38,29 +52,51 @@ describe('next due and state', () => {
   });
 
   it('is failed after a failed check, until a later check passes', () => {
-    const failed = scheduleFor([check('2026-09-01T09:30:00Z', 'pass'), check('2026-09-08T09:30:00Z', 'fail')], { everyDays: 7, calibrationCreatedAt: created, now: '2026-09-09T09:30:00Z' });
+    const failed = scheduleFor(
+      [check('2026-09-01T09:30:00Z', 'pass'), check('2026-09-08T09:30:00Z', 'fail')],
+      { everyDays: 7, calibrationCreatedAt: created, now: '2026-09-09T09:30:00Z' },
+    );
     expect(failed.state).toBe('failed');
     expect(failed.nextDue).toBeUndefined();
     expect(failed.daysOverdue).toBeCloseTo(1, 12);
     expect(failed.reason).toMatch(/the latest check \(2026-09-08\) failed/);
-    const recovered = scheduleFor([check('2026-09-08T09:30:00Z', 'fail'), check('2026-09-09T08:00:00Z', 'pass')], { everyDays: 7, calibrationCreatedAt: created, now: '2026-09-09T09:30:00Z' });
+    const recovered = scheduleFor(
+      [check('2026-09-08T09:30:00Z', 'fail'), check('2026-09-09T08:00:00Z', 'pass')],
+      { everyDays: 7, calibrationCreatedAt: created, now: '2026-09-09T09:30:00Z' },
+    );
     expect(recovered).toMatchObject({ state: 'ok', nextDue: '2026-09-16T08:00:00.000Z' });
   });
 
   it('orders checks by time, not by the order given', () => {
-    const schedule = scheduleFor([check('2026-09-08T09:30:00Z', 'pass'), check('2026-09-01T09:30:00Z', 'fail')], { everyDays: 7, calibrationCreatedAt: created, now: '2026-09-09T00:00:00Z' });
+    const schedule = scheduleFor(
+      [check('2026-09-08T09:30:00Z', 'pass'), check('2026-09-01T09:30:00Z', 'fail')],
+      { everyDays: 7, calibrationCreatedAt: created, now: '2026-09-09T00:00:00Z' },
+    );
     expect(schedule.state).toBe('ok');
   });
 
   it('counts from the calibration when there is no check yet', () => {
-    const schedule = scheduleFor([], { everyDays: 7, calibrationCreatedAt: created, now: '2026-09-07T00:00:00Z' });
-    expect(schedule).toMatchObject({ state: 'overdue', basis: 'calibration', nextDue: '2026-09-06T00:00:00.000Z', daysOverdue: 1 });
+    const schedule = scheduleFor([], {
+      everyDays: 7,
+      calibrationCreatedAt: created,
+      now: '2026-09-07T00:00:00Z',
+    });
+    expect(schedule).toMatchObject({
+      state: 'overdue',
+      basis: 'calibration',
+      nextDue: '2026-09-06T00:00:00.000Z',
+      daysOverdue: 1,
+    });
     expect(schedule.lastCheck).toBeUndefined();
   });
 
   it('refuses a non-positive interval and unreadable times', () => {
-    expect(() => scheduleFor([], { everyDays: 0, calibrationCreatedAt: created })).toThrow(/recheck interval = 0 days, must be a number of days > 0/);
-    expect(() => scheduleFor([check('last week', 'pass')], { everyDays: 7, calibrationCreatedAt: created })).toThrow(/time = "last week", must be an ISO 8601 time/);
+    expect(() => scheduleFor([], { everyDays: 0, calibrationCreatedAt: created })).toThrow(
+      /recheck interval = 0 days, must be a number of days > 0/,
+    );
+    expect(() =>
+      scheduleFor([check('last week', 'pass')], { everyDays: 7, calibrationCreatedAt: created }),
+    ).toThrow(/time = "last week", must be an ISO 8601 time/);
   });
 });
 

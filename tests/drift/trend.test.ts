@@ -21,12 +21,20 @@ const at = (days: number): string => new Date(START + days * DAY_MS).toISOString
 describe('slope and its standard error', () => {
   it('match the NIST StRD Norris certified values (x as days, all 36 points)', () => {
     const norris = loadDataset('norris');
-    const points: TrendPoint[] = norris.x.map((row, i) => ({ time: at(row[0] as number), recoveryPct: norris.y[i] as number }));
+    const points: TrendPoint[] = norris.x.map((row, i) => ({
+      time: at(row[0] as number),
+      recoveryPct: norris.y[i] as number,
+    }));
     const trend = fitDriftTrend(points, { tolerancePct: 5, maxPoints: 100 });
     // Certified: B1 = 1.00211681802045, SE(B1) = 0.429796848199937e-3, residual SD 0.884796396144373, df 34.
     // Tolerance 1e-9: times are rounded to whole milliseconds (1e-8 days), far below the data's scale.
     expectRelative(trend.slopePctPerDay as number, norris.certified.B[1] as number, 1e-9, 'Norris slope');
-    expectRelative(trend.slopeStandardErrorPctPerDay as number, norris.certified.SE[1] as number, 1e-8, 'Norris SE(slope)');
+    expectRelative(
+      trend.slopeStandardErrorPctPerDay as number,
+      norris.certified.SE[1] as number,
+      1e-8,
+      'Norris SE(slope)',
+    );
     expectRelative(trend.residualSdPct as number, norris.certified.residualSD, 1e-8, 'Norris residual SD');
     expect(trend.df).toBe(norris.certified.dfResidual);
     // The line at x = 0 is the certified intercept B0 = −0.262323073774029 (abs. tolerance 1e-6).
@@ -38,7 +46,10 @@ describe('slope and its standard error', () => {
 describe('projected crossing of the tolerance', () => {
   it('gives the exact date for a noise-free linear drift of −0.2 %/day (crossing 95 % after 25 days)', () => {
     // R(t) = 100 − 0.2 t, checks every 2 days from day 0 to day 18: crosses 95 % at t = 25 days.
-    const points = Array.from({ length: 10 }, (_, k) => ({ time: at(2 * k), recoveryPct: 100 - 0.2 * 2 * k }));
+    const points = Array.from({ length: 10 }, (_, k) => ({
+      time: at(2 * k),
+      recoveryPct: 100 - 0.2 * 2 * k,
+    }));
     const trend = fitDriftTrend(points, { tolerancePct: 5 });
     expect(trend.status).toBe('drift');
     expect(trend.slopePctPerDay).toBeCloseTo(-0.2, 12);
@@ -55,7 +66,10 @@ describe('projected crossing of the tolerance', () => {
   it('gives an upward drift crossing 100 + tolerance, with noise: the date near the truth and inside its range', () => {
     // R(t) = 99 + 0.1 t (truth crosses 104 % at t = 50 days); seeded normal noise, SD 0.2 %, weekly checks.
     const normal = createGaussian(424242);
-    const points = Array.from({ length: 10 }, (_, k) => ({ time: at(7 * k - 30), recoveryPct: 99 + 0.1 * (7 * k - 30) + 0.2 * normal() }));
+    const points = Array.from({ length: 10 }, (_, k) => ({
+      time: at(7 * k - 30),
+      recoveryPct: 99 + 0.1 * (7 * k - 30) + 0.2 * normal(),
+    }));
     const trend = fitDriftTrend(points, { tolerancePct: 4 });
     expect(trend.status).toBe('drift');
     const projection = trend.projection;
@@ -78,7 +92,10 @@ describe('projected crossing of the tolerance', () => {
     const runs = 1000;
     let covered = 0;
     for (let r = 0; r < runs; r++) {
-      const points = Array.from({ length: 10 }, (_, k) => ({ time: at(7 * k), recoveryPct: 100 - 0.1 * 7 * k + 0.5 * normal() }));
+      const points = Array.from({ length: 10 }, (_, k) => ({
+        time: at(7 * k),
+        recoveryPct: 100 - 0.1 * 7 * k + 0.5 * normal(),
+      }));
       const projection = fitDriftTrend(points, { tolerancePct: 5 }).projection;
       if (projection === undefined) continue;
       const truth = START + 50 * DAY_MS;
@@ -95,7 +112,9 @@ describe('projected crossing of the tolerance', () => {
     const trend = fitDriftTrend(points, { tolerancePct: 5 });
     // 99 − 1.5 t/7 = 95 at t = 18.67 days (2026-01-24 00:00), before the last check (day 35).
     expect(trend.projection?.alreadyOutside).toBe(true);
-    expect(Math.abs(Date.parse(trend.projection?.date as string) - (START + (28 / 1.5) * DAY_MS))).toBeLessThan(2);
+    expect(
+      Math.abs(Date.parse(trend.projection?.date as string) - (START + (28 / 1.5) * DAY_MS)),
+    ).toBeLessThan(2);
     expect(trend.summary).toMatch(/crossed 95 % on 2026-01-24/);
   });
 
@@ -125,7 +144,10 @@ describe('no significant drift', () => {
     let significant = 0;
     const runs = 2000;
     for (let r = 0; r < runs; r++) {
-      const points = Array.from({ length: 10 }, (_, k) => ({ time: at(7 * k), recoveryPct: 100 + 0.8 * normal() }));
+      const points = Array.from({ length: 10 }, (_, k) => ({
+        time: at(7 * k),
+        recoveryPct: 100 + 0.8 * normal(),
+      }));
       if (fitDriftTrend(points, { tolerancePct: 5 }).status === 'drift') significant++;
     }
     // Binomial(2000, 0.05): SD 0.49 %; accept 5 % ± 1.5 % (about 3 SD).
@@ -136,7 +158,11 @@ describe('no significant drift', () => {
 
   it('reports too few checks (fewer than 4) or checks all at one time as insufficient, not as an error', () => {
     const three = [0, 7, 14].map((d) => ({ time: at(d), recoveryPct: 100 - d }));
-    expect(fitDriftTrend(three, { tolerancePct: 5 })).toMatchObject({ status: 'insufficient', points: 3, summary: 'no trend yet: 3 check(s), a trend needs at least 4' });
+    expect(fitDriftTrend(three, { tolerancePct: 5 })).toMatchObject({
+      status: 'insufficient',
+      points: 3,
+      summary: 'no trend yet: 3 check(s), a trend needs at least 4',
+    });
     const sameTime = [99, 100, 101, 102].map((r) => ({ time: at(1), recoveryPct: r }));
     expect(fitDriftTrend(sameTime, { tolerancePct: 5 }).status).toBe('insufficient');
     expect(trendAt(fitDriftTrend(three, { tolerancePct: 5 }), at(0))).toBeUndefined();

@@ -16,8 +16,25 @@ export const FUZZ_RUNS = 10_000;
 export const HANG_MS = 5_000;
 
 const CODES = new Set([
-  'USAGE', 'FILE_NOT_FOUND', 'FILE_READ', 'FILE_EXISTS', 'PARSE', 'YCHECK', 'INVALID_VALUE', 'NOT_MONOTONIC', 'WINDOW', 'CONDITIONS_MISSING',
-  'UNKNOWN_GAS', 'IR_INACTIVE', 'INSUFFICIENT_DATA', 'SINGULAR', 'NO_SOLUTION', 'INTEGRITY', 'SCHEMA', 'LIMIT', 'CONVERSION',
+  'USAGE',
+  'FILE_NOT_FOUND',
+  'FILE_READ',
+  'FILE_EXISTS',
+  'PARSE',
+  'YCHECK',
+  'INVALID_VALUE',
+  'NOT_MONOTONIC',
+  'WINDOW',
+  'CONDITIONS_MISSING',
+  'UNKNOWN_GAS',
+  'IR_INACTIVE',
+  'INSUFFICIENT_DATA',
+  'SINGULAR',
+  'NO_SOLUTION',
+  'INTEGRITY',
+  'SCHEMA',
+  'LIMIT',
+  'CONVERSION',
 ]);
 
 /** Counts of what a fuzz run saw, for the summary line. */
@@ -40,7 +57,10 @@ export class FuzzTally {
       value = run();
     } catch (error) {
       this.time(start);
-      if (!(error instanceof BandwrightError)) throw new Error(`${this.reader}: not a BandwrightError: ${error instanceof Error ? (error.stack ?? error.message) : String(error)}`);
+      if (!(error instanceof BandwrightError))
+        throw new Error(
+          `${this.reader}: not a BandwrightError: ${error instanceof Error ? (error.stack ?? error.message) : String(error)}`,
+        );
       if (!CODES.has(error.code)) throw new Error(`${this.reader}: unknown error code ${error.code}`);
       if (error.message.trim() === '') throw new Error(`${this.reader}: empty message for ${error.code}`);
       this.refused.set(error.code, (this.refused.get(error.code) ?? 0) + 1);
@@ -54,13 +74,17 @@ export class FuzzTally {
   private time(start: number): void {
     const elapsed = performance.now() - start;
     this.slowestMs = Math.max(this.slowestMs, elapsed);
-    if (elapsed > HANG_MS) throw new Error(`${this.reader}: one case took ${elapsed.toFixed(0)} ms (hang bound ${HANG_MS} ms)`);
+    if (elapsed > HANG_MS)
+      throw new Error(`${this.reader}: one case took ${elapsed.toFixed(0)} ms (hang bound ${HANG_MS} ms)`);
   }
 
   /** One line: cases, accepted, refusals by code, slowest case, total time and seed. */
   summary(): string {
     const total = this.accepted + [...this.refused.values()].reduce((a, b) => a + b, 0);
-    const codes = [...this.refused.entries()].sort((a, b) => b[1] - a[1]).map(([code, count]) => `${code} ${count}`).join(', ');
+    const codes = [...this.refused.entries()]
+      .sort((a, b) => b[1] - a[1])
+      .map(([code, count]) => `${code} ${count}`)
+      .join(', ');
     return `fuzz ${this.reader}: ${total} cases (seed ${FUZZ_SEED}), ${this.accepted} accepted, refused: ${codes || 'none'}; slowest case ${this.slowestMs.toFixed(2)} ms, total ${((performance.now() - this.started) / 1000).toFixed(1)} s`;
   }
 
@@ -85,7 +109,12 @@ export function tokenText(tokens: readonly string[], maxLength = 80): fc.Arbitra
 
 /** Byte edits on a valid text: delete, insert, replace or duplicate a span, a few times. */
 export function mutated(base: fc.Arbitrary<string>, alphabet: readonly string[]): fc.Arbitrary<string> {
-  const edit = fc.record({ kind: fc.constantFrom('delete', 'insert', 'replace', 'duplicate', 'truncate'), at: fc.double({ min: 0, max: 1, noNaN: true }), length: fc.integer({ min: 1, max: 12 }), text: fc.constantFrom(...alphabet) });
+  const edit = fc.record({
+    kind: fc.constantFrom('delete', 'insert', 'replace', 'duplicate', 'truncate'),
+    at: fc.double({ min: 0, max: 1, noNaN: true }),
+    length: fc.integer({ min: 1, max: 12 }),
+    text: fc.constantFrom(...alphabet),
+  });
   return fc.tuple(base, fc.array(edit, { minLength: 0, maxLength: 3 })).map(([text, edits]) => {
     let out = text;
     for (const e of edits) {
@@ -93,7 +122,8 @@ export function mutated(base: fc.Arbitrary<string>, alphabet: readonly string[])
       if (e.kind === 'delete') out = out.slice(0, i) + out.slice(i + e.length);
       else if (e.kind === 'insert') out = out.slice(0, i) + e.text + out.slice(i);
       else if (e.kind === 'replace') out = out.slice(0, i) + e.text + out.slice(i + e.text.length);
-      else if (e.kind === 'duplicate') out = out.slice(0, i + e.length) + out.slice(i, i + e.length) + out.slice(i + e.length);
+      else if (e.kind === 'duplicate')
+        out = out.slice(0, i + e.length) + out.slice(i, i + e.length) + out.slice(i + e.length);
       else out = out.slice(0, i);
     }
     return out;

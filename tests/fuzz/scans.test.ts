@@ -12,7 +12,16 @@ import { formatJcamp } from '../../src/io/jcamp-write.js';
 import { formatSpectrumCsv } from '../../src/io/spectrum-csv-write.js';
 import { parseSpectrumTable } from '../../src/io/spectrum-table.js';
 import { Y_KINDS, makeSpectrum, type Spectrum } from '../../src/spectrum/spectrum.js';
-import { FUZZ_PARAMETERS, FUZZ_RUNS, FUZZ_SEED, FuzzTally, allFinite, invariant, mutated, tokenText } from './harness.js';
+import {
+  FUZZ_PARAMETERS,
+  FUZZ_RUNS,
+  FUZZ_SEED,
+  FuzzTally,
+  allFinite,
+  invariant,
+  mutated,
+  tokenText,
+} from './harness.js';
 
 const encoder = new TextEncoder();
 const summaries: string[] = [];
@@ -22,12 +31,21 @@ function checkSpectrum(spectrum: Spectrum): void {
   const { x, y } = spectrum;
   invariant(x.length >= 2 && x.length === y.length, 'at least two points, x and y of equal length');
   invariant(allFinite(x) && allFinite(y), 'finite x and y');
-  for (let i = 1; i < x.length; i++) invariant((x[i] as number) > (x[i - 1] as number), 'strictly ascending x');
+  for (let i = 1; i < x.length; i++)
+    invariant((x[i] as number) > (x[i - 1] as number), 'strictly ascending x');
   invariant(Y_KINDS.includes(spectrum.yKind), 'a known y-kind');
-  invariant((spectrum.yKind === 'single-beam') === (spectrum.background !== undefined), 'a background exactly for single-beam');
-  if (spectrum.background !== undefined) invariant(spectrum.background.length === x.length && allFinite(spectrum.background), 'finite background on the grid');
+  invariant(
+    (spectrum.yKind === 'single-beam') === (spectrum.background !== undefined),
+    'a background exactly for single-beam',
+  );
+  if (spectrum.background !== undefined)
+    invariant(
+      spectrum.background.length === x.length && allFinite(spectrum.background),
+      'finite background on the grid',
+    );
   const m = spectrum.metadata;
-  for (const value of [m.pathLength_m, m.temperature_K, m.pressure_kPa]) invariant(value === undefined || (Number.isFinite(value) && value > 0), 'conditions positive and finite');
+  for (const value of [m.pathLength_m, m.temperature_K, m.pressure_kPa])
+    invariant(value === undefined || (Number.isFinite(value) && value > 0), 'conditions positive and finite');
 }
 
 /** Small valid spectra for the writers (invented shapes; only their safety is tested). */
@@ -42,14 +60,69 @@ const smallSpectrum = fc
   })
   .map(({ n, start, step, values, kind, pathLength }) => {
     const x = Float64Array.from({ length: n }, (_, i) => start + i * step);
-    const y = Float64Array.from({ length: n }, (_, i) => (kind === 'transmittance-percent' ? 50 + 10 * (values[i] as number) : (values[i] as number)));
-    return makeSpectrum({ x, y, yKind: kind as Spectrum['yKind'], metadata: pathLength === undefined ? {} : { pathLength_m: pathLength, temperature_K: 296, pressure_kPa: 101.3 } });
+    const y = Float64Array.from({ length: n }, (_, i) =>
+      kind === 'transmittance-percent' ? 50 + 10 * (values[i] as number) : (values[i] as number),
+    );
+    return makeSpectrum({
+      x,
+      y,
+      yKind: kind as Spectrum['yKind'],
+      metadata:
+        pathLength === undefined ? {} : { pathLength_m: pathLength, temperature_K: 296, pressure_kPa: 101.3 },
+    });
   });
 
-const tableTokens = ['0', '1', '7', '.', ',', ';', '\t', ' ', '\n', '\r\n', '\r', '-', '+', 'e', 'E', '#', '"', 'x', 'A', '%T', 'NaN', 'Infinity', '1e400', '-0', '1e-320', '=', '# path_length_m = ', '# temperature_C = ', 'wavenumber_cm-1', 'absorbance', 'transmittance', 'wavelength_um', 'wavelength_nm', 'sample', 'background', '\ufeff', 'é', '\u0000'];
+const tableTokens = [
+  '0',
+  '1',
+  '7',
+  '.',
+  ',',
+  ';',
+  '\t',
+  ' ',
+  '\n',
+  '\r\n',
+  '\r',
+  '-',
+  '+',
+  'e',
+  'E',
+  '#',
+  '"',
+  'x',
+  'A',
+  '%T',
+  'NaN',
+  'Infinity',
+  '1e400',
+  '-0',
+  '1e-320',
+  '=',
+  '# path_length_m = ',
+  '# temperature_C = ',
+  'wavenumber_cm-1',
+  'absorbance',
+  'transmittance',
+  'wavelength_um',
+  'wavelength_nm',
+  'sample',
+  'background',
+  '\ufeff',
+  'é',
+  '\u0000',
+];
 const tableText = fc.oneof(
   { weight: 2, arbitrary: tokenText(tableTokens, 100) },
-  { weight: 3, arbitrary: mutated(fc.tuple(smallSpectrum, fc.constantFrom<',' | ';' | '\t'>(',', ';', '\t')).map(([s, d]) => formatSpectrumCsv(s, { delimiter: d })), tableTokens) },
+  {
+    weight: 3,
+    arbitrary: mutated(
+      fc
+        .tuple(smallSpectrum, fc.constantFrom<',' | ';' | '\t'>(',', ';', '\t'))
+        .map(([s, d]) => formatSpectrumCsv(s, { delimiter: d })),
+      tableTokens,
+    ),
+  },
   { weight: 1, arbitrary: fc.string({ unit: 'binary', maxLength: 200 }) },
 );
 
@@ -57,9 +130,24 @@ describe(`spectrum table reader fuzz (seed ${FUZZ_SEED}, ${FUZZ_RUNS} cases)`, (
   it('returns a valid spectrum or a BandwrightError with a code, for every case', () => {
     const tally = new FuzzTally('spectrum tables');
     fc.assert(
-      fc.property(fc.oneof(tableText.map((t) => encoder.encode(t)), fc.uint8Array({ maxLength: 200 })), fc.constantFrom(undefined, 'absorbance', 'single-beam'), (bytes, yKind) => {
-        tally.attempt(() => parseSpectrumTable(bytes, { source: 'fuzz.csv', maxPoints: 200, ...(yKind === undefined ? {} : { yKind: yKind as Spectrum['yKind'] }) }), checkSpectrum);
-      }),
+      fc.property(
+        fc.oneof(
+          tableText.map((t) => encoder.encode(t)),
+          fc.uint8Array({ maxLength: 200 }),
+        ),
+        fc.constantFrom(undefined, 'absorbance', 'single-beam'),
+        (bytes, yKind) => {
+          tally.attempt(
+            () =>
+              parseSpectrumTable(bytes, {
+                source: 'fuzz.csv',
+                maxPoints: 200,
+                ...(yKind === undefined ? {} : { yKind: yKind as Spectrum['yKind'] }),
+              }),
+            checkSpectrum,
+          );
+        },
+      ),
       FUZZ_PARAMETERS,
     );
     summaries.push(tally.summary());
@@ -69,10 +157,71 @@ describe(`spectrum table reader fuzz (seed ${FUZZ_SEED}, ${FUZZ_RUNS} cases)`, (
   });
 });
 
-const jcampTokens = ['##', '=', '\n', '\r\n', ' ', '$$', 'TITLE', 'JCAMP-DX', '4.24', '5.01', 'XUNITS', '1/CM', 'MICROMETERS', 'YUNITS', 'ABSORBANCE', 'TRANSMITTANCE', 'FIRSTX', 'LASTX', 'DELTAX', 'NPOINTS', 'XFACTOR', 'YFACTOR', 'FIRSTY', 'XYDATA', '(X++(Y..Y))', 'XYPOINTS', '(XY..XY)', 'END', 'PATH LENGTH', 'TEMPERATURE', 'PRESSURE', '0', '1', '9', '-', '.', 'E', '1E400', '?', '@', 'A', 'J', 'j', '%', 'S', 'Z', 's', ',', ';', 'NTUPLES', 'LINK', '\ufeff'];
+const jcampTokens = [
+  '##',
+  '=',
+  '\n',
+  '\r\n',
+  ' ',
+  '$$',
+  'TITLE',
+  'JCAMP-DX',
+  '4.24',
+  '5.01',
+  'XUNITS',
+  '1/CM',
+  'MICROMETERS',
+  'YUNITS',
+  'ABSORBANCE',
+  'TRANSMITTANCE',
+  'FIRSTX',
+  'LASTX',
+  'DELTAX',
+  'NPOINTS',
+  'XFACTOR',
+  'YFACTOR',
+  'FIRSTY',
+  'XYDATA',
+  '(X++(Y..Y))',
+  'XYPOINTS',
+  '(XY..XY)',
+  'END',
+  'PATH LENGTH',
+  'TEMPERATURE',
+  'PRESSURE',
+  '0',
+  '1',
+  '9',
+  '-',
+  '.',
+  'E',
+  '1E400',
+  '?',
+  '@',
+  'A',
+  'J',
+  'j',
+  '%',
+  'S',
+  'Z',
+  's',
+  ',',
+  ';',
+  'NTUPLES',
+  'LINK',
+  '\ufeff',
+];
 const jcampText = fc.oneof(
   { weight: 2, arbitrary: tokenText(jcampTokens, 120) },
-  { weight: 4, arbitrary: mutated(fc.tuple(smallSpectrum, fc.constantFrom<'affn' | 'sqz' | 'dif-dup'>('affn', 'sqz', 'dif-dup')).map(([s, compression]) => formatJcamp(s, { title: 'fuzz', compression })), jcampTokens) },
+  {
+    weight: 4,
+    arbitrary: mutated(
+      fc
+        .tuple(smallSpectrum, fc.constantFrom<'affn' | 'sqz' | 'dif-dup'>('affn', 'sqz', 'dif-dup'))
+        .map(([s, compression]) => formatJcamp(s, { title: 'fuzz', compression })),
+      jcampTokens,
+    ),
+  },
   { weight: 1, arbitrary: fc.string({ unit: 'binary', maxLength: 200 }) },
 );
 
@@ -80,9 +229,15 @@ describe(`JCAMP-DX reader fuzz (seed ${FUZZ_SEED}, ${FUZZ_RUNS} cases)`, () => {
   it('returns a valid spectrum or a BandwrightError with a code, for every case', () => {
     const tally = new FuzzTally('JCAMP-DX');
     fc.assert(
-      fc.property(fc.oneof({ weight: 6, arbitrary: jcampText.map((t) => encoder.encode(t)) }, { weight: 1, arbitrary: fc.uint8Array({ maxLength: 200 }) }), (bytes) => {
-        tally.attempt(() => parseJcamp(bytes, { source: 'fuzz.jdx', maxPoints: 200 }), checkSpectrum);
-      }),
+      fc.property(
+        fc.oneof(
+          { weight: 6, arbitrary: jcampText.map((t) => encoder.encode(t)) },
+          { weight: 1, arbitrary: fc.uint8Array({ maxLength: 200 }) },
+        ),
+        (bytes) => {
+          tally.attempt(() => parseJcamp(bytes, { source: 'fuzz.jdx', maxPoints: 200 }), checkSpectrum);
+        },
+      ),
       FUZZ_PARAMETERS,
     );
     summaries.push(tally.summary());

@@ -1,5 +1,10 @@
 import { describe, expect, it } from 'vitest';
-import { conditionsFarReasons, densityPathFactor, medianConditions, resolveConditions } from '../../src/gas/conditions.js';
+import {
+  conditionsFarReasons,
+  densityPathFactor,
+  medianConditions,
+  resolveConditions,
+} from '../../src/gas/conditions.js';
 
 const reference = { pathLength_m: 1, temperature_K: 296, pressure_kPa: 101.325 };
 
@@ -22,20 +27,34 @@ describe('densityPathFactor', () => {
 describe('resolveConditions', () => {
   it('takes the manifest first, then the scan, then options', () => {
     const resolved = resolveConditions(
-      { manifest: { pathLength_m: 2 }, scan: { pathLength_m: 3, temperature_K: 300 }, options: { temperature_K: 310, pressure_kPa: 100 } },
+      {
+        manifest: { pathLength_m: 2 },
+        scan: { pathLength_m: 3, temperature_K: 300 },
+        options: { temperature_K: 310, pressure_kPa: 100 },
+      },
       'scan.csv',
     );
     expect(resolved).toMatchObject({ pathLength_m: 2, temperature_K: 300, pressure_kPa: 100 });
-    expect(resolved.sources).toEqual({ pathLength_m: 'manifest', temperature_K: 'scan', pressure_kPa: 'option' });
+    expect(resolved.sources).toEqual({
+      pathLength_m: 'manifest',
+      temperature_K: 'scan',
+      pressure_kPa: 'option',
+    });
   });
 
   it('refuses a quantity missing everywhere, naming it and where to give it', () => {
-    expect(() => resolveConditions({ scan: { pathLength_m: 1, temperature_K: 296 } }, 'co-100.csv')).toThrow(/co-100.csv: no pressure .*--pressure/);
+    expect(() => resolveConditions({ scan: { pathLength_m: 1, temperature_K: 296 } }, 'co-100.csv')).toThrow(
+      /co-100.csv: no pressure .*--pressure/,
+    );
   });
 
   it('refuses zero and negative path lengths', () => {
-    expect(() => resolveConditions({ manifest: { pathLength_m: 0, temperature_K: 296, pressure_kPa: 101 } }, 'x')).toThrow(/pathLength_m = 0, must be > 0/);
-    expect(() => resolveConditions({ manifest: { pathLength_m: -1, temperature_K: 296, pressure_kPa: 101 } }, 'x')).toThrow(/must be > 0/);
+    expect(() =>
+      resolveConditions({ manifest: { pathLength_m: 0, temperature_K: 296, pressure_kPa: 101 } }, 'x'),
+    ).toThrow(/pathLength_m = 0, must be > 0/);
+    expect(() =>
+      resolveConditions({ manifest: { pathLength_m: -1, temperature_K: 296, pressure_kPa: 101 } }, 'x'),
+    ).toThrow(/must be > 0/);
   });
 });
 
@@ -43,7 +62,9 @@ describe('conditions-far', () => {
   it('flags a sample 15 K warmer or 8 % lower in pressure, and not one within the usual range', () => {
     expect(conditionsFarReasons({ ...reference, temperature_K: 311 }, reference)).toHaveLength(1);
     expect(conditionsFarReasons({ ...reference, pressure_kPa: 93 }, reference)).toHaveLength(1);
-    expect(conditionsFarReasons({ ...reference, temperature_K: 300, pressure_kPa: 100 }, reference)).toEqual([]);
+    expect(conditionsFarReasons({ ...reference, temperature_K: 300, pressure_kPa: 100 }, reference)).toEqual(
+      [],
+    );
   });
 });
 

@@ -16,12 +16,16 @@ describe('species table', () => {
 
   it('refuses homonuclear diatomics with the reason (common practice)', () => {
     for (const name of ['N2', 'O2', 'H2', 'Cl2']) {
-      expect(() => requireInfraredSpecies(name, '--gas')).toThrow(/homonuclear diatomic.*no infrared absorption/);
+      expect(() => requireInfraredSpecies(name, '--gas')).toThrow(
+        /homonuclear diatomic.*no infrared absorption/,
+      );
     }
   });
 
   it('refuses unknown gases, listing the known ones', () => {
-    expect(() => requireInfraredSpecies('XYZ', '--gas')).toThrow(/"XYZ" is not in the species table; known gases: CO, CO2/);
+    expect(() => requireInfraredSpecies('XYZ', '--gas')).toThrow(
+      /"XYZ" is not in the species table; known gases: CO, CO2/,
+    );
   });
 
   it('finds gases by alias, case-insensitively', () => {
@@ -46,7 +50,13 @@ describe('cautions and limits', () => {
     expect(cautionsFor(['H2O'])).toEqual([]);
   });
 
-  const niosh = { gas: 'CO', limit: 35, unit: 'ppm' as const, basis: 'TWA', source: 'NIOSH Pocket Guide (REL)' };
+  const niosh = {
+    gas: 'CO',
+    limit: 35,
+    unit: 'ppm' as const,
+    basis: 'TWA',
+    source: 'NIOSH Pocket Guide (REL)',
+  };
 
   it('judges over-limit on the upper end of the interval (NIOSH REL for CO 35 ppm TWA, facts.md)', () => {
     expect(exceededLimits('CO', 36, [niosh])).toHaveLength(1);

@@ -1,6 +1,13 @@
 import { describe, expect, it } from 'vitest';
 import { findSpecies } from '../../src/gas/species.js';
-import { correctToReferenceOxygen, fromPpm, molarVolume_L, ppmToMgPerM3, toDryBasis, toPpm } from '../../src/gas/units.js';
+import {
+  correctToReferenceOxygen,
+  fromPpm,
+  molarVolume_L,
+  ppmToMgPerM3,
+  toDryBasis,
+  toPpm,
+} from '../../src/gas/units.js';
 
 const CO = findSpecies('CO');
 
@@ -39,12 +46,19 @@ describe('stack reporting corrections', () => {
   });
 
   it('uses a settable O2 of air (21 % in some jurisdictions)', () => {
-    expect(correctToReferenceOxygen(100, { measured_pct: 10, reference_pct: 7, air_pct: 21 })).toBeCloseTo((100 * 14) / 11, 10);
+    expect(correctToReferenceOxygen(100, { measured_pct: 10, reference_pct: 7, air_pct: 21 })).toBeCloseTo(
+      (100 * 14) / 11,
+      10,
+    );
   });
 
   it('refuses the correction when measured O2 approaches air', () => {
-    expect(() => correctToReferenceOxygen(100, { measured_pct: 20.7, reference_pct: 7 })).toThrow(/within 0.5 % points of the O2 of air/);
-    expect(() => correctToReferenceOxygen(100, { measured_pct: 21.5, reference_pct: 7 })).toThrow(/O2 of air/);
+    expect(() => correctToReferenceOxygen(100, { measured_pct: 20.7, reference_pct: 7 })).toThrow(
+      /within 0.5 % points of the O2 of air/,
+    );
+    expect(() => correctToReferenceOxygen(100, { measured_pct: 21.5, reference_pct: 7 })).toThrow(
+      /O2 of air/,
+    );
   });
 
   it('converts wet to dry basis: 100 ppm wet at 12 % H2O → 113.636 ppm dry (common practice)', () => {

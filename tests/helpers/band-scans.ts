@@ -18,7 +18,10 @@ export const BAND = { centre: 2143, sd: 15 };
  * @param ppm - concentration
  * @param options - φ (number-density × path factor), metadata, grid
  */
-export function bandScan(ppm: number, options: { phi?: number; metadata?: ScanMetadata; step?: number; from?: number; to?: number } = {}): Spectrum {
+export function bandScan(
+  ppm: number,
+  options: { phi?: number; metadata?: ScanMetadata; step?: number; from?: number; to?: number } = {},
+): Spectrum {
   const { from = 1950, to = 2350, step = 0.5, phi = 1 } = options;
   const area = AREA_PER_PPM * ppm * phi;
   const height = area / (BAND.sd * Math.sqrt(2 * Math.PI));
@@ -40,11 +43,21 @@ export function bandScan(ppm: number, options: { phi?: number; metadata?: ScanMe
  * @param spectrum - the scan
  */
 export function writeScan(path: string, spectrum: Spectrum): void {
-  writeFileSync(path, path.endsWith('.jdx') ? formatJcamp(spectrum, { title: 'test band' }) : formatSpectrumCsv(spectrum));
+  writeFileSync(
+    path,
+    path.endsWith('.jdx') ? formatJcamp(spectrum, { title: 'test band' }) : formatSpectrumCsv(spectrum),
+  );
 }
 
 /** Command-line options for a CO band calibration on {@link bandScan} scans. */
-export const BAND_OPTIONS = ['--gas', 'CO', '--band', '2040:2245', '--baseline', '2000:2030,2255:2290'] as const;
+export const BAND_OPTIONS = [
+  '--gas',
+  'CO',
+  '--band',
+  '2040:2245',
+  '--baseline',
+  '2000:2030,2255:2290',
+] as const;
 
 /**
  * Writes the ten-standard series the CLI tests calibrate from — 0, 50, 100, 200, 400 ppm in

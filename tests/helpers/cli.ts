@@ -23,7 +23,15 @@ export function runCli(...args: string[]): Promise<CliRun> {
 }
 
 /** A fresh temporary folder; `cleanup` removes it. */
-export function temporaryFolder(prefix = 'bandwright-test-'): { path: string; cleanup: () => void; files: () => string[] } {
+export function temporaryFolder(prefix = 'bandwright-test-'): {
+  path: string;
+  cleanup: () => void;
+  files: () => string[];
+} {
   const path = mkdtempSync(join(tmpdir(), prefix));
-  return { path, cleanup: () => rmSync(path, { recursive: true, force: true }), files: () => readdirSync(path).sort() };
+  return {
+    path,
+    cleanup: () => rmSync(path, { recursive: true, force: true }),
+    files: () => readdirSync(path).sort(),
+  };
 }

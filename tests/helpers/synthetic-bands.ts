@@ -17,7 +17,10 @@ export function uniformGrid(start: number, end: number, step: number): Float64Ar
 }
 
 /** Peak-normalised Lorentzian band: peak / (1 + ((x − centre)/hwhm)²). */
-export function lorentzianBand(grid: Float64Array, band: { centre: number; hwhm: number; peak: number }): Float64Array {
+export function lorentzianBand(
+  grid: Float64Array,
+  band: { centre: number; hwhm: number; peak: number },
+): Float64Array {
   const out = new Float64Array(grid.length);
   for (let i = 0; i < grid.length; i++) {
     const u = (grid[i]! - band.centre) / band.hwhm;
@@ -27,7 +30,10 @@ export function lorentzianBand(grid: Float64Array, band: { centre: number; hwhm:
 }
 
 /** Peak-normalised Gaussian band: peak · exp(−ln2 ((x − centre)/hwhm)²). */
-export function gaussianBand(grid: Float64Array, band: { centre: number; hwhm: number; peak: number }): Float64Array {
+export function gaussianBand(
+  grid: Float64Array,
+  band: { centre: number; hwhm: number; peak: number },
+): Float64Array {
   const out = new Float64Array(grid.length);
   for (let i = 0; i < grid.length; i++) {
     const u = (grid[i]! - band.centre) / band.hwhm;
@@ -37,7 +43,10 @@ export function gaussianBand(grid: Float64Array, band: { centre: number; hwhm: n
 }
 
 /** Sum of several spectra with weights: Σ w_k s_k. */
-export function combine(parts: ReadonlyArray<{ spectrum: ArrayLike<number>; weight: number }>, length: number): Float64Array {
+export function combine(
+  parts: ReadonlyArray<{ spectrum: ArrayLike<number>; weight: number }>,
+  length: number,
+): Float64Array {
   const out = new Float64Array(length);
   for (const part of parts) {
     for (let i = 0; i < length; i++) out[i]! += part.weight * part.spectrum[i]!;
@@ -46,7 +55,12 @@ export function combine(parts: ReadonlyArray<{ spectrum: ArrayLike<number>; weig
 }
 
 /** Adds offset + slope·(x − x_mid) to a copy of `spectrum`. */
-export function withLinearBaseline(spectrum: Float64Array, grid: Float64Array, offset: number, slope: number): Float64Array {
+export function withLinearBaseline(
+  spectrum: Float64Array,
+  grid: Float64Array,
+  offset: number,
+  slope: number,
+): Float64Array {
   const mid = (grid[0]! + grid[grid.length - 1]!) / 2;
   const out = new Float64Array(spectrum.length);
   for (let i = 0; i < spectrum.length; i++) out[i] = spectrum[i]! + offset + slope * (grid[i]! - mid);
@@ -78,7 +92,10 @@ export function normalGenerator(seed: number): () => number {
  * `halfWidth` channels, rescaled so each channel's standard deviation is `rms`. halfWidth 0
  * gives white noise.
  */
-export function correlatedNoise(length: number, options: { rms: number; halfWidth: number; normal: () => number }): Float64Array {
+export function correlatedNoise(
+  length: number,
+  options: { rms: number; halfWidth: number; normal: () => number },
+): Float64Array {
   const { rms, halfWidth, normal } = options;
   const weights: number[] = [];
   for (let k = -halfWidth; k <= halfWidth; k++) weights.push(halfWidth + 1 - Math.abs(k));
@@ -114,7 +131,12 @@ export function plus(spectrum: ArrayLike<number>, noise: ArrayLike<number>): Flo
  */
 export function saturatingBand(
   grid: Float64Array,
-  band: { lines: ReadonlyArray<{ centre: number; strength: number }>; lineHwhm: number; kernelHwhm: number; column: number },
+  band: {
+    lines: ReadonlyArray<{ centre: number; strength: number }>;
+    lineHwhm: number;
+    kernelHwhm: number;
+    column: number;
+  },
 ): Float64Array {
   const step = grid[1]! - grid[0]!;
   const oversample = 20;
@@ -128,7 +150,7 @@ export function saturatingBand(
     let tau = 0;
     for (const line of band.lines) {
       const u = (nu - line.centre) / band.lineHwhm;
-      tau += (line.strength / (Math.PI * band.lineHwhm)) / (1 + u * u);
+      tau += line.strength / (Math.PI * band.lineHwhm) / (1 + u * u);
     }
     transmittance[i] = Math.exp(-band.column * tau);
   }
@@ -168,9 +190,27 @@ export interface MixtureScenario {
 export function overlappingMixture(): MixtureScenario {
   const grid = uniformGrid(2000, 2250, 0.5);
   const n = grid.length;
-  const co = combine([2100, 2110, 2120].map((centre, k) => ({ spectrum: lorentzianBand(grid, { centre, hwhm: 3, peak: 0.005 * (1 - 0.2 * k) }), weight: 1 })), n);
-  const n2o = combine([2105, 2115, 2125].map((centre, k) => ({ spectrum: lorentzianBand(grid, { centre, hwhm: 4, peak: 0.006 * (1 - 0.15 * k) }), weight: 1 })), n);
-  const h2o = combine([2130, 2180].map((centre) => ({ spectrum: gaussianBand(grid, { centre, hwhm: 5, peak: 1e-4 }), weight: 1 })), n);
+  const co = combine(
+    [2100, 2110, 2120].map((centre, k) => ({
+      spectrum: lorentzianBand(grid, { centre, hwhm: 3, peak: 0.005 * (1 - 0.2 * k) }),
+      weight: 1,
+    })),
+    n,
+  );
+  const n2o = combine(
+    [2105, 2115, 2125].map((centre, k) => ({
+      spectrum: lorentzianBand(grid, { centre, hwhm: 4, peak: 0.006 * (1 - 0.15 * k) }),
+      weight: 1,
+    })),
+    n,
+  );
+  const h2o = combine(
+    [2130, 2180].map((centre) => ({
+      spectrum: gaussianBand(grid, { centre, hwhm: 5, peak: 1e-4 }),
+      weight: 1,
+    })),
+    n,
+  );
   const pure = [co, n2o, h2o];
   return {
     grid,
@@ -180,7 +220,11 @@ export function overlappingMixture(): MixtureScenario {
       { name: 'H2O', reported: false, unit: 'ppm' },
     ],
     pure,
-    spectrumOf: (concentrations, phi = 1) => combine(pure.map((spectrum, j) => ({ spectrum, weight: concentrations[j]! * phi })), n),
+    spectrumOf: (concentrations, phi = 1) =>
+      combine(
+        pure.map((spectrum, j) => ({ spectrum, weight: concentrations[j]! * phi })),
+        n,
+      ),
   };
 }
 

@@ -26,11 +26,14 @@ const cases = readdirSync(join(root, 'csvs'))
 function readCase(name: string): Record<string, string>[] {
   const path = join(root, 'csvs', `${name}.csv`);
   const table = parseTable(decodeText(readFileSync(path), path), `${name}.csv`);
-  return table.rows.map((row) => Object.fromEntries(table.columns.map((column) => [column, row.cells.get(column.toLowerCase()) ?? ''])));
+  return table.rows.map((row) =>
+    Object.fromEntries(table.columns.map((column) => [column, row.cells.get(column.toLowerCase()) ?? ''])),
+  );
 }
 
 function expected(name: string): Record<string, string>[] {
-  const parsed = JSON.parse(readFileSync(join(root, 'json', `${name}.json`), 'utf8')) as Record<string, string> | Record<string, string>[];
+  const parsed = JSON.parse(readFileSync(join(root, 'json', `${name}.json`), 'utf8')) as
+    Record<string, string> | Record<string, string>[];
   return Array.isArray(parsed) ? parsed : [parsed];
 }
 
@@ -39,19 +42,35 @@ let passed = 0;
 describe(`csv-spectrum 2.0.0 through parseTable (${cases.length} cases)`, () => {
   it('ships the twelve cases this test was written against', () => {
     expect(cases).toEqual([
-      'comma_in_quotes', 'empty', 'empty_crlf', 'escaped_quotes', 'json', 'location_coordinates',
-      'newlines', 'newlines_crlf', 'quotes_and_newlines', 'simple', 'simple_crlf', 'utf8',
+      'comma_in_quotes',
+      'empty',
+      'empty_crlf',
+      'escaped_quotes',
+      'json',
+      'location_coordinates',
+      'newlines',
+      'newlines_crlf',
+      'quotes_and_newlines',
+      'simple',
+      'simple_crlf',
+      'utf8',
     ]);
   });
 
-  it.each(cases.filter((name) => name !== 'location_coordinates'))('%s: same rows and cells as its JSON', (name) => {
-    expect(readCase(name)).toEqual(expected(name));
-    passed++;
-  });
+  it.each(cases.filter((name) => name !== 'location_coordinates'))(
+    '%s: same rows and cells as its JSON',
+    (name) => {
+      expect(readCase(name)).toEqual(expected(name));
+      passed++;
+    },
+  );
 
-  it('location_coordinates: same cells as its JSON except the phone number, which is the CSV\'s own', () => {
+  it("location_coordinates: same cells as its JSON except the phone number, which is the CSV's own", () => {
     const [row] = readCase('location_coordinates');
-    const { 'Contact Phone Number': phone, ...rest } = expected('location_coordinates')[0] as Record<string, string>;
+    const { 'Contact Phone Number': phone, ...rest } = expected('location_coordinates')[0] as Record<
+      string,
+      string
+    >;
     expect(phone).toBe('1234567890');
     expect(row?.['Contact Phone Number']).toBe('2095257564');
     const { 'Contact Phone Number': _ours, ...ourRest } = row as Record<string, string>;
@@ -59,12 +78,15 @@ describe(`csv-spectrum 2.0.0 through parseTable (${cases.length} cases)`, () => 
     passed++;
   });
 
-  it.each(['newlines', 'newlines_crlf', 'quotes_and_newlines'])('%s: each row keeps the line it starts on, after cells that span lines', (name) => {
-    const path = join(root, 'csvs', `${name}.csv`);
-    const table = parseTable(decodeText(readFileSync(path), path), `${name}.csv`);
-    // Line numbers read off the shipped files: a quoted cell spanning two (three) lines pushes the next row down.
-    expect(table.rows.map((row) => row.line)).toEqual(name === 'quotes_and_newlines' ? [2, 5] : [2, 3, 5]);
-  });
+  it.each(['newlines', 'newlines_crlf', 'quotes_and_newlines'])(
+    '%s: each row keeps the line it starts on, after cells that span lines',
+    (name) => {
+      const path = join(root, 'csvs', `${name}.csv`);
+      const table = parseTable(decodeText(readFileSync(path), path), `${name}.csv`);
+      // Line numbers read off the shipped files: a quoted cell spanning two (three) lines pushes the next row down.
+      expect(table.rows.map((row) => row.line)).toEqual(name === 'quotes_and_newlines' ? [2, 5] : [2, 3, 5]);
+    },
+  );
 
   it('counts the cases that passed', () => {
     console.log(`csv-spectrum: ${passed} of ${cases.length} cases passed through parseTable`);

@@ -16,11 +16,19 @@ describe('parseTable', () => {
     const table = parseTable('scan;CO_ppm\na.csv;10,5\n', 'm.csv');
     expect(table.delimiter).toBe(';');
     expect(table.decimalComma).toBe(true);
-    expect(parseNumberCell(table.rows[0]!.cells.get('co_ppm')!, { file: 'm.csv', line: 2, column: 'CO_ppm' }, { decimalComma: true })).toBe(10.5);
+    expect(
+      parseNumberCell(
+        table.rows[0]!.cells.get('co_ppm')!,
+        { file: 'm.csv', line: 2, column: 'CO_ppm' },
+        { decimalComma: true },
+      ),
+    ).toBe(10.5);
   });
 
   it('refuses duplicate columns and ragged rows with the line', () => {
-    expect(() => parseTable('scan,scan\na,b\n', 'm.csv')).toThrow(/m.csv line 1: column "scan" appears twice/);
+    expect(() => parseTable('scan,scan\na,b\n', 'm.csv')).toThrow(
+      /m.csv line 1: column "scan" appears twice/,
+    );
     expect(() => parseTable('scan,CO_ppm\na\n', 'm.csv')).toThrow(/m.csv line 2: 1 cells, the header has 2/);
     expect(() => parseTable('\n\n', 'm.csv')).toThrow(/empty/);
   });
@@ -28,7 +36,9 @@ describe('parseTable', () => {
 
 describe('parseNumberCell', () => {
   it.each(['NaN', 'abc', '1e400', '', '1,000', 'Infinity', '0x10'])('refuses %j naming the cell', (text) => {
-    expect(() => parseNumberCell(text, { file: 'm.csv', line: 3, column: 'CO_ppm' })).toThrow(/m.csv line 3: CO_ppm = /);
+    expect(() => parseNumberCell(text, { file: 'm.csv', line: 3, column: 'CO_ppm' })).toThrow(
+      /m.csv line 3: CO_ppm = /,
+    );
   });
   it('accepts plain and exponent forms', () => {
     expect(parseNumberCell('-1.5e-3', { file: 'f', line: 1, column: 'c' })).toBe(-0.0015);
@@ -45,9 +55,16 @@ describe('formatCsv', () => {
   });
 
   it('writes RFC 4180 quoting that papaparse reads back to the same cells (papaparse as the reference reader)', () => {
-    const rows = [['a,b', 'say "hi"', 1.25], ['line\nbreak', '', -3]];
+    const rows = [
+      ['a,b', 'say "hi"', 1.25],
+      ['line\nbreak', '', -3],
+    ];
     const text = formatCsv(['x', 'y', 'z'], rows);
     const parsed = Papa.parse<string[]>(text.trimEnd(), { header: false }).data;
-    expect(parsed).toEqual([['x', 'y', 'z'], ['a,b', 'say "hi"', '1.25'], ['line\nbreak', '', '-3']]);
+    expect(parsed).toEqual([
+      ['x', 'y', 'z'],
+      ['a,b', 'say "hi"', '1.25'],
+      ['line\nbreak', '', '-3'],
+    ]);
   });
 });

@@ -18,14 +18,19 @@ const at = (name: string) => join(folder.path, name);
 
 /** The pid of a process that has exited (a child that ran and ended). */
 function deadPid(): number {
-  const child = spawnSync(process.execPath, ['-e', 'process.stdout.write(String(process.pid))'], { encoding: 'utf8' });
+  const child = spawnSync(process.execPath, ['-e', 'process.stdout.write(String(process.pid))'], {
+    encoding: 'utf8',
+  });
   return Number(child.stdout);
 }
 
 describe('withFileLock', () => {
   it('holds the lock during the action (with its owner) and removes it after', () => {
     const lock = at('a.lock');
-    const seen = withFileLock(lock, () => JSON.parse(readFileSync(lock, 'utf8')) as { pid: number; host: string });
+    const seen = withFileLock(
+      lock,
+      () => JSON.parse(readFileSync(lock, 'utf8')) as { pid: number; host: string },
+    );
     expect(seen.pid).toBe(process.pid);
     expect(seen.host).toBe(hostname());
     expect(existsSync(lock)).toBe(false);
@@ -51,7 +56,10 @@ describe('withFileLock', () => {
 
   it('breaks a lock older than the stale age even when its owner seems alive (pid reuse, another host)', () => {
     const lock = at('d.lock');
-    writeFileSync(lock, JSON.stringify({ pid: process.ppid, host: 'another-host', time: '2026-09-01T09:30:00.000Z' }));
+    writeFileSync(
+      lock,
+      JSON.stringify({ pid: process.ppid, host: 'another-host', time: '2026-09-01T09:30:00.000Z' }),
+    );
     const old = new Date(Date.now() - 120_000);
     utimesSync(lock, old, old);
     expect(withFileLock(lock, () => 'ran', { staleMs: 30_000, timeoutMs: 2000 })).toBe('ran');
@@ -79,13 +87,19 @@ describe('withFileLock', () => {
         },
         { timeoutMs: 150, retryMs: 10 },
       ),
-    ).toThrow(new RegExp(`f\\.lock: locked by process ${owner.pid} on ${hostname().replace(/[.*+?^${}()|[\]\\]/g, '\\$&')} since 2026-09-01T09:30:00.000Z for more than 150 ms; if no other bandwright command is writing this history, delete the lock file and retry`));
+    ).toThrow(
+      new RegExp(
+        `f\\.lock: locked by process ${owner.pid} on ${hostname().replace(/[.*+?^${}()|[\]\\]/g, '\\$&')} since 2026-09-01T09:30:00.000Z for more than 150 ms; if no other bandwright command is writing this history, delete the lock file and retry`,
+      ),
+    );
     expect(ran).toBe(false);
     // The other owner's lock is left alone.
     expect(JSON.parse(readFileSync(lock, 'utf8'))).toEqual(owner);
   });
 
   it('refuses, naming the file, when the lock cannot be created', () => {
-    expect(() => withFileLock(at('no-such-folder/x.lock'), () => 1)).toThrow(/no-such-folder\/x\.lock: cannot create the lock file/);
+    expect(() => withFileLock(at('no-such-folder/x.lock'), () => 1)).toThrow(
+      /no-such-folder\/x\.lock: cannot create the lock file/,
+    );
   });
 });

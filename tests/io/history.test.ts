@@ -57,26 +57,40 @@ function record(extra: Partial<CheckRecord> = {}): CheckRecord {
   };
 }
 
-const text = (records: CheckRecord[], sha = SHA) => formatHistoryHeader(sha, 'lab-co.calibration.json') + records.map(formatHistoryRecord).join('');
+const text = (records: CheckRecord[], sha = SHA) =>
+  formatHistoryHeader(sha, 'lab-co.calibration.json') + records.map(formatHistoryRecord).join('');
 
 describe('format', () => {
   it('names the history after the calibration', () => {
-    expect(historyPathFor('calibrations/lab-co.calibration.json')).toBe('calibrations/lab-co.calibration.history.csv');
+    expect(historyPathFor('calibrations/lab-co.calibration.json')).toBe(
+      'calibrations/lab-co.calibration.history.csv',
+    );
     expect(historyPathFor('cal.JSON')).toBe('cal.history.csv');
     expect(historyPathFor('calibration')).toBe('calibration.history.csv');
   });
 
   it('starts with the calibration hash and the format, then the header, one record per line', () => {
-    const lines = text([record(), record({ time: '2026-09-08T09:30:00.000Z', verdict: 'warning', rules: ['1-2s'] })]).split('\n');
-    expect(lines[0]).toBe(`# bandwright check history; format 1; calibration sha256 ${SHA}; file lab-co.calibration.json`);
+    const lines = text([
+      record(),
+      record({ time: '2026-09-08T09:30:00.000Z', verdict: 'warning', rules: ['1-2s'] }),
+    ]).split('\n');
+    expect(lines[0]).toBe(
+      `# bandwright check history; format 1; calibration sha256 ${SHA}; file lab-co.calibration.json`,
+    );
     expect(lines[1]).toBe(HISTORY_COLUMNS.join(','));
     expect(lines).toHaveLength(5);
     expect(lines[4]).toBe('');
   });
 
   it('is CSV that papaparse reads cell for cell (after the comment line)', () => {
-    const records = [record({ scan: 'odd, "quoted" name.jdx' }), record({ rules: ['1-2s', '2-2s'], verdict: 'fail' })];
-    const parsed = Papa.parse<Record<string, string>>(text(records).split('\n').slice(1).join('\n'), { header: true, skipEmptyLines: true });
+    const records = [
+      record({ scan: 'odd, "quoted" name.jdx' }),
+      record({ rules: ['1-2s', '2-2s'], verdict: 'fail' }),
+    ];
+    const parsed = Papa.parse<Record<string, string>>(text(records).split('\n').slice(1).join('\n'), {
+      header: true,
+      skipEmptyLines: true,
+    });
     expect(parsed.errors).toEqual([]);
     expect(parsed.data[0]?.scan).toBe('odd, "quoted" name.jdx');
     expect(parsed.data[0]?.measured).toBe('100.73720425717934');
@@ -93,7 +107,12 @@ describe('format', () => {
   });
 
   it('writes negative numbers as numbers (not guarded) and unbounded interval ends as empty cells', () => {
-    const zero = record({ certified: 0, measured: -0.42, low: Number.NEGATIVE_INFINITY, high: Number.POSITIVE_INFINITY });
+    const zero = record({
+      certified: 0,
+      measured: -0.42,
+      low: Number.NEGATIVE_INFINITY,
+      high: Number.POSITIVE_INFINITY,
+    });
     const { recoveryPct: _r, z: _z, sigmaPct: _s, ...withoutOptional } = zero;
     const line = formatHistoryRecord(withoutOptional);
     expect(line).toContain(',0,-0.42,,,');
@@ -128,15 +147,23 @@ describe('format', () => {
   });
 
   it('refuses a scan path with a line break (a record is one line)', () => {
-    expect(() => formatHistoryRecord(record({ scan: 'a\nb.jdx' }))).toThrow(/scan = "a\\nb.jdx": a line break cannot be kept in the history/);
+    expect(() => formatHistoryRecord(record({ scan: 'a\nb.jdx' }))).toThrow(
+      /scan = "a\\nb.jdx": a line break cannot be kept in the history/,
+    );
   });
 });
 
 describe('damaged histories are reported with the line, never dropped or merged', () => {
   it('reports a torn last line (no end of line) with its number and content', () => {
-    const whole = text([record(), record({ time: '2026-09-08T09:30:00.000Z' }), record({ time: '2026-09-15T09:30:00.000Z' })]);
+    const whole = text([
+      record(),
+      record({ time: '2026-09-08T09:30:00.000Z' }),
+      record({ time: '2026-09-15T09:30:00.000Z' }),
+    ]);
     const torn = whole.slice(0, whole.length - 40);
-    expect(() => parseHistory(torn, 'lab.history.csv')).toThrow(/^lab\.history\.csv line 5: the last line is incomplete \(no end of line\), a record torn when a recheck was interrupted: "2026-09-15T09:30:00\.000Z,/);
+    expect(() => parseHistory(torn, 'lab.history.csv')).toThrow(
+      /^lab\.history\.csv line 5: the last line is incomplete \(no end of line\), a record torn when a recheck was interrupted: "2026-09-15T09:30:00\.000Z,/,
+    );
     try {
       parseHistory(torn, 'lab.history.csv');
     } catch (error) {
@@ -145,22 +172,32 @@ describe('damaged histories are reported with the line, never dropped or merged'
   });
 
   it('reports a whole record missing only its end of line as torn too', () => {
-    expect(() => parseHistory(text([record()]).slice(0, -1), 'h.csv')).toThrow(/h\.csv line 3: the last line is incomplete/);
+    expect(() => parseHistory(text([record()]).slice(0, -1), 'h.csv')).toThrow(
+      /h\.csv line 3: the last line is incomplete/,
+    );
   });
 
   it('reports a damaged record inside the file by its line', () => {
     const lines = text([record(), record(), record()]).split('\n');
     lines[3] = lines[3]?.split(',').slice(0, 10).join(',') as string;
-    expect(() => parseHistory(lines.join('\n'), 'h.csv')).toThrow(/^h\.csv line 4: 10 cells, a record has 19/);
+    expect(() => parseHistory(lines.join('\n'), 'h.csv')).toThrow(
+      /^h\.csv line 4: 10 cells, a record has 19/,
+    );
   });
 
   it('reports a bad cell by line and column', () => {
     const bad = text([record()]).replace(',pass,', ',passed,');
-    expect(() => parseHistory(bad, 'h.csv')).toThrow('h.csv line 3: verdict = "passed", must be one of pass, warning, fail');
+    expect(() => parseHistory(bad, 'h.csv')).toThrow(
+      'h.csv line 3: verdict = "passed", must be one of pass, warning, fail',
+    );
     const badNumber = text([record()]).replace(',100.73720425717934,98.1', ',abc,98.1');
-    expect(() => parseHistory(badNumber, 'h.csv')).toThrow(/h\.csv line 3: measured = "abc", must be a number/);
+    expect(() => parseHistory(badNumber, 'h.csv')).toThrow(
+      /h\.csv line 3: measured = "abc", must be a number/,
+    );
     const badTime = text([record()]).replace('2026-09-01T09:30:00.000Z', '01/09/2026');
-    expect(() => parseHistory(badTime, 'h.csv')).toThrow(/h\.csv line 3: time = "01\/09\/2026", must be an ISO 8601 UTC time/);
+    expect(() => parseHistory(badTime, 'h.csv')).toThrow(
+      /h\.csv line 3: time = "01\/09\/2026", must be an ISO 8601 UTC time/,
+    );
   });
 
   it('reports a blank line', () => {
@@ -170,11 +207,17 @@ describe('damaged histories are reported with the line, never dropped or merged'
   });
 
   it('refuses a history of another calibration, a newer format, and a missing or wrong first line', () => {
-    expect(() => parseHistory(text([record()], OTHER), 'h.csv', { calibrationSha256: SHA, calibrationFile: 'lab.json' })).toThrow(
+    expect(() =>
+      parseHistory(text([record()], OTHER), 'h.csv', { calibrationSha256: SHA, calibrationFile: 'lab.json' }),
+    ).toThrow(
       /h\.csv line 1: this history belongs to the calibration with sha256 dddddddddddd…, but lab\.json has sha256 cccccccccccc…: the calibration was rebuilt/,
     );
-    expect(() => parseHistory(text([record()]).replace('format 1', 'format 2'), 'h.csv')).toThrow(/history format 2 is newer than this tool reads/);
-    expect(() => parseHistory(text([record()]).split('\n').slice(1).join('\n'), 'h.csv')).toThrow(/h\.csv line 1: .* is not a bandwright history first line/);
+    expect(() => parseHistory(text([record()]).replace('format 1', 'format 2'), 'h.csv')).toThrow(
+      /history format 2 is newer than this tool reads/,
+    );
+    expect(() => parseHistory(text([record()]).split('\n').slice(1).join('\n'), 'h.csv')).toThrow(
+      /h\.csv line 1: .* is not a bandwright history first line/,
+    );
     expect(() => parseHistory('', 'h.csv')).toThrow(/h\.csv line 1: empty/);
   });
 
@@ -187,10 +230,17 @@ describe('damaged histories are reported with the line, never dropped or merged'
 describe('appending', () => {
   it('creates the history with its first line and header, then appends one line per record', () => {
     const path = at('new.history.csv');
-    const first = appendHistoryRecord(path, { calibrationSha256: SHA, calibrationFile: 'new.json', complete: (records) => record({ measured: records.length }) });
+    const first = appendHistoryRecord(path, {
+      calibrationSha256: SHA,
+      calibrationFile: 'new.json',
+      complete: (records) => record({ measured: records.length }),
+    });
     expect(first).toMatchObject({ created: true, previous: [] });
     expect(first.record.line).toBe(3);
-    const second = appendHistoryRecord(path, { calibrationSha256: SHA, complete: (records) => record({ measured: records.length }) });
+    const second = appendHistoryRecord(path, {
+      calibrationSha256: SHA,
+      complete: (records) => record({ measured: records.length }),
+    });
     expect(second.created).toBe(false);
     expect(second.record.line).toBe(4);
     const history = readHistory(path, { calibrationSha256: SHA });
@@ -224,31 +274,54 @@ describe('appending', () => {
     const path = at('other.history.csv');
     const content = text([record()], OTHER);
     writeFileSync(path, content);
-    expect(() => appendHistoryRecord(path, { calibrationSha256: SHA, complete: () => record() })).toThrow(/belongs to the calibration with sha256 dddddddddddd…/);
+    expect(() => appendHistoryRecord(path, { calibrationSha256: SHA, complete: () => record() })).toThrow(
+      /belongs to the calibration with sha256 dddddddddddd…/,
+    );
     expect(readFileSync(path, 'utf8')).toBe(content);
   });
 
   it('reads a missing history as none, but reports other problems', () => {
     expect(readHistoryIfExists(at('absent.history.csv'))).toBeUndefined();
     writeFileSync(at('junk.history.csv'), 'not a history\n');
-    expect(() => readHistoryIfExists(at('junk.history.csv'))).toThrow(/is not a bandwright history first line/);
+    expect(() => readHistoryIfExists(at('junk.history.csv'))).toThrow(
+      /is not a bandwright history first line/,
+    );
   });
 });
 
 describe('check lists', () => {
   it('reads scan, certified_<unit> and measured_at, with scans relative to the list', () => {
-    writeFileSync(at('checks.csv'), 'scan,certified_ppm,measured_at\nchecks/a.jdx,100,2026-09-01T09:30:00.000Z\nchecks/b.jdx,0,2026-09-08T11:30:00+02:00\n');
+    writeFileSync(
+      at('checks.csv'),
+      'scan,certified_ppm,measured_at\nchecks/a.jdx,100,2026-09-01T09:30:00.000Z\nchecks/b.jdx,0,2026-09-08T11:30:00+02:00\n',
+    );
     expect(readCheckList(at('checks.csv'))).toEqual([
-      { line: 2, scan: join(folder.path, 'checks/a.jdx'), certified: 100, unit: 'ppm', measuredAt: '2026-09-01T09:30:00.000Z' },
-      { line: 3, scan: join(folder.path, 'checks/b.jdx'), certified: 0, unit: 'ppm', measuredAt: '2026-09-08T09:30:00.000Z' },
+      {
+        line: 2,
+        scan: join(folder.path, 'checks/a.jdx'),
+        certified: 100,
+        unit: 'ppm',
+        measuredAt: '2026-09-01T09:30:00.000Z',
+      },
+      {
+        line: 3,
+        scan: join(folder.path, 'checks/b.jdx'),
+        certified: 0,
+        unit: 'ppm',
+        measuredAt: '2026-09-08T09:30:00.000Z',
+      },
     ]);
   });
 
   it('refuses missing columns, a time without a zone, and a negative certified value, naming the line', () => {
     writeFileSync(at('c1.csv'), 'scan,measured_at\na.jdx,2026-09-01T09:30:00Z\n');
-    expect(() => readCheckList(at('c1.csv'))).toThrow(/c1\.csv line 1: a check list needs the columns scan, certified_<ppm\|ppb\|pct> \(one\) and measured_at/);
+    expect(() => readCheckList(at('c1.csv'))).toThrow(
+      /c1\.csv line 1: a check list needs the columns scan, certified_<ppm\|ppb\|pct> \(one\) and measured_at/,
+    );
     writeFileSync(at('c2.csv'), 'scan,certified_ppm,measured_at\na.jdx,100,2026-09-01T09:30\n');
-    expect(() => readCheckList(at('c2.csv'))).toThrow(/c2\.csv line 2: measured_at = "2026-09-01T09:30", must be an ISO 8601 time with a zone/);
+    expect(() => readCheckList(at('c2.csv'))).toThrow(
+      /c2\.csv line 2: measured_at = "2026-09-01T09:30", must be an ISO 8601 time with a zone/,
+    );
     writeFileSync(at('c3.csv'), 'scan,certified_ppm,measured_at\na.jdx,-5,2026-09-01T09:30:00Z\n');
     expect(() => readCheckList(at('c3.csv'))).toThrow(/c3\.csv line 2: certified_ppm = -5, must be >= 0/);
   });

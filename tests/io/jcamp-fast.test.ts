@@ -18,9 +18,30 @@ import { formatJcamp } from '../../src/io/jcamp-write.js';
 import type { Spectrum } from '../../src/spectrum/spectrum.js';
 
 const SEED = 20261202;
-const fixtureText = (name: string): string => readFileSync(new URL(`../fixtures/spectra/${name}`, import.meta.url), 'utf8');
+const fixtureText = (name: string): string =>
+  readFileSync(new URL(`../fixtures/spectra/${name}`, import.meta.url), 'utf8');
 
-const SQZ_VALUE: Record<string, string> = { '@': '0', A: '1', B: '2', C: '3', D: '4', E: '5', F: '6', G: '7', H: '8', I: '9', a: '-1', b: '-2', c: '-3', d: '-4', e: '-5', f: '-6', g: '-7', h: '-8', i: '-9' };
+const SQZ_VALUE: Record<string, string> = {
+  '@': '0',
+  A: '1',
+  B: '2',
+  C: '3',
+  D: '4',
+  E: '5',
+  F: '6',
+  G: '7',
+  H: '8',
+  I: '9',
+  a: '-1',
+  b: '-2',
+  c: '-3',
+  d: '-4',
+  e: '-5',
+  f: '-6',
+  g: '-7',
+  h: '-8',
+  i: '-9',
+};
 
 /** The same file with the first ordinate of each XYDATA line written as an AFFN integer between blanks. */
 function withAffnFirstOrdinates(text: string): { text: string; rewritten: number } {
@@ -57,7 +78,9 @@ function expectSameSpectrum(actual: Spectrum, expected: Spectrum, label: string)
   expect(actual.x.length, `${label}: points`).toBe(expected.x.length);
   for (let i = 0; i < expected.x.length; i++) {
     if (!Object.is(actual.x[i], expected.x[i]) || !Object.is(actual.y[i], expected.y[i])) {
-      expect.fail(`${label} point ${i + 1}: expected (${expected.x[i]}, ${expected.y[i]}), got (${actual.x[i]}, ${actual.y[i]}) (exact)`);
+      expect.fail(
+        `${label} point ${i + 1}: expected (${expected.x[i]}, ${expected.y[i]}), got (${actual.x[i]}, ${actual.y[i]}) (exact)`,
+      );
     }
   }
   expect(actual.yKind).toBe(expected.yKind);
@@ -82,7 +105,11 @@ function expectSameBothWays(text: string, label: string, options: { maxPoints?: 
 
 /** Ordinates with runs (DUP), steps (DIF) and zeros, as integers times 1e-4 AU. */
 const ordinates = fc.array(
-  fc.oneof(fc.integer({ min: -99_999, max: 99_999 }), fc.constantFrom(0, 1, -1), fc.integer({ min: -3, max: 3 }).map((v) => v * 1000)),
+  fc.oneof(
+    fc.integer({ min: -99_999, max: 99_999 }),
+    fc.constantFrom(0, 1, -1),
+    fc.integer({ min: -3, max: 3 }).map((v) => v * 1000),
+  ),
   { minLength: 2, maxLength: 600 },
 );
 
@@ -100,29 +127,48 @@ describe('JCAMP-DX single-pass ASDF lines against the general token loop', () =>
 
   it('random DIF/DUP and SQZ files from our writer: identical spectra (fixed seed)', () => {
     fc.assert(
-      fc.property(ordinates, fc.constantFrom(0.5, -0.5, 0.24287449103507394, 1.9285), fc.constantFrom<'dif-dup' | 'sqz'>('dif-dup', 'sqz'), (values, step, compression) => {
-        const text = formatJcamp(spectrumOf(values, 600, step), { title: 't', compression, yFactor: 1e-4 });
-        expectSameBothWays(text, `${compression}, ${values.length} points, step ${step}`);
-      }),
+      fc.property(
+        ordinates,
+        fc.constantFrom(0.5, -0.5, 0.24287449103507394, 1.9285),
+        fc.constantFrom<'dif-dup' | 'sqz'>('dif-dup', 'sqz'),
+        (values, step, compression) => {
+          const text = formatJcamp(spectrumOf(values, 600, step), { title: 't', compression, yFactor: 1e-4 });
+          expectSameBothWays(text, `${compression}, ${values.length} points, step ${step}`);
+        },
+      ),
       { seed: SEED, numRuns: 300 },
     );
   });
 
   it('a 14,000-point DIF/DUP scan: identical, and the values match jcampconverter', () => {
-    const values = Array.from({ length: 14_000 }, (_, i) => Math.round(8000 * Math.exp(-(((i - 5000) / 300) ** 2)) + 40 * Math.sin(i / 3)));
-    const text = formatJcamp(spectrumOf(values, 600, 3400 / 13_999), { title: 't', compression: 'dif-dup', yFactor: 1e-4 });
+    const values = Array.from({ length: 14_000 }, (_, i) =>
+      Math.round(8000 * Math.exp(-(((i - 5000) / 300) ** 2)) + 40 * Math.sin(i / 3)),
+    );
+    const text = formatJcamp(spectrumOf(values, 600, 3400 / 13_999), {
+      title: 't',
+      compression: 'dif-dup',
+      yFactor: 1e-4,
+    });
     expectSameBothWays(text, '14,000 points');
     const ours = parseJcamp(text, { source: 'f.jdx' });
     const theirs = convert(text).flatten[0]?.spectra[0]?.data as { x: number[]; y: number[] };
     // Same integers times the same YFACTOR: equal within one rounding of the product.
-    for (let i = 0; i < ours.y.length; i++) expect(Math.abs((ours.y[i] as number) - (theirs.y[i] as number))).toBeLessThanOrEqual(1e-15 * Math.max(1, Math.abs(theirs.y[i] as number)));
+    for (let i = 0; i < ours.y.length; i++)
+      expect(Math.abs((ours.y[i] as number) - (theirs.y[i] as number))).toBeLessThanOrEqual(
+        1e-15 * Math.max(1, Math.abs(theirs.y[i] as number)),
+      );
   });
 
   it('damaged lines the single pass must hand on: the same refusal as before', () => {
     const header = (extra = ''): string =>
       `##TITLE=t\n##JCAMP-DX=5.01\n##XUNITS=1/CM\n##YUNITS=ABSORBANCE\n##XFACTOR=1\n##YFACTOR=1\n##FIRSTX=1000\n##LASTX=1009\n##NPOINTS=10\n${extra}##XYDATA=(X++(Y..Y))\n`;
     const read = (data: string, extra = '', maxPoints?: number): string => {
-      const result = outcome(() => parseJcamp(`${header(extra)}${data}\n##END=\n`, { source: 's.jdx', ...(maxPoints === undefined ? {} : { maxPoints }) }));
+      const result = outcome(() =>
+        parseJcamp(`${header(extra)}${data}\n##END=\n`, {
+          source: 's.jdx',
+          ...(maxPoints === undefined ? {} : { maxPoints }),
+        }),
+      );
       return result.error ?? 'accepted';
     };
     // Each as written by hand from the ASDF rules (JCAMP-DX 5.01): the general loop's wording.
@@ -140,8 +186,18 @@ describe('JCAMP-DX single-pass ASDF lines against the general token loop', () =>
     const file = (fields: string, x: string): string =>
       `##TITLE=t\n##JCAMP-DX=5.01\n##XUNITS=1/CM\n##YUNITS=ABSORBANCE\n##XFACTOR=1\n${fields}##NPOINTS=4\n##XYDATA=(X++(Y..Y))\n${x}AJJJ\n##END=\n`;
     // 1e17 + 1 rounds back to 1e17 in IEEE doubles (spacing 16 there): a repeated x.
-    expect(outcome(() => parseJcamp(file('##YFACTOR=1\n##FIRSTX=1E17\n##DELTAX=1\n', '100000000000000000'), { source: 's.jdx' })).error).toMatch(/^NOT_MONOTONIC .*duplicate x value/);
+    expect(
+      outcome(() =>
+        parseJcamp(file('##YFACTOR=1\n##FIRSTX=1E17\n##DELTAX=1\n', '100000000000000000'), {
+          source: 's.jdx',
+        }),
+      ).error,
+    ).toMatch(/^NOT_MONOTONIC .*duplicate x value/);
     // 4 × 1e308 overflows a double.
-    expect(outcome(() => parseJcamp(file('##YFACTOR=1E308\n##FIRSTX=1000\n##DELTAX=1\n', '1000'), { source: 's.jdx' })).error).toMatch(/^INVALID_VALUE .*must be finite/);
+    expect(
+      outcome(() =>
+        parseJcamp(file('##YFACTOR=1E308\n##FIRSTX=1000\n##DELTAX=1\n', '1000'), { source: 's.jdx' }),
+      ).error,
+    ).toMatch(/^INVALID_VALUE .*must be finite/);
   });
 });

@@ -16,7 +16,11 @@ afterAll(() => folder.cleanup());
 
 describe('replace mode', () => {
   it('streams rows into the partial file and renames it into place on commit', () => {
-    const writer = openResultsWriter(at('r.csv'), { mode: 'replace', header: 'scan,CO_ppm\n', flushIntervalMs: 0 });
+    const writer = openResultsWriter(at('r.csv'), {
+      mode: 'replace',
+      header: 'scan,CO_ppm\n',
+      flushIntervalMs: 0,
+    });
     expect(writer.writingPath).toBe(partialResultsPath(at('r.csv')));
     expect(writer.writingPath).toBe(at(`.r.csv.partial-${process.pid}`));
     writer.write('a.jdx,1\n');
@@ -32,7 +36,12 @@ describe('replace mode', () => {
 
   it('buffers small rows until the buffer or the interval is reached', () => {
     let clock = 0;
-    const writer = openResultsWriter(at('b.jsonl'), { mode: 'replace', bufferCharacters: 10, flushIntervalMs: 100, now: () => clock });
+    const writer = openResultsWriter(at('b.jsonl'), {
+      mode: 'replace',
+      bufferCharacters: 10,
+      flushIntervalMs: 100,
+      now: () => clock,
+    });
     writer.write('{"a":1}\n');
     expect(readFileSync(writer.writingPath, 'utf8')).toBe('');
     writer.write('{"b":2}\n'); // 16 characters pending ≥ 10
@@ -46,7 +55,9 @@ describe('replace mode', () => {
 
   it('refuses an existing file without overwrite, keeps it intact, and replaces it with overwrite', () => {
     writeFileSync(at('old.csv'), 'previous\n');
-    expect(() => openResultsWriter(at('old.csv'), { mode: 'replace', header: 'scan\n' })).toThrow(/old\.csv exists; use --force to replace it/);
+    expect(() => openResultsWriter(at('old.csv'), { mode: 'replace', header: 'scan\n' })).toThrow(
+      /old\.csv exists; use --force to replace it/,
+    );
     const writer = openResultsWriter(at('old.csv'), { mode: 'replace', header: 'scan\n', overwrite: true });
     writer.write('a\n');
     expect(readFileSync(at('old.csv'), 'utf8')).toBe('previous\n');
@@ -67,7 +78,9 @@ describe('replace mode', () => {
     const writer = openResultsWriter(at('race.csv'), { mode: 'replace', header: 'scan\n' });
     writer.write('a\n');
     writeFileSync(at('race.csv'), 'someone else\n');
-    expect(() => writer.commit()).toThrow(/race\.csv appeared while the results were written; they are kept in .*\.race\.csv\.partial-/);
+    expect(() => writer.commit()).toThrow(
+      /race\.csv appeared while the results were written; they are kept in .*\.race\.csv\.partial-/,
+    );
     expect(readFileSync(at('race.csv'), 'utf8')).toBe('someone else\n');
     expect(readFileSync(writer.writingPath, 'utf8')).toBe('scan\na\n');
   });
@@ -88,20 +101,26 @@ describe('append mode', () => {
 
   it("refuses a CSV whose header is not the calibration's, naming both", () => {
     writeFileSync(at('other.csv'), 'scan,NO_ppm\na,1\n');
-    expect(() => openResultsWriter(at('other.csv'), { mode: 'append', header: 'scan,CO_ppm\n' })).toThrow(/other\.csv line 1: the header "scan,NO_ppm" does not match this calibration's columns "scan,CO_ppm"/);
+    expect(() => openResultsWriter(at('other.csv'), { mode: 'append', header: 'scan,CO_ppm\n' })).toThrow(
+      /other\.csv line 1: the header "scan,NO_ppm" does not match this calibration's columns "scan,CO_ppm"/,
+    );
     expect(readFileSync(at('other.csv'), 'utf8')).toBe('scan,NO_ppm\na,1\n');
   });
 
   it('refuses a file whose last line was cut short', () => {
     writeFileSync(at('cut.csv'), 'scan,CO_ppm\na,1\nb,');
-    expect(() => assertAppendable(at('cut.csv'), 'scan,CO_ppm\n')).toThrow(/cut\.csv: the last line is incomplete/);
+    expect(() => assertAppendable(at('cut.csv'), 'scan,CO_ppm\n')).toThrow(
+      /cut\.csv: the last line is incomplete/,
+    );
   });
 
   it('accepts a JSON-lines file of results and refuses any other', () => {
     writeFileSync(at('ok.jsonl'), '{"scan":"a.jdx","gases":[],"calibrationSha256":"ab"}\n');
     expect(() => assertAppendable(at('ok.jsonl'), undefined)).not.toThrow();
     writeFileSync(at('notes.jsonl'), 'some notes\n');
-    expect(() => assertAppendable(at('notes.jsonl'), undefined)).toThrow(/notes\.jsonl line 1: not a bandwright results line/);
+    expect(() => assertAppendable(at('notes.jsonl'), undefined)).toThrow(
+      /notes\.jsonl line 1: not a bandwright results line/,
+    );
     writeFileSync(at('empty.jsonl'), '');
     expect(() => assertAppendable(at('empty.jsonl'), undefined)).not.toThrow();
   });

@@ -8,8 +8,21 @@ import { expandScanArguments, segmentToRegExp } from '../../src/io/scan-paths.js
 
 let root = '';
 const files = [
-  'a.csv', 'b.JDX', 'c.txt', 'notes.md', '.hidden.csv', 'q1.csv', 'q22.csv', 'x[1].csv', 'x1.csv',
-  'sub/d.csv', 'sub/deeper/e.jdx', 'sub/deeper/f.csv', 'sub/.hid/g.csv', 'other/h.dx', 'empty-of-scans/readme.md',
+  'a.csv',
+  'b.JDX',
+  'c.txt',
+  'notes.md',
+  '.hidden.csv',
+  'q1.csv',
+  'q22.csv',
+  'x[1].csv',
+  'x1.csv',
+  'sub/d.csv',
+  'sub/deeper/e.jdx',
+  'sub/deeper/f.csv',
+  'sub/.hid/g.csv',
+  'other/h.dx',
+  'empty-of-scans/readme.md',
 ];
 
 beforeAll(() => {
@@ -40,17 +53,37 @@ function expectNotFound(args: string[], fragment: string): void {
  */
 function bashGlob(pattern: string): string[] {
   const script = `shopt -s globstar nullglob; for f in ${pattern}; do [ -f "$f" ] && printf '%s\\n' "$f"; done; true`;
-  const out = execFileSync('bash', ['-c', script], { encoding: 'utf8', env: { ...process.env, LC_ALL: 'C' } });
-  return out.split('\n').filter((line) => line !== '').sort();
+  const out = execFileSync('bash', ['-c', script], {
+    encoding: 'utf8',
+    env: { ...process.env, LC_ALL: 'C' },
+  });
+  return out
+    .split('\n')
+    .filter((line) => line !== '')
+    .sort();
 }
 
 describe('expandScanArguments', () => {
   it('a folder gives its scan files sorted by name, not hidden ones nor other extensions, not subfolders', () => {
-    expect(expandScanArguments([root])).toEqual(['a.csv', 'b.JDX', 'c.txt', 'q1.csv', 'q22.csv', 'x1.csv', 'x[1].csv'].map((n) => `${root}/${n}`));
+    expect(expandScanArguments([root])).toEqual(
+      ['a.csv', 'b.JDX', 'c.txt', 'q1.csv', 'q22.csv', 'x1.csv', 'x[1].csv'].map((n) => `${root}/${n}`),
+    );
     expect(expandScanArguments([root], { extensions: ['.jdx', '.dx'] })).toEqual([`${root}/b.JDX`]);
   });
 
-  const patterns = ['*.csv', 'q?.csv', 'q[0-9]*.csv', '[!aq]*.csv', 'x[[]1].csv', '**/*.csv', 'sub/**/*.jdx', 'sub/**', '*/*', '**/*.[jd]*', '.h*'];
+  const patterns = [
+    '*.csv',
+    'q?.csv',
+    'q[0-9]*.csv',
+    '[!aq]*.csv',
+    'x[[]1].csv',
+    '**/*.csv',
+    'sub/**/*.jdx',
+    'sub/**',
+    '*/*',
+    '**/*.[jd]*',
+    '.h*',
+  ];
   for (const pattern of patterns) {
     it(`glob ${pattern} matches what bash matches`, () => {
       const ours = expandScanArguments([`${root}/${pattern}`]);
@@ -69,7 +102,14 @@ describe('expandScanArguments', () => {
   });
 
   it('keeps argument order, removes duplicates, passes - through', () => {
-    const result = expandScanArguments([`${root}/q1.csv`, '-', `${root}/q*.csv`, `${root}/./q1.csv`, `${root}/other`, '-']);
+    const result = expandScanArguments([
+      `${root}/q1.csv`,
+      '-',
+      `${root}/q*.csv`,
+      `${root}/./q1.csv`,
+      `${root}/other`,
+      '-',
+    ]);
     expect(result).toEqual([`${root}/q1.csv`, '-', `${root}/q22.csv`, `${root}/other/h.dx`]);
   });
 
@@ -87,7 +127,10 @@ describe('expandScanArguments', () => {
       writeFileSync(join(linked, 'real', 'a.csv'), 'x');
       symlinkSync(join(linked, 'real'), join(linked, 'loop'));
       symlinkSync(join(linked, 'real', 'a.csv'), join(linked, 'b.csv'));
-      expect(expandScanArguments([`${linked}/**/*.csv`])).toEqual([`${linked}/b.csv`, `${linked}/real/a.csv`]);
+      expect(expandScanArguments([`${linked}/**/*.csv`])).toEqual([
+        `${linked}/b.csv`,
+        `${linked}/real/a.csv`,
+      ]);
     } finally {
       rmSync(linked, { recursive: true, force: true });
     }

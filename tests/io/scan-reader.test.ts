@@ -17,9 +17,17 @@ const folder = temporaryFolder('bandwright-reader-');
 const at = (name: string) => join(folder.path, name);
 afterAll(() => folder.cleanup());
 
-function spectrum(n: number, offset: number, yKind: 'absorbance' | 'transmittance' = 'absorbance', descending = false): Spectrum {
+function spectrum(
+  n: number,
+  offset: number,
+  yKind: 'absorbance' | 'transmittance' = 'absorbance',
+  descending = false,
+): Spectrum {
   const x = Float64Array.from({ length: n }, (_, i) => 1900 + i * 0.5);
-  const y = Float64Array.from({ length: n }, (_, i) => (yKind === 'transmittance' ? 0.9 : 0) + offset + 1e-3 * Math.sin(i));
+  const y = Float64Array.from(
+    { length: n },
+    (_, i) => (yKind === 'transmittance' ? 0.9 : 0) + offset + 1e-3 * Math.sin(i),
+  );
   if (descending) {
     x.reverse();
     y.reverse();
@@ -34,7 +42,10 @@ beforeAll(() => {
   writeFileSync(at('t.jdx'), formatJcamp(makeSpectrum(spectrum(401, 0, 'transmittance')), { title: 't' }));
   // A descending table (read back reversed) and one without a y-kind in its header.
   const descending = spectrum(300, 0.03, 'absorbance', true);
-  writeFileSync(at('d.csv'), `x,y\n${Array.from(descending.x, (x, i) => `${x},${descending.y[i]}`).join('\n')}\n`);
+  writeFileSync(
+    at('d.csv'),
+    `x,y\n${Array.from(descending.x, (x, i) => `${x},${descending.y[i]}`).join('\n')}\n`,
+  );
   writeFileSync(at('bad.csv'), 'wavenumber_cm-1,absorbance\n2000,0.1\n2001,abc\n');
 });
 
@@ -68,7 +79,9 @@ describe('createScanReader', () => {
       [at('b.jdx'), { yKind: 'transmittance' as const }],
       [at('a.csv'), { maxBytes: 100 }],
     ] as const) {
-      expect(messageOf(() => createScanReader({ ...options, reuseOutput: true })(path))).toBe(messageOf(() => readScan(path, options)));
+      expect(messageOf(() => createScanReader({ ...options, reuseOutput: true })(path))).toBe(
+        messageOf(() => readScan(path, options)),
+      );
     }
   });
 

@@ -8,7 +8,8 @@ import { sha256OfBytes, sha256OfFile } from '../../src/io/hash.js';
 import { detectScanFormat, parseScan, readScan } from '../../src/io/scan.js';
 import { expectError } from '../helpers/expect.js';
 
-const fixture = (name: string): string => fileURLToPath(new URL(`../fixtures/spectra/${name}`, import.meta.url));
+const fixture = (name: string): string =>
+  fileURLToPath(new URL(`../fixtures/spectra/${name}`, import.meta.url));
 const bytesOf = (text: string): Uint8Array => new TextEncoder().encode(text);
 let folder = '';
 beforeAll(() => {
@@ -29,19 +30,33 @@ describe('parseScan: format by content, then extension', () => {
 
   it('a JCAMP-DX extension without ## content is read as JCAMP-DX, so the message says what is missing', () => {
     expect(detectScanFormat(table, 'scan.JDX')).toBe('jcamp');
-    expectError(() => parseScan(table, { source: 'scan.jdx' }), 'PARSE', 'scan.jdx line 1', 'starts with ##TITLE=');
+    expectError(
+      () => parseScan(table, { source: 'scan.jdx' }),
+      'PARSE',
+      'scan.jdx line 1',
+      'starts with ##TITLE=',
+    );
     expect(parseScan(table, { source: 'scan.jdx', format: 'csv' }).metadata.format).toBe('csv');
   });
 
   it('a y-kind option that contradicts the JCAMP-DX file is an error; one that agrees is fine', () => {
-    expectError(() => parseScan(jcamp, { source: 's.jdx', yKind: 'transmittance' }), 'PARSE', 'declares absorbance', 'transmittance');
+    expectError(
+      () => parseScan(jcamp, { source: 's.jdx', yKind: 'transmittance' }),
+      'PARSE',
+      'declares absorbance',
+      'transmittance',
+    );
     expect(parseScan(jcamp, { source: 's.jdx', yKind: 'absorbance' }).yKind).toBe('absorbance');
   });
 
   it('yKind, defaultYKind and maxPoints reach the table reader', () => {
     const bare = readFileSync(fixture('absorbance-no-header.csv'));
     expect(parseScan(bare, { source: 'n.csv', defaultYKind: 'absorbance' }).yKind).toBe('absorbance');
-    expectError(() => parseScan(bare, { source: 'n.csv', yKind: 'absorbance', maxPoints: 10 }), 'LIMIT', 'n.csv line 11');
+    expectError(
+      () => parseScan(bare, { source: 'n.csv', yKind: 'absorbance', maxPoints: 10 }),
+      'LIMIT',
+      'n.csv line 11',
+    );
     expectError(() => parseScan(jcamp, { source: 's.jdx', maxPoints: 10 }), 'LIMIT', 'more than 10');
   });
 });
@@ -64,7 +79,10 @@ describe('readScan: files and standard input', () => {
   it('- reads standard input to its end, labelled <stdin>', () => {
     const modulePath = fileURLToPath(new URL('../../src/io/scan.ts', import.meta.url));
     const script = `import { readScan } from ${JSON.stringify(modulePath)}; const s = readScan('-', {}); process.stdout.write(JSON.stringify({ n: s.x.length, source: s.metadata.source, y0: s.y[0] }));`;
-    const result = spawnSync(process.execPath, ['--import', 'tsx', '--input-type=module', '-e', script], { input: readFileSync(fixture('absorbance-sqz.jdx')), encoding: 'utf8' });
+    const result = spawnSync(process.execPath, ['--import', 'tsx', '--input-type=module', '-e', script], {
+      input: readFileSync(fixture('absorbance-sqz.jdx')),
+      encoding: 'utf8',
+    });
     expect(result.stderr).toBe('');
     expect(JSON.parse(result.stdout)).toEqual({ n: 20, source: '<stdin>', y0: 0.1 });
   });
@@ -73,8 +91,12 @@ describe('readScan: files and standard input', () => {
 describe('SHA-256', () => {
   // FIPS 180-2, Appendix B.1 ("abc") and the digest of the empty message.
   it('matches the published test vectors', () => {
-    expect(sha256OfBytes(bytesOf('abc'))).toBe('ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad');
-    expect(sha256OfBytes(new Uint8Array(0))).toBe('e3b0c44298fc1c149afbf4c8996fb92427ae41e4649b934ca495991b7852b855');
+    expect(sha256OfBytes(bytesOf('abc'))).toBe(
+      'ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad',
+    );
+    expect(sha256OfBytes(new Uint8Array(0))).toBe(
+      'e3b0c44298fc1c149afbf4c8996fb92427ae41e4649b934ca495991b7852b855',
+    );
     const path = join(folder, 'abc.txt');
     writeFileSync(path, 'abc');
     expect(sha256OfFile(path)).toBe('ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad');

@@ -8,7 +8,12 @@
 import { appendFileSync, mkdirSync, renameSync, statSync, utimesSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
-import { createFolderWatcher, openProcessedRecord, readProcessedRecord, type FileStamp } from '../../src/io/watch-folder.js';
+import {
+  createFolderWatcher,
+  openProcessedRecord,
+  readProcessedRecord,
+  type FileStamp,
+} from '../../src/io/watch-folder.js';
 import { temporaryFolder } from '../helpers/cli.js';
 
 const root = temporaryFolder('bandwright-watch-folder-');
@@ -70,7 +75,12 @@ describe('createFolderWatcher', () => {
     const folder = freshFolder();
     let clock = 0;
     const processed = new Map<string, FileStamp>();
-    const watcher = createFolderWatcher(folder, { settleMs: 100, now: () => clock, processed, ignore: [join(folder, 'results.csv')] });
+    const watcher = createFolderWatcher(folder, {
+      settleMs: 100,
+      now: () => clock,
+      processed,
+      ignore: [join(folder, 'results.csv')],
+    });
     writeFileSync(join(folder, 'notes.docx'), 'no');
     writeFileSync(join(folder, 'results.csv'), 'scan\n');
     writeFileSync(join(folder, 'd.CSV'), 'first version\n');
@@ -85,7 +95,9 @@ describe('createFolderWatcher', () => {
     expect(watcher.poll()).toEqual([]);
     clock = 500;
     const again = watcher.poll();
-    expect(again.map((file) => [file.name, file.previously?.size, file.stamp.size])).toEqual([['d.CSV', 14, 29]]);
+    expect(again.map((file) => [file.name, file.previously?.size, file.stamp.size])).toEqual([
+      ['d.CSV', 14, 29],
+    ]);
   });
 
   it('refuses a folder that does not exist', () => {

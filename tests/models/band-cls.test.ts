@@ -4,7 +4,12 @@
  * K-matrix mixtures with independent Gaussian noise per band.
  */
 import { describe, expect, it } from 'vitest';
-import { fitBandCls, predictBandCls, type BandClsData, type BandClsModel } from '../../src/models/band-cls.js';
+import {
+  fitBandCls,
+  predictBandCls,
+  type BandClsData,
+  type BandClsModel,
+} from '../../src/models/band-cls.js';
 import { isBandwrightError } from '../../src/errors.js';
 import { mixtureDesign, normalGenerator } from '../helpers/synthetic-bands.js';
 
@@ -20,7 +25,8 @@ const components = [
   { name: 'NO2', reported: true, unit: 'ppm' },
   { name: 'H2O', reported: false, unit: 'ppm' },
 ];
-const areasOf = (c: readonly number[], phi = 1): Float64Array => Float64Array.from(bands, (_, k) => phi * response.reduce((sum, row, j) => sum + row[k]! * c[j]!, 0));
+const areasOf = (c: readonly number[], phi = 1): Float64Array =>
+  Float64Array.from(bands, (_, k) => phi * response.reduce((sum, row, j) => sum + row[k]! * c[j]!, 0));
 
 function standards(options: { seed: number; rms: number }): BandClsData {
   const normal = normalGenerator(options.seed);
@@ -54,11 +60,18 @@ describe('fitBandCls / predictBandCls', () => {
       [150, 10, 4500],
       [20, 90, 2500],
     ]) {
-      const result = predictBandCls(model, areasOf(truth).map((value) => value + 0.01 * normal()), { phi: 1 });
+      const result = predictBandCls(
+        model,
+        areasOf(truth).map((value) => value + 0.01 * normal()),
+        { phi: 1 },
+      );
       expect(result.estimates.map((e) => e.name)).toEqual(['NO', 'NO2']);
       result.estimates.forEach((estimate, j) => {
         const tolerance = Math.max(0.02 * truth[j]!, 0.5);
-        expect(Math.abs(estimate.value - truth[j]!), `${estimate.name}: truth ${truth[j]}, got ${estimate.value}, tolerance ${tolerance}`).toBeLessThanOrEqual(tolerance);
+        expect(
+          Math.abs(estimate.value - truth[j]!),
+          `${estimate.name}: truth ${truth[j]}, got ${estimate.value}, tolerance ${tolerance}`,
+        ).toBeLessThanOrEqual(tolerance);
       });
       expect(result.residual.length).toBe(5);
     }
@@ -87,14 +100,22 @@ describe('fitBandCls / predictBandCls', () => {
         phi: concentrations.map(() => 1),
         components,
       });
-      const result = predictBandCls(model, areasOf(truth).map((value) => value + 0.01 * normal()), { phi: 1 });
+      const result = predictBandCls(
+        model,
+        areasOf(truth).map((value) => value + 0.01 * normal()),
+        { phi: 1 },
+      );
       result.estimates.forEach((estimate, j) => {
         if (estimate.low <= truth[j]! && truth[j]! <= estimate.high) covered[j]!++;
       });
     }
     covered.forEach((count, j) => {
-      expect(count / repeats, `${components[j]!.name}: coverage ${count / repeats}`).toBeGreaterThanOrEqual(0.92);
-      expect(count / repeats, `${components[j]!.name}: coverage ${count / repeats}`).toBeLessThanOrEqual(0.98);
+      expect(count / repeats, `${components[j]!.name}: coverage ${count / repeats}`).toBeGreaterThanOrEqual(
+        0.92,
+      );
+      expect(count / repeats, `${components[j]!.name}: coverage ${count / repeats}`).toBeLessThanOrEqual(
+        0.98,
+      );
     });
   });
 
@@ -117,18 +138,36 @@ describe('fitBandCls / predictBandCls', () => {
   it('refuses gases whose band responses are proportional (coinciding bands) naming both', () => {
     const concentrations = mixtureDesign(10);
     const proportional = [response[0]!, response[0]!.map((v) => 0.5 * v), response[2]!];
-    const areas = concentrations.map((c) => Float64Array.from(bands, (_, k) => proportional.reduce((sum, row, j) => sum + row[k]! * c[j]!, 0)));
-    expectSingular(() => fitBandCls({ bands, areas, concentrations, phi: concentrations.map(() => 1), components }), ['NO', 'NO2']);
+    const areas = concentrations.map((c) =>
+      Float64Array.from(bands, (_, k) => proportional.reduce((sum, row, j) => sum + row[k]! * c[j]!, 0)),
+    );
+    expectSingular(
+      () => fitBandCls({ bands, areas, concentrations, phi: concentrations.map(() => 1), components }),
+      ['NO', 'NO2'],
+    );
   });
 
   it('needs more bands than gases, and names the rule', () => {
     const data = standards({ seed: 7, rms: 0.01 });
-    const three = { ...data, bands: bands.slice(0, 3), areas: data.areas.map((row) => Array.from(row).slice(0, 3)) };
-    expect(() => fitBandCls(three)).toThrow(/3 band\(s\) for 3 model term\(s\): band-area CLS needs more bands than gases/);
-    expect(() => fitBandCls({ ...data, bands: [bands[0]!, bands[0]!, ...bands.slice(2)] })).toThrow(/bands\[1\] = "1850-1950" appears twice/);
-    expect(() => fitBandCls({ ...data, areas: data.areas.map((row, i) => (i === 2 ? Array.from(row).map((v, k) => (k === 1 ? Number.NaN : v)) : row)) })).toThrow(
-      /areas\[2\] \(standard 3\) band 1 = NaN, must be a finite number/,
+    const three = {
+      ...data,
+      bands: bands.slice(0, 3),
+      areas: data.areas.map((row) => Array.from(row).slice(0, 3)),
+    };
+    expect(() => fitBandCls(three)).toThrow(
+      /3 band\(s\) for 3 model term\(s\): band-area CLS needs more bands than gases/,
     );
+    expect(() => fitBandCls({ ...data, bands: [bands[0]!, bands[0]!, ...bands.slice(2)] })).toThrow(
+      /bands\[1\] = "1850-1950" appears twice/,
+    );
+    expect(() =>
+      fitBandCls({
+        ...data,
+        areas: data.areas.map((row, i) =>
+          i === 2 ? Array.from(row).map((v, k) => (k === 1 ? Number.NaN : v)) : row,
+        ),
+      }),
+    ).toThrow(/areas\[2\] \(standard 3\) band 1 = NaN, must be a finite number/);
   });
 
   it('is plain JSON, and neither function modifies its inputs', () => {

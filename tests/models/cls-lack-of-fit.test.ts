@@ -34,7 +34,8 @@ function simulator(range: readonly [number, number]) {
         .filter(([, ppm]) => ppm > 0)
         .map(([name, ppm]) => ({ name, ppm })),
     }).spectrum.y;
-  const x = simulateSpectrum({ gases: [], range_cm: range, resolution_cm: 0.5, temperature_K: 453.15 }).spectrum.x;
+  const x = simulateSpectrum({ gases: [], range_cm: range, resolution_cm: 0.5, temperature_K: 453.15 })
+    .spectrum.x;
   return { scan, x };
 }
 
@@ -49,7 +50,11 @@ function channelsIn(x: Float64Array, regions: readonly (readonly [number, number
       regionOf.push(r);
     }
   });
-  return { grid: Float64Array.from(picked, (j) => x[j]!), regionOf, pick: (y: Float64Array) => Float64Array.from(picked, (j) => y[j]!) };
+  return {
+    grid: Float64Array.from(picked, (j) => x[j]!),
+    regionOf,
+    pick: (y: Float64Array) => Float64Array.from(picked, (j) => y[j]!),
+  };
 }
 
 /** The signal ratio the earlier, pooled check used: ‖k_t‖² over s² (XᵀX)⁻¹_tt τ_B, one term alone. */
@@ -164,14 +169,18 @@ describe('a weak gas away from saturated lines is not called noise because of th
     const co2 = lackOfFit.secondOrderGains.find((gain) => gain.component === 'CO2')!;
     expect(co2.fStatistic).toBeLessThan(co2.fLimit);
     expect(lackOfFit.detected).toBe(true);
-    expect(linear.warnings.join('\n')).toMatch(/lack of fit: .* times the noise of the 2 zero-gas standard\(s\).*a second-order term would remove 9\d % of it for CO.*give CO a second-order term/);
+    expect(linear.warnings.join('\n')).toMatch(
+      /lack of fit: .* times the noise of the 2 zero-gas standard\(s\).*a second-order term would remove 9\d % of it for CO.*give CO a second-order term/,
+    );
   });
 
   it('with the second-order CO term the residual falls by more than 10 times and CO is no longer a candidate', () => {
     const before = linear.calibration.lackOfFit.residualOverBlank!;
     const after = secondOrder.calibration.lackOfFit.residualOverBlank!;
     expect(after, `residual/noise variance ${before} → ${after}`).toBeLessThan(before / 10);
-    expect(secondOrder.calibration.lackOfFit.secondOrderGains.map((gain) => gain.component)).not.toContain('CO');
+    expect(secondOrder.calibration.lackOfFit.secondOrderGains.map((gain) => gain.component)).not.toContain(
+      'CO',
+    );
     // CO2 is then estimated within its interval (truth 1.2 %).
     const sample = predictCls(secondOrder, pick(scan({ CO: 400, CO2: 12000 }, 7)), { phi: 1 });
     const estimate = sample.interferents[0]!;
@@ -223,7 +232,9 @@ describe('a weak gas under saturated lines is masked by lack of fit, and the ref
   it('refuses N2O as masked by lack of fit (not as noise) and says a second-order CO term makes it distinguishable', () => {
     const message = refusal(() => fitCls(data));
     expect(message).toMatch(/pure spectrum of N2O cannot be told from the calibration's lack of fit/);
-    expect(message).toMatch(/with a second-order term for CO its signal ratio would be [\d.]+: give CO a second-order term/);
+    expect(message).toMatch(
+      /with a second-order term for CO its signal ratio would be [\d.]+: give CO a second-order term/,
+    );
     expect(message).not.toMatch(/calibration noise/);
   });
 

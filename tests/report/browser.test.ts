@@ -30,7 +30,8 @@ const browser = chromium.path as string;
 const folder = temporaryFolder('bandwright-browser-');
 const at = (...names: string[]): string => join(folder.path, ...names);
 const reference = { pathLength_m: 1, temperature_K: 296.15, pressure_kPa: 101.325 };
-const INJECTED = '<script>window.__bandwrightInjected = 1; document.documentElement.setAttribute("data-injected", "1")</script>';
+const INJECTED =
+  '<script>window.__bandwrightInjected = 1; document.documentElement.setAttribute("data-injected", "1")</script>';
 
 /** Text content of `<pre id="probe">` in a dumped DOM (the browser escapes &, < and > in text). */
 function probeOf(dom: string): unknown {
@@ -50,11 +51,25 @@ beforeAll(async () => {
   mkdirSync(at('std'));
   const rows = ['scan,CO_ppm,lot'];
   [0, 0, 50, 50, 100, 100, 200, 200, 400, 400].forEach((ppm, i) => {
-    writeScan(at('std', `s${i}.csv`), bandScan(ppm * (1 + 0.002 * Math.sin(7 * i + 1)), { metadata: reference }));
+    writeScan(
+      at('std', `s${i}.csv`),
+      bandScan(ppm * (1 + 0.002 * Math.sin(7 * i + 1)), { metadata: reference }),
+    );
     rows.push(`std/s${i}.csv,${ppm},"${(i === 3 ? INJECTED : `L${i}`).replace(/"/g, '""')}"`);
   });
   writeFileSync(at('standards.csv'), `${rows.join('\n')}\n`);
-  const calibrated = await runCli('calibrate', at('standards.csv'), '--gas', 'CO', '--band', '2040:2245', '--baseline', '2000:2030,2255:2290', '-o', at('co.json'));
+  const calibrated = await runCli(
+    'calibrate',
+    at('standards.csv'),
+    '--gas',
+    'CO',
+    '--band',
+    '2040:2245',
+    '--baseline',
+    '2000:2030,2255:2290',
+    '-o',
+    at('co.json'),
+  );
   expect(calibrated.status, calibrated.stderr).toBe(0);
   const reported = await runCli('report', at('co.json'));
   expect(reported.status, reported.stderr).toBe(0);
@@ -63,10 +78,21 @@ afterAll(() => folder.cleanup());
 
 describe.skipIf(chromium.path === undefined)('HTML report in headless Chromium', () => {
   it('decodes Chromium screenshots exactly (a page of known colours)', () => {
-    writeFileSync(at('colours.html'), '<!DOCTYPE html><body style="margin:0;background:#ff0000"><div style="width:50px;height:40px;background:#000000"></div></body>');
-    const image = decodePng(screenshot(browser, at('colours.html'), at('colours.png'), { width: 100, height: 80 }));
+    writeFileSync(
+      at('colours.html'),
+      '<!DOCTYPE html><body style="margin:0;background:#ff0000"><div style="width:50px;height:40px;background:#000000"></div></body>',
+    );
+    const image = decodePng(
+      screenshot(browser, at('colours.html'), at('colours.png'), { width: 100, height: 80 }),
+    );
     expect([image.width, image.height]).toEqual([100, 80]);
-    const pixel = (x: number, y: number): number[] => Array.from(image.pixels.subarray((y * image.width + x) * image.channels, (y * image.width + x) * image.channels + 3));
+    const pixel = (x: number, y: number): number[] =>
+      Array.from(
+        image.pixels.subarray(
+          (y * image.width + x) * image.channels,
+          (y * image.width + x) * image.channels + 3,
+        ),
+      );
     expect(pixel(10, 10)).toEqual([0, 0, 0]);
     expect(pixel(49, 39)).toEqual([0, 0, 0]);
     expect(pixel(80, 60)).toEqual([255, 0, 0]);
@@ -74,9 +100,13 @@ describe.skipIf(chromium.path === undefined)('HTML report in headless Chromium',
   });
 
   it('renders the report: the screenshot is not blank (a blank page is)', () => {
-    const report = luminanceStatistics(decodePng(screenshot(browser, at('co.report.html'), at('report.png'), { width: 1000, height: 3000 })));
+    const report = luminanceStatistics(
+      decodePng(screenshot(browser, at('co.report.html'), at('report.png'), { width: 1000, height: 3000 })),
+    );
     writeFileSync(at('blank.html'), '<!DOCTYPE html><body></body>');
-    const blank = luminanceStatistics(decodePng(screenshot(browser, at('blank.html'), at('blank.png'), { width: 1000, height: 3000 })));
+    const blank = luminanceStatistics(
+      decodePng(screenshot(browser, at('blank.html'), at('blank.png'), { width: 1000, height: 3000 })),
+    );
     expect(blank.variance).toBe(0);
     expect(report.variance).toBeGreaterThan(500);
     expect(report.inkFraction).toBeGreaterThan(0.03);
@@ -102,18 +132,36 @@ describe.skipIf(chromium.path === undefined)('HTML report in headless Chromium',
       });
       document.getElementById('probe').textContent = JSON.stringify(plots);`;
     writeFileSync(at('probe.html'), withProbe(html, probe));
-    const plots = probeOf(dumpDom(browser, at('probe.html'))) as { kind: string; standards: number; curveLength: number[]; band: number[][]; spectra: number; baselineWindows: number; labels: [string, number][]; ticks: number; legend: number }[];
+    const plots = probeOf(dumpDom(browser, at('probe.html'))) as {
+      kind: string;
+      standards: number;
+      curveLength: number[];
+      band: number[][];
+      spectra: number;
+      baselineWindows: number;
+      labels: [string, number][];
+      ticks: number;
+      legend: number;
+    }[];
     expect(plots.map((p) => p.kind)).toEqual(['plot-calibration-curve', 'plot-spectra']);
     const [curve, spectra] = plots as [(typeof plots)[number], (typeof plots)[number]];
     expect(curve.standards).toBe(10);
     expect(curve.curveLength[0]).toBeGreaterThan(300);
     expect(curve.band[0]?.[0]).toBeGreaterThan(300);
     expect(curve.band[0]?.[1]).toBeGreaterThan(100);
-    expect(curve.labels.map((l) => l[0])).toEqual(['CO concentration / ppm', 'band area / AU·cm⁻¹', 'CO concentration / ppm', 'residual']);
+    expect(curve.labels.map((l) => l[0])).toEqual([
+      'CO concentration / ppm',
+      'band area / AU·cm⁻¹',
+      'CO concentration / ppm',
+      'residual',
+    ]);
     expect(spectra.spectra).toBe(10);
     expect(spectra.baselineWindows).toBe(2);
     expect(spectra.band[0]?.[0]).toBeGreaterThan(100);
-    expect(spectra.labels.map((l) => l[0])).toEqual(['wavenumber / cm⁻¹ (decreasing to the right)', 'absorbance (decadic) / AU']);
+    expect(spectra.labels.map((l) => l[0])).toEqual([
+      'wavenumber / cm⁻¹ (decreasing to the right)',
+      'absorbance (decadic) / AU',
+    ]);
     for (const plot of plots) {
       // Real text: the browser measured every axis label with a font.
       for (const [text, width] of plot.labels) expect(width, text).toBeGreaterThan(5 * text.length);
@@ -125,28 +173,61 @@ describe.skipIf(chromium.path === undefined)('HTML report in headless Chromium',
   it('lays out all four kinds of plot with their own elements and measured axis labels', () => {
     const standards = clsStandards();
     const cls = clsCalibration(standards);
-    const sample = makeSpectrum({ x: grid, y: mixture(80, 120, () => 0), yKind: 'absorbance', metadata: { source: 'sample.csv', ...conditions } });
+    const sample = makeSpectrum({
+      x: grid,
+      y: mixture(80, 120, () => 0),
+      yKind: 'absorbance',
+      metadata: { source: 'sample.csv', ...conditions },
+    });
     const svgs = [
       renderCalibrationCurve(calibrationCurveData(dinGas()), { id: 'p1' }),
       renderSpectra(gasSpectraData(dinGas(), [{ label: 's.csv', spectrum: bandScan(100) }]), { id: 'p2' }),
       renderClsFit(clsFitData(cls, sample, conditions), { id: 'p3' }),
       renderControlChart(
         {
-          records: [0, 7, 14, 21].map((d, i) => ({ time: new Date(Date.UTC(2026, 8, 1 + d)).toISOString(), recoveryPct: 100 - i, verdict: i === 3 ? ('warning' as const) : ('pass' as const), rules: i === 3 ? ['1-2s'] : [] })),
+          records: [0, 7, 14, 21].map((d, i) => ({
+            time: new Date(Date.UTC(2026, 8, 1 + d)).toISOString(),
+            recoveryPct: 100 - i,
+            verdict: i === 3 ? ('warning' as const) : ('pass' as const),
+            rules: i === 3 ? ['1-2s'] : [],
+          })),
           centrePct: 100,
           tolerancePct: 5,
           sigmaPct: 1.5,
           sigmaSource: 'tolerance/3',
-          trend: { slopePctPerDay: -1 / 7, interceptPct: 100, originTime: '2026-09-01T00:00:00.000Z', fittedFrom: '2026-09-01T00:00:00.000Z', fittedTo: '2026-09-22T00:00:00.000Z', projectUntil: '2026-10-20T00:00:00.000Z', leavesToleranceAt: '2026-10-06T00:00:00.000Z' },
+          trend: {
+            slopePctPerDay: -1 / 7,
+            interceptPct: 100,
+            originTime: '2026-09-01T00:00:00.000Z',
+            fittedFrom: '2026-09-01T00:00:00.000Z',
+            fittedTo: '2026-09-22T00:00:00.000Z',
+            projectUntil: '2026-10-20T00:00:00.000Z',
+            leavesToleranceAt: '2026-10-06T00:00:00.000Z',
+          },
         },
         { id: 'p4' },
       ),
     ];
     const expected: Record<string, string[]> = {
-      'plot-calibration-curve': ['.standard', '.fitted-curve', '.prediction-band', '.confidence-band', '.limit-line line', '.residual'],
+      'plot-calibration-curve': [
+        '.standard',
+        '.fitted-curve',
+        '.prediction-band',
+        '.confidence-band',
+        '.limit-line line',
+        '.residual',
+      ],
       'plot-spectra': ['.spectrum', '.band-window', '.baseline-window', '.fitted-baseline'],
       'plot-cls-fit': ['.measured', '.fitted', '.contribution', '.residual-spectrum', '.region'],
-      'plot-control-chart': ['.check', '.tolerance-line', '.warning-line', '.action-line', '.rule-violation', '.trend-line', '.trend-projection'],
+      'plot-control-chart': [
+        '.check',
+        '.tolerance-line',
+        '.warning-line',
+        '.action-line',
+        '.rule-violation',
+        '.trend-line',
+        '.trend-projection',
+      ],
     };
     const script = `
       const expected = ${JSON.stringify(expected)};
@@ -161,8 +242,15 @@ describe.skipIf(chromium.path === undefined)('HTML report in headless Chromium',
         return { kind, parts, labels };
       });
       document.getElementById('probe').textContent = JSON.stringify(result);`;
-    writeFileSync(at('kinds.html'), `<!DOCTYPE html><html><body style="margin:0">${svgs.join('')}<pre id="probe"></pre><script>${script}</script></body></html>`);
-    const result = probeOf(dumpDom(browser, at('kinds.html'), { width: 760, height: 3000 })) as { kind: string; parts: Record<string, [number, number]>; labels: number[] }[];
+    writeFileSync(
+      at('kinds.html'),
+      `<!DOCTYPE html><html><body style="margin:0">${svgs.join('')}<pre id="probe"></pre><script>${script}</script></body></html>`,
+    );
+    const result = probeOf(dumpDom(browser, at('kinds.html'), { width: 760, height: 3000 })) as {
+      kind: string;
+      parts: Record<string, [number, number]>;
+      labels: number[];
+    }[];
     expect(result.map((r) => r.kind)).toEqual(Object.keys(expected));
     for (const plot of result) {
       for (const [selector, [count, visible]] of Object.entries(plot.parts)) {
@@ -175,7 +263,11 @@ describe.skipIf(chromium.path === undefined)('HTML report in headless Chromium',
   });
 
   it('places a standard of known concentration and response on its pixel within 0.5 px, as the browser lays it out', () => {
-    const svg = renderCalibrationCurve(calibrationCurveData(dinGas()), { id: 'din', concentrationDomain: [0, 0.5], responseDomain: [2000, 8000] });
+    const svg = renderCalibrationCurve(calibrationCurveData(dinGas()), {
+      id: 'din',
+      concentrationDomain: [0, 0.5],
+      responseDomain: [2000, 8000],
+    });
     const script = `
       const svg = document.querySelector('svg').getBoundingClientRect();
       const frame = document.querySelector('.panel-frame[data-panel="curve"]').getBoundingClientRect();
@@ -184,12 +276,24 @@ describe.skipIf(chromium.path === undefined)('HTML report in headless Chromium',
         frame: [frame.left - svg.left, frame.top - svg.top, frame.width, frame.height],
         centre: [marker.left + marker.width / 2 - svg.left, marker.top + marker.height / 2 - svg.top],
       });`;
-    writeFileSync(at('geometry.html'), `<!DOCTYPE html><html><body style="margin:0">${svg}<pre id="probe"></pre><script>${script}</script></body></html>`);
-    const { frame, centre } = probeOf(dumpDom(browser, at('geometry.html'))) as { frame: number[]; centre: number[] };
+    writeFileSync(
+      at('geometry.html'),
+      `<!DOCTYPE html><html><body style="margin:0">${svg}<pre id="probe"></pre><script>${script}</script></body></html>`,
+    );
+    const { frame, centre } = probeOf(dumpDom(browser, at('geometry.html'))) as {
+      frame: number[];
+      centre: number[];
+    };
     const [left, top, width, height] = frame as [number, number, number, number];
     const expected = [left + (0.25 / 0.5) * width, top + height - ((5058 - 2000) / 6000) * height];
-    expect(Math.abs((centre[0] as number) - (expected[0] as number)), `x ${centre[0]} vs ${expected[0]}`).toBeLessThanOrEqual(0.5);
-    expect(Math.abs((centre[1] as number) - (expected[1] as number)), `y ${centre[1]} vs ${expected[1]}`).toBeLessThanOrEqual(0.5);
+    expect(
+      Math.abs((centre[0] as number) - (expected[0] as number)),
+      `x ${centre[0]} vs ${expected[0]}`,
+    ).toBeLessThanOrEqual(0.5);
+    expect(
+      Math.abs((centre[1] as number) - (expected[1] as number)),
+      `y ${centre[1]} vs ${expected[1]}`,
+    ).toBeLessThanOrEqual(0.5);
   });
 
   it('shows a lot cell holding a <script> as text and never runs it', () => {
@@ -200,11 +304,13 @@ describe.skipIf(chromium.path === undefined)('HTML report in headless Chromium',
     expect(/<html[^>]*data-injected/.test(dom), 'the injected script ran').toBe(false);
     expect(/<script/i.test(dom), 'a script element in the page').toBe(false);
     // 2. Even with scripts allowed in the page, the escaped cell does not run: the global is undefined.
-    const probe = "document.getElementById('probe').textContent = JSON.stringify(typeof window.__bandwrightInjected);";
+    const probe =
+      "document.getElementById('probe').textContent = JSON.stringify(typeof window.__bandwrightInjected);";
     writeFileSync(at('escaped.html'), withProbe(html, probe));
     expect(probeOf(dumpDom(browser, at('escaped.html')))).toBe('undefined');
     // 3. Control: the same cell left unescaped would run, so the check above can fail.
-    const escaped = '&lt;script&gt;window.__bandwrightInjected = 1; document.documentElement.setAttribute(&quot;data-injected&quot;, &quot;1&quot;)&lt;/script&gt;';
+    const escaped =
+      '&lt;script&gt;window.__bandwrightInjected = 1; document.documentElement.setAttribute(&quot;data-injected&quot;, &quot;1&quot;)&lt;/script&gt;';
     expect(html).toContain(escaped);
     writeFileSync(at('unescaped.html'), withProbe(html.replace(escaped, INJECTED), probe));
     const unescaped = dumpDom(browser, at('unescaped.html'));

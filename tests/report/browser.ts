@@ -36,19 +36,41 @@ export function findChromium(): { path?: string; reason?: string } {
   }
   const root = typeof process.getuid === 'function' && process.getuid() === 0;
   if (root && which('apt-get') !== undefined) {
-    spawnSync('sh', ['-c', 'apt-get update -qq && DEBIAN_FRONTEND=noninteractive apt-get install -y -qq chromium'], { stdio: 'ignore', timeout: 600_000 });
+    spawnSync(
+      'sh',
+      ['-c', 'apt-get update -qq && DEBIAN_FRONTEND=noninteractive apt-get install -y -qq chromium'],
+      { stdio: 'ignore', timeout: 600_000 },
+    );
     const path = which('chromium');
     if (path !== undefined) return (cached = { path });
   }
-  return (cached = { reason: 'chromium is not installed and could not be installed (apt-get install chromium needs root and the Debian archive): the browser checks of the HTML report are skipped' });
+  return (cached = {
+    reason:
+      'chromium is not installed and could not be installed (apt-get install chromium needs root and the Debian archive): the browser checks of the HTML report are skipped',
+  });
 }
 
-const FLAGS = ['--headless', '--no-sandbox', '--disable-gpu', '--disable-background-networking', '--disable-component-update', '--disable-sync', '--no-first-run', '--hide-scrollbars', '--force-device-scale-factor=1'];
+const FLAGS = [
+  '--headless',
+  '--no-sandbox',
+  '--disable-gpu',
+  '--disable-background-networking',
+  '--disable-component-update',
+  '--disable-sync',
+  '--no-first-run',
+  '--hide-scrollbars',
+  '--force-device-scale-factor=1',
+];
 
 function run(browser: string, args: string[]): string {
   const profile = mkdtempSync(join(tmpdir(), 'bandwright-chromium-'));
   try {
-    return execFileSync(browser, [...FLAGS, `--user-data-dir=${profile}`, ...args], { encoding: 'utf8', timeout: 120_000, maxBuffer: 256 * 1024 * 1024, stdio: ['ignore', 'pipe', 'ignore'] });
+    return execFileSync(browser, [...FLAGS, `--user-data-dir=${profile}`, ...args], {
+      encoding: 'utf8',
+      timeout: 120_000,
+      maxBuffer: 256 * 1024 * 1024,
+      stdio: ['ignore', 'pipe', 'ignore'],
+    });
   } finally {
     rmSync(profile, { recursive: true, force: true });
   }
@@ -63,8 +85,17 @@ function run(browser: string, args: string[]): string {
  * @param size - window width and height, px
  * @returns the PNG's bytes
  */
-export function screenshot(browser: string, file: string, png: string, size: { width: number; height: number }): Buffer {
-  run(browser, [`--screenshot=${png}`, `--window-size=${size.width},${size.height}`, pathToFileURL(file).href]);
+export function screenshot(
+  browser: string,
+  file: string,
+  png: string,
+  size: { width: number; height: number },
+): Buffer {
+  run(browser, [
+    `--screenshot=${png}`,
+    `--window-size=${size.width},${size.height}`,
+    pathToFileURL(file).href,
+  ]);
   return readFileSync(png);
 }
 
@@ -75,6 +106,15 @@ export function screenshot(browser: string, file: string, png: string, size: { w
  * @param file - the page
  * @param size - window size (layout depends on it)
  */
-export function dumpDom(browser: string, file: string, size: { width: number; height: number } = { width: 1000, height: 1200 }): string {
-  return run(browser, ['--dump-dom', '--virtual-time-budget=5000', `--window-size=${size.width},${size.height}`, pathToFileURL(file).href]);
+export function dumpDom(
+  browser: string,
+  file: string,
+  size: { width: number; height: number } = { width: 1000, height: 1200 },
+): string {
+  return run(browser, [
+    '--dump-dom',
+    '--virtual-time-budget=5000',
+    `--window-size=${size.width},${size.height}`,
+    pathToFileURL(file).href,
+  ]);
 }

@@ -13,14 +13,31 @@ import tQuantile from '@stdlib/stats-base-dists-t-quantile';
 import { describe, expect, it } from 'vitest';
 import { calibrationCurveData, renderCalibrationCurve } from '../../src/report/svg/calibration-curve.js';
 import { din, dinGas } from './din-gas.js';
-import { byClass, numberAttribute, parseMarkup, pathPoints, textOf, translation, type Node } from './markup-tree.js';
+import {
+  byClass,
+  numberAttribute,
+  parseMarkup,
+  pathPoints,
+  textOf,
+  translation,
+  type Node,
+} from './markup-tree.js';
 
 function frame(svg: Node, panel: string): { left: number; top: number; width: number; height: number } {
   const rect = byClass(svg, 'panel-frame').find((n) => n.attributes['data-panel'] === panel) as Node;
-  return { left: numberAttribute(rect, 'x'), top: numberAttribute(rect, 'y'), width: numberAttribute(rect, 'width'), height: numberAttribute(rect, 'height') };
+  return {
+    left: numberAttribute(rect, 'x'),
+    top: numberAttribute(rect, 'y'),
+    width: numberAttribute(rect, 'width'),
+    height: numberAttribute(rect, 'height'),
+  };
 }
 
-const domains = { concentrationDomain: [0, 0.5] as const, responseDomain: [2000, 8000] as const, residualDomain: [-400, 400] as const };
+const domains = {
+  concentrationDomain: [0, 0.5] as const,
+  responseDomain: [2000, 8000] as const,
+  residualDomain: [-400, 400] as const,
+};
 
 describe('calibration curve plot', () => {
   const gas = dinGas();
@@ -53,7 +70,9 @@ describe('calibration curve plot', () => {
 
   it('puts a standard at its concentration and response within 0.5 px (affine map of the panel)', () => {
     const panel = frame(svg, 'curve');
-    const marker = byClass(svg, 'standard').find((n) => n.attributes['data-concentration'] === '0.25') as Node;
+    const marker = byClass(svg, 'standard').find(
+      (n) => n.attributes['data-concentration'] === '0.25',
+    ) as Node;
     expect(marker.attributes['data-response']).toBe('5058');
     const [x, y] = translation(marker);
     const expectedX = panel.left + ((0.25 - 0) / (0.5 - 0)) * panel.width;
@@ -80,9 +99,14 @@ describe('calibration curve plot', () => {
       // Printed values carry 7 digits; 0.5 px on a 6000-unit axis is about 10 response units.
       expect(Math.abs((curve[k]?.x ?? NaN) - toX(c))).toBeLessThanOrEqual(0.5);
       expect(Math.abs((curve[k]?.y ?? NaN) - toY(fitted)), `curve at ${c}`).toBeLessThanOrEqual(0.5);
-      expect(Math.abs((band[k]?.y ?? NaN) - toY(fitted + half)), `upper band at ${c}`).toBeLessThanOrEqual(0.5);
+      expect(Math.abs((band[k]?.y ?? NaN) - toY(fitted + half)), `upper band at ${c}`).toBeLessThanOrEqual(
+        0.5,
+      );
       // d3's area runs along the upper edge, then back along the lower edge.
-      expect(Math.abs((band[2 * input.curve.length - 1 - k]?.y ?? NaN) - toY(fitted - half)), `lower band at ${c}`).toBeLessThanOrEqual(0.5);
+      expect(
+        Math.abs((band[2 * input.curve.length - 1 - k]?.y ?? NaN) - toY(fitted - half)),
+        `lower band at ${c}`,
+      ).toBeLessThanOrEqual(0.5);
     });
   });
 
@@ -91,7 +115,8 @@ describe('calibration curve plot', () => {
     gas.model.residuals.forEach((residual, i) => {
       const marker = byClass(svg, 'residual')[i] as Node;
       const [, y] = translation(marker);
-      const expected = residualPanel.top + residualPanel.height - ((residual + 400) / 800) * residualPanel.height;
+      const expected =
+        residualPanel.top + residualPanel.height - ((residual + 400) / 800) * residualPanel.height;
       expect(Math.abs(y - expected)).toBeLessThanOrEqual(0.5);
     });
     const panel = frame(svg, 'curve');
@@ -99,11 +124,16 @@ describe('calibration curve plot', () => {
     const lines = lod.children.filter((c) => c.name === 'line');
     expect(lines).toHaveLength(2);
     const expectedX = panel.left + ((gas.model.limits.detection.value as number) / 0.5) * panel.width;
-    for (const line of lines) expect(Math.abs(numberAttribute(line, 'x1') - expectedX)).toBeLessThanOrEqual(0.5);
+    for (const line of lines)
+      expect(Math.abs(numberAttribute(line, 'x1') - expectedX)).toBeLessThanOrEqual(0.5);
   });
 
   it('escapes a hostile gas label and scan names in text and titles', () => {
-    const hostile = { ...input, gas: '<script>alert("x")</script>', standards: input.standards.map((s) => ({ ...s, label: 'a & b <lot>' })) };
+    const hostile = {
+      ...input,
+      gas: '<script>alert("x")</script>',
+      standards: input.standards.map((s) => ({ ...s, label: 'a & b <lot>' })),
+    };
     const markup = renderCalibrationCurve(hostile);
     expect(markup).not.toContain('<script>');
     const tree = parseMarkup(markup);

@@ -12,7 +12,15 @@ import { evaluateHistory } from '../../src/drift/evaluate.js';
 import type { CheckRecord } from '../../src/drift/record.js';
 import { renderControlChart, wrapWords, type ControlChartInput } from '../../src/report/svg/control-chart.js';
 import { controlChartFromEvaluation } from '../../src/report/svg/control-chart-data.js';
-import { byClass, numberAttribute, parseMarkup, pathPoints, textOf, translation, type Node } from './markup-tree.js';
+import {
+  byClass,
+  numberAttribute,
+  parseMarkup,
+  pathPoints,
+  textOf,
+  translation,
+  type Node,
+} from './markup-tree.js';
 
 const DAY = 86_400_000;
 const START = Date.parse('2026-09-01T09:30:00Z');
@@ -29,12 +37,25 @@ const input: ControlChartInput = {
   tolerancePct: 5,
   sigmaPct: 1.5,
   sigmaSource: 'tolerance/3 until 8 checks exist',
-  trend: { slopePctPerDay: -0.1, interceptPct: 100, originTime: at(0), fittedFrom: at(0), fittedTo: at(21), projectUntil: at(60), leavesToleranceAt: at(50) },
+  trend: {
+    slopePctPerDay: -0.1,
+    interceptPct: 100,
+    originTime: at(0),
+    fittedFrom: at(0),
+    fittedTo: at(21),
+    projectUntil: at(60),
+    leavesToleranceAt: at(50),
+  },
 };
 
 function panelOf(svg: Node): { left: number; top: number; width: number; height: number } {
   const rect = byClass(svg, 'panel-frame')[0] as Node;
-  return { left: numberAttribute(rect, 'x'), top: numberAttribute(rect, 'y'), width: numberAttribute(rect, 'width'), height: numberAttribute(rect, 'height') };
+  return {
+    left: numberAttribute(rect, 'x'),
+    top: numberAttribute(rect, 'y'),
+    width: numberAttribute(rect, 'width'),
+    height: numberAttribute(rect, 'height'),
+  };
 }
 
 describe('control chart', () => {
@@ -43,8 +64,12 @@ describe('control chart', () => {
   const toY = (pct: number): number => panel.top + panel.height - ((pct - 90) / 20) * panel.height;
 
   it('draws the centre, tolerance, ±2σ and ±3σ lines at their recoveries', () => {
-    const ys = (cls: string): number[] => byClass(svg, cls).map((n) => numberAttribute(n, 'y1')).sort((a, b) => a - b);
-    const near = (actual: number[], expected: number[]): void => expected.forEach((e, i) => expect(Math.abs((actual[i] as number) - e)).toBeLessThanOrEqual(0.5));
+    const ys = (cls: string): number[] =>
+      byClass(svg, cls)
+        .map((n) => numberAttribute(n, 'y1'))
+        .sort((a, b) => a - b);
+    const near = (actual: number[], expected: number[]): void =>
+      expected.forEach((e, i) => expect(Math.abs((actual[i] as number) - e)).toBeLessThanOrEqual(0.5));
     near(ys('centre-line'), [toY(100)]);
     near(ys('tolerance-line'), [toY(105), toY(95)]);
     near(ys('warning-line'), [toY(103), toY(97)]);
@@ -54,7 +79,11 @@ describe('control chart', () => {
   it('marks every check by verdict at its recovery, rings those where a rule fired and names the rule', () => {
     const checks = byClass(svg, 'check');
     expect(checks.map((c) => c.attributes['data-verdict'])).toEqual(['pass', 'pass', 'warning', 'fail']);
-    checks.forEach((c, i) => expect(Math.abs((translation(c)[1]) - toY(input.records[i]?.recoveryPct as number))).toBeLessThanOrEqual(0.5));
+    checks.forEach((c, i) =>
+      expect(Math.abs(translation(c)[1] - toY(input.records[i]?.recoveryPct as number))).toBeLessThanOrEqual(
+        0.5,
+      ),
+    );
     // Check times map linearly onto the time axis: equal weekly steps, equal pixel steps.
     const xs = checks.map((c) => translation(c)[0]);
     expect(Math.abs(xs[1]! - xs[0]! - (xs[3]! - xs[2]!))).toBeLessThanOrEqual(0.5);
@@ -79,7 +108,12 @@ describe('control chart', () => {
   });
 
   it('refuses a time that is not ISO 8601 and a σ that is not positive', () => {
-    expect(() => renderControlChart({ ...input, records: [{ time: 'last Tuesday', recoveryPct: 100, verdict: 'pass', rules: [] }] })).toThrow(/records\[0\]\.time = "last Tuesday", must be an ISO 8601 time/);
+    expect(() =>
+      renderControlChart({
+        ...input,
+        records: [{ time: 'last Tuesday', recoveryPct: 100, verdict: 'pass', rules: [] }],
+      }),
+    ).toThrow(/records\[0\]\.time = "last Tuesday", must be an ISO 8601 time/);
     expect(() => renderControlChart({ ...input, sigmaPct: 0 })).toThrow(/sigmaPct = 0, must be > 0/);
   });
 
@@ -107,7 +141,9 @@ describe('control chart from a drift evaluation', () => {
     toolVersion: '0.1.0',
   });
   // A steady drift of −0.5 % a week, then a check beyond the tolerance.
-  const records = [0, 1, 2, 3, 4, 5, 6, 7, 8].map((k) => record(7 * k, 100.5 - 0.5 * k + (k % 2 === 0 ? 0.2 : -0.2)));
+  const records = [0, 1, 2, 3, 4, 5, 6, 7, 8].map((k) =>
+    record(7 * k, 100.5 - 0.5 * k + (k % 2 === 0 ? 0.2 : -0.2)),
+  );
   records.push(record(63, 94.0));
   records.push({ ...record(64, 0, 0), measured: 0.1, low: -0.9, high: 1.1 });
   const evaluation = evaluateHistory(records, { policy: { everyDays: 7, tolerancePct: 5 } });
@@ -115,7 +151,9 @@ describe('control chart from a drift evaluation', () => {
 
   it('carries every span check with its verdict and rules, the σ in force and its reason, and leaves zero gas off', () => {
     expect(chart.records).toHaveLength(10);
-    expect(chart.records.map((r) => r.verdict)).toEqual(evaluation.spanChecks.map((i) => evaluation.checks[i]?.verdict));
+    expect(chart.records.map((r) => r.verdict)).toEqual(
+      evaluation.spanChecks.map((i) => evaluation.checks[i]?.verdict),
+    );
     expect(chart.records[9]?.verdict).toBe('fail');
     expect(chart.records[9]?.recoveryPct).toBeCloseTo(94, 10);
     expect(chart.sigmaPct).toBe(evaluation.sigma.valuePct);
@@ -131,6 +169,8 @@ describe('control chart from a drift evaluation', () => {
     const svg = parseMarkup(renderControlChart(chart));
     expect(byClass(svg, 'check')).toHaveLength(10);
     expect(byClass(svg, 'trend-line')).toHaveLength(1);
-    expect(byClass(svg, 'rule-violation').length).toBe(chart.records.filter((r) => r.rules.length > 0).length);
+    expect(byClass(svg, 'rule-violation').length).toBe(
+      chart.records.filter((r) => r.rules.length > 0).length,
+    );
   });
 });

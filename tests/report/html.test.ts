@@ -37,7 +37,22 @@ function bandStandards(): StandardScan[] {
   }));
 }
 
-const method = parseMethod({ model: 'band', gases: [{ name: 'CO', band: [2040, 2245], baseline: [[2000, 2030], [2255, 2290]] }] }, 'method.json') as BandMethod;
+const method = parseMethod(
+  {
+    model: 'band',
+    gases: [
+      {
+        name: 'CO',
+        band: [2040, 2245],
+        baseline: [
+          [2000, 2030],
+          [2255, 2290],
+        ],
+      },
+    ],
+  },
+  'method.json',
+) as BandMethod;
 
 function bandInput(overrides: Partial<CalibrationReportInput> = {}): CalibrationReportInput {
   const standards = bandStandards();
@@ -51,7 +66,15 @@ function bandInput(overrides: Partial<CalibrationReportInput> = {}): Calibration
     calibrationFile: `cal/${HOSTILE}.json`,
     generatedAt: '2026-12-02T00:00:00.000Z',
     tool: { name: 'bandwright', version: '0.1.0' },
-    inputs: [{ role: 'manifest', path: `../${HOSTILE}/standards.csv`, sha256: 'a'.repeat(64), status: 'changed', currentSha256: 'b'.repeat(64) }],
+    inputs: [
+      {
+        role: 'manifest',
+        path: `../${HOSTILE}/standards.csv`,
+        sha256: 'a'.repeat(64),
+        status: 'changed',
+        currentSha256: 'b'.repeat(64),
+      },
+    ],
     spectra: standards.map((s, index) => ({ index, spectrum: s.spectrum })),
     spectraNotes: [],
     ...overrides,
@@ -63,7 +86,13 @@ describe('calibration report (band method)', () => {
     const html = calibrationReportHtml(bandInput());
     expect(html.includes(HOSTILE), 'raw user text in the page').toBe(false);
     expect(/<img/i.test(html), 'an element made from user text').toBe(false);
-    for (const where of [`Calibration report: Bench ${ESCAPED}`, `cal/${ESCAPED}.json`, `std/${ESCAPED}.csv`, `../${ESCAPED}/standards.csv`]) has(html, where);
+    for (const where of [
+      `Calibration report: Bench ${ESCAPED}`,
+      `cal/${ESCAPED}.json`,
+      `std/${ESCAPED}.csv`,
+      `../${ESCAPED}/standards.csv`,
+    ])
+      has(html, where);
     // The lot is in the standards table and in the plots' hover titles.
     expect(html.split(ESCAPED).length - 1).toBeGreaterThanOrEqual(8);
   });
@@ -75,7 +104,12 @@ describe('calibration report (band method)', () => {
   });
 
   it('leaves the spectra plot out and says why when no standard spectrum could be verified', () => {
-    const html = calibrationReportHtml(bandInput({ spectra: [], spectraNotes: ['8 of 8 standard spectra are not drawn: std/s0.csv (missing)'] }));
+    const html = calibrationReportHtml(
+      bandInput({
+        spectra: [],
+        spectraNotes: ['8 of 8 standard spectra are not drawn: std/s0.csv (missing)'],
+      }),
+    );
     expect(html.match(/class="plot plot-calibration-curve"/g)).toHaveLength(1);
     has(html, '8 of 8 standard spectra are not drawn: std/s0.csv (missing)');
     // The notes are also printed under the (empty) spectra plot, so --plot files carry them too.
@@ -88,7 +122,13 @@ describe('calibration report (band method)', () => {
       gas: 'CO',
       chart: {
         records: [
-          { time: '2026-12-03T09:00:00.000Z', recoveryPct: 100.4, verdict: 'pass' as const, rules: [], label: `checks/${HOSTILE}.csv` },
+          {
+            time: '2026-12-03T09:00:00.000Z',
+            recoveryPct: 100.4,
+            verdict: 'pass' as const,
+            rules: [],
+            label: `checks/${HOSTILE}.csv`,
+          },
           { time: '2026-12-10T09:00:00.000Z', recoveryPct: 93.8, verdict: 'fail' as const, rules: ['1-3s'] },
         ],
         centrePct: 100,
@@ -97,9 +137,35 @@ describe('calibration report (band method)', () => {
         sigmaSource: 'tolerance/3',
       },
       rows: [
-        { time: '2026-12-03T09:00:00.000Z', certified: 100, measured: 100.4, unit: 'ppm', recoveryPct: 100.4, verdict: 'pass', rules: [], scan: `checks/${HOSTILE}.csv` },
-        { time: '2026-12-05T09:00:00.000Z', certified: 0, measured: 0.2, unit: 'ppm', verdict: 'pass', rules: [], scan: 'zero.csv' },
-        { time: '2026-12-10T09:00:00.000Z', certified: 100, measured: 93.8, unit: 'ppm', recoveryPct: 93.8, verdict: 'fail', rules: ['1-3s'], scan: 'c2.csv' },
+        {
+          time: '2026-12-03T09:00:00.000Z',
+          certified: 100,
+          measured: 100.4,
+          unit: 'ppm',
+          recoveryPct: 100.4,
+          verdict: 'pass',
+          rules: [],
+          scan: `checks/${HOSTILE}.csv`,
+        },
+        {
+          time: '2026-12-05T09:00:00.000Z',
+          certified: 0,
+          measured: 0.2,
+          unit: 'ppm',
+          verdict: 'pass',
+          rules: [],
+          scan: 'zero.csv',
+        },
+        {
+          time: '2026-12-10T09:00:00.000Z',
+          certified: 100,
+          measured: 93.8,
+          unit: 'ppm',
+          recoveryPct: 93.8,
+          verdict: 'fail',
+          rules: ['1-3s'],
+          scan: 'c2.csv',
+        },
       ],
       notes: ['σ: tolerance/3 until 8 checks exist'],
       source: 'cal.history.csv',
@@ -149,15 +215,32 @@ describe('calibration report (classical least squares)', () => {
 describe('quantification report', () => {
   it('lists results with intervals and flags, and one collapsed section per sample with its plot', () => {
     const calibration = clsCalibration();
-    const sample = makeSpectrum({ x: grid, y: mixture(80, 120, () => 0), yKind: 'absorbance', metadata: { source: `samples/${HOSTILE}.csv`, ...conditions } });
-    const zero = makeSpectrum({ x: grid, y: mixture(0, 0, () => 0), yKind: 'absorbance', metadata: { source: 'zero.csv', ...conditions } });
-    const entries = [quantifyScan(calibration, sample), quantifyScan(calibration, zero), { scan: 'broken.csv', error: `broken.csv line 3: ${HOSTILE}` }];
+    const sample = makeSpectrum({
+      x: grid,
+      y: mixture(80, 120, () => 0),
+      yKind: 'absorbance',
+      metadata: { source: `samples/${HOSTILE}.csv`, ...conditions },
+    });
+    const zero = makeSpectrum({
+      x: grid,
+      y: mixture(0, 0, () => 0),
+      yKind: 'absorbance',
+      metadata: { source: 'zero.csv', ...conditions },
+    });
+    const entries = [
+      quantifyScan(calibration, sample),
+      quantifyScan(calibration, zero),
+      { scan: 'broken.csv', error: `broken.csv line 3: ${HOSTILE}` },
+    ];
     const html = quantifyReportHtml({
       calibration,
       calibrationFile: 'mix.json',
       entries,
       level: 0.95,
-      spectra: [{ scan: `samples/${HOSTILE}.csv`, spectrum: sample }, { scan: 'zero.csv', spectrum: zero }],
+      spectra: [
+        { scan: `samples/${HOSTILE}.csv`, spectrum: sample },
+        { scan: 'zero.csv', spectrum: zero },
+      ],
       generatedAt: '2026-12-02T00:00:00.000Z',
       tool: { name: 'bandwright', version: '0.1.0' },
       options: ['mg/m³ at 273.15 K and 101.325 kPa'],

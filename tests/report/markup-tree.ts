@@ -48,7 +48,8 @@ export function parseMarkup(markup: string): Node {
       const close = markup.indexOf('>', open);
       const name = markup.slice(open + 2, close).trim();
       const top = stack.pop();
-      if (top === undefined || top.name !== name) throw new Error(`</${name}> at ${open} closes <${top?.name}>`);
+      if (top === undefined || top.name !== name)
+        throw new Error(`</${name}> at ${open} closes <${top?.name}>`);
       i = close + 1;
       continue;
     }
@@ -66,7 +67,8 @@ export function parseMarkup(markup: string): Node {
   }
   if (stack.length !== 1) throw new Error(`unclosed <${stack[stack.length - 1]?.name}>`);
   const [first] = root.children;
-  if (first === undefined || root.children.length !== 1) throw new Error(`expected one root element, found ${root.children.length}`);
+  if (first === undefined || root.children.length !== 1)
+    throw new Error(`expected one root element, found ${root.children.length}`);
   return first;
 }
 
@@ -106,5 +108,9 @@ export function numberAttribute(node: Node, name: string): number {
 
 /** Points of an SVG path's M/L commands (as d3-shape writes them: absolute, comma separated). */
 export function pathPoints(d: string): { command: string; x: number; y: number }[] {
-  return [...d.matchAll(/([ML])([-\d.e]+),([-\d.e]+)/g)].map((m) => ({ command: m[1] as string, x: Number(m[2]), y: Number(m[3]) }));
+  return [...d.matchAll(/([ML])([-\d.e]+),([-\d.e]+)/g)].map((m) => ({
+    command: m[1] as string,
+    x: Number(m[2]),
+    y: Number(m[3]),
+  }));
 }

@@ -8,14 +8,27 @@
  */
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { coordinate, element, escapeText, plainMinus, shortNumber, slug } from '../../src/report/svg/markup.js';
+import {
+  coordinate,
+  element,
+  escapeText,
+  plainMinus,
+  shortNumber,
+  slug,
+} from '../../src/report/svg/markup.js';
 import { parseMarkup } from './markup-tree.js';
 
-const decode = (text: string): string => text.replace(/&(amp|lt|gt|quot|#39);/g, (_, name: string) => ({ amp: '&', lt: '<', gt: '>', quot: '"', '#39': "'" })[name] as string);
+const decode = (text: string): string =>
+  text.replace(
+    /&(amp|lt|gt|quot|#39);/g,
+    (_, name: string) => ({ amp: '&', lt: '<', gt: '>', quot: '"', '#39': "'" })[name] as string,
+  );
 
 describe('escapeText', () => {
   it('replaces the five special characters (OWASP rule 1)', () => {
-    expect(escapeText(`<script>alert("x" & 'y')</script>`)).toBe('&lt;script&gt;alert(&quot;x&quot; &amp; &#39;y&#39;)&lt;/script&gt;');
+    expect(escapeText(`<script>alert("x" & 'y')</script>`)).toBe(
+      '&lt;script&gt;alert(&quot;x&quot; &amp; &#39;y&#39;)&lt;/script&gt;',
+    );
     expect(escapeText('plain CO_ppm 2040–2245 cm⁻¹')).toBe('plain CO_ppm 2040–2245 cm⁻¹');
   });
 
@@ -34,7 +47,13 @@ describe('escapeText', () => {
 
 describe('element', () => {
   it('escapes attribute values, rounds numbers to 0.01 and omits undefined and false', () => {
-    expect(element('text', { x: 10.123456, y: -0.004, class: 'a"b', title: undefined, hidden: false }, escapeText('<&>'))).toBe('<text x="10.12" y="0" class="a&quot;b">&lt;&amp;&gt;</text>');
+    expect(
+      element(
+        'text',
+        { x: 10.123456, y: -0.004, class: 'a"b', title: undefined, hidden: false },
+        escapeText('<&>'),
+      ),
+    ).toBe('<text x="10.12" y="0" class="a&quot;b">&lt;&amp;&gt;</text>');
     expect(element('rect', { width: 5 })).toBe('<rect width="5"/>');
   });
 

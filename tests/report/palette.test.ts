@@ -15,9 +15,21 @@ import { describe, expect, it } from 'vitest';
 import { SERIES_COLOURS, SERIES_DASHES, SYMBOL_NAMES, seriesStyle } from '../../src/report/svg/palette.js';
 
 const MACHADO: Record<string, number[][]> = {
-  protanopia: [[0.152286, 1.052583, -0.204868], [0.114503, 0.786281, 0.099216], [-0.003882, -0.048116, 1.051998]],
-  deuteranopia: [[0.367322, 0.860646, -0.227968], [0.280085, 0.672501, 0.047413], [-0.01182, 0.04294, 0.968881]],
-  tritanopia: [[1.255528, -0.076749, -0.178779], [-0.078411, 0.930809, 0.147602], [0.004733, 0.691367, 0.3039]],
+  protanopia: [
+    [0.152286, 1.052583, -0.204868],
+    [0.114503, 0.786281, 0.099216],
+    [-0.003882, -0.048116, 1.051998],
+  ],
+  deuteranopia: [
+    [0.367322, 0.860646, -0.227968],
+    [0.280085, 0.672501, 0.047413],
+    [-0.01182, 0.04294, 0.968881],
+  ],
+  tritanopia: [
+    [1.255528, -0.076749, -0.178779],
+    [-0.078411, 0.930809, 0.147602],
+    [0.004733, 0.691367, 0.3039],
+  ],
 };
 
 const linear = (c: number): number => (c <= 0.04045 ? c / 12.92 : ((c + 0.055) / 1.055) ** 2.4);
@@ -38,8 +50,20 @@ function lab(linearRgb: number[]): number[] {
   return [116 * fy - 16, 500 * (fx - fy), 200 * (fy - fz)];
 }
 
-const simulate = (matrix: number[][], c: number[]): number[] => matrix.map((row) => Math.min(1, Math.max(0, row.reduce((s, m, k) => s + m * (c[k] as number), 0))));
-const views = (hex: string): Record<string, number[]> => ({ normal: lab(rgb(hex)), ...Object.fromEntries(Object.entries(MACHADO).map(([name, m]) => [name, lab(simulate(m, rgb(hex)))])) });
+const simulate = (matrix: number[][], c: number[]): number[] =>
+  matrix.map((row) =>
+    Math.min(
+      1,
+      Math.max(
+        0,
+        row.reduce((s, m, k) => s + m * (c[k] as number), 0),
+      ),
+    ),
+  );
+const views = (hex: string): Record<string, number[]> => ({
+  normal: lab(rgb(hex)),
+  ...Object.fromEntries(Object.entries(MACHADO).map(([name, m]) => [name, lab(simulate(m, rgb(hex)))])),
+});
 const distance = (a: number[], b: number[]): number => Math.hypot(...a.map((v, i) => v - (b[i] as number)));
 
 describe('series palette', () => {
@@ -76,7 +100,12 @@ describe('series palette', () => {
     expect(SERIES_DASHES).toHaveLength(SERIES_COLOURS.length);
     expect(SYMBOL_NAMES).toHaveLength(SERIES_COLOURS.length);
     // Beyond seven the colours repeat but the combination stays unique for 49 series.
-    const combos = new Set(Array.from({ length: 49 }, (_, i) => { const s = seriesStyle(i); return `${s.colour} ${s.dash} ${s.symbolName}`; }));
+    const combos = new Set(
+      Array.from({ length: 49 }, (_, i) => {
+        const s = seriesStyle(i);
+        return `${s.colour} ${s.dash} ${s.symbolName}`;
+      }),
+    );
     expect(combos.size).toBe(49);
     expect(seriesStyle(SERIES_COLOURS.length).colour).toBe(seriesStyle(0).colour);
   });

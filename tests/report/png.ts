@@ -104,14 +104,23 @@ export function decodePng(bytes: Uint8Array): DecodedPng {
  *
  * @param image - decoded image
  */
-export function luminanceStatistics(image: DecodedPng): { mean: number; variance: number; inkFraction: number } {
+export function luminanceStatistics(image: DecodedPng): {
+  mean: number;
+  variance: number;
+  inkFraction: number;
+} {
   const { pixels, channels } = image;
   const count = image.width * image.height;
   const values = new Float64Array(count);
   const histogram = new Uint32Array(256);
   for (let p = 0; p < count; p++) {
     const i = p * channels;
-    const y = channels >= 3 ? 0.2126 * (pixels[i] as number) + 0.7152 * (pixels[i + 1] as number) + 0.0722 * (pixels[i + 2] as number) : (pixels[i] as number);
+    const y =
+      channels >= 3
+        ? 0.2126 * (pixels[i] as number) +
+          0.7152 * (pixels[i + 1] as number) +
+          0.0722 * (pixels[i + 2] as number)
+        : (pixels[i] as number);
     values[p] = y;
     histogram[Math.round(y)]! += 1;
   }

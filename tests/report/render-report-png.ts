@@ -29,7 +29,11 @@ async function render(): Promise<number> {
   const quiet = { write: () => true };
   // A fixed time, so the report's dates are the same on every run.
   process.env.SOURCE_DATE_EPOCH ??= '1795000000';
-  const status = await main(['node', 'bandwright', 'demo', '--out', join(folder, 'demo')], { stdout: quiet, stderr: quiet, interactive: false });
+  const status = await main(['node', 'bandwright', 'demo', '--out', join(folder, 'demo')], {
+    stdout: quiet,
+    stderr: quiet,
+    interactive: false,
+  });
   if (status !== 0) {
     process.stderr.write(`bandwright demo exited with status ${status}\n`);
     return 1;
@@ -37,7 +41,9 @@ async function render(): Promise<number> {
   const report = join(folder, 'demo', 'lab-co.report.html');
   const image = decodePng(screenshot(chromium.path, report, out, { width: 1000, height }));
   const stats = luminanceStatistics(image);
-  process.stdout.write(`report: ${report}\npng:    ${out} (${image.width} × ${image.height} px, luminance variance ${stats.variance.toFixed(0)}, ${(stats.inkFraction * 100).toFixed(1)} % ink)\n`);
+  process.stdout.write(
+    `report: ${report}\npng:    ${out} (${image.width} × ${image.height} px, luminance variance ${stats.variance.toFixed(0)}, ${(stats.inkFraction * 100).toFixed(1)} % ink)\n`,
+  );
   return 0;
 }
 

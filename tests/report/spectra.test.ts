@@ -10,18 +10,43 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import type { GasCalibration } from '../../src/calibration/calibration.js';
-import { concentrationGroup, gasSpectraData, renderSpectra, thinForDrawing } from '../../src/report/svg/spectra.js';
+import {
+  concentrationGroup,
+  gasSpectraData,
+  renderSpectra,
+  thinForDrawing,
+} from '../../src/report/svg/spectra.js';
 import { bandScan } from '../helpers/band-scans.js';
 import { dinGas } from './din-gas.js';
 import { byClass, numberAttribute, parseMarkup, pathPoints, textOf, type Node } from './markup-tree.js';
 
-const gas: GasCalibration = { ...dinGas(), feature: { band: [2040, 2245], baseline: [[2000, 2030], [2255, 2290]], baselineOrder: 1, response: 'area' } };
-const spectra = [0, 100, 100, 400].map((ppm, i) => ({ label: `std-${i}.jdx`, spectrum: bandScan(ppm), group: concentrationGroup(ppm, 'ppm') }));
+const gas: GasCalibration = {
+  ...dinGas(),
+  feature: {
+    band: [2040, 2245],
+    baseline: [
+      [2000, 2030],
+      [2255, 2290],
+    ],
+    baselineOrder: 1,
+    response: 'area',
+  },
+};
+const spectra = [0, 100, 100, 400].map((ppm, i) => ({
+  label: `std-${i}.jdx`,
+  spectrum: bandScan(ppm),
+  group: concentrationGroup(ppm, 'ppm'),
+}));
 const options = { range: [1950, 2350] as const, absorbanceDomain: [0, 0.5] as const };
 
 function panelOf(svg: Node): { left: number; top: number; width: number; height: number } {
   const rect = byClass(svg, 'panel-frame')[0] as Node;
-  return { left: numberAttribute(rect, 'x'), top: numberAttribute(rect, 'y'), width: numberAttribute(rect, 'width'), height: numberAttribute(rect, 'height') };
+  return {
+    left: numberAttribute(rect, 'x'),
+    top: numberAttribute(rect, 'y'),
+    width: numberAttribute(rect, 'width'),
+    height: numberAttribute(rect, 'height'),
+  };
 }
 
 describe('spectra plot', () => {
@@ -32,7 +57,14 @@ describe('spectra plot', () => {
     expect(byClass(svg, 'baseline-window')).toHaveLength(2);
     expect(byClass(svg, 'fitted-baseline')).toHaveLength(4);
     const legend = byClass(svg, 'legend-entry').map(textOf);
-    expect(legend).toEqual(['0 ppm', '100 ppm', '400 ppm', 'band 2040–2245 cm⁻¹', 'baseline windows', 'fitted baseline']);
+    expect(legend).toEqual([
+      '0 ppm',
+      '100 ppm',
+      '400 ppm',
+      'band 2040–2245 cm⁻¹',
+      'baseline windows',
+      'fitted baseline',
+    ]);
     const labels = byClass(svg, 'axis-label').map(textOf);
     expect(labels).toContain('wavenumber / cm⁻¹ (decreasing to the right)');
     expect(labels).toContain('absorbance (decadic) / AU');
@@ -43,12 +75,21 @@ describe('spectra plot', () => {
 
   it('places the windows on a descending axis (high wavenumbers left) and on an ascending one', () => {
     for (const direction of ['descending', 'ascending'] as const) {
-      const svg = parseMarkup(renderSpectra(gasSpectraData(gas, spectra), { id: 's', ...options, wavenumberAxis: direction }));
+      const svg = parseMarkup(
+        renderSpectra(gasSpectraData(gas, spectra), { id: 's', ...options, wavenumberAxis: direction }),
+      );
       const panel = panelOf(svg);
-      const px = (nu: number): number => panel.left + ((direction === 'descending' ? 2350 - nu : nu - 1950) / 400) * panel.width;
+      const px = (nu: number): number =>
+        panel.left + ((direction === 'descending' ? 2350 - nu : nu - 1950) / 400) * panel.width;
       const band = byClass(svg, 'band-window')[0] as Node;
-      expect(Math.abs(numberAttribute(band, 'x') - Math.min(px(2040), px(2245))), direction).toBeLessThanOrEqual(0.5);
-      expect(Math.abs(numberAttribute(band, 'width') - Math.abs(px(2245) - px(2040))), direction).toBeLessThanOrEqual(0.5);
+      expect(
+        Math.abs(numberAttribute(band, 'x') - Math.min(px(2040), px(2245))),
+        direction,
+      ).toBeLessThanOrEqual(0.5);
+      expect(
+        Math.abs(numberAttribute(band, 'width') - Math.abs(px(2245) - px(2040))),
+        direction,
+      ).toBeLessThanOrEqual(0.5);
       const spectrum = pathPoints(byClass(svg, 'spectrum')[0]?.attributes.d ?? '');
       const first = spectrum[0] as { x: number };
       const last = spectrum[spectrum.length - 1] as { x: number };
@@ -58,7 +99,9 @@ describe('spectra plot', () => {
   });
 
   it('draws the fitted baseline on the known straight baseline (within 0.5 px)', () => {
-    const svg = parseMarkup(renderSpectra(gasSpectraData(gas, spectra), { id: 's', ...options, wavenumberAxis: 'ascending' }));
+    const svg = parseMarkup(
+      renderSpectra(gasSpectraData(gas, spectra), { id: 's', ...options, wavenumberAxis: 'ascending' }),
+    );
     const panel = panelOf(svg);
     const toNu = (x: number): number => 1950 + ((x - panel.left) / panel.width) * 400;
     const toY = (a: number): number => panel.top + panel.height - (a / 0.5) * panel.height;
@@ -82,17 +125,22 @@ describe('spectra plot', () => {
 
   it('thins long spectra for drawing without losing any extreme (property, fixed seed)', () => {
     fc.assert(
-      fc.property(fc.array(fc.double({ min: -5, max: 5, noNaN: true }), { minLength: 3, maxLength: 3000 }), fc.integer({ min: 1, max: 400 }), (values, columns) => {
-        const x = Float64Array.from(values, (_, i) => 1000 + i * 0.5);
-        const y = Float64Array.from(values);
-        const low = 1000;
-        const high = 1000 + (values.length - 1) * 0.5;
-        const thinned = thinForDrawing(x, y, low, high, columns);
-        expect(Math.max(...thinned.y)).toBe(Math.max(...values));
-        expect(Math.min(...thinned.y)).toBe(Math.min(...values));
-        for (let i = 1; i < thinned.x.length; i++) expect(thinned.x[i]).toBeGreaterThan(thinned.x[i - 1] as number);
-        expect(thinned.x.length).toBeLessThanOrEqual(Math.max(values.length, 2 * columns + 2));
-      }),
+      fc.property(
+        fc.array(fc.double({ min: -5, max: 5, noNaN: true }), { minLength: 3, maxLength: 3000 }),
+        fc.integer({ min: 1, max: 400 }),
+        (values, columns) => {
+          const x = Float64Array.from(values, (_, i) => 1000 + i * 0.5);
+          const y = Float64Array.from(values);
+          const low = 1000;
+          const high = 1000 + (values.length - 1) * 0.5;
+          const thinned = thinForDrawing(x, y, low, high, columns);
+          expect(Math.max(...thinned.y)).toBe(Math.max(...values));
+          expect(Math.min(...thinned.y)).toBe(Math.min(...values));
+          for (let i = 1; i < thinned.x.length; i++)
+            expect(thinned.x[i]).toBeGreaterThan(thinned.x[i - 1] as number);
+          expect(thinned.x.length).toBeLessThanOrEqual(Math.max(values.length, 2 * columns + 2));
+        },
+      ),
       { seed: 20261201, numRuns: 200 },
     );
   });

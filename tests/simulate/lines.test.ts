@@ -8,7 +8,14 @@ import {
   HYDROGEN_CHLORIDE_H37CL,
   NITROUS_OXIDE_NU3,
 } from '../../src/simulate/constants.js';
-import { bandOrigin, diatomicPartitionSum, lineList, rotationalConstant, type LineList, type SpectralLine } from '../../src/simulate/lines.js';
+import {
+  bandOrigin,
+  diatomicPartitionSum,
+  lineList,
+  rotationalConstant,
+  type LineList,
+  type SpectralLine,
+} from '../../src/simulate/lines.js';
 
 const C2 = 1.438776877; // second radiation constant, cm·K (CODATA 2018, facts.md)
 
@@ -67,7 +74,10 @@ describe('CO line positions from the Huber–Herzberg constants', () => {
     const measured = { 'R(8)': 4.452e-19, 'R(9)': 4.217e-19, 'R(10)': 3.851e-19 } as const;
     for (const [label, value] of Object.entries(measured)) {
       const computed = line(co, label).intensity_cm_per_molecule;
-      expect(Math.abs(computed - value) / value, `${label}: measured ${value}, computed ${computed}, tolerance 3 %`).toBeLessThan(0.03);
+      expect(
+        Math.abs(computed - value) / value,
+        `${label}: measured ${value}, computed ${computed}, tolerance 3 %`,
+      ).toBeLessThan(0.03);
     }
   });
 });
@@ -85,8 +95,13 @@ describe('other diatomic and linear molecules', () => {
     const r3 = hcl.lines.filter((l) => l.label.endsWith(' R(3)'));
     expect(r3.length).toBe(2);
     // Abundance ratio ³⁵Cl/³⁷Cl ≈ 3.1 (IUPAC abundances, from memory) shows in the doublet.
-    const [light, heavy] = [r3.find((l) => l.label.startsWith('H³⁵Cl')), r3.find((l) => l.label.startsWith('H³⁷Cl'))];
-    expect((light?.intensity_cm_per_molecule ?? 0) / (heavy?.intensity_cm_per_molecule ?? 1)).toBeGreaterThan(2.9);
+    const [light, heavy] = [
+      r3.find((l) => l.label.startsWith('H³⁵Cl')),
+      r3.find((l) => l.label.startsWith('H³⁷Cl')),
+    ];
+    expect((light?.intensity_cm_per_molecule ?? 0) / (heavy?.intensity_cm_per_molecule ?? 1)).toBeGreaterThan(
+      2.9,
+    );
   });
 
   it('HCl and CO₂ ν3 have no Q branch; NO (²Π) has one near its origin (Σ–Σ vs Π selection rules, common practice)', () => {
@@ -96,7 +111,9 @@ describe('other diatomic and linear molecules', () => {
     const q = no.lines.filter((l) => l.branch === 'Q');
     expect(q.length).toBeGreaterThan(10);
     const origin = 1876; // facts.md: ν0 ≈ 1876 (Huber & Herzberg, from memory)
-    const strongestQ = q.reduce((a, b) => (b.intensity_cm_per_molecule > a.intensity_cm_per_molecule ? b : a));
+    const strongestQ = q.reduce((a, b) =>
+      b.intensity_cm_per_molecule > a.intensity_cm_per_molecule ? b : a,
+    );
     expect(Math.abs(strongestQ.position_cm - origin)).toBeLessThan(3);
     expect(no.notes.join(' ')).toMatch(/simplified/);
   });
@@ -112,14 +129,19 @@ describe('other diatomic and linear molecules', () => {
     expect(co2.lines.some((l) => l.label === 'P(1)')).toBe(false);
     expect(co2.lines.some((l) => l.label === 'P(2)')).toBe(true);
     // Strongest line near 2361 cm⁻¹ (R(16) region; from memory).
-    const strongest = co2.lines.reduce((a, b) => (b.intensity_cm_per_molecule > a.intensity_cm_per_molecule ? b : a));
+    const strongest = co2.lines.reduce((a, b) =>
+      b.intensity_cm_per_molecule > a.intensity_cm_per_molecule ? b : a,
+    );
     expect(Math.abs(strongest.position_cm - 2361)).toBeLessThan(3);
   });
 
   it('N₂O ν3 keeps odd and even J″ (NNO has no exchange symmetry; common practice)', () => {
     const n2o = lineList('N2O', 296);
     expect(n2o.lines.some((l) => l.label === 'R(1)')).toBe(true);
-    expect(line(n2o, 'R(0)').position_cm - NITROUS_OXIDE_NU3.bandOrigin_cm).toBeCloseTo(2 * NITROUS_OXIDE_NU3.upperB, 4);
+    expect(line(n2o, 'R(0)').position_cm - NITROUS_OXIDE_NU3.bandOrigin_cm).toBeCloseTo(
+      2 * NITROUS_OXIDE_NU3.upperB,
+      4,
+    );
   });
 });
 
@@ -129,7 +151,10 @@ describe('intensities, partition sums and temperature', () => {
     expect(co.totalIntensity_cm_per_molecule / 1.013e-17).toBeCloseTo(1, 9);
     for (const gas of Object.keys(GAS_MODELS)) {
       const list = lineList(gas, 296);
-      expect(list.totalIntensity_cm_per_molecule / list.bandStrength296_cm_per_molecule, gas).toBeCloseTo(1, 6);
+      expect(list.totalIntensity_cm_per_molecule / list.bandStrength296_cm_per_molecule, gas).toBeCloseTo(
+        1,
+        6,
+      );
     }
   });
 
@@ -143,7 +168,8 @@ describe('intensities, partition sums and temperature', () => {
     const cold = diatomicPartitionSum(CARBON_MONOXIDE_12C16O, 10).rotational;
     let explicit = 0;
     const D0 = CARBON_MONOXIDE_12C16O.De;
-    for (let J = 0; J <= 15; J++) explicit += (2 * J + 1) * Math.exp((-C2 * (B0 * J * (J + 1) - D0 * (J * (J + 1)) ** 2)) / 10);
+    for (let J = 0; J <= 15; J++)
+      explicit += (2 * J + 1) * Math.exp((-C2 * (B0 * J * (J + 1) - D0 * (J * (J + 1)) ** 2)) / 10);
     expect(Math.abs(cold - explicit) / explicit, `direct ${cold}, explicit ${explicit}`).toBeLessThan(1e-9);
   });
 
@@ -168,13 +194,20 @@ describe('intensities, partition sums and temperature', () => {
     const peaks: number[] = [];
     for (const temperature of [296, 700]) {
       const r = lineList('CO', temperature).lines.filter((l) => l.branch === 'R');
-      const strongest = r.reduce((a, b) => (b.intensity_cm_per_molecule > a.intensity_cm_per_molecule ? b : a));
+      const strongest = r.reduce((a, b) =>
+        b.intensity_cm_per_molecule > a.intensity_cm_per_molecule ? b : a,
+      );
       const predicted = Math.sqrt(temperature / (2 * C2 * B0)) - 0.5;
-      expect(Math.abs(strongest.lowerJ - predicted), `${temperature} K: strongest R(${strongest.lowerJ}), predicted J ≈ ${predicted.toFixed(2)}`).toBeLessThanOrEqual(1);
+      expect(
+        Math.abs(strongest.lowerJ - predicted),
+        `${temperature} K: strongest R(${strongest.lowerJ}), predicted J ≈ ${predicted.toFixed(2)}`,
+      ).toBeLessThanOrEqual(1);
       peaks.push(strongest.lowerJ);
     }
     expect(peaks[1]).toBeGreaterThan(peaks[0] as number);
-    const highJShare = (list: LineList): number => list.lines.filter((l) => l.lowerJ >= 15).reduce((s, l) => s + l.intensity_cm_per_molecule, 0) / list.totalIntensity_cm_per_molecule;
+    const highJShare = (list: LineList): number =>
+      list.lines.filter((l) => l.lowerJ >= 15).reduce((s, l) => s + l.intensity_cm_per_molecule, 0) /
+      list.totalIntensity_cm_per_molecule;
     expect(highJShare(lineList('CO', 700))).toBeGreaterThan(2 * highJShare(lineList('CO', 296)));
   });
 
@@ -184,10 +217,19 @@ describe('intensities, partition sums and temperature', () => {
       expect(list.approximate, gas).toBe(true);
       expect(list.notes.join(' '), gas).toMatch(/approximate/);
     }
-    for (const gas of ['CO', 'HCl', 'NO', 'CO2', 'N2O']) expect(lineList(gas, 296).approximate, gas).toBe(false);
+    for (const gas of ['CO', 'HCl', 'NO', 'CO2', 'N2O'])
+      expect(lineList(gas, 296).approximate, gas).toBe(false);
     const water = lineList('H2O', 296).lines;
-    for (let lo = 1300; lo < 2000; lo += 100) expect(water.filter((l) => l.position_cm >= lo && l.position_cm < lo + 100).length, `H2O lines in ${lo}–${lo + 100}`).toBeGreaterThan(20);
-    for (let lo = 3500; lo < 4000; lo += 100) expect(water.filter((l) => l.position_cm >= lo && l.position_cm < lo + 100).length, `H2O lines in ${lo}–${lo + 100}`).toBeGreaterThan(20);
+    for (let lo = 1300; lo < 2000; lo += 100)
+      expect(
+        water.filter((l) => l.position_cm >= lo && l.position_cm < lo + 100).length,
+        `H2O lines in ${lo}–${lo + 100}`,
+      ).toBeGreaterThan(20);
+    for (let lo = 3500; lo < 4000; lo += 100)
+      expect(
+        water.filter((l) => l.position_cm >= lo && l.position_cm < lo + 100).length,
+        `H2O lines in ${lo}–${lo + 100}`,
+      ).toBeGreaterThan(20);
   });
 
   it('the invented pattern of a band model is the same on every call (truth independent of any seed)', () => {
@@ -200,6 +242,10 @@ describe('lineList errors', () => {
     expectThrows(() => lineList('Xe', 296), 'UNKNOWN_GAS', /gas "Xe" is not in the species table/);
     expectThrows(() => lineList('N2', 296), 'IR_INACTIVE', /homonuclear/);
     expectThrows(() => lineList('NO2', 296), 'INVALID_VALUE', /no spectral model for NO2/);
-    expectThrows(() => lineList('CO', 10), 'INVALID_VALUE', /temperature_K = 10, must be between 50 and 3000 K/);
+    expectThrows(
+      () => lineList('CO', 10),
+      'INVALID_VALUE',
+      /temperature_K = 10, must be between 50 and 3000 K/,
+    );
   });
 });

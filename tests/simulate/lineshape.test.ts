@@ -1,7 +1,14 @@
 import { readFileSync } from 'node:fs';
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { dopplerHWHM, faddeeva, faddeevaReal, lorentzHWHM, voigtHWHM, voigtProfile } from '../../src/simulate/lineshape.js';
+import {
+  dopplerHWHM,
+  faddeeva,
+  faddeevaReal,
+  lorentzHWHM,
+  voigtHWHM,
+  voigtProfile,
+} from '../../src/simulate/lineshape.js';
 
 interface WofzFixture {
   source: string;
@@ -12,7 +19,9 @@ interface WofzFixture {
 
 // Reference values from scipy.special.wofz (general-purpose reference library), written by
 // tests/fixtures/faddeeva/generate.py; the fixture records the scipy version.
-const fixture = JSON.parse(readFileSync(new URL('../fixtures/faddeeva/wofz.json', import.meta.url), 'utf8')) as WofzFixture;
+const fixture = JSON.parse(
+  readFileSync(new URL('../fixtures/faddeeva/wofz.json', import.meta.url), 'utf8'),
+) as WofzFixture;
 
 /** Trapezoid integral of f over [a, b] with n intervals. */
 function integrate(f: (x: number) => number, a: number, b: number, n: number): number {
@@ -42,7 +51,10 @@ describe('faddeeva (Humlíček W4)', () => {
     for (const [x, y, re, im] of fixture.points) {
       const w = faddeeva(x, y);
       const error = Math.hypot(w.re - re, w.im - im) / Math.hypot(re, im);
-      if (!(error <= 1e-4)) failures.push(`w(${x} + ${y}i): expected ${re} + ${im}i, got ${w.re} + ${w.im}i, relative error ${error.toExponential(2)} > 1e-4`);
+      if (!(error <= 1e-4))
+        failures.push(
+          `w(${x} + ${y}i): expected ${re} + ${im}i, got ${w.re} + ${w.im}i, relative error ${error.toExponential(2)} > 1e-4`,
+        );
     }
     expect(failures).toEqual([]);
   });
@@ -54,18 +66,28 @@ describe('faddeeva (Humlíček W4)', () => {
     for (const [x, y, re, im] of fixture.points) {
       if (re < 1e-3 * Math.hypot(re, im)) continue;
       const error = Math.abs(faddeevaReal(x, y) - re) / re;
-      if (!(error <= 1e-4)) failures.push(`Re w(${x} + ${y}i): expected ${re}, got ${faddeevaReal(x, y)}, relative error ${error.toExponential(2)}`);
+      if (!(error <= 1e-4))
+        failures.push(
+          `Re w(${x} + ${y}i): expected ${re}, got ${faddeevaReal(x, y)}, relative error ${error.toExponential(2)}`,
+        );
     }
     expect(failures).toEqual([]);
   });
 
   it('has the symmetry w(−x + iy) = conj w(x + iy) (property of w; fast-check, fixed seed)', () => {
     fc.assert(
-      fc.property(fc.double({ min: -50, max: 50, noNaN: true }), fc.double({ min: 0, max: 50, noNaN: true }), (x, y) => {
-        const a = faddeeva(x, y);
-        const b = faddeeva(-x, y);
-        return Math.abs(a.re - b.re) <= 1e-15 * Math.abs(a.re) + 1e-300 && Math.abs(a.im + b.im) <= 1e-15 * Math.abs(a.im) + 1e-300;
-      }),
+      fc.property(
+        fc.double({ min: -50, max: 50, noNaN: true }),
+        fc.double({ min: 0, max: 50, noNaN: true }),
+        (x, y) => {
+          const a = faddeeva(x, y);
+          const b = faddeeva(-x, y);
+          return (
+            Math.abs(a.re - b.re) <= 1e-15 * Math.abs(a.re) + 1e-300 &&
+            Math.abs(a.im + b.im) <= 1e-15 * Math.abs(a.im) + 1e-300
+          );
+        },
+      ),
       { seed: 20240611, numRuns: 300 },
     );
   });
@@ -77,9 +99,9 @@ describe('dopplerHWHM', () => {
     const k = 1.380649e-23;
     const c = 299792458;
     const avogadro = 6.02214076e23;
-    const mass = 28.010e-3 / avogadro;
+    const mass = 28.01e-3 / avogadro;
     const expected = (2143.27 / c) * Math.sqrt((2 * Math.LN2 * k * 296) / mass);
-    const actual = dopplerHWHM(2143.27, 296, 28.010);
+    const actual = dopplerHWHM(2143.27, 296, 28.01);
     expect(Math.abs(actual - expected) / expected, `expected ${expected}, got ${actual}`).toBeLessThan(1e-12);
     expect(Math.abs(actual - 0.0025)).toBeLessThan(0.000005); // facts.md quotes 0.00250
   });
@@ -94,10 +116,29 @@ describe('dopplerHWHM', () => {
 
 describe('lorentzHWHM', () => {
   it('scales linearly with pressure and as (296/T)^n (standard line-by-line practice, from memory)', () => {
-    const atm = lorentzHWHM({ airBroadening_cm_atm: 0.065, temperatureExponent: 0.7, temperature_K: 296, pressure_kPa: 101.325 });
+    const atm = lorentzHWHM({
+      airBroadening_cm_atm: 0.065,
+      temperatureExponent: 0.7,
+      temperature_K: 296,
+      pressure_kPa: 101.325,
+    });
     expect(atm).toBeCloseTo(0.065, 15);
-    expect(lorentzHWHM({ airBroadening_cm_atm: 0.065, temperatureExponent: 0.7, temperature_K: 296, pressure_kPa: 50.6625 })).toBeCloseTo(0.0325, 15);
-    expect(lorentzHWHM({ airBroadening_cm_atm: 0.065, temperatureExponent: 0.7, temperature_K: 592, pressure_kPa: 101.325 })).toBeCloseTo(0.065 * 0.5 ** 0.7, 15);
+    expect(
+      lorentzHWHM({
+        airBroadening_cm_atm: 0.065,
+        temperatureExponent: 0.7,
+        temperature_K: 296,
+        pressure_kPa: 50.6625,
+      }),
+    ).toBeCloseTo(0.0325, 15);
+    expect(
+      lorentzHWHM({
+        airBroadening_cm_atm: 0.065,
+        temperatureExponent: 0.7,
+        temperature_K: 592,
+        pressure_kPa: 101.325,
+      }),
+    ).toBeCloseTo(0.065 * 0.5 ** 0.7, 15);
   });
 });
 
@@ -108,7 +149,10 @@ describe('voigtProfile', () => {
     for (let offset = -4 * gammaD; offset <= 4 * gammaD; offset += gammaD / 7) {
       const gauss = peak * Math.exp((-Math.LN2 * offset * offset) / (gammaD * gammaD));
       const voigt = voigtProfile(offset, gammaD, 0);
-      expect(Math.abs(voigt - gauss), `offset ${offset}: expected ${gauss}, got ${voigt}, tolerance ${1e-4 * peak}`).toBeLessThanOrEqual(1e-4 * peak);
+      expect(
+        Math.abs(voigt - gauss),
+        `offset ${offset}: expected ${gauss}, got ${voigt}, tolerance ${1e-4 * peak}`,
+      ).toBeLessThanOrEqual(1e-4 * peak);
     }
   });
 
@@ -132,7 +176,12 @@ describe('voigtProfile', () => {
     ] as const) {
       const width = voigtHWHM(gammaD, gammaL);
       const half = 2000 * width;
-      const inside = integrate((x) => voigtProfile(x, gammaD, gammaL), -half, half, Math.ceil((2 * half) / (width / 20)));
+      const inside = integrate(
+        (x) => voigtProfile(x, gammaD, gammaL),
+        -half,
+        half,
+        Math.ceil((2 * half) / (width / 20)),
+      );
       // Beyond ±half (≫ γD) the profile is Lorentzian: tail area 1 − (2/π)·atan(half/γL).
       const tail = gammaL > 0 ? 1 - (2 / Math.PI) * Math.atan(half / gammaL) : 0;
       const total = inside + tail;
@@ -157,7 +206,10 @@ describe('voigtProfile', () => {
       }
       const numeric = (a + b) / 2;
       const formula = voigtHWHM(gammaD, gammaL);
-      expect(Math.abs(numeric - formula) / formula, `γD ${gammaD}, γL ${gammaL}: numeric ${numeric}, formula ${formula}`).toBeLessThan(5e-4);
+      expect(
+        Math.abs(numeric - formula) / formula,
+        `γD ${gammaD}, γL ${gammaL}: numeric ${numeric}, formula ${formula}`,
+      ).toBeLessThan(5e-4);
     }
   });
 });

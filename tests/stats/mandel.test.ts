@@ -7,17 +7,32 @@ import { mandelTest } from '../../src/stats/mandel.js';
 import { expectAbsolute, loadDataset } from '../fixtures/nist-strd/nist.js';
 
 // Source: DIN 32645 worked example (tests/fixtures/din32645/worked-example.json).
-const din = JSON.parse(readFileSync(new URL('../fixtures/din32645/worked-example.json', import.meta.url), 'utf8')) as {
+const din = JSON.parse(
+  readFileSync(new URL('../fixtures/din32645/worked-example.json', import.meta.url), 'utf8'),
+) as {
   data: { concentration: number[]; response: number[] };
   printed: { mandel: { testValue: number; fCritical: number } };
 };
 
-function variances(x: readonly number[], y: readonly number[]): { n: number; linearResidualVariance: number; quadraticResidualVariance: number } {
+function variances(
+  x: readonly number[],
+  y: readonly number[],
+): { n: number; linearResidualVariance: number; quadraticResidualVariance: number } {
   const n = x.length;
   const mean = x.reduce((a, b) => a + b, 0) / n;
-  const linear = leastSquares(x.map((v) => [1, v - mean]), y);
-  const quadratic = leastSquares(x.map((v) => [1, v - mean, (v - mean) ** 2]), y);
-  return { n, linearResidualVariance: linear.rss / (n - 2), quadraticResidualVariance: quadratic.rss / (n - 3) };
+  const linear = leastSquares(
+    x.map((v) => [1, v - mean]),
+    y,
+  );
+  const quadratic = leastSquares(
+    x.map((v) => [1, v - mean, (v - mean) ** 2]),
+    y,
+  );
+  return {
+    n,
+    linearResidualVariance: linear.rss / (n - 2),
+    quadraticResidualVariance: quadratic.rss / (n - 3),
+  };
 }
 
 describe('mandelTest', () => {
@@ -27,7 +42,9 @@ describe('mandelTest', () => {
     expectAbsolute(result.fCritical, din.printed.mandel.fCritical, 0.0005, 'F(0.99; 1, 7) (printed 12.246)');
     expect(result.significant).toBe(false);
     expect(result.df).toEqual([1, 7]);
-    expect(result.recommendation).toMatch(/does not fit significantly better \(PW = 0\.07681 ≤ F\(0\.99; 1, 7\) = 12\.25\): a straight line is adequate/);
+    expect(result.recommendation).toMatch(
+      /does not fit significantly better \(PW = 0\.07681 ≤ F\(0\.99; 1, 7\) = 12\.25\): a straight line is adequate/,
+    );
     expect(result.pValue).toBeGreaterThan(0.5);
   });
 
@@ -35,21 +52,38 @@ describe('mandelTest', () => {
   // certified x² coefficient is 65 standard errors from zero), so Mandel must call for second order.
   it('NIST Pontius: the second-order curve fits significantly better', () => {
     const { x, y } = loadDataset('pontius');
-    const result = mandelTest(variances(x.map((row) => row[0] as number), y));
+    const result = mandelTest(
+      variances(
+        x.map((row) => row[0] as number),
+        y,
+      ),
+    );
     expect(result.significant).toBe(true);
     expect(result.testValue).toBeGreaterThan(1000);
-    expect(result.recommendation).toMatch(/^the second-order curve fits significantly better \(PW = [0-9.]+ > F\(0\.99; 1, 37\) = 7\.373\): use a second-order calibration$/);
+    expect(result.recommendation).toMatch(
+      /^the second-order curve fits significantly better \(PW = [0-9.]+ > F\(0\.99; 1, 37\) = 7\.373\): use a second-order calibration$/,
+    );
     expect(result.pValue).toBeLessThan(1e-10);
   });
 
   // Source: NIST StRD, Norris — certified as a straight line (ozone-monitor calibration).
   it('NIST Norris: a straight line is adequate', () => {
     const { x, y } = loadDataset('norris');
-    expect(mandelTest(variances(x.map((row) => row[0] as number), y)).significant).toBe(false);
+    expect(
+      mandelTest(
+        variances(
+          x.map((row) => row[0] as number),
+          y,
+        ),
+      ).significant,
+    ).toBe(false);
   });
 
   it('uses the requested confidence for the critical value', () => {
-    const result = mandelTest({ n: 12, linearResidualVariance: 2, quadraticResidualVariance: 1 }, { confidence: 0.95 });
+    const result = mandelTest(
+      { n: 12, linearResidualVariance: 2, quadraticResidualVariance: 1 },
+      { confidence: 0.95 },
+    );
     expect(result.fCritical).toBe(fQuantile(0.95, 1, 9));
     // DS² = 10·2 − 9·1 = 11, PW = 11 (the formula of ISO 8466-1).
     expect(result.ds2).toBeCloseTo(11, 12);
@@ -57,11 +91,21 @@ describe('mandelTest', () => {
   });
 
   it('refuses n < 4 and invalid variances', () => {
-    expect(() => mandelTest({ n: 3, linearResidualVariance: 1, quadraticResidualVariance: 1 })).toThrow(BandwrightError);
-    expect(() => mandelTest({ n: 3, linearResidualVariance: 1, quadraticResidualVariance: 1 })).toThrow(/n = 3 standards, needs at least 4/);
-    expect(() => mandelTest({ n: 6, linearResidualVariance: -1, quadraticResidualVariance: 1 })).toThrow(/linearResidualVariance = -1, must be a finite number >= 0/);
-    expect(() => mandelTest({ n: 6, linearResidualVariance: 1, quadraticResidualVariance: Number.NaN })).toThrow(/quadraticResidualVariance = NaN/);
-    expect(() => mandelTest({ n: 6, linearResidualVariance: 1, quadraticResidualVariance: 1 }, { confidence: 1 })).toThrow(/confidence = 1/);
+    expect(() => mandelTest({ n: 3, linearResidualVariance: 1, quadraticResidualVariance: 1 })).toThrow(
+      BandwrightError,
+    );
+    expect(() => mandelTest({ n: 3, linearResidualVariance: 1, quadraticResidualVariance: 1 })).toThrow(
+      /n = 3 standards, needs at least 4/,
+    );
+    expect(() => mandelTest({ n: 6, linearResidualVariance: -1, quadraticResidualVariance: 1 })).toThrow(
+      /linearResidualVariance = -1, must be a finite number >= 0/,
+    );
+    expect(() =>
+      mandelTest({ n: 6, linearResidualVariance: 1, quadraticResidualVariance: Number.NaN }),
+    ).toThrow(/quadraticResidualVariance = NaN/);
+    expect(() =>
+      mandelTest({ n: 6, linearResidualVariance: 1, quadraticResidualVariance: 1 }, { confidence: 1 }),
+    ).toThrow(/confidence = 1/);
   });
 
   it('stays JSON-safe when the quadratic passes through every point', () => {

@@ -13,7 +13,18 @@ import type { GasCalibration } from '../../calibration/calibration.js';
 import { unitLabel } from '../../gas/units.js';
 import { responseBand } from '../../models/univariate.js';
 import { formatNumber } from '../table.js';
-import { clipPath, linearAxisScale, markerPath, paddedExtent, panelBottom, renderAxis, renderLegend, svgDocument, type LegendEntry, type Panel } from './chart.js';
+import {
+  clipPath,
+  linearAxisScale,
+  markerPath,
+  paddedExtent,
+  panelBottom,
+  renderAxis,
+  renderLegend,
+  svgDocument,
+  type LegendEntry,
+  type Panel,
+} from './chart.js';
 import { coordinate, element, escapeText } from './markup.js';
 import { ALERT, INK, INTERVAL_FILL, MUTED, seriesStyle } from './palette.js';
 
@@ -112,7 +123,10 @@ const LEVEL_WORDS = (level: number): string => `${formatNumber(level * 100, 3).r
  * @returns plot input
  * @throws BandwrightError `INVALID_VALUE` for a level outside (0, 1)
  */
-export function calibrationCurveData(gas: GasCalibration, options: { level?: number; points?: number; standardLabels?: readonly string[] } = {}): CalibrationCurvePlotInput {
+export function calibrationCurveData(
+  gas: GasCalibration,
+  options: { level?: number; points?: number; standardLabels?: readonly string[] } = {},
+): CalibrationCurvePlotInput {
   const level = options.level ?? 0.95;
   const model = gas.model;
   const count = Math.max(2, Math.round(options.points ?? 121));
@@ -122,9 +136,16 @@ export function calibrationCurveData(gas: GasCalibration, options: { level?: num
   const band = responseBand(model, concentrations, { level });
   const limits: CurveLimitLine[] = [];
   const { detection, determination } = model.limits;
-  if (detection.value !== null) limits.push({ name: 'LOD', value: detection.value, definition: detection.definition });
-  if (determination.value !== null) limits.push({ name: 'LOQ', value: determination.value, definition: determination.definition });
-  const responseWord = gas.feature === undefined ? 'response' : gas.feature.response === 'area' ? 'band area / AU·cm⁻¹' : 'peak height / AU';
+  if (detection.value !== null)
+    limits.push({ name: 'LOD', value: detection.value, definition: detection.definition });
+  if (determination.value !== null)
+    limits.push({ name: 'LOQ', value: determination.value, definition: determination.definition });
+  const responseWord =
+    gas.feature === undefined
+      ? 'response'
+      : gas.feature.response === 'area'
+        ? 'band area / AU·cm⁻¹'
+        : 'peak height / AU';
   return {
     gas: gas.gas,
     unit: unitLabel(gas.unit),
@@ -135,10 +156,19 @@ export function calibrationCurveData(gas: GasCalibration, options: { level?: num
       residual: model.residuals[i] as number,
       ...(options.standardLabels?.[i] === undefined ? {} : { label: options.standardLabels[i] as string }),
     })),
-    curve: band.map((point) => ({ concentration: point.concentration, response: point.response, prediction: point.prediction, confidence: point.confidence })),
+    curve: band.map((point) => ({
+      concentration: point.concentration,
+      response: point.response,
+      prediction: point.prediction,
+      confidence: point.confidence,
+    })),
     level,
     limits,
-    curveName: { linear: 'straight line', origin: 'straight line through the origin', quadratic: 'second-order curve' }[model.form],
+    curveName: {
+      linear: 'straight line',
+      origin: 'straight line through the origin',
+      quadratic: 'second-order curve',
+    }[model.form],
   };
 }
 
@@ -155,7 +185,10 @@ export function calibrationCurveData(gas: GasCalibration, options: { level?: num
  * @param options - id, size, fixed axis domains
  * @returns SVG markup
  */
-export function renderCalibrationCurve(input: CalibrationCurvePlotInput, options: CalibrationCurveOptions = {}): string {
+export function renderCalibrationCurve(
+  input: CalibrationCurvePlotInput,
+  options: CalibrationCurveOptions = {},
+): string {
   const id = options.id ?? 'calibration-curve';
   const width = options.width ?? 720;
   const curveHeight = options.curveHeight ?? 300;
@@ -172,29 +205,72 @@ export function renderCalibrationCurve(input: CalibrationCurvePlotInput, options
     { label: `fitted ${input.curveName ?? 'curve'}`, colour: curveStyle.colour, line: true, lineWidth: 2 },
   ];
   const hasConfidence = input.curve.some((p) => p.confidence !== undefined);
-  if (hasConfidence) legendEntries.push({ label: `${level} confidence band (curve)`, colour: INTERVAL_FILL, area: 0.3 });
-  legendEntries.push({ label: `${level} prediction band (one new response)`, colour: INTERVAL_FILL, area: 0.12 });
+  if (hasConfidence)
+    legendEntries.push({ label: `${level} confidence band (curve)`, colour: INTERVAL_FILL, area: 0.3 });
+  legendEntries.push({
+    label: `${level} prediction band (one new response)`,
+    colour: INTERVAL_FILL,
+    area: 0.12,
+  });
   input.limits.forEach((limit, i) => {
     const style = lodStyles[i % lodStyles.length] as { colour: string; dash: string };
-    legendEntries.push({ label: `${limit.name} ${formatNumber(limit.value, 3)} ${input.unit}`, colour: style.colour, dash: style.dash, line: true });
+    legendEntries.push({
+      label: `${limit.name} ${formatNumber(limit.value, 3)} ${input.unit}`,
+      colour: style.colour,
+      dash: style.dash,
+      line: true,
+    });
   });
-  const legend = renderLegend(legendEntries, { x: CURVE_MARGIN.left, y: 28, width: width - CURVE_MARGIN.left - CURVE_MARGIN.right });
+  const legend = renderLegend(legendEntries, {
+    x: CURVE_MARGIN.left,
+    y: 28,
+    width: width - CURVE_MARGIN.left - CURVE_MARGIN.right,
+  });
 
-  const curvePanel: Panel = { left: CURVE_MARGIN.left, top: 28 + legend.height + 10, width: width - CURVE_MARGIN.left - CURVE_MARGIN.right, height: curveHeight };
-  const residualPanel: Panel = { left: curvePanel.left, top: panelBottom(curvePanel) + PANEL_GAP, width: curvePanel.width, height: residualHeight };
+  const curvePanel: Panel = {
+    left: CURVE_MARGIN.left,
+    top: 28 + legend.height + 10,
+    width: width - CURVE_MARGIN.left - CURVE_MARGIN.right,
+    height: curveHeight,
+  };
+  const residualPanel: Panel = {
+    left: curvePanel.left,
+    top: panelBottom(curvePanel) + PANEL_GAP,
+    width: curvePanel.width,
+    height: residualHeight,
+  };
   const height = panelBottom(residualPanel) + CURVE_MARGIN.bottom;
 
-  const concentrationValues = [...input.standards.map((s) => s.concentration), ...input.curve.map((p) => p.concentration)];
-  const concentrationDomain = options.concentrationDomain ?? startAtZero(paddedExtent([concentrationValues], { pad: 0.03, include: [0] }), concentrationValues);
-  const x = linearAxisScale(concentrationDomain, [curvePanel.left, curvePanel.left + curvePanel.width], { nice: false });
+  const concentrationValues = [
+    ...input.standards.map((s) => s.concentration),
+    ...input.curve.map((p) => p.concentration),
+  ];
+  const concentrationDomain =
+    options.concentrationDomain ??
+    startAtZero(paddedExtent([concentrationValues], { pad: 0.03, include: [0] }), concentrationValues);
+  const x = linearAxisScale(concentrationDomain, [curvePanel.left, curvePanel.left + curvePanel.width], {
+    nice: false,
+  });
   const responseValues = [
     ...input.standards.map((s) => s.response),
     ...input.curve.flatMap((p) => [p.prediction[0], p.prediction[1], ...(p.confidence ?? [])]),
   ];
-  const y = linearAxisScale(options.responseDomain ?? paddedExtent([responseValues], { pad: 0.04 }), [panelBottom(curvePanel), curvePanel.top], { nice: false });
-  const largestResidual = Math.max(...input.standards.map((s) => Math.abs(s.residual)).filter(Number.isFinite), 0);
-  const residualDomain = options.residualDomain ?? (largestResidual > 0 ? [-1.15 * largestResidual, 1.15 * largestResidual] : [-1, 1]);
-  const r = linearAxisScale(residualDomain, [panelBottom(residualPanel), residualPanel.top], { tickCount: 4, nice: options.residualDomain === undefined });
+  const y = linearAxisScale(
+    options.responseDomain ?? paddedExtent([responseValues], { pad: 0.04 }),
+    [panelBottom(curvePanel), curvePanel.top],
+    { nice: false },
+  );
+  const largestResidual = Math.max(
+    ...input.standards.map((s) => Math.abs(s.residual)).filter(Number.isFinite),
+    0,
+  );
+  const residualDomain =
+    options.residualDomain ??
+    (largestResidual > 0 ? [-1.15 * largestResidual, 1.15 * largestResidual] : [-1, 1]);
+  const r = linearAxisScale(residualDomain, [panelBottom(residualPanel), residualPanel.top], {
+    tickCount: 4,
+    nice: options.residualDomain === undefined,
+  });
 
   const clipCurve = `${id}-clip-curve`;
   const clipResidual = `${id}-clip-residual`;
@@ -203,9 +279,36 @@ export function renderCalibrationCurve(input: CalibrationCurvePlotInput, options
   const py = (v: number): number => y.scale(v);
 
   const body: string[] = [];
-  body.push(element('rect', { class: 'panel-frame', 'data-panel': 'curve', x: curvePanel.left, y: curvePanel.top, width: curvePanel.width, height: curvePanel.height, fill: 'none', stroke: 'none' }));
-  body.push(renderAxis(curvePanel, { side: 'bottom', ticks: x.ticks, position: px, format: x.format, label: `${input.gas} concentration / ${input.unit}` }));
-  body.push(renderAxis(curvePanel, { side: 'left', ticks: y.ticks, position: py, format: y.format, label: input.responseLabel }));
+  body.push(
+    element('rect', {
+      class: 'panel-frame',
+      'data-panel': 'curve',
+      x: curvePanel.left,
+      y: curvePanel.top,
+      width: curvePanel.width,
+      height: curvePanel.height,
+      fill: 'none',
+      stroke: 'none',
+    }),
+  );
+  body.push(
+    renderAxis(curvePanel, {
+      side: 'bottom',
+      ticks: x.ticks,
+      position: px,
+      format: x.format,
+      label: `${input.gas} concentration / ${input.unit}`,
+    }),
+  );
+  body.push(
+    renderAxis(curvePanel, {
+      side: 'left',
+      ticks: y.ticks,
+      position: py,
+      format: y.format,
+      label: input.responseLabel,
+    }),
+  );
 
   const inside: string[] = [];
   const predictionArea = area<CurveBandPoint>()
@@ -213,7 +316,15 @@ export function renderCalibrationCurve(input: CalibrationCurvePlotInput, options
     .y0((p) => py(p.prediction[0]))
     .y1((p) => py(p.prediction[1]))
     .digits(2);
-  inside.push(element('path', { class: 'prediction-band', d: predictionArea(input.curve as CurveBandPoint[]) ?? '', fill: INTERVAL_FILL, 'fill-opacity': 0.12, stroke: 'none' }));
+  inside.push(
+    element('path', {
+      class: 'prediction-band',
+      d: predictionArea(input.curve as CurveBandPoint[]) ?? '',
+      fill: INTERVAL_FILL,
+      'fill-opacity': 0.12,
+      stroke: 'none',
+    }),
+  );
   if (hasConfidence) {
     const confidenceArea = area<CurveBandPoint>()
       .defined((p) => p.confidence !== undefined)
@@ -221,13 +332,29 @@ export function renderCalibrationCurve(input: CalibrationCurvePlotInput, options
       .y0((p) => py((p.confidence as readonly [number, number])[0]))
       .y1((p) => py((p.confidence as readonly [number, number])[1]))
       .digits(2);
-    inside.push(element('path', { class: 'confidence-band', d: confidenceArea(input.curve as CurveBandPoint[]) ?? '', fill: INTERVAL_FILL, 'fill-opacity': 0.3, stroke: 'none' }));
+    inside.push(
+      element('path', {
+        class: 'confidence-band',
+        d: confidenceArea(input.curve as CurveBandPoint[]) ?? '',
+        fill: INTERVAL_FILL,
+        'fill-opacity': 0.3,
+        stroke: 'none',
+      }),
+    );
   }
   const curveLine = line<CurveBandPoint>()
     .x((p) => px(p.concentration))
     .y((p) => py(p.response))
     .digits(2);
-  inside.push(element('path', { class: 'fitted-curve', d: curveLine(input.curve as CurveBandPoint[]) ?? '', fill: 'none', stroke: curveStyle.colour, 'stroke-width': 2 }));
+  inside.push(
+    element('path', {
+      class: 'fitted-curve',
+      d: curveLine(input.curve as CurveBandPoint[]) ?? '',
+      fill: 'none',
+      stroke: curveStyle.colour,
+      'stroke-width': 2,
+    }),
+  );
   body.push(element('g', { class: 'curve-layer', 'clip-path': `url(#${clipCurve})` }, inside.join('')));
 
   const marker = markerPath(symbolCircle);
@@ -245,7 +372,13 @@ export function renderCalibrationCurve(input: CalibrationCurvePlotInput, options
         stroke: '#ffffff',
         'stroke-width': 0.8,
       },
-      element('title', {}, escapeText(`${s.label === undefined ? '' : `${s.label}: `}${formatNumber(s.concentration)} ${input.unit}, response ${formatNumber(s.response, 5)}, residual ${formatNumber(s.residual, 3)}`)),
+      element(
+        'title',
+        {},
+        escapeText(
+          `${s.label === undefined ? '' : `${s.label}: `}${formatNumber(s.concentration)} ${input.unit}, response ${formatNumber(s.response, 5)}, residual ${formatNumber(s.residual, 3)}`,
+        ),
+      ),
     ),
   );
   body.push(element('g', { class: 'standards' }, standards.join('')));
@@ -255,23 +388,91 @@ export function renderCalibrationCurve(input: CalibrationCurvePlotInput, options
     const style = lodStyles[i % lodStyles.length] as { colour: string; dash: string };
     const lx = px(limit.value);
     if (!(lx >= curvePanel.left && lx <= curvePanel.left + curvePanel.width)) return '';
-    const tooltip = element('title', {}, escapeText(`${limit.name} = ${formatNumber(limit.value, 4)} ${input.unit}${limit.definition === undefined ? '' : `: ${limit.definition}`}`));
+    const tooltip = element(
+      'title',
+      {},
+      escapeText(
+        `${limit.name} = ${formatNumber(limit.value, 4)} ${input.unit}${limit.definition === undefined ? '' : `: ${limit.definition}`}`,
+      ),
+    );
     return element(
       'g',
       { class: 'limit-line', 'data-limit': limit.name },
-      element('line', { x1: lx, x2: lx, y1: curvePanel.top, y2: panelBottom(curvePanel), stroke: style.colour, 'stroke-width': 1.4, 'stroke-dasharray': style.dash }, tooltip) +
-        element('line', { x1: lx, x2: lx, y1: residualPanel.top, y2: panelBottom(residualPanel), stroke: style.colour, 'stroke-width': 1.4, 'stroke-dasharray': style.dash }),
+      element(
+        'line',
+        {
+          x1: lx,
+          x2: lx,
+          y1: curvePanel.top,
+          y2: panelBottom(curvePanel),
+          stroke: style.colour,
+          'stroke-width': 1.4,
+          'stroke-dasharray': style.dash,
+        },
+        tooltip,
+      ) +
+        element('line', {
+          x1: lx,
+          x2: lx,
+          y1: residualPanel.top,
+          y2: panelBottom(residualPanel),
+          stroke: style.colour,
+          'stroke-width': 1.4,
+          'stroke-dasharray': style.dash,
+        }),
     );
   });
   body.push(element('g', { class: 'limits' }, limitLines.join('')));
 
-  body.push(element('rect', { class: 'panel-frame', 'data-panel': 'residuals', x: residualPanel.left, y: residualPanel.top, width: residualPanel.width, height: residualPanel.height, fill: 'none', stroke: 'none' }));
-  body.push(renderAxis(residualPanel, { side: 'bottom', ticks: x.ticks, position: px, format: x.format, label: `${input.gas} concentration / ${input.unit}` }));
-  body.push(renderAxis(residualPanel, { side: 'left', ticks: r.ticks, position: (v) => r.scale(v), format: r.format, label: 'residual', className: 'axis-residual' }));
-  body.push(element('text', { class: 'panel-title', x: residualPanel.left, y: residualPanel.top - 8, 'font-size': 12, fill: MUTED }, escapeText('Residuals (response − fitted) against concentration')));
+  body.push(
+    element('rect', {
+      class: 'panel-frame',
+      'data-panel': 'residuals',
+      x: residualPanel.left,
+      y: residualPanel.top,
+      width: residualPanel.width,
+      height: residualPanel.height,
+      fill: 'none',
+      stroke: 'none',
+    }),
+  );
+  body.push(
+    renderAxis(residualPanel, {
+      side: 'bottom',
+      ticks: x.ticks,
+      position: px,
+      format: x.format,
+      label: `${input.gas} concentration / ${input.unit}`,
+    }),
+  );
+  body.push(
+    renderAxis(residualPanel, {
+      side: 'left',
+      ticks: r.ticks,
+      position: (v) => r.scale(v),
+      format: r.format,
+      label: 'residual',
+      className: 'axis-residual',
+    }),
+  );
+  body.push(
+    element(
+      'text',
+      { class: 'panel-title', x: residualPanel.left, y: residualPanel.top - 8, 'font-size': 12, fill: MUTED },
+      escapeText('Residuals (response − fitted) against concentration'),
+    ),
+  );
   const zero = r.scale(0);
   const residualMarks = [
-    element('line', { class: 'zero-line', x1: residualPanel.left, x2: residualPanel.left + residualPanel.width, y1: zero, y2: zero, stroke: curveStyle.colour, 'stroke-width': 1.2 }),
+    element('line', {
+      class: 'zero-line',
+      x1: residualPanel.left,
+      x2: residualPanel.left + residualPanel.width,
+      y1: zero,
+      y2: zero,
+      stroke: curveStyle.colour,
+      'stroke-width': 1.2,
+    }),
     ...input.standards.map((s) =>
       element('path', {
         class: 'residual',
@@ -286,9 +487,30 @@ export function renderCalibrationCurve(input: CalibrationCurvePlotInput, options
       }),
     ),
   ];
-  body.push(element('g', { class: 'residuals', 'clip-path': `url(#${clipResidual})` }, residualMarks.join('')));
-  if (input.standards.some((s) => Math.abs(s.residual) > 0 && !(r.scale(s.residual) >= residualPanel.top && r.scale(s.residual) <= panelBottom(residualPanel)))) {
-    body.push(element('text', { class: 'plot-note', x: residualPanel.left + residualPanel.width, y: residualPanel.top - 8, 'text-anchor': 'end', 'font-size': 11, fill: ALERT }, 'some residuals are outside the axis'));
+  body.push(
+    element('g', { class: 'residuals', 'clip-path': `url(#${clipResidual})` }, residualMarks.join('')),
+  );
+  if (
+    input.standards.some(
+      (s) =>
+        Math.abs(s.residual) > 0 &&
+        !(r.scale(s.residual) >= residualPanel.top && r.scale(s.residual) <= panelBottom(residualPanel)),
+    )
+  ) {
+    body.push(
+      element(
+        'text',
+        {
+          class: 'plot-note',
+          x: residualPanel.left + residualPanel.width,
+          y: residualPanel.top - 8,
+          'text-anchor': 'end',
+          'font-size': 11,
+          fill: ALERT,
+        },
+        'some residuals are outside the axis',
+      ),
+    );
   }
   body.push(legend.svg);
 

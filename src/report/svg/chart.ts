@@ -74,32 +74,147 @@ export function renderAxis(panel: Panel, spec: AxisSpec): string {
   const parts: string[] = [];
   const bottom = panelBottom(panel);
   if (spec.side === 'bottom') {
-    parts.push(element('line', { class: 'domain', x1: panel.left, x2: panelRight(panel), y1: bottom, y2: bottom, stroke: INK, 'stroke-width': 1 }));
+    parts.push(
+      element('line', {
+        class: 'domain',
+        x1: panel.left,
+        x2: panelRight(panel),
+        y1: bottom,
+        y2: bottom,
+        stroke: INK,
+        'stroke-width': 1,
+      }),
+    );
     for (const value of spec.ticks) {
       const x = spec.position(value);
-      if (grid) parts.push(element('line', { class: 'grid', x1: x, x2: x, y1: panel.top, y2: bottom, stroke: GRID, 'stroke-width': 0.6 }));
-      parts.push(element('line', { class: 'tick', x1: x, x2: x, y1: bottom, y2: bottom + 5, stroke: INK, 'stroke-width': 1 }));
+      if (grid)
+        parts.push(
+          element('line', {
+            class: 'grid',
+            x1: x,
+            x2: x,
+            y1: panel.top,
+            y2: bottom,
+            stroke: GRID,
+            'stroke-width': 0.6,
+          }),
+        );
+      parts.push(
+        element('line', {
+          class: 'tick',
+          x1: x,
+          x2: x,
+          y1: bottom,
+          y2: bottom + 5,
+          stroke: INK,
+          'stroke-width': 1,
+        }),
+      );
       if (!spec.hideTickLabels) {
-        parts.push(element('text', { class: 'tick-label', x, y: bottom + 8 + TICK_FONT_SIZE * 0.8, 'text-anchor': 'middle', 'font-size': TICK_FONT_SIZE, fill: MUTED }, escapeText(spec.format(value))));
+        parts.push(
+          element(
+            'text',
+            {
+              class: 'tick-label',
+              x,
+              y: bottom + 8 + TICK_FONT_SIZE * 0.8,
+              'text-anchor': 'middle',
+              'font-size': TICK_FONT_SIZE,
+              fill: MUTED,
+            },
+            escapeText(spec.format(value)),
+          ),
+        );
       }
     }
     if (spec.label !== '') {
-      parts.push(element('text', { class: 'axis-label', x: panel.left + panel.width / 2, y: bottom + (spec.hideTickLabels ? 18 : 36), 'text-anchor': 'middle', 'font-size': LABEL_FONT_SIZE, fill: INK }, escapeText(spec.label)));
+      parts.push(
+        element(
+          'text',
+          {
+            class: 'axis-label',
+            x: panel.left + panel.width / 2,
+            y: bottom + (spec.hideTickLabels ? 18 : 36),
+            'text-anchor': 'middle',
+            'font-size': LABEL_FONT_SIZE,
+            fill: INK,
+          },
+          escapeText(spec.label),
+        ),
+      );
     }
   } else {
-    parts.push(element('line', { class: 'domain', x1: panel.left, x2: panel.left, y1: panel.top, y2: bottom, stroke: INK, 'stroke-width': 1 }));
+    parts.push(
+      element('line', {
+        class: 'domain',
+        x1: panel.left,
+        x2: panel.left,
+        y1: panel.top,
+        y2: bottom,
+        stroke: INK,
+        'stroke-width': 1,
+      }),
+    );
     for (const value of spec.ticks) {
       const y = spec.position(value);
-      if (grid) parts.push(element('line', { class: 'grid', x1: panel.left, x2: panelRight(panel), y1: y, y2: y, stroke: GRID, 'stroke-width': 0.6 }));
-      parts.push(element('line', { class: 'tick', x1: panel.left - 5, x2: panel.left, y1: y, y2: y, stroke: INK, 'stroke-width': 1 }));
+      if (grid)
+        parts.push(
+          element('line', {
+            class: 'grid',
+            x1: panel.left,
+            x2: panelRight(panel),
+            y1: y,
+            y2: y,
+            stroke: GRID,
+            'stroke-width': 0.6,
+          }),
+        );
+      parts.push(
+        element('line', {
+          class: 'tick',
+          x1: panel.left - 5,
+          x2: panel.left,
+          y1: y,
+          y2: y,
+          stroke: INK,
+          'stroke-width': 1,
+        }),
+      );
       if (!spec.hideTickLabels) {
-        parts.push(element('text', { class: 'tick-label', x: panel.left - 8, y: y + TICK_FONT_SIZE * 0.35, 'text-anchor': 'end', 'font-size': TICK_FONT_SIZE, fill: MUTED }, escapeText(spec.format(value))));
+        parts.push(
+          element(
+            'text',
+            {
+              class: 'tick-label',
+              x: panel.left - 8,
+              y: y + TICK_FONT_SIZE * 0.35,
+              'text-anchor': 'end',
+              'font-size': TICK_FONT_SIZE,
+              fill: MUTED,
+            },
+            escapeText(spec.format(value)),
+          ),
+        );
       }
     }
     if (spec.label !== '') {
       const x = panel.left - 54;
       const y = panel.top + panel.height / 2;
-      parts.push(element('text', { class: 'axis-label', x, y, transform: `rotate(-90 ${coordinate(x)} ${coordinate(y)})`, 'text-anchor': 'middle', 'font-size': LABEL_FONT_SIZE, fill: INK }, escapeText(spec.label)));
+      parts.push(
+        element(
+          'text',
+          {
+            class: 'axis-label',
+            x,
+            y,
+            transform: `rotate(-90 ${coordinate(x)} ${coordinate(y)})`,
+            'text-anchor': 'middle',
+            'font-size': LABEL_FONT_SIZE,
+            fill: INK,
+          },
+          escapeText(spec.label),
+        ),
+      );
     }
   }
   const axisClass = `axis ${spec.side === 'bottom' ? 'axis-x' : 'axis-y'}${spec.className === undefined ? '' : ` ${spec.className}`}`;
@@ -125,11 +240,19 @@ export interface LinearAxisScale {
  * @returns the scale, its ticks and a formatter
  * @throws BandwrightError `INVALID_VALUE` for a non-finite domain
  */
-export function linearAxisScale(domain: readonly [number, number], range: readonly [number, number], options: { tickCount?: number; nice?: boolean } = {}): LinearAxisScale {
+export function linearAxisScale(
+  domain: readonly [number, number],
+  range: readonly [number, number],
+  options: { tickCount?: number; nice?: boolean } = {},
+): LinearAxisScale {
   const tickCount = options.tickCount ?? 6;
   let [from, to] = domain;
   if (!Number.isFinite(from) || !Number.isFinite(to)) {
-    throw new BandwrightError('INVALID_VALUE', `plot axis domain = [${from}, ${to}], must be two finite numbers`, { parameter: 'domain' });
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `plot axis domain = [${from}, ${to}], must be two finite numbers`,
+      { parameter: 'domain' },
+    );
   }
   if (from === to) {
     // A flat series still needs an axis: open a window around the single value.
@@ -150,7 +273,10 @@ export function linearAxisScale(domain: readonly [number, number], range: readon
  * @param options - `pad` fraction of the span added at each end (default 0.05), `include` values that must lie inside (e.g. 0)
  * @returns [low, high]; [0, 1] when there is no finite value
  */
-export function paddedExtent(series: readonly ArrayLike<number>[], options: { pad?: number; include?: readonly number[] } = {}): [number, number] {
+export function paddedExtent(
+  series: readonly ArrayLike<number>[],
+  options: { pad?: number; include?: readonly number[] } = {},
+): [number, number] {
   let low = Number.POSITIVE_INFINITY;
   let high = Number.NEGATIVE_INFINITY;
   const visit = (value: number): void => {
@@ -207,7 +333,10 @@ export const LEGEND_ROW = 16;
  * @param at - top-left corner and available width
  * @returns an SVG `<g class="legend">` and its height in px
  */
-export function renderLegend(entries: readonly LegendEntry[], at: { x: number; y: number; width: number }): { svg: string; height: number } {
+export function renderLegend(
+  entries: readonly LegendEntry[],
+  at: { x: number; y: number; width: number },
+): { svg: string; height: number } {
   if (entries.length === 0) return { svg: '', height: 0 };
   // Approximate text width (6.2 px per character at 11 px) to lay out columns without measuring.
   const itemWidth = Math.min(at.width, Math.max(...entries.map((e) => 34 + 6.2 * [...e.label].length)) + 14);
@@ -217,18 +346,54 @@ export function renderLegend(entries: readonly LegendEntry[], at: { x: number; y
     const y = at.y + Math.floor(i / columns) * LEGEND_ROW + LEGEND_ROW / 2;
     const sample: string[] = [];
     if (entry.area !== undefined) {
-      sample.push(element('rect', { x, y: y - 5, width: 24, height: 10, fill: entry.pattern === undefined ? entry.colour : `url(#${entry.pattern})`, 'fill-opacity': entry.pattern === undefined ? entry.area : undefined, stroke: entry.colour, 'stroke-width': 0.6 }));
+      sample.push(
+        element('rect', {
+          x,
+          y: y - 5,
+          width: 24,
+          height: 10,
+          fill: entry.pattern === undefined ? entry.colour : `url(#${entry.pattern})`,
+          'fill-opacity': entry.pattern === undefined ? entry.area : undefined,
+          stroke: entry.colour,
+          'stroke-width': 0.6,
+        }),
+      );
     }
     if (entry.line) {
-      sample.push(element('line', { x1: x, x2: x + 24, y1: y, y2: y, stroke: entry.colour, 'stroke-width': entry.lineWidth ?? 1.6, 'stroke-dasharray': entry.dash }));
+      sample.push(
+        element('line', {
+          x1: x,
+          x2: x + 24,
+          y1: y,
+          y2: y,
+          stroke: entry.colour,
+          'stroke-width': entry.lineWidth ?? 1.6,
+          'stroke-dasharray': entry.dash,
+        }),
+      );
     }
     if (entry.marker !== undefined) {
-      sample.push(element('path', { d: markerPath(entry.marker), transform: `translate(${coordinate(x + 12)},${coordinate(y)})`, fill: entry.hollow ? '#ffffff' : entry.colour, stroke: entry.colour, 'stroke-width': 1.2 }));
+      sample.push(
+        element('path', {
+          d: markerPath(entry.marker),
+          transform: `translate(${coordinate(x + 12)},${coordinate(y)})`,
+          fill: entry.hollow ? '#ffffff' : entry.colour,
+          stroke: entry.colour,
+          'stroke-width': 1.2,
+        }),
+      );
     }
-    const text = element('text', { x: x + 30, y: y + 4, 'font-size': TICK_FONT_SIZE, fill: INK }, escapeText(entry.label));
+    const text = element(
+      'text',
+      { x: x + 30, y: y + 4, 'font-size': TICK_FONT_SIZE, fill: INK },
+      escapeText(entry.label),
+    );
     return element('g', { class: 'legend-entry' }, sample.join('') + text);
   });
-  return { svg: element('g', { class: 'legend' }, parts.join('')), height: Math.ceil(entries.length / columns) * LEGEND_ROW };
+  return {
+    svg: element('g', { class: 'legend' }, parts.join('')),
+    height: Math.ceil(entries.length / columns) * LEGEND_ROW,
+  };
 }
 
 /**
@@ -238,7 +403,11 @@ export function renderLegend(entries: readonly LegendEntry[], at: { x: number; y
  * @param panel - the panel
  */
 export function clipPath(id: string, panel: Panel): string {
-  return element('clipPath', { id }, element('rect', { x: panel.left, y: panel.top, width: panel.width, height: panel.height }));
+  return element(
+    'clipPath',
+    { id },
+    element('rect', { x: panel.left, y: panel.top, width: panel.width, height: panel.height }),
+  );
 }
 
 /** What {@link svgDocument} wraps. */
@@ -288,8 +457,19 @@ export function svgDocument(spec: SvgDocumentSpec): string {
       element('title', { id: titleId }, escapeText(spec.title)),
       element('desc', { id: descriptionId }, escapeText(spec.description)),
       spec.defs === undefined || spec.defs === '' ? '' : element('defs', {}, spec.defs),
-      element('rect', { class: 'background', x: 0, y: 0, width: spec.width, height: spec.height, fill: '#ffffff' }),
-      element('text', { class: 'plot-title', x: 12, y: 20, 'font-size': TITLE_FONT_SIZE, 'font-weight': 'bold', fill: INK }, escapeText(spec.title)),
+      element('rect', {
+        class: 'background',
+        x: 0,
+        y: 0,
+        width: spec.width,
+        height: spec.height,
+        fill: '#ffffff',
+      }),
+      element(
+        'text',
+        { class: 'plot-title', x: 12, y: 20, 'font-size': TITLE_FONT_SIZE, 'font-weight': 'bold', fill: INK },
+        escapeText(spec.title),
+      ),
       spec.body,
     ].join(''),
   );
@@ -314,7 +494,16 @@ export function hatchPattern(id: string, colour: string): string {
   return element(
     'pattern',
     { id, width: 6, height: 6, patternUnits: 'userSpaceOnUse', patternTransform: 'rotate(45)' },
-    element('rect', { width: 6, height: 6, fill: colour, 'fill-opacity': 0.08 }) + element('line', { x1: 0, y1: 0, x2: 0, y2: 6, stroke: colour, 'stroke-width': 2, 'stroke-opacity': 0.45 }),
+    element('rect', { width: 6, height: 6, fill: colour, 'fill-opacity': 0.08 }) +
+      element('line', {
+        x1: 0,
+        y1: 0,
+        x2: 0,
+        y2: 6,
+        stroke: colour,
+        'stroke-width': 2,
+        'stroke-opacity': 0.45,
+      }),
   );
 }
 
@@ -326,5 +515,9 @@ export function hatchPattern(id: string, colour: string): string {
  * @param text - plain text (escaped here)
  */
 export function noteText(x: number, y: number, text: string): string {
-  return element('text', { class: 'plot-note', x, y, 'font-size': TICK_FONT_SIZE, fill: MUTED }, escapeText(text));
+  return element(
+    'text',
+    { class: 'plot-note', x, y, 'font-size': TICK_FONT_SIZE, fill: MUTED },
+    escapeText(text),
+  );
 }

@@ -27,31 +27,51 @@ import type { ClsContribution, ClsFitPlotInput } from './cls-fit.js';
  * @returns plot input on the calibration's channels
  * @throws BandwrightError `INVALID_VALUE` for a calibration that is not CLS; `WINDOW` when the scan does not cover the regions
  */
-export function clsFitData(calibration: Calibration, spectrum: Spectrum, conditions: CellConditions, options: { level?: number; title?: string } = {}): ClsFitPlotInput {
+export function clsFitData(
+  calibration: Calibration,
+  spectrum: Spectrum,
+  conditions: CellConditions,
+  options: { level?: number; title?: string } = {},
+): ClsFitPlotInput {
   const cls = calibration.cls;
   if (cls === undefined || cls.model.grid === null) {
-    throw new BandwrightError('INVALID_VALUE', `the calibration is a ${calibration.method.model} calibration; the CLS fit plot needs a classical-least-squares calibration with a channel grid`, { parameter: 'calibration' });
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `the calibration is a ${calibration.method.model} calibration; the CLS fit plot needs a classical-least-squares calibration with a channel grid`,
+      { parameter: 'calibration' },
+    );
   }
   const model = cls.model;
   const grid = Float64Array.from(model.grid as readonly number[]);
   const values = onChannels(spectrum, grid, cls.regions);
   const phi = densityPathFactor(conditions, calibration.reference);
-  const prediction = predictCls(model, values, { phi, ...(options.level === undefined ? {} : { level: options.level }) });
+  const prediction = predictCls(model, values, {
+    phi,
+    ...(options.level === undefined ? {} : { level: options.level }),
+  });
   const scaled = new Map<string, number>();
-  for (const estimate of [...prediction.estimates, ...prediction.interferents]) scaled.set(estimate.name, estimate.value * phi);
-  const contributions = model.components.map((component) => ({ gas: component.name, reported: component.reported, values: new Float64Array(grid.length) }));
+  for (const estimate of [...prediction.estimates, ...prediction.interferents])
+    scaled.set(estimate.name, estimate.value * phi);
+  const contributions = model.components.map((component) => ({
+    gas: component.name,
+    reported: component.reported,
+    values: new Float64Array(grid.length),
+  }));
   model.terms.forEach((term, t) => {
     const component = model.components[term.component];
     const target = contributions[term.component];
     const row = model.pureSpectra[t];
     if (component === undefined || target === undefined || row === undefined) return;
     const amount = (scaled.get(component.name) ?? 0) ** term.power;
-    for (let j = 0; j < grid.length; j++) target.values[j] = (target.values[j] as number) + amount * (row[j] as number);
+    for (let j = 0; j < grid.length; j++)
+      target.values[j] = (target.values[j] as number) + amount * (row[j] as number);
   });
   const fitted = new Float64Array(grid.length);
-  for (const c of contributions) for (let j = 0; j < grid.length; j++) fitted[j] = (fitted[j] as number) + (c.values[j] as number);
+  for (const c of contributions)
+    for (let j = 0; j < grid.length; j++) fitted[j] = (fitted[j] as number) + (c.values[j] as number);
   const measured = new Float64Array(grid.length);
-  for (let j = 0; j < grid.length; j++) measured[j] = (fitted[j] as number) + (prediction.residual[j] as number);
+  for (let j = 0; j < grid.length; j++)
+    measured[j] = (fitted[j] as number) + (prediction.residual[j] as number);
   const scan = spectrum.metadata.source ?? 'scan';
   return {
     title: options.title ?? `${scan}: classical-least-squares fit`,
@@ -63,6 +83,8 @@ export function clsFitData(calibration: Calibration, spectrum: Spectrum, conditi
     regions: cls.regions,
     residualRms: prediction.residualRms,
     calibrationResidualRms: model.calibration.residualRms,
-    notes: ['measured and fitted are shown with the baseline polynomials (and background, if any) removed, as the model fits them'],
+    notes: [
+      'measured and fitted are shown with the baseline polynomials (and background, if any) removed, as the model fits them',
+    ],
   };
 }

@@ -12,7 +12,18 @@ import { line } from 'd3-shape';
 import { formatWindow, type Window } from '../../bands/windows.js';
 import { BandwrightError } from '../../errors.js';
 import { formatNumber } from '../table.js';
-import { clipPath, linearAxisScale, noteText, paddedExtent, panelBottom, renderAxis, renderLegend, svgDocument, type LegendEntry, type Panel } from './chart.js';
+import {
+  clipPath,
+  linearAxisScale,
+  noteText,
+  paddedExtent,
+  panelBottom,
+  renderAxis,
+  renderLegend,
+  svgDocument,
+  type LegendEntry,
+  type Panel,
+} from './chart.js';
 import { element, escapeText } from './markup.js';
 import { BASELINE_FILL, INK, MUTED, seriesStyle } from './palette.js';
 import type { WavenumberAxis } from './spectra.js';
@@ -83,14 +94,24 @@ function gapsAfter(grid: ArrayLike<number>): Set<number> {
 function checkLengths(input: ClsFitPlotInput): void {
   const n = input.grid.length;
   const check = (values: ArrayLike<number>, name: string): void => {
-    if (values.length !== n) throw new BandwrightError('INVALID_VALUE', `CLS plot: ${name} has ${values.length} values, the grid has ${n}`, { parameter: name });
+    if (values.length !== n)
+      throw new BandwrightError(
+        'INVALID_VALUE',
+        `CLS plot: ${name} has ${values.length} values, the grid has ${n}`,
+        { parameter: name },
+      );
   };
   check(input.measured, 'measured');
   check(input.fitted, 'fitted');
   check(input.residual, 'residual');
   input.contributions.forEach((c) => check(c.values, `contribution of ${c.gas}`));
   for (let i = 1; i < n; i++) {
-    if (!((input.grid[i] as number) > (input.grid[i - 1] as number))) throw new BandwrightError('NOT_MONOTONIC', `CLS plot: grid[${i}] = ${input.grid[i]} is not above grid[${i - 1}] = ${input.grid[i - 1]}; the grid must ascend`, { parameter: 'grid' });
+    if (!((input.grid[i] as number) > (input.grid[i - 1] as number)))
+      throw new BandwrightError(
+        'NOT_MONOTONIC',
+        `CLS plot: grid[${i}] = ${input.grid[i]} is not above grid[${i - 1}] = ${input.grid[i - 1]}; the grid must ascend`,
+        { parameter: 'grid' },
+      );
   }
 }
 
@@ -115,22 +136,53 @@ export function renderClsFit(input: ClsFitPlotInput, options: ClsFitOptions = {}
   const legendEntries: LegendEntry[] = [
     { label: 'measured', colour: INK, line: true, lineWidth: 1.8 },
     { label: 'fitted model', colour: fittedStyle.colour, dash: '7 3', line: true, lineWidth: 1.8 },
-    ...input.contributions.map((c, i) => ({ label: `${c.gas}${c.reported === false ? ' (interferent)' : ''}`, colour: seriesStyle(i + 1).colour, dash: seriesStyle(i + 1).dash, line: true })),
+    ...input.contributions.map((c, i) => ({
+      label: `${c.gas}${c.reported === false ? ' (interferent)' : ''}`,
+      colour: seriesStyle(i + 1).colour,
+      dash: seriesStyle(i + 1).dash,
+      line: true,
+    })),
   ];
-  if ((input.regions ?? []).length > 0) legendEntries.push({ label: 'fit regions', colour: BASELINE_FILL, area: 0.08 });
-  const legend = renderLegend(legendEntries, { x: MARGIN.left, y: 28, width: width - MARGIN.left - MARGIN.right });
-  const fitPanel: Panel = { left: MARGIN.left, top: 28 + legend.height + 10, width: width - MARGIN.left - MARGIN.right, height: options.fitHeight ?? 260 };
-  const residualPanel: Panel = { left: fitPanel.left, top: panelBottom(fitPanel) + 74, width: fitPanel.width, height: options.residualHeight ?? 110 };
+  if ((input.regions ?? []).length > 0)
+    legendEntries.push({ label: 'fit regions', colour: BASELINE_FILL, area: 0.08 });
+  const legend = renderLegend(legendEntries, {
+    x: MARGIN.left,
+    y: 28,
+    width: width - MARGIN.left - MARGIN.right,
+  });
+  const fitPanel: Panel = {
+    left: MARGIN.left,
+    top: 28 + legend.height + 10,
+    width: width - MARGIN.left - MARGIN.right,
+    height: options.fitHeight ?? 260,
+  };
+  const residualPanel: Panel = {
+    left: fitPanel.left,
+    top: panelBottom(fitPanel) + 74,
+    width: fitPanel.width,
+    height: options.residualHeight ?? 110,
+  };
   const notes = input.notes ?? [];
   const height = panelBottom(residualPanel) + MARGIN.bottom + notes.length * 15;
 
   const n = input.grid.length;
   const range: [number, number] = n === 0 ? [0, 1] : [input.grid[0] as number, input.grid[n - 1] as number];
-  const x = linearAxisScale(direction === 'descending' ? [range[1], range[0]] : range, [fitPanel.left, fitPanel.left + fitPanel.width], { nice: false, tickCount: 8 });
-  const y = linearAxisScale(paddedExtent([input.measured, input.fitted, ...input.contributions.map((c) => c.values)], { pad: 0.05 }), [panelBottom(fitPanel), fitPanel.top]);
+  const x = linearAxisScale(
+    direction === 'descending' ? [range[1], range[0]] : range,
+    [fitPanel.left, fitPanel.left + fitPanel.width],
+    { nice: false, tickCount: 8 },
+  );
+  const y = linearAxisScale(
+    paddedExtent([input.measured, input.fitted, ...input.contributions.map((c) => c.values)], { pad: 0.05 }),
+    [panelBottom(fitPanel), fitPanel.top],
+  );
   const residualExtent = paddedExtent([input.residual], { pad: 0.1 });
   const largest = Math.max(Math.abs(residualExtent[0]), Math.abs(residualExtent[1]));
-  const r = linearAxisScale(largest > 0 ? [-largest, largest] : [-1, 1], [panelBottom(residualPanel), residualPanel.top], { tickCount: 4 });
+  const r = linearAxisScale(
+    largest > 0 ? [-largest, largest] : [-1, 1],
+    [panelBottom(residualPanel), residualPanel.top],
+    { tickCount: 4 },
+  );
   const px = (v: number): number => x.scale(v);
 
   const gaps = gapsAfter(input.grid);
@@ -156,38 +208,154 @@ export function renderClsFit(input: ClsFitPlotInput, options: ClsFitOptions = {}
     const a = px(region[0]);
     const b = px(region[1]);
     return [fitPanel, residualPanel]
-      .map((panel) => element('rect', { class: 'region', 'data-low': String(region[0]), 'data-high': String(region[1]), x: Math.min(a, b), y: panel.top, width: Math.abs(b - a), height: panel.height, fill: BASELINE_FILL, 'fill-opacity': 0.08 }, element('title', {}, escapeText(`fit region ${formatWindow(region)}`))))
+      .map((panel) =>
+        element(
+          'rect',
+          {
+            class: 'region',
+            'data-low': String(region[0]),
+            'data-high': String(region[1]),
+            x: Math.min(a, b),
+            y: panel.top,
+            width: Math.abs(b - a),
+            height: panel.height,
+            fill: BASELINE_FILL,
+            'fill-opacity': 0.08,
+          },
+          element('title', {}, escapeText(`fit region ${formatWindow(region)}`)),
+        ),
+      )
       .join('');
   });
   body.push(element('g', { class: 'regions' }, regions.join('')));
-  body.push(element('rect', { class: 'panel-frame', 'data-panel': 'fit', x: fitPanel.left, y: fitPanel.top, width: fitPanel.width, height: fitPanel.height, fill: 'none', stroke: 'none' }));
-  body.push(renderAxis(fitPanel, { side: 'bottom', ticks: x.ticks, position: px, format: x.format, label: `wavenumber / cm⁻¹ (${direction === 'descending' ? 'decreasing to the right' : 'increasing to the right'})` }));
-  body.push(renderAxis(fitPanel, { side: 'left', ticks: y.ticks, position: (v) => y.scale(v), format: y.format, label: 'absorbance (decadic) / AU' }));
+  body.push(
+    element('rect', {
+      class: 'panel-frame',
+      'data-panel': 'fit',
+      x: fitPanel.left,
+      y: fitPanel.top,
+      width: fitPanel.width,
+      height: fitPanel.height,
+      fill: 'none',
+      stroke: 'none',
+    }),
+  );
+  body.push(
+    renderAxis(fitPanel, {
+      side: 'bottom',
+      ticks: x.ticks,
+      position: px,
+      format: x.format,
+      label: `wavenumber / cm⁻¹ (${direction === 'descending' ? 'decreasing to the right' : 'increasing to the right'})`,
+    }),
+  );
+  body.push(
+    renderAxis(fitPanel, {
+      side: 'left',
+      ticks: y.ticks,
+      position: (v) => y.scale(v),
+      format: y.format,
+      label: 'absorbance (decadic) / AU',
+    }),
+  );
   const fitLines = [
-    ...input.contributions.map((c, i) => element('path', { class: 'contribution', 'data-gas': c.gas, d: trace(c.values, (v) => y.scale(v)), fill: 'none', stroke: seriesStyle(i + 1).colour, 'stroke-width': 1.2, 'stroke-dasharray': seriesStyle(i + 1).dash })),
-    element('path', { class: 'measured', d: trace(input.measured, (v) => y.scale(v)), fill: 'none', stroke: INK, 'stroke-width': 1.8 }),
-    element('path', { class: 'fitted', d: trace(input.fitted, (v) => y.scale(v)), fill: 'none', stroke: fittedStyle.colour, 'stroke-width': 1.8, 'stroke-dasharray': '7 3' }),
+    ...input.contributions.map((c, i) =>
+      element('path', {
+        class: 'contribution',
+        'data-gas': c.gas,
+        d: trace(c.values, (v) => y.scale(v)),
+        fill: 'none',
+        stroke: seriesStyle(i + 1).colour,
+        'stroke-width': 1.2,
+        'stroke-dasharray': seriesStyle(i + 1).dash,
+      }),
+    ),
+    element('path', {
+      class: 'measured',
+      d: trace(input.measured, (v) => y.scale(v)),
+      fill: 'none',
+      stroke: INK,
+      'stroke-width': 1.8,
+    }),
+    element('path', {
+      class: 'fitted',
+      d: trace(input.fitted, (v) => y.scale(v)),
+      fill: 'none',
+      stroke: fittedStyle.colour,
+      'stroke-width': 1.8,
+      'stroke-dasharray': '7 3',
+    }),
   ];
   body.push(element('g', { class: 'fit-layer', 'clip-path': `url(#${clipFit})` }, fitLines.join('')));
 
-  body.push(element('rect', { class: 'panel-frame', 'data-panel': 'residual', x: residualPanel.left, y: residualPanel.top, width: residualPanel.width, height: residualPanel.height, fill: 'none', stroke: 'none' }));
-  body.push(renderAxis(residualPanel, { side: 'bottom', ticks: x.ticks, position: px, format: x.format, label: 'wavenumber / cm⁻¹' }));
-  body.push(renderAxis(residualPanel, { side: 'left', ticks: r.ticks, position: (v) => r.scale(v), format: r.format, label: 'residual / AU', className: 'axis-residual' }));
+  body.push(
+    element('rect', {
+      class: 'panel-frame',
+      'data-panel': 'residual',
+      x: residualPanel.left,
+      y: residualPanel.top,
+      width: residualPanel.width,
+      height: residualPanel.height,
+      fill: 'none',
+      stroke: 'none',
+    }),
+  );
+  body.push(
+    renderAxis(residualPanel, {
+      side: 'bottom',
+      ticks: x.ticks,
+      position: px,
+      format: x.format,
+      label: 'wavenumber / cm⁻¹',
+    }),
+  );
+  body.push(
+    renderAxis(residualPanel, {
+      side: 'left',
+      ticks: r.ticks,
+      position: (v) => r.scale(v),
+      format: r.format,
+      label: 'residual / AU',
+      className: 'axis-residual',
+    }),
+  );
   const rmsText =
     input.residualRms === undefined
       ? ''
       : `: RMS ${formatNumber(input.residualRms, 3)} AU${input.calibrationResidualRms === undefined ? '' : ` (calibration ${formatNumber(input.calibrationResidualRms, 3)} AU)`}`;
-  body.push(element('text', { class: 'panel-title', x: residualPanel.left, y: residualPanel.top - 8, 'font-size': 12, fill: MUTED }, escapeText(`Residual (measured − fitted)${rmsText}`)));
+  body.push(
+    element(
+      'text',
+      { class: 'panel-title', x: residualPanel.left, y: residualPanel.top - 8, 'font-size': 12, fill: MUTED },
+      escapeText(`Residual (measured − fitted)${rmsText}`),
+    ),
+  );
   const zero = r.scale(0);
   body.push(
     element(
       'g',
       { class: 'residual-layer', 'clip-path': `url(#${clipResidual})` },
-      element('line', { class: 'zero-line', x1: residualPanel.left, x2: residualPanel.left + residualPanel.width, y1: zero, y2: zero, stroke: fittedStyle.colour, 'stroke-width': 1 }) +
-        element('path', { class: 'residual-spectrum', d: trace(input.residual, (v) => r.scale(v)), fill: 'none', stroke: INK, 'stroke-width': 1 }),
+      element('line', {
+        class: 'zero-line',
+        x1: residualPanel.left,
+        x2: residualPanel.left + residualPanel.width,
+        y1: zero,
+        y2: zero,
+        stroke: fittedStyle.colour,
+        'stroke-width': 1,
+      }) +
+        element('path', {
+          class: 'residual-spectrum',
+          d: trace(input.residual, (v) => r.scale(v)),
+          fill: 'none',
+          stroke: INK,
+          'stroke-width': 1,
+        }),
     ),
   );
-  notes.forEach((note, i) => body.push(noteText(residualPanel.left, panelBottom(residualPanel) + MARGIN.bottom + 4 + i * 15, note)));
+  notes.forEach((note, i) =>
+    body.push(noteText(residualPanel.left, panelBottom(residualPanel) + MARGIN.bottom + 4 + i * 15, note)),
+  );
   body.push(legend.svg);
   return svgDocument({
     id,

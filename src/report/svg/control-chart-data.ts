@@ -15,21 +15,43 @@ import type { ControlChartInput, ControlChartTrend } from './control-chart.js';
  * @param options - `title` (default `<gas> check-standard recoveries`), `nextDue` (ISO) to mark on the time axis
  * @returns the chart input
  */
-export function controlChartFromEvaluation(evaluation: DriftEvaluation, options: { title?: string; nextDue?: string } = {}): ControlChartInput {
+export function controlChartFromEvaluation(
+  evaluation: DriftEvaluation,
+  options: { title?: string; nextDue?: string } = {},
+): ControlChartInput {
   const records = evaluation.spanChecks.flatMap((position) => {
     const check = evaluation.checks[position];
     if (check === undefined || check.recoveryPct === undefined) return [];
-    return [{ time: check.record.time, recoveryPct: check.recoveryPct, verdict: check.verdict, rules: check.rules.map((r) => r.rule), label: check.record.scan }];
+    return [
+      {
+        time: check.record.time,
+        recoveryPct: check.recoveryPct,
+        verdict: check.verdict,
+        rules: check.rules.map((r) => r.rule),
+        label: check.record.scan,
+      },
+    ];
   });
   const trend = evaluation.trend;
   let chartTrend: ControlChartTrend | undefined;
-  if (trend.status !== 'insufficient' && trend.origin !== undefined && trend.interceptPct !== undefined && trend.slopePctPerDay !== undefined && trend.from !== undefined && trend.to !== undefined) {
+  if (
+    trend.status !== 'insufficient' &&
+    trend.origin !== undefined &&
+    trend.interceptPct !== undefined &&
+    trend.slopePctPerDay !== undefined &&
+    trend.from !== undefined &&
+    trend.to !== undefined
+  ) {
     const to = Date.parse(trend.to);
     const projection = trend.projection;
     // Project to the crossing when the drift is significant; otherwise one recheck interval ahead.
-    const crossing = projection === undefined || projection.alreadyOutside ? undefined : Date.parse(projection.date);
+    const crossing =
+      projection === undefined || projection.alreadyOutside ? undefined : Date.parse(projection.date);
     const ahead = to + evaluation.policy.everyDays * DAY_MS;
-    const until = crossing !== undefined && Number.isFinite(crossing) ? Math.max(ahead, crossing + 0.1 * (crossing - to)) : ahead;
+    const until =
+      crossing !== undefined && Number.isFinite(crossing)
+        ? Math.max(ahead, crossing + 0.1 * (crossing - to))
+        : ahead;
     chartTrend = {
       slopePctPerDay: trend.slopePctPerDay,
       interceptPct: trend.interceptPct,
@@ -37,7 +59,7 @@ export function controlChartFromEvaluation(evaluation: DriftEvaluation, options:
       fittedFrom: trend.from,
       fittedTo: trend.to,
       projectUntil: new Date(until).toISOString(),
-      leavesToleranceAt: crossing === undefined ? null : projection?.date ?? null,
+      leavesToleranceAt: crossing === undefined ? null : (projection?.date ?? null),
     };
   }
   return {

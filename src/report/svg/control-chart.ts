@@ -11,7 +11,18 @@ import { scaleUtc } from 'd3-scale';
 import { line, symbolCircle, symbolCross, symbolDiamond, symbolTriangle } from 'd3-shape';
 import { BandwrightError } from '../../errors.js';
 import { formatNumber } from '../table.js';
-import { clipPath, linearAxisScale, markerPath, noteText, panelBottom, renderAxis, renderLegend, svgDocument, type LegendEntry, type Panel } from './chart.js';
+import {
+  clipPath,
+  linearAxisScale,
+  markerPath,
+  noteText,
+  panelBottom,
+  renderAxis,
+  renderLegend,
+  svgDocument,
+  type LegendEntry,
+  type Panel,
+} from './chart.js';
 import { coordinate, element, escapeText, shortNumber } from './markup.js';
 import { ALERT, INK, MUTED, seriesStyle } from './palette.js';
 
@@ -101,7 +112,12 @@ const DAY_MS = 86_400_000;
 
 function timeOf(text: string, what: string): number {
   const value = Date.parse(text);
-  if (!Number.isFinite(value)) throw new BandwrightError('INVALID_VALUE', `control chart: ${what} = ${JSON.stringify(text)}, must be an ISO 8601 time`, { parameter: what });
+  if (!Number.isFinite(value))
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `control chart: ${what} = ${JSON.stringify(text)}, must be an ISO 8601 time`,
+      { parameter: what },
+    );
   return value;
 }
 
@@ -130,11 +146,24 @@ function timeFormatter(ticks: readonly Date[]): (value: number) => string {
 export function renderControlChart(input: ControlChartInput, options: ControlChartOptions = {}): string {
   const id = options.id ?? 'control-chart';
   const width = options.width ?? 720;
-  if (!(input.tolerancePct > 0)) throw new BandwrightError('INVALID_VALUE', `control chart: tolerancePct = ${input.tolerancePct}, must be > 0`, { parameter: 'tolerancePct' });
-  if (!(input.sigmaPct > 0)) throw new BandwrightError('INVALID_VALUE', `control chart: sigmaPct = ${input.sigmaPct}, must be > 0`, { parameter: 'sigmaPct' });
+  if (!(input.tolerancePct > 0))
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `control chart: tolerancePct = ${input.tolerancePct}, must be > 0`,
+      { parameter: 'tolerancePct' },
+    );
+  if (!(input.sigmaPct > 0))
+    throw new BandwrightError('INVALID_VALUE', `control chart: sigmaPct = ${input.sigmaPct}, must be > 0`, {
+      parameter: 'sigmaPct',
+    });
   const records = input.records
     .map((record, i) => {
-      if (!Number.isFinite(record.recoveryPct)) throw new BandwrightError('INVALID_VALUE', `control chart: records[${i}].recoveryPct = ${record.recoveryPct}, must be a finite number`, { parameter: `records[${i}]` });
+      if (!Number.isFinite(record.recoveryPct))
+        throw new BandwrightError(
+          'INVALID_VALUE',
+          `control chart: records[${i}].recoveryPct = ${record.recoveryPct}, must be a finite number`,
+          { parameter: `records[${i}]` },
+        );
       return { ...record, at: timeOf(record.time, `records[${i}].time`) };
     })
     .sort((a, b) => a.at - b.at);
@@ -147,15 +176,35 @@ export function renderControlChart(input: ControlChartInput, options: ControlCha
     { label: 'warning', colour: seriesStyle(1).colour, marker: symbolTriangle },
     { label: 'fail', colour: ALERT, marker: symbolCross },
     { label: `tolerance ±${shortNumber(input.tolerancePct)} %`, colour: ALERT, line: true, lineWidth: 2 },
-    { label: `±2σ warning (σ = ${shortNumber(input.sigmaPct)} %)`, colour: warningStyle.colour, dash: warningStyle.dash, line: true },
+    {
+      label: `±2σ warning (σ = ${shortNumber(input.sigmaPct)} %)`,
+      colour: warningStyle.colour,
+      dash: warningStyle.dash,
+      line: true,
+    },
     { label: '±3σ action', colour: actionStyle.colour, dash: actionStyle.dash, line: true },
   ];
   if (input.trend !== undefined) {
     legendEntries.push({ label: 'trend', colour: trendStyle.colour, line: true, lineWidth: 2 });
-    legendEntries.push({ label: 'projection', colour: trendStyle.colour, dash: '3 3', line: true, lineWidth: 2 });
+    legendEntries.push({
+      label: 'projection',
+      colour: trendStyle.colour,
+      dash: '3 3',
+      line: true,
+      lineWidth: 2,
+    });
   }
-  const legend = renderLegend(legendEntries, { x: MARGIN.left, y: 28, width: width - MARGIN.left - MARGIN.right });
-  const panel: Panel = { left: MARGIN.left, top: 28 + legend.height + 36, width: width - MARGIN.left - MARGIN.right, height: options.panelHeight ?? 280 };
+  const legend = renderLegend(legendEntries, {
+    x: MARGIN.left,
+    y: 28,
+    width: width - MARGIN.left - MARGIN.right,
+  });
+  const panel: Panel = {
+    left: MARGIN.left,
+    top: 28 + legend.height + 36,
+    width: width - MARGIN.left - MARGIN.right,
+    height: options.panelHeight ?? 280,
+  };
   const footnotes: string[] = [];
   const crossing = input.trend?.leavesToleranceAt;
   const sigmaLines = [
@@ -179,7 +228,10 @@ export function renderControlChart(input: ControlChartInput, options: ControlCha
     .range([panel.left, panel.left + panel.width]);
   // Date labels are about 70 px wide: keep every k-th tick so neighbours never touch.
   const allTicks = time.ticks(6);
-  const spacing = allTicks.length > 1 ? (panel.width * (allTicks[1]!.getTime() - allTicks[0]!.getTime())) / (end - start + 2 * pad) : panel.width;
+  const spacing =
+    allTicks.length > 1
+      ? (panel.width * (allTicks[1]!.getTime() - allTicks[0]!.getTime())) / (end - start + 2 * pad)
+      : panel.width;
   const every = Math.max(1, Math.ceil(84 / Math.max(spacing, 1)));
   const timeTicks = allTicks.filter((_, i) => i % every === 0);
   const px = (t: number): number => time(new Date(t));
@@ -187,28 +239,121 @@ export function renderControlChart(input: ControlChartInput, options: ControlCha
   const c = input.centrePct;
   const reach = Math.max(input.tolerancePct, 3 * input.sigmaPct) * 1.25;
   const values = [c - reach, c + reach, ...records.map((r) => r.recoveryPct)];
-  const y = linearAxisScale(options.recoveryDomain ?? [Math.min(...values), Math.max(...values)], [panelBottom(panel), panel.top], { nice: options.recoveryDomain === undefined });
+  const y = linearAxisScale(
+    options.recoveryDomain ?? [Math.min(...values), Math.max(...values)],
+    [panelBottom(panel), panel.top],
+    { nice: options.recoveryDomain === undefined },
+  );
   const py = (v: number): number => y.scale(v);
   const clip = `${id}-clip`;
   const defs = clipPath(clip, panel);
 
   const body: string[] = [];
-  body.push(element('rect', { class: 'panel-frame', x: panel.left, y: panel.top, width: panel.width, height: panel.height, fill: 'none', stroke: 'none' }));
-  body.push(renderAxis(panel, { side: 'bottom', ticks: timeTicks.map((t) => t.getTime()), position: px, format: timeFormatter(timeTicks), label: 'check time (UTC)' }));
-  body.push(renderAxis(panel, { side: 'left', ticks: y.ticks, position: py, format: y.format, label: 'recovery / %' }));
+  body.push(
+    element('rect', {
+      class: 'panel-frame',
+      x: panel.left,
+      y: panel.top,
+      width: panel.width,
+      height: panel.height,
+      fill: 'none',
+      stroke: 'none',
+    }),
+  );
+  body.push(
+    renderAxis(panel, {
+      side: 'bottom',
+      ticks: timeTicks.map((t) => t.getTime()),
+      position: px,
+      format: timeFormatter(timeTicks),
+      label: 'check time (UTC)',
+    }),
+  );
+  body.push(
+    renderAxis(panel, {
+      side: 'left',
+      ticks: y.ticks,
+      position: py,
+      format: y.format,
+      label: 'recovery / %',
+    }),
+  );
 
-  const horizontal = (value: number, className: string, colour: string, dash: string | undefined, widthPx: number, label: string): string => {
+  const horizontal = (
+    value: number,
+    className: string,
+    colour: string,
+    dash: string | undefined,
+    widthPx: number,
+    label: string,
+  ): string => {
     const yy = py(value);
-    return element('line', { class: className, 'data-value': String(value), x1: panel.left, x2: panel.left + panel.width, y1: yy, y2: yy, stroke: colour, 'stroke-width': widthPx, 'stroke-dasharray': dash }, element('title', {}, escapeText(label)));
+    return element(
+      'line',
+      {
+        class: className,
+        'data-value': String(value),
+        x1: panel.left,
+        x2: panel.left + panel.width,
+        y1: yy,
+        y2: yy,
+        stroke: colour,
+        'stroke-width': widthPx,
+        'stroke-dasharray': dash,
+      },
+      element('title', {}, escapeText(label)),
+    );
   };
   const lines = [
     horizontal(c, 'centre-line', INK, undefined, 1, `certified value ${formatNumber(c, 4)} %`),
-    horizontal(c + input.tolerancePct, 'tolerance-line', ALERT, undefined, 2, `tolerance +${shortNumber(input.tolerancePct)} %`),
-    horizontal(c - input.tolerancePct, 'tolerance-line', ALERT, undefined, 2, `tolerance -${shortNumber(input.tolerancePct)} %`),
-    horizontal(c + 2 * input.sigmaPct, 'warning-line', warningStyle.colour, warningStyle.dash, 1.3, `+2σ warning limit (${input.sigmaSource})`),
-    horizontal(c - 2 * input.sigmaPct, 'warning-line', warningStyle.colour, warningStyle.dash, 1.3, `-2σ warning limit (${input.sigmaSource})`),
-    horizontal(c + 3 * input.sigmaPct, 'action-line', actionStyle.colour, actionStyle.dash, 1.3, `+3σ action limit (${input.sigmaSource})`),
-    horizontal(c - 3 * input.sigmaPct, 'action-line', actionStyle.colour, actionStyle.dash, 1.3, `-3σ action limit (${input.sigmaSource})`),
+    horizontal(
+      c + input.tolerancePct,
+      'tolerance-line',
+      ALERT,
+      undefined,
+      2,
+      `tolerance +${shortNumber(input.tolerancePct)} %`,
+    ),
+    horizontal(
+      c - input.tolerancePct,
+      'tolerance-line',
+      ALERT,
+      undefined,
+      2,
+      `tolerance -${shortNumber(input.tolerancePct)} %`,
+    ),
+    horizontal(
+      c + 2 * input.sigmaPct,
+      'warning-line',
+      warningStyle.colour,
+      warningStyle.dash,
+      1.3,
+      `+2σ warning limit (${input.sigmaSource})`,
+    ),
+    horizontal(
+      c - 2 * input.sigmaPct,
+      'warning-line',
+      warningStyle.colour,
+      warningStyle.dash,
+      1.3,
+      `-2σ warning limit (${input.sigmaSource})`,
+    ),
+    horizontal(
+      c + 3 * input.sigmaPct,
+      'action-line',
+      actionStyle.colour,
+      actionStyle.dash,
+      1.3,
+      `+3σ action limit (${input.sigmaSource})`,
+    ),
+    horizontal(
+      c - 3 * input.sigmaPct,
+      'action-line',
+      actionStyle.colour,
+      actionStyle.dash,
+      1.3,
+      `-3σ action limit (${input.sigmaSource})`,
+    ),
   ];
   body.push(element('g', { class: 'limits', 'clip-path': `url(#${clip})` }, lines.join('')));
 
@@ -223,8 +368,26 @@ export function renderControlChart(input: ControlChartInput, options: ControlCha
       .x((t) => px(t))
       .y((t) => py(at(t)))
       .digits(2);
-    const parts = [element('path', { class: 'trend-line', d: segment([from, to]) ?? '', fill: 'none', stroke: trendStyle.colour, 'stroke-width': 2 })];
-    if (until > to) parts.push(element('path', { class: 'trend-projection', d: segment([to, until]) ?? '', fill: 'none', stroke: trendStyle.colour, 'stroke-width': 2, 'stroke-dasharray': '3 3' }));
+    const parts = [
+      element('path', {
+        class: 'trend-line',
+        d: segment([from, to]) ?? '',
+        fill: 'none',
+        stroke: trendStyle.colour,
+        'stroke-width': 2,
+      }),
+    ];
+    if (until > to)
+      parts.push(
+        element('path', {
+          class: 'trend-projection',
+          d: segment([to, until]) ?? '',
+          fill: 'none',
+          stroke: trendStyle.colour,
+          'stroke-width': 2,
+          'stroke-dasharray': '3 3',
+        }),
+      );
     body.push(element('g', { class: 'trend', 'clip-path': `url(#${clip})` }, parts.join('')));
     if (trend.leavesToleranceAt !== undefined && trend.leavesToleranceAt !== null) {
       const leaves = timeOf(trend.leavesToleranceAt, 'trend.leavesToleranceAt');
@@ -235,7 +398,17 @@ export function renderControlChart(input: ControlChartInput, options: ControlCha
         element(
           'g',
           { class: 'leaves-tolerance', 'data-time': new Date(leaves).toISOString() },
-          element('path', { d: markerPath(symbolDiamond, 70), transform: `translate(${coordinate(lx)},${coordinate(ly)})`, fill: '#ffffff', stroke: trendStyle.colour, 'stroke-width': 1.6 }, element('title', {}, escapeText(text))),
+          element(
+            'path',
+            {
+              d: markerPath(symbolDiamond, 70),
+              transform: `translate(${coordinate(lx)},${coordinate(ly)})`,
+              fill: '#ffffff',
+              stroke: trendStyle.colour,
+              'stroke-width': 1.6,
+            },
+            element('title', {}, escapeText(text)),
+          ),
         ),
       );
       footnotes.push(text);
@@ -247,17 +420,46 @@ export function renderControlChart(input: ControlChartInput, options: ControlCha
   for (const record of records) {
     const cx = px(record.at);
     const cy = py(record.recoveryPct);
-    const shape = record.verdict === 'fail' ? symbolCross : record.verdict === 'warning' ? symbolTriangle : symbolCircle;
-    const colour = record.verdict === 'fail' ? ALERT : record.verdict === 'warning' ? seriesStyle(1).colour : INK;
+    const shape =
+      record.verdict === 'fail' ? symbolCross : record.verdict === 'warning' ? symbolTriangle : symbolCircle;
+    const colour =
+      record.verdict === 'fail' ? ALERT : record.verdict === 'warning' ? seriesStyle(1).colour : INK;
     const hover = `${record.time}: recovery ${formatNumber(record.recoveryPct, 4)} %, ${record.verdict}${record.rules.length > 0 ? `, rules ${record.rules.join(', ')}` : ''}${record.label === undefined ? '' : ` (${record.label})`}`;
     if (record.rules.length > 0) {
-      marks.push(element('circle', { class: 'rule-violation', cx, cy, r: 8, fill: 'none', stroke: colour, 'stroke-width': 1.4 }));
+      marks.push(
+        element('circle', {
+          class: 'rule-violation',
+          cx,
+          cy,
+          r: 8,
+          fill: 'none',
+          stroke: colour,
+          'stroke-width': 1.4,
+        }),
+      );
       // Labels sit in a strip above the panel, in two alternating rows, so they never cover data
       // and neighbouring checks' labels do not run into each other; a dotted leader joins label and check.
       const row = violations++ % 2;
       const labelY = panel.top - 8 - 13 * row;
-      marks.push(element('line', { class: 'rule-leader', x1: cx, x2: cx, y1: labelY + 3, y2: cy - 8, stroke: colour, 'stroke-width': 0.6, 'stroke-dasharray': '1 2' }));
-      marks.push(element('text', { class: 'rule-label', x: cx, y: labelY, 'text-anchor': 'middle', 'font-size': 10, fill: colour }, escapeText(record.rules.join(' '))));
+      marks.push(
+        element('line', {
+          class: 'rule-leader',
+          x1: cx,
+          x2: cx,
+          y1: labelY + 3,
+          y2: cy - 8,
+          stroke: colour,
+          'stroke-width': 0.6,
+          'stroke-dasharray': '1 2',
+        }),
+      );
+      marks.push(
+        element(
+          'text',
+          { class: 'rule-label', x: cx, y: labelY, 'text-anchor': 'middle', 'font-size': 10, fill: colour },
+          escapeText(record.rules.join(' ')),
+        ),
+      );
     }
     marks.push(
       element(
@@ -280,11 +482,32 @@ export function renderControlChart(input: ControlChartInput, options: ControlCha
   body.push(element('g', { class: 'checks' }, marks.join('')));
   if (input.nextDue !== undefined) {
     const dx = px(timeOf(input.nextDue, 'nextDue'));
-    body.push(element('g', { class: 'next-due' }, element('line', { x1: dx, x2: dx, y1: panel.top, y2: panelBottom(panel), stroke: MUTED, 'stroke-width': 1, 'stroke-dasharray': '1 3' }) + element('text', { x: dx, y: panel.top + 12, 'text-anchor': 'middle', 'font-size': 10, fill: MUTED }, 'next due')));
+    body.push(
+      element(
+        'g',
+        { class: 'next-due' },
+        element('line', {
+          x1: dx,
+          x2: dx,
+          y1: panel.top,
+          y2: panelBottom(panel),
+          stroke: MUTED,
+          'stroke-width': 1,
+          'stroke-dasharray': '1 3',
+        }) +
+          element(
+            'text',
+            { x: dx, y: panel.top + 12, 'text-anchor': 'middle', 'font-size': 10, fill: MUTED },
+            'next due',
+          ),
+      ),
+    );
   }
   if (records.length === 0) body.push(noteText(panel.left + 10, panel.top + 20, 'no rechecks recorded yet'));
   const noteLines = [...sigmaLines.filter((l) => l !== ''), ...footnotes];
-  noteLines.forEach((text, i) => body.push(noteText(panel.left, panelBottom(panel) + MARGIN.bottom + 10 + 14 * i, text)));
+  noteLines.forEach((text, i) =>
+    body.push(noteText(panel.left, panelBottom(panel) + MARGIN.bottom + 10 + 14 * i, text)),
+  );
   body.push(legend.svg);
 
   const fired = records.filter((r) => r.rules.length > 0).length;

@@ -22,7 +22,13 @@ export function escapeText(text: string): string {
   return text.replace(/[&<>"']/g, (character) => ESCAPES[character] as string);
 }
 
-const ESCAPES: Record<string, string> = { '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' };
+const ESCAPES: Record<string, string> = {
+  '&': '&amp;',
+  '<': '&lt;',
+  '>': '&gt;',
+  '"': '&quot;',
+  "'": '&#39;',
+};
 
 /** Attribute values: text (escaped), numbers (rounded), or absent (`undefined`/`false` omit the attribute). */
 export type AttributeValue = string | number | undefined | false;
@@ -38,7 +44,11 @@ export type AttributeValue = string | number | undefined | false;
  * @example
  * element('text', { x: 10, y: 20 }, escapeText('ppm')); // '<text x="10" y="20">ppm</text>'
  */
-export function element(name: string, attributes: Readonly<Record<string, AttributeValue>> = {}, children?: string): string {
+export function element(
+  name: string,
+  attributes: Readonly<Record<string, AttributeValue>> = {},
+  children?: string,
+): string {
   let text = `<${name}`;
   for (const [key, value] of Object.entries(attributes)) {
     if (value === undefined || value === false) continue;

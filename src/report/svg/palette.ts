@@ -9,10 +9,27 @@
  * checks both properties. Because colour alone must never carry meaning (print in greyscale,
  * monochrome copiers), each series index also has its own dash pattern and marker shape.
  */
-import { symbolCircle, symbolCross, symbolDiamond, symbolSquare, symbolStar, symbolTriangle, symbolWye, type SymbolType } from 'd3-shape';
+import {
+  symbolCircle,
+  symbolCross,
+  symbolDiamond,
+  symbolSquare,
+  symbolStar,
+  symbolTriangle,
+  symbolWye,
+  type SymbolType,
+} from 'd3-shape';
 
 /** Series colours, in order of use. */
-export const SERIES_COLOURS: readonly string[] = ['#1f4e9c', '#cc5500', '#8811ff', '#889966', '#3399bb', '#664444', '#cc66ff'];
+export const SERIES_COLOURS: readonly string[] = [
+  '#1f4e9c',
+  '#cc5500',
+  '#8811ff',
+  '#889966',
+  '#3399bb',
+  '#664444',
+  '#cc66ff',
+];
 
 /** Ink for measured data, axes and text. */
 export const INK = '#222222';
@@ -30,13 +47,37 @@ export const INTERVAL_FILL = '#1f4e9c';
 export const ALERT = '#b8001f';
 
 /** Dash patterns (SVG `stroke-dasharray`), one per series index; the first is solid. */
-export const SERIES_DASHES: readonly (string | undefined)[] = [undefined, '7 3', '2 2.5', '9 3 2 3', '4 4', '12 3', '2 2 6 2'];
+export const SERIES_DASHES: readonly (string | undefined)[] = [
+  undefined,
+  '7 3',
+  '2 2.5',
+  '9 3 2 3',
+  '4 4',
+  '12 3',
+  '2 2 6 2',
+];
 
 /** Marker shapes, one per series index (d3-shape symbol types). */
-export const SERIES_SYMBOLS: readonly SymbolType[] = [symbolCircle, symbolSquare, symbolTriangle, symbolDiamond, symbolCross, symbolStar, symbolWye];
+export const SERIES_SYMBOLS: readonly SymbolType[] = [
+  symbolCircle,
+  symbolSquare,
+  symbolTriangle,
+  symbolDiamond,
+  symbolCross,
+  symbolStar,
+  symbolWye,
+];
 
 /** Names of the marker shapes, in the order of {@link SERIES_SYMBOLS} (for legends and tests). */
-export const SYMBOL_NAMES: readonly string[] = ['circle', 'square', 'triangle', 'diamond', 'cross', 'star', 'wye'];
+export const SYMBOL_NAMES: readonly string[] = [
+  'circle',
+  'square',
+  'triangle',
+  'diamond',
+  'cross',
+  'star',
+  'wye',
+];
 
 /** How series number `index` is drawn: colour, dash and marker cycle together. */
 export interface SeriesStyle {

@@ -11,7 +11,13 @@ import { calibrationCurveData, renderCalibrationCurve } from './calibration-curv
 import { renderClsFit, type ClsFitPlotInput } from './cls-fit.js';
 import { renderControlChart, type ControlChartInput } from './control-chart.js';
 import { slug } from './markup.js';
-import { clsStandardsSpectraData, concentrationGroup, gasSpectraData, renderSpectra, type WavenumberAxis } from './spectra.js';
+import {
+  clsStandardsSpectraData,
+  concentrationGroup,
+  gasSpectraData,
+  renderSpectra,
+  type WavenumberAxis,
+} from './spectra.js';
 import type { ConcentrationUnit } from '../../gas/units.js';
 
 /** One plot ready to inline or to write. */
@@ -53,22 +59,40 @@ export interface StandardSpectrum {
  * @returns the plots, in report order
  * @throws BandwrightError `INVALID_VALUE` for a level outside (0, 1)
  */
-export function calibrationPlots(calibration: Calibration, spectra: readonly StandardSpectrum[], options: PlotSetOptions & { spectraNotes?: readonly string[] } = {}): NamedPlot[] {
+export function calibrationPlots(
+  calibration: Calibration,
+  spectra: readonly StandardSpectrum[],
+  options: PlotSetOptions & { spectraNotes?: readonly string[] } = {},
+): NamedPlot[] {
   const prefix = options.idPrefix ?? 'plot';
   const plots: NamedPlot[] = [];
   calibration.gases.forEach((gas, g) => {
     const name = slug(gas.gas);
-    const labels = calibration.standards.map((s) => `${s.scan}${s.lot === undefined ? '' : `, lot ${s.lot}`}`);
-    const curveData = calibrationCurveData(gas, { ...(options.level === undefined ? {} : { level: options.level }), standardLabels: labels });
-    plots.push({ file: `${name}-calibration-curve.svg`, title: `${gas.gas} calibration curve and residuals`, svg: renderCalibrationCurve(curveData, { id: `${prefix}-${g}-curve` }) });
+    const labels = calibration.standards.map(
+      (s) => `${s.scan}${s.lot === undefined ? '' : `, lot ${s.lot}`}`,
+    );
+    const curveData = calibrationCurveData(gas, {
+      ...(options.level === undefined ? {} : { level: options.level }),
+      standardLabels: labels,
+    });
+    plots.push({
+      file: `${name}-calibration-curve.svg`,
+      title: `${gas.gas} calibration curve and residuals`,
+      svg: renderCalibrationCurve(curveData, { id: `${prefix}-${g}-curve` }),
+    });
     if (gas.feature !== undefined && (spectra.length > 0 || (options.spectraNotes ?? []).length > 0)) {
       plots.push({
         file: `${name}-standard-spectra.svg`,
         title: `${gas.gas} standards: spectra, band and baseline windows`,
-        svg: renderSpectra(gasSpectraData(gas, standardSeries(calibration, gas, spectra), { ...(options.spectraNotes === undefined ? {} : { notes: options.spectraNotes }) }), {
-          id: `${prefix}-${g}-spectra`,
-          ...(options.wavenumberAxis === undefined ? {} : { wavenumberAxis: options.wavenumberAxis }),
-        }),
+        svg: renderSpectra(
+          gasSpectraData(gas, standardSeries(calibration, gas, spectra), {
+            ...(options.spectraNotes === undefined ? {} : { notes: options.spectraNotes }),
+          }),
+          {
+            id: `${prefix}-${g}-spectra`,
+            ...(options.wavenumberAxis === undefined ? {} : { wavenumberAxis: options.wavenumberAxis }),
+          },
+        ),
       });
     }
   });
@@ -78,22 +102,43 @@ export function calibrationPlots(calibration: Calibration, spectra: readonly Sta
       const standard = calibration.standards[index];
       // Name only what the standard contains; a standard of nothing but the matrix gas is zero gas.
       const present = components.filter((c) => (standard?.concentrations[c.name] ?? 0) !== 0);
-      const group = present.length === 0 ? 'zero gas' : present.map((c) => `${c.name} ${concentrationGroup(standard?.concentrations[c.name] as number, c.unit as ConcentrationUnit)}`).join(', ');
-      return { label: `${standard?.scan ?? `standard ${index + 1}`}${standard?.lot === undefined ? '' : `, lot ${standard.lot}`}`, spectrum, group };
+      const group =
+        present.length === 0
+          ? 'zero gas'
+          : present
+              .map(
+                (c) =>
+                  `${c.name} ${concentrationGroup(standard?.concentrations[c.name] as number, c.unit as ConcentrationUnit)}`,
+              )
+              .join(', ');
+      return {
+        label: `${standard?.scan ?? `standard ${index + 1}`}${standard?.lot === undefined ? '' : `, lot ${standard.lot}`}`,
+        spectrum,
+        group,
+      };
     });
     plots.push({
       file: 'standard-spectra.svg',
       title: 'Standards: spectra over the fit regions',
-      svg: renderSpectra(clsStandardsSpectraData(calibration, labelled, { ...(options.spectraNotes === undefined ? {} : { notes: options.spectraNotes }) }), {
-        id: `${prefix}-cls-spectra`,
-        ...(options.wavenumberAxis === undefined ? {} : { wavenumberAxis: options.wavenumberAxis }),
-      }),
+      svg: renderSpectra(
+        clsStandardsSpectraData(calibration, labelled, {
+          ...(options.spectraNotes === undefined ? {} : { notes: options.spectraNotes }),
+        }),
+        {
+          id: `${prefix}-cls-spectra`,
+          ...(options.wavenumberAxis === undefined ? {} : { wavenumberAxis: options.wavenumberAxis }),
+        },
+      ),
     });
   }
   return plots;
 }
 
-function standardSeries(calibration: Calibration, gas: GasCalibration, spectra: readonly StandardSpectrum[]): { label: string; spectrum: Spectrum; group: string }[] {
+function standardSeries(
+  calibration: Calibration,
+  gas: GasCalibration,
+  spectra: readonly StandardSpectrum[],
+): { label: string; spectrum: Spectrum; group: string }[] {
   return spectra.map(({ index, spectrum }) => {
     const standard = calibration.standards[index];
     const value = standard?.concentrations[gas.gas];
@@ -117,7 +162,11 @@ function standardSeries(calibration: Calibration, gas: GasCalibration, spectra: 
  * @returns the plots
  * @throws BandwrightError `WINDOW` when a CLS sample does not cover the regions
  */
-export function samplePlots(calibration: Calibration, sample: { scan: string; spectrum: Spectrum; conditions?: CellConditions; cls?: ClsFitPlotInput }, options: PlotSetOptions = {}): NamedPlot[] {
+export function samplePlots(
+  calibration: Calibration,
+  sample: { scan: string; spectrum: Spectrum; conditions?: CellConditions; cls?: ClsFitPlotInput },
+  options: PlotSetOptions = {},
+): NamedPlot[] {
   const prefix = options.idPrefix ?? 'plot';
   const base = slug(sample.scan.replace(/^.*[\\/]/, '').replace(/\.[^.]*$/, ''));
   const axis = options.wavenumberAxis === undefined ? {} : { wavenumberAxis: options.wavenumberAxis };
@@ -125,17 +174,29 @@ export function samplePlots(calibration: Calibration, sample: { scan: string; sp
   const cls =
     sample.cls ??
     (calibration.cls !== undefined && sample.conditions !== undefined
-      ? clsFitData(calibration, sample.spectrum, sample.conditions, { title: `${sample.scan}: classical-least-squares fit`, ...(options.level === undefined ? {} : { level: options.level }) })
+      ? clsFitData(calibration, sample.spectrum, sample.conditions, {
+          title: `${sample.scan}: classical-least-squares fit`,
+          ...(options.level === undefined ? {} : { level: options.level }),
+        })
       : undefined);
   if (cls !== undefined) {
-    plots.push({ file: `${base}-cls-fit.svg`, title: `${sample.scan}: classical-least-squares fit`, svg: renderClsFit(cls, { id: `${prefix}-cls`, ...axis }) });
+    plots.push({
+      file: `${base}-cls-fit.svg`,
+      title: `${sample.scan}: classical-least-squares fit`,
+      svg: renderClsFit(cls, { id: `${prefix}-cls`, ...axis }),
+    });
   }
   calibration.gases.forEach((gas, g) => {
     if (gas.feature === undefined) return;
     plots.push({
       file: `${base}-${slug(gas.gas)}-spectrum.svg`,
       title: `${sample.scan}: ${gas.gas} band and baseline`,
-      svg: renderSpectra(gasSpectraData(gas, [{ label: sample.scan, spectrum: sample.spectrum }], { title: `${sample.scan}: ${gas.gas} band and baseline` }), { id: `${prefix}-${g}-sample`, ...axis }),
+      svg: renderSpectra(
+        gasSpectraData(gas, [{ label: sample.scan, spectrum: sample.spectrum }], {
+          title: `${sample.scan}: ${gas.gas} band and baseline`,
+        }),
+        { id: `${prefix}-${g}-sample`, ...axis },
+      ),
     });
   });
   return plots;
@@ -147,8 +208,15 @@ export function samplePlots(calibration: Calibration, sample: { scan: string; sp
  * @param chart - control-chart input
  * @param options - id prefix; `file` name stem (default `control-chart`)
  */
-export function controlChartPlot(chart: ControlChartInput, options: { idPrefix?: string; file?: string } = {}): NamedPlot {
-  return { file: `${slug(options.file ?? 'control-chart')}.svg`, title: chart.title ?? 'Check-standard recoveries', svg: renderControlChart(chart, { id: `${options.idPrefix ?? 'plot'}-control` }) };
+export function controlChartPlot(
+  chart: ControlChartInput,
+  options: { idPrefix?: string; file?: string } = {},
+): NamedPlot {
+  return {
+    file: `${slug(options.file ?? 'control-chart')}.svg`,
+    title: chart.title ?? 'Check-standard recoveries',
+    svg: renderControlChart(chart, { id: `${options.idPrefix ?? 'plot'}-control` }),
+  };
 }
 
 /**

@@ -16,7 +16,19 @@ import { formatWindow } from '../../bands/windows.js';
 import { unitLabel } from '../../gas/units.js';
 import { toAbsorbance, type Spectrum } from '../../spectrum/spectrum.js';
 import { formatNumber } from '../table.js';
-import { clipPath, hatchPattern, linearAxisScale, noteText, paddedExtent, panelBottom, renderAxis, renderLegend, svgDocument, type LegendEntry, type Panel } from './chart.js';
+import {
+  clipPath,
+  hatchPattern,
+  linearAxisScale,
+  noteText,
+  paddedExtent,
+  panelBottom,
+  renderAxis,
+  renderLegend,
+  svgDocument,
+  type LegendEntry,
+  type Panel,
+} from './chart.js';
 import { element, escapeText } from './markup.js';
 import { BAND_FILL, BASELINE_FILL, MUTED, seriesStyle } from './palette.js';
 
@@ -108,7 +120,13 @@ function visibleIndices(x: ArrayLike<number>, low: number, high: number): [numbe
  * @param columns - pixel columns (≥ 1)
  * @returns the points to draw, ascending in x
  */
-export function thinForDrawing(x: ArrayLike<number>, y: ArrayLike<number>, low: number, high: number, columns: number): { x: number[]; y: number[] } {
+export function thinForDrawing(
+  x: ArrayLike<number>,
+  y: ArrayLike<number>,
+  low: number,
+  high: number,
+  columns: number,
+): { x: number[]; y: number[] } {
   const [first, end] = visibleIndices(x, low, high);
   const outX: number[] = [];
   const outY: number[] = [];
@@ -170,13 +188,37 @@ export function renderSpectra(input: SpectraPlotInput, options: SpectraOptions =
     if (!groups.includes(group)) groups.push(group);
     return groups.indexOf(group);
   });
-  const legendEntries: LegendEntry[] = groups.map((group, i) => ({ label: group, colour: seriesStyle(i).colour, dash: seriesStyle(i).dash, line: true }));
-  if (input.band !== undefined) legendEntries.push({ label: `band ${formatWindow(input.band)}`, colour: BAND_FILL, area: 0.16 });
-  if (input.baselineWindows.length > 0) legendEntries.push({ label: 'baseline windows', colour: BASELINE_FILL, area: 1, pattern: `${id}-hatch` });
-  if ((input.regions ?? []).length > 0) legendEntries.push({ label: 'fit regions', colour: BASELINE_FILL, area: 0.12 });
-  if (input.baselines.length > 0) legendEntries.push({ label: 'fitted baseline', colour: MUTED, dash: '1.5 2', line: true, lineWidth: 1.2 });
-  const legend = renderLegend(legendEntries, { x: SPECTRA_MARGIN.left, y: 28, width: width - SPECTRA_MARGIN.left - SPECTRA_MARGIN.right });
-  const panel: Panel = { left: SPECTRA_MARGIN.left, top: 28 + legend.height + 10, width: width - SPECTRA_MARGIN.left - SPECTRA_MARGIN.right, height: panelHeight };
+  const legendEntries: LegendEntry[] = groups.map((group, i) => ({
+    label: group,
+    colour: seriesStyle(i).colour,
+    dash: seriesStyle(i).dash,
+    line: true,
+  }));
+  if (input.band !== undefined)
+    legendEntries.push({ label: `band ${formatWindow(input.band)}`, colour: BAND_FILL, area: 0.16 });
+  if (input.baselineWindows.length > 0)
+    legendEntries.push({ label: 'baseline windows', colour: BASELINE_FILL, area: 1, pattern: `${id}-hatch` });
+  if ((input.regions ?? []).length > 0)
+    legendEntries.push({ label: 'fit regions', colour: BASELINE_FILL, area: 0.12 });
+  if (input.baselines.length > 0)
+    legendEntries.push({
+      label: 'fitted baseline',
+      colour: MUTED,
+      dash: '1.5 2',
+      line: true,
+      lineWidth: 1.2,
+    });
+  const legend = renderLegend(legendEntries, {
+    x: SPECTRA_MARGIN.left,
+    y: 28,
+    width: width - SPECTRA_MARGIN.left - SPECTRA_MARGIN.right,
+  });
+  const panel: Panel = {
+    left: SPECTRA_MARGIN.left,
+    top: 28 + legend.height + 10,
+    width: width - SPECTRA_MARGIN.left - SPECTRA_MARGIN.right,
+    height: panelHeight,
+  };
   const notes = input.notes ?? [];
   const height = panelBottom(panel) + SPECTRA_MARGIN.bottom + notes.length * 15;
 
@@ -187,57 +229,160 @@ export function renderSpectra(input: SpectraPlotInput, options: SpectraOptions =
     if (span !== undefined) {
       const margin = 0.15 * (span[1] - span[0]);
       range = [span[0] - margin, span[1] + margin];
-    } else range = paddedExtent(input.series.map((s) => s.x), { pad: 0 });
-    const dataExtent = paddedExtent(input.series.map((s) => s.x), { pad: 0 });
-    if (input.series.length > 0) range = [Math.max(range[0], dataExtent[0]), Math.min(range[1], dataExtent[1])];
+    } else
+      range = paddedExtent(
+        input.series.map((s) => s.x),
+        { pad: 0 },
+      );
+    const dataExtent = paddedExtent(
+      input.series.map((s) => s.x),
+      { pad: 0 },
+    );
+    if (input.series.length > 0)
+      range = [Math.max(range[0], dataExtent[0]), Math.min(range[1], dataExtent[1])];
   }
-  const x = linearAxisScale(direction === 'descending' ? [range[1], range[0]] : range, [panel.left, panel.left + panel.width], { nice: false, tickCount: 8 });
-  const thinned = input.series.map((s) => thinForDrawing(s.x, s.y, range[0], range[1], Math.ceil(panel.width)));
+  const x = linearAxisScale(
+    direction === 'descending' ? [range[1], range[0]] : range,
+    [panel.left, panel.left + panel.width],
+    { nice: false, tickCount: 8 },
+  );
+  const thinned = input.series.map((s) =>
+    thinForDrawing(s.x, s.y, range[0], range[1], Math.ceil(panel.width)),
+  );
   // Scale absorbance to what lies inside the windows or regions, where the reader looks; strong
   // absorption outside them (water, CO2) would otherwise flatten the bands of interest.
   const focus = windowSpan(input.band, [...input.baselineWindows, ...(input.regions ?? [])]) ?? range;
-  const inFocus = thinned.map((t) => t.y.filter((_, k) => (t.x[k] as number) >= focus[0] && (t.x[k] as number) <= focus[1]));
-  const y = linearAxisScale(options.absorbanceDomain ?? paddedExtent([...inFocus, ...input.baselines.map((b) => b.y)], { pad: 0.05 }), [panelBottom(panel), panel.top], {
-    nice: options.absorbanceDomain === undefined,
-  });
+  const inFocus = thinned.map((t) =>
+    t.y.filter((_, k) => (t.x[k] as number) >= focus[0] && (t.x[k] as number) <= focus[1]),
+  );
+  const y = linearAxisScale(
+    options.absorbanceDomain ?? paddedExtent([...inFocus, ...input.baselines.map((b) => b.y)], { pad: 0.05 }),
+    [panelBottom(panel), panel.top],
+    {
+      nice: options.absorbanceDomain === undefined,
+    },
+  );
   const px = (v: number): number => x.scale(v);
   const py = (v: number): number => y.scale(v);
   const clip = `${id}-clip`;
   const defs = clipPath(clip, panel) + hatchPattern(`${id}-hatch`, BASELINE_FILL);
 
   const body: string[] = [];
-  body.push(element('rect', { class: 'panel-frame', x: panel.left, y: panel.top, width: panel.width, height: panel.height, fill: 'none', stroke: 'none' }));
-  const windowRect = (window: Window, className: string, fill: string, opacity: number | undefined, label: string): string => {
+  body.push(
+    element('rect', {
+      class: 'panel-frame',
+      x: panel.left,
+      y: panel.top,
+      width: panel.width,
+      height: panel.height,
+      fill: 'none',
+      stroke: 'none',
+    }),
+  );
+  const windowRect = (
+    window: Window,
+    className: string,
+    fill: string,
+    opacity: number | undefined,
+    label: string,
+  ): string => {
     const a = px(window[0]);
     const b = px(window[1]);
     return element(
       'rect',
-      { class: className, 'data-low': String(window[0]), 'data-high': String(window[1]), x: Math.min(a, b), y: panel.top, width: Math.abs(b - a), height: panel.height, fill, 'fill-opacity': opacity, stroke: 'none' },
+      {
+        class: className,
+        'data-low': String(window[0]),
+        'data-high': String(window[1]),
+        x: Math.min(a, b),
+        y: panel.top,
+        width: Math.abs(b - a),
+        height: panel.height,
+        fill,
+        'fill-opacity': opacity,
+        stroke: 'none',
+      },
       element('title', {}, escapeText(label)),
     );
   };
   const windows: string[] = [];
-  for (const region of input.regions ?? []) windows.push(windowRect(region, 'region', BASELINE_FILL, 0.12, `fit region ${formatWindow(region)}`));
-  if (input.band !== undefined) windows.push(windowRect(input.band, 'band-window', BAND_FILL, 0.16, `band (integration window) ${formatWindow(input.band)}`));
-  input.baselineWindows.forEach((w) => windows.push(windowRect(w, 'baseline-window', `url(#${id}-hatch)`, undefined, `baseline window ${formatWindow(w)}`)));
+  for (const region of input.regions ?? [])
+    windows.push(windowRect(region, 'region', BASELINE_FILL, 0.12, `fit region ${formatWindow(region)}`));
+  if (input.band !== undefined)
+    windows.push(
+      windowRect(
+        input.band,
+        'band-window',
+        BAND_FILL,
+        0.16,
+        `band (integration window) ${formatWindow(input.band)}`,
+      ),
+    );
+  input.baselineWindows.forEach((w) =>
+    windows.push(
+      windowRect(w, 'baseline-window', `url(#${id}-hatch)`, undefined, `baseline window ${formatWindow(w)}`),
+    ),
+  );
   body.push(element('g', { class: 'windows', 'clip-path': `url(#${clip})` }, windows.join('')));
-  body.push(renderAxis(panel, { side: 'bottom', ticks: x.ticks, position: px, format: x.format, label: `wavenumber / cm⁻¹ (${direction === 'descending' ? 'decreasing to the right' : 'increasing to the right'})` }));
-  body.push(renderAxis(panel, { side: 'left', ticks: y.ticks, position: py, format: y.format, label: input.yLabel ?? 'absorbance (decadic) / AU' }));
+  body.push(
+    renderAxis(panel, {
+      side: 'bottom',
+      ticks: x.ticks,
+      position: px,
+      format: x.format,
+      label: `wavenumber / cm⁻¹ (${direction === 'descending' ? 'decreasing to the right' : 'increasing to the right'})`,
+    }),
+  );
+  body.push(
+    renderAxis(panel, {
+      side: 'left',
+      ticks: y.ticks,
+      position: py,
+      format: y.format,
+      label: input.yLabel ?? 'absorbance (decadic) / AU',
+    }),
+  );
 
   const path = line<number>().digits(2);
   const spectra = thinned.map((t, i) => {
     const style = seriesStyle(groupOf[i] as number);
     const d = path.x((_, k) => px(t.x[k] as number)).y((_, k) => py(t.y[k] as number))(t.x) ?? '';
-    return element('path', { class: 'spectrum', 'data-label': input.series[i]?.label ?? '', d, fill: 'none', stroke: style.colour, 'stroke-width': 1.2, 'stroke-dasharray': style.dash, 'stroke-linejoin': 'round' }, element('title', {}, escapeText(input.series[i]?.label ?? '')));
+    return element(
+      'path',
+      {
+        class: 'spectrum',
+        'data-label': input.series[i]?.label ?? '',
+        d,
+        fill: 'none',
+        stroke: style.colour,
+        'stroke-width': 1.2,
+        'stroke-dasharray': style.dash,
+        'stroke-linejoin': 'round',
+      },
+      element('title', {}, escapeText(input.series[i]?.label ?? '')),
+    );
   });
   const baselines = input.baselines.map((b) => {
     const style = seriesStyle(groupOf[b.series] ?? 0);
     const d = path.x((_, k) => px(b.x[k] as number)).y((_, k) => py(b.y[k] as number))(b.x as number[]) ?? '';
-    return element('path', { class: 'fitted-baseline', 'data-series': String(b.series), d, fill: 'none', stroke: style.colour, 'stroke-width': 1, 'stroke-dasharray': '1.5 2', 'stroke-opacity': 0.9 });
+    return element('path', {
+      class: 'fitted-baseline',
+      'data-series': String(b.series),
+      d,
+      fill: 'none',
+      stroke: style.colour,
+      'stroke-width': 1,
+      'stroke-dasharray': '1.5 2',
+      'stroke-opacity': 0.9,
+    });
   });
-  body.push(element('g', { class: 'series', 'clip-path': `url(#${clip})` }, spectra.join('') + baselines.join('')));
+  body.push(
+    element('g', { class: 'series', 'clip-path': `url(#${clip})` }, spectra.join('') + baselines.join('')),
+  );
   if (input.series.length === 0) body.push(noteText(panel.left + 10, panel.top + 20, 'no spectra to draw'));
-  notes.forEach((note, i) => body.push(noteText(panel.left, panelBottom(panel) + SPECTRA_MARGIN.bottom + 4 + i * 15, note)));
+  notes.forEach((note, i) =>
+    body.push(noteText(panel.left, panelBottom(panel) + SPECTRA_MARGIN.bottom + 4 + i * 15, note)),
+  );
   body.push(legend.svg);
 
   return svgDocument({
@@ -272,7 +417,11 @@ export interface LabelledSpectrum {
  * @param options - `title` (default `<gas> standards`), `notes` printed under the plot
  * @returns plot input; spectra whose baseline cannot be fitted (windows outside the scan) are drawn without it and named in the notes
  */
-export function gasSpectraData(gas: GasCalibration, spectra: readonly LabelledSpectrum[], options: { title?: string; notes?: readonly string[] } = {}): SpectraPlotInput {
+export function gasSpectraData(
+  gas: GasCalibration,
+  spectra: readonly LabelledSpectrum[],
+  options: { title?: string; notes?: readonly string[] } = {},
+): SpectraPlotInput {
   const feature = gas.feature;
   const notes = [...(options.notes ?? [])];
   const series: SpectrumSeries[] = [];
@@ -280,15 +429,25 @@ export function gasSpectraData(gas: GasCalibration, spectra: readonly LabelledSp
   spectra.forEach((item) => {
     const absorbance = toAbsorbance(item.spectrum);
     const index = series.length;
-    series.push({ label: item.label, x: absorbance.x, y: absorbance.y, ...(item.group === undefined ? {} : { group: item.group }) });
+    series.push({
+      label: item.label,
+      x: absorbance.x,
+      y: absorbance.y,
+      ...(item.group === undefined ? {} : { group: item.group }),
+    });
     if (feature === undefined || feature.baseline.length === 0) return;
     try {
-      const fitted = fitBaseline(absorbance, feature.band, { windows: feature.baseline, order: feature.baselineOrder });
+      const fitted = fitBaseline(absorbance, feature.band, {
+        windows: feature.baseline,
+        order: feature.baselineOrder,
+      });
       const span = windowSpan(feature.band, feature.baseline) as [number, number];
       const xs = Array.from({ length: 81 }, (_, k) => span[0] + ((span[1] - span[0]) * k) / 80);
       baselines.push({ series: index, x: xs, y: xs.map((v) => evaluateBaseline(fitted, v)) });
     } catch (error) {
-      notes.push(`${item.label}: baseline not drawn (${error instanceof Error ? error.message : String(error)})`);
+      notes.push(
+        `${item.label}: baseline not drawn (${error instanceof Error ? error.message : String(error)})`,
+      );
     }
   });
   return {
@@ -308,7 +467,9 @@ export function gasSpectraData(gas: GasCalibration, spectra: readonly LabelledSp
  * @param unit - unit
  */
 export function concentrationGroup(value: number, unit: Parameters<typeof unitLabel>[0]): string {
-  return `${formatNumber(value, 4).replace(/(\.\d*?)0+$/, '$1').replace(/\.$/, '')} ${unitLabel(unit)}`;
+  return `${formatNumber(value, 4)
+    .replace(/(\.\d*?)0+$/, '$1')
+    .replace(/\.$/, '')} ${unitLabel(unit)}`;
 }
 
 /**
@@ -319,12 +480,21 @@ export function concentrationGroup(value: number, unit: Parameters<typeof unitLa
  * @param spectra - labelled spectra (groups already set by the caller, e.g. `CO 50 ppm, NO 20 ppm`)
  * @param options - `notes` printed under the plot
  */
-export function clsStandardsSpectraData(calibration: Calibration, spectra: readonly LabelledSpectrum[], options: { notes?: readonly string[] } = {}): SpectraPlotInput {
+export function clsStandardsSpectraData(
+  calibration: Calibration,
+  spectra: readonly LabelledSpectrum[],
+  options: { notes?: readonly string[] } = {},
+): SpectraPlotInput {
   return {
     title: `Standards: spectra over the fit regions`,
     series: spectra.map((item) => {
       const absorbance = toAbsorbance(item.spectrum);
-      return { label: item.label, x: absorbance.x, y: absorbance.y, ...(item.group === undefined ? {} : { group: item.group }) };
+      return {
+        label: item.label,
+        x: absorbance.x,
+        y: absorbance.y,
+        ...(item.group === undefined ? {} : { group: item.group }),
+      };
     }),
     baselineWindows: [],
     regions: calibration.cls?.regions ?? [],
