@@ -15,8 +15,8 @@ import { mkdirSync, rmSync, writeFileSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { main } from '../src/cli/main.js';
-import { formatJcamp } from '../src/io/jcamp-write.js';
-import { formatSpectrumCsv } from '../src/io/spectrum-csv-write.js';
+import { formatJcamp } from '../src/formats/jcamp/write.js';
+import { formatSpectrumCsv } from '../src/formats/spectrum-csv-write.js';
 import { simulateSpectrum, type SimulationOptions } from '../src/simulate/index.js';
 import type { Spectrum } from '../src/spectrum/spectrum.js';
 

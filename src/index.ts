@@ -130,18 +130,19 @@ export {
 } from './calibration/result.js';
 
 // Files
-export { readScan, parseScan } from './io/scan.js';
-export { expandScanArguments } from './io/scan-paths.js';
-export { sha256OfBytes, sha256OfFile } from './io/hash.js';
-export { readManifest, parseManifest, type Manifest, type ManifestEntry } from './io/manifest.js';
-export { loadStandards } from './io/standards.js';
-export { readCalibration, writeCalibration, readMethod } from './io/calibration-file.js';
-export { readResponseTable, readLimits } from './io/tables.js';
-export { writeFileAtomic } from './io/atomic-write.js';
-export { isNonEmptyFolder } from './io/folders.js';
-export { formatCsv, guardCell } from './io/csv-table.js';
-export { formatJcamp } from './io/jcamp-write.js';
-export { formatSpectrumCsv } from './io/spectrum-csv-write.js';
+export { parseScan } from './formats/scan.js';
+export { readScan } from './store/scan-file.js';
+export { expandScanArguments } from './batch/scan-paths.js';
+export { sha256OfBytes, sha256OfFile } from './store/hash.js';
+export { readManifest, parseManifest, type Manifest, type ManifestEntry } from './store/manifest.js';
+export { loadStandards } from './store/standards.js';
+export { readCalibration, writeCalibration, readMethod } from './store/calibration-file.js';
+export { readResponseTable, readLimits } from './store/tables.js';
+export { writeFileAtomic } from './store/atomic-write.js';
+export { isNonEmptyFolder } from './store/folders.js';
+export { formatCsv, guardCell } from './formats/csv-table.js';
+export { formatJcamp } from './formats/jcamp/write.js';
+export { formatSpectrumCsv } from './formats/spectrum-csv-write.js';
 
 // Integrity
 export {
@@ -151,13 +152,13 @@ export {
   type IntegrityReport,
   type RecordedInputCheck,
   type RecordedInputStatus,
-} from './io/verify.js';
+} from './store/verify.js';
 export {
   resourceLimits,
   resourceLimitsHelp,
   RESOURCE_LIMIT_SETTINGS,
   type ResourceLimits,
-} from './io/limits.js';
+} from './resource-limits.js';
 
 // Simulation
 export { simulateSpectrum, type SimulationOptions, type SimulationResult } from './simulate/index.js';
@@ -222,7 +223,6 @@ export {
   formatHistoryHeader,
   formatHistoryRecord,
   appendHistoryRecord,
-  recordCheck,
   findCalibrationFiles,
   collectCalibrationFiles,
   moveHistoryAside,
@@ -233,12 +233,11 @@ export {
   type ReadHistoryOptions,
   type AppendHistoryOptions,
   type AppendedRecord,
-  type RecordCheckOptions,
   type SkippedFile,
   type CollectedCalibrations,
   type CheckListEntry,
-} from './io/history.js';
-export { withFileLock, type LockOptions } from './io/lock.js';
+} from './store/history.js';
+export { withFileLock, type LockOptions } from './store/lock.js';
 export {
   formatRecheckText,
   recheckDocument,
@@ -338,9 +337,9 @@ export {
   assertAppendable,
   type ResultsWriter,
   type ResultsWriterOptions,
-} from './io/results-writer.js';
-export { createScanReader, type ScanReader, type ScanReaderOptions } from './io/scan-reader.js';
-export { readScanList, parseScanList, MAX_SCAN_LIST_BYTES } from './io/scan-list.js';
+} from './batch/results-writer.js';
+export { createScanReader, type ScanReader, type ScanReaderOptions } from './batch/scan-reader.js';
+export { readScanList, parseScanList, MAX_SCAN_LIST_BYTES } from './batch/scan-list.js';
 export {
   createFolderWatcher,
   readProcessedRecord,
@@ -350,4 +349,4 @@ export {
   type FileStamp,
   type ReadyFile,
   type ProcessedRecordFile,
-} from './io/watch-folder.js';
+} from './batch/watch-folder.js';

@@ -1,6 +1,6 @@
 /**
  * Building calibrations from standards already read into memory (the CLI or a script reads the
- * files through `src/io`). Pure: no file access.
+ * files through `src/store`). Pure: no file access.
  *
  * Band method, per gas: measure the baseline-corrected band (area or height) in every standard,
  * divide by the standard's φ to bring it to the reference conditions (DESIGN §3), and fit the

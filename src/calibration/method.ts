@@ -1,6 +1,6 @@
 /**
  * Method definitions: what to calibrate and how (DESIGN §4 "Method (JSON)"), validated from
- * parsed JSON into typed objects. Pure: the file is read in `src/io/method-file.ts`.
+ * parsed JSON into typed objects. Pure: the file is read in `src/store/calibration-file.ts`.
  */
 import {
   assertBandWindows,

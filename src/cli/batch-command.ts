@@ -23,9 +23,9 @@ import {
   resultFiles,
   TABLE_PAGE_SCANS,
   textTableSink,
-} from './batch-output.js';
-import type { BatchSetup } from './batch-scan.js';
-import { MIN_SCANS_FOR_WORKERS, runBatch, workerCount } from './batch.js';
+} from '../batch/sinks.js';
+import type { BatchSetup } from '../batch/scan-quantifier.js';
+import { MIN_SCANS_FOR_WORKERS, runBatch, workerCount } from '../batch/engine.js';
 import { note, raiseStatus, type CommandContext } from './context.js';
 import { createProgress } from './progress.js';
 

@@ -2,11 +2,9 @@
  * What a command needs from its surroundings: where to print, so tests can run commands in
  * process and read what they printed.
  */
+import type { TextSink } from '../batch/sinks.js';
 
-/** A place to write text. */
-export interface TextSink {
-  write(text: string): unknown;
-}
+export type { TextSink };
 
 /** Output streams and the exit status a command wants. */
 export interface CommandContext {

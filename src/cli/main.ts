@@ -45,12 +45,10 @@ export function buildProgram(context: CommandContext): Command {
   registerReport(program, context);
   registerDemo(program, context, runCaptured);
   for (const command of program.commands)
-    command
-      .exitOverride()
-      .configureOutput({
-        writeOut: (s) => context.stdout.write(s),
-        writeErr: (s) => context.stderr.write(s),
-      });
+    command.exitOverride().configureOutput({
+      writeOut: (s) => context.stdout.write(s),
+      writeErr: (s) => context.stderr.write(s),
+    });
   return program;
 }
 

@@ -26,8 +26,8 @@ import {
   readScanList,
 } from '../index.js';
 import { QUANTIFY_BATCH_HELP, runQuantifyBatch } from './batch-command.js';
-import { resultsJsonLine } from './batch-scan.js';
-import { workersOption } from './batch.js';
+import { resultsJsonLine } from '../batch/scan-quantifier.js';
+import { workersOption } from '../batch/engine.js';
 import { conditionOptions, yKindOption } from './calibrate.js';
 import { note, raiseStatus, type CommandContext } from './context.js';
 import { collect, parseNumberOption, parsePositiveOption } from './parse.js';

@@ -15,15 +15,44 @@ import {
   readScan,
   recheckDocument,
   recheckExitCode,
-  recordCheck,
+  appendHistoryRecord,
+  judgeCheck,
+  type JudgedCheck,
   scheduleFor,
   sha256OfFile,
+  type CheckMeasurementRecord,
   type RecheckPolicy,
 } from '../index.js';
 import { conditionOptions, yKindOption } from './calibrate.js';
 import { raiseStatus, type CommandContext } from './context.js';
 import { parseNumberOption, parsePositiveOption } from './parse.js';
 import { writeRecheckPlot } from './report.js';
+
+/**
+ * Judges a new check against the history and appends it, both while the history's lock is held,
+ * so concurrent rechecks each see every record appended before theirs. The store appends; the
+ * judging is drift's.
+ */
+function appendJudgedCheck(
+  path: string,
+  measurement: CheckMeasurementRecord,
+  options: { calibrationSha256: string; calibrationFile: string; policy: RecheckPolicy },
+): JudgedCheck & { created: boolean } {
+  let judged: JudgedCheck | undefined;
+  const appended = appendHistoryRecord(path, {
+    calibrationSha256: options.calibrationSha256,
+    calibrationFile: options.calibrationFile,
+    complete: (records) => {
+      judged = judgeCheck(records, measurement, { policy: options.policy });
+      return judged.record;
+    },
+  });
+  if (judged === undefined) throw new Error('appendHistoryRecord returned without making the record');
+  // The judged check carries the line it was written on.
+  judged.record = appended.record;
+  judged.check.record = appended.record;
+  return { ...judged, created: appended.created };
+}
 
 interface RecheckFlags {
   certified: string;
@@ -178,7 +207,7 @@ export function registerRecheck(program: Command, context: CommandContext): void
         ...(flags.gas === undefined ? {} : { gas: flags.gas }),
       });
       const history = historyPathFor(calibrationPath);
-      const judged = recordCheck(
+      const judged = appendJudgedCheck(
         history,
         checkRecordOf(measurement, { time, recordedAt, scan, scanSha256 }),
         {

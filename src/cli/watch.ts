@@ -18,8 +18,8 @@ import {
   type FileStamp,
   type ProcessedRecordFile,
 } from '../index.js';
-import { openResultFiles, resultFiles } from './batch-output.js';
-import { createScanQuantifier } from './batch-scan.js';
+import { openResultFiles, resultFiles } from '../batch/sinks.js';
+import { createScanQuantifier } from '../batch/scan-quantifier.js';
 import { yKindOption } from './calibrate.js';
 import { note, raiseStatus, type CommandContext } from './context.js';
 import { parseNumberOption } from './parse.js';

@@ -6,7 +6,7 @@
  * its control chart, the provenance (every input with its SHA-256 and whether the file on disk
  * still matches, tool versions, times) and the safety cautions.
  *
- * Pure: the caller reads the files (through `src/io`) and says what it found; this module only
+ * Pure: the caller reads the files (through `src/store`) and says what it found; this module only
  * turns that into text.
  */
 import { formatWindow } from '../bands/windows.js';

@@ -5,7 +5,7 @@
 import type { GasResult, ScanResult } from '../calibration/result.js';
 import { unitLabel } from '../gas/units.js';
 import { TOOL } from '../version.js';
-import { formatCsv } from '../io/csv-table.js';
+import { formatCsv } from '../formats/csv-table.js';
 import { formatNumber, formatTextTable } from './table.js';
 
 /** A scan that could not be quantified, reported in its own row. */

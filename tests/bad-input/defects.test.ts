@@ -16,11 +16,11 @@ import { buildBandCalibration } from '../../src/calibration/build.js';
 import { parseMethod, type BandMethod } from '../../src/calibration/method.js';
 import { quantifyBandScan } from '../../src/calibration/quantify.js';
 import { BandwrightError } from '../../src/errors.js';
-import { parseTable } from '../../src/io/csv-table.js';
-import { parseJcamp } from '../../src/io/jcamp.js';
-import { parseManifest, readManifest } from '../../src/io/manifest.js';
-import { parseSpectrumTable } from '../../src/io/spectrum-table.js';
-import { loadStandards } from '../../src/io/standards.js';
+import { parseTable } from '../../src/formats/csv-table.js';
+import { parseJcamp } from '../../src/formats/jcamp/read.js';
+import { parseManifest, readManifest } from '../../src/store/manifest.js';
+import { parseSpectrumTable } from '../../src/formats/spectrum-table.js';
+import { loadStandards } from '../../src/store/standards.js';
 import { fitUnivariate, predictConcentration, type UnivariateModel } from '../../src/models/univariate.js';
 import { makeSpectrum } from '../../src/spectrum/spectrum.js';
 import { bandScan } from '../helpers/band-scans.js';
@@ -277,7 +277,7 @@ describe('standards that are not files', () => {
 
 describe('JCAMP-DX writer', () => {
   it('writes a spectrum with subnormal ordinates (before: YFACTOR 1E-331 underflowed and the writer refused it)', async () => {
-    const { formatJcamp } = await import('../../src/io/jcamp-write.js');
+    const { formatJcamp } = await import('../../src/formats/jcamp/write.js');
     const spectrum = makeSpectrum({
       x: Float64Array.from([2000, 2001, 2002]),
       y: Float64Array.from([9e-323, 0, 0.5e-300]),
@@ -411,7 +411,7 @@ describe('a CLS calibration whose model is damaged but re-sealed', () => {
 
 describe('JSON numbers beyond the double range', () => {
   it('1e400 in a method is refused where it is written (before: read as Infinity and shown as "[2040,null]")', async () => {
-    const { parseJson } = await import('../../src/io/json-file.js');
+    const { parseJson } = await import('../../src/store/json-file.js');
     const error = thrown(() =>
       parseJson('{\n "gases": [{"name": "CO",\n "band": [2040, 1e400]}]}', 'm.json'),
     );

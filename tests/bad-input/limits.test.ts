@@ -7,8 +7,8 @@ import { cpSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, afterEach, beforeAll, describe, expect, it } from 'vitest';
 import { BandwrightError } from '../../src/errors.js';
-import { readJson } from '../../src/io/json-file.js';
-import { RESOURCE_LIMIT_SETTINGS, resourceLimits } from '../../src/io/limits.js';
+import { readJson } from '../../src/store/json-file.js';
+import { RESOURCE_LIMIT_SETTINGS, resourceLimits } from '../../src/resource-limits.js';
 import { runCli, temporaryFolder } from '../helpers/cli.js';
 
 const folder = temporaryFolder('bandwright-limits-');

@@ -9,8 +9,8 @@
 import { cpSync, readdirSync, readFileSync, statSync, writeFileSync } from 'node:fs';
 import { join, relative } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { parseManifest } from '../../src/io/manifest.js';
-import { decodeText } from '../../src/io/text-file.js';
+import { parseManifest } from '../../src/store/manifest.js';
+import { decodeText } from '../../src/store/text-file.js';
 import { runCli, temporaryFolder } from '../helpers/cli.js';
 
 interface CorpusCase {

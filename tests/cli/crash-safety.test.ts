@@ -14,8 +14,8 @@ import { spawn } from 'node:child_process';
 import { cpSync, mkdirSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { readCalibration } from '../../src/io/calibration-file.js';
-import { readHistory } from '../../src/io/history.js';
+import { readCalibration } from '../../src/store/calibration-file.js';
+import { readHistory } from '../../src/store/history.js';
 import { createRandom } from '../../src/simulate/random.js';
 import { temporaryFolder } from '../helpers/cli.js';
 

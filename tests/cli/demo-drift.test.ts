@@ -6,7 +6,7 @@
 import { readFileSync, readdirSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
-import { readHistory } from '../../src/io/history.js';
+import { readHistory } from '../../src/store/history.js';
 import { runCli, temporaryFolder } from '../helpers/cli.js';
 
 const folder = temporaryFolder('bandwright-demo-drift-');

@@ -11,7 +11,7 @@ import { existsSync, readFileSync, readdirSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { readHistory } from '../../src/io/history.js';
+import { readHistory } from '../../src/store/history.js';
 import { BAND_OPTIONS, bandScan, writeScan, writeStandardSeries } from '../helpers/band-scans.js';
 import { runCli, temporaryFolder } from '../helpers/cli.js';
 
@@ -105,7 +105,7 @@ describe('parallel rechecks on one calibration', () => {
     writeFileSync(
       script,
       [
-        `import { appendHistoryRecord } from ${JSON.stringify(join(repository, 'src/io/history.ts'))};`,
+        `import { appendHistoryRecord } from ${JSON.stringify(join(repository, 'src/store/history.ts'))};`,
         `for (let i = 0; i < 25; i++) {`,
         `  appendHistoryRecord(${JSON.stringify(history)}, { calibrationSha256: '${'f'.repeat(64)}', complete: (records) => ({`,
         `    time: new Date(Date.UTC(2026, 0, 1) + records.length * 3600e3).toISOString(), recordedAt: new Date().toISOString(), gas: 'CO', unit: 'ppm',`,

@@ -8,7 +8,7 @@ import { createHash } from 'node:crypto';
 import { appendFileSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { verifyInputs } from '../../src/io/verify.js';
+import { verifyInputs } from '../../src/store/verify.js';
 import { bandScan, writeScan } from '../helpers/band-scans.js';
 import { runCli, temporaryFolder } from '../helpers/cli.js';
 

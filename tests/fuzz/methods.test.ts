@@ -9,7 +9,7 @@ import fc from 'fast-check';
 import { afterAll, describe, expect, it } from 'vitest';
 import { windowsOverlap, type Window } from '../../src/bands/windows.js';
 import { parseMethod, type Method } from '../../src/calibration/method.js';
-import { parseJson } from '../../src/io/json-file.js';
+import { parseJson } from '../../src/store/json-file.js';
 import { FUZZ_PARAMETERS, FUZZ_RUNS, FUZZ_SEED, FuzzTally, invariant, mutated } from './harness.js';
 
 const summaries: string[] = [];

@@ -7,10 +7,10 @@
  */
 import fc from 'fast-check';
 import { afterAll, describe, expect, it } from 'vitest';
-import { parseJcamp } from '../../src/io/jcamp.js';
-import { formatJcamp } from '../../src/io/jcamp-write.js';
-import { formatSpectrumCsv } from '../../src/io/spectrum-csv-write.js';
-import { parseSpectrumTable } from '../../src/io/spectrum-table.js';
+import { parseJcamp } from '../../src/formats/jcamp/read.js';
+import { formatJcamp } from '../../src/formats/jcamp/write.js';
+import { formatSpectrumCsv } from '../../src/formats/spectrum-csv-write.js';
+import { parseSpectrumTable } from '../../src/formats/spectrum-table.js';
 import { Y_KINDS, makeSpectrum, type Spectrum } from '../../src/spectrum/spectrum.js';
 import {
   FUZZ_PARAMETERS,

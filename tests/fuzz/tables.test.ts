@@ -6,8 +6,8 @@
 import { relative, resolve, sep } from 'node:path';
 import fc from 'fast-check';
 import { afterAll, describe, expect, it } from 'vitest';
-import { parseNumberCell, parseTable, type Table } from '../../src/io/csv-table.js';
-import { parseManifest, type Manifest } from '../../src/io/manifest.js';
+import { parseNumberCell, parseTable, type Table } from '../../src/formats/csv-table.js';
+import { parseManifest, type Manifest } from '../../src/store/manifest.js';
 import { toPpm } from '../../src/gas/units.js';
 import {
   FUZZ_PARAMETERS,

@@ -3,8 +3,8 @@
  * baseline, written as CSV or JCAMP-DX for end-to-end tests of calibrate and quantify.
  */
 import { writeFileSync } from 'node:fs';
-import { formatJcamp } from '../../src/io/jcamp-write.js';
-import { formatSpectrumCsv } from '../../src/io/spectrum-csv-write.js';
+import { formatJcamp } from '../../src/formats/jcamp/write.js';
+import { formatSpectrumCsv } from '../../src/formats/spectrum-csv-write.js';
 import { makeSpectrum, type ScanMetadata, type Spectrum } from '../../src/spectrum/spectrum.js';
 
 /** Band area per ppm at the reference conditions, AU·cm⁻¹ (chosen for the tests). */

@@ -1,7 +1,7 @@
 /**
  * The sets of plots a calibration, a sample or a recheck history gets, as named SVG documents:
  * the HTML reports inline them and `--plot <dir>` writes each to its own file. Pure: spectra come
- * in memory, read by the caller through `src/io`.
+ * in memory, read by the caller through `src/store`.
  */
 import type { Calibration, GasCalibration } from '../../calibration/calibration.js';
 import type { Spectrum } from '../../spectrum/spectrum.js';
