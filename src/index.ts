@@ -219,24 +219,27 @@ export {
   historyPathFor,
   readHistory,
   readHistoryIfExists,
+  appendHistoryRecord,
+  moveHistoryAside,
+  type AppendHistoryOptions,
+  type AppendedRecord,
+} from './store/history.js';
+export {
   parseHistory,
   formatHistoryHeader,
   formatHistoryRecord,
-  appendHistoryRecord,
-  findCalibrationFiles,
-  collectCalibrationFiles,
-  moveHistoryAside,
-  readCheckList,
   HISTORY_COLUMNS,
   HISTORY_FORMAT_VERSION,
   type History,
   type ReadHistoryOptions,
-  type AppendHistoryOptions,
-  type AppendedRecord,
+} from './store/history-format.js';
+export {
+  findCalibrationFiles,
+  collectCalibrationFiles,
   type SkippedFile,
   type CollectedCalibrations,
-  type CheckListEntry,
-} from './store/history.js';
+} from './store/calibration-files.js';
+export { readCheckList, type CheckListEntry } from './store/check-list.js';
 export { withFileLock, type LockOptions } from './store/lock.js';
 export {
   formatRecheckText,

@@ -6,7 +6,7 @@
  */
 import fc from 'fast-check';
 import { afterAll, describe, expect, it } from 'vitest';
-import { formatHistoryHeader, parseHistory, type History } from '../../src/store/history.js';
+import { formatHistoryHeader, parseHistory, type History } from '../../src/store/history-format.js';
 import {
   FUZZ_PARAMETERS,
   FUZZ_RUNS,

@@ -13,17 +13,19 @@ import fc from 'fast-check';
 import Papa from 'papaparse';
 import { afterAll, describe, expect, it } from 'vitest';
 import type { CheckRecord } from '../../src/drift/record.js';
+import { readCheckList } from '../../src/store/check-list.js';
 import {
-  HISTORY_COLUMNS,
   appendHistoryRecord,
-  formatHistoryHeader,
-  formatHistoryRecord,
   historyPathFor,
-  parseHistory,
-  readCheckList,
   readHistory,
   readHistoryIfExists,
 } from '../../src/store/history.js';
+import {
+  HISTORY_COLUMNS,
+  formatHistoryHeader,
+  formatHistoryRecord,
+  parseHistory,
+} from '../../src/store/history-format.js';
 import { temporaryFolder } from '../helpers/cli.js';
 
 const folder = temporaryFolder('bandwright-history-');
