@@ -19,10 +19,9 @@ export {
   accumulateVoigt,
 } from './lineshape.js';
 export type { Complex, LorentzWidthOptions } from './lineshape.js';
+export { lineList, requireGasModel, TEMPERATURE_LIMITS_K } from './lines.js';
 export {
-  lineList,
   bandOrigin,
-  requireGasModel,
   vibrationalTerm,
   rotationalConstant,
   centrifugalConstant,
@@ -30,10 +29,10 @@ export {
   diatomicPartitionSum,
   harmonicVibrationalPartitionSum,
   linearRotationalPartitionSum,
-  TEMPERATURE_LIMITS_K,
-} from './lines.js';
+} from './levels.js';
 export type { LineList, SpectralLine, Branch } from './lines.js';
 export * from './constants.js';
+export * from './gas-models.js';
 export {
   APODIZATIONS,
   apodizationFunction,

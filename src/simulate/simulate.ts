@@ -25,7 +25,8 @@
  */
 import { BandwrightError } from '../errors.js';
 import { makeSpectrum, type Spectrum } from '../spectrum/spectrum.js';
-import { BOLTZMANN_J_K, type GasModel } from './constants.js';
+import { BOLTZMANN_J_K } from './constants.js';
+import type { GasModel } from './gas-models.js';
 import { APODIZATIONS, convolveWithInstrument, type Apodization } from './instrument.js';
 import { accumulateVoigt, dopplerHWHM, lorentzHWHM, voigtHWHM } from './lineshape.js';
 import { TEMPERATURE_LIMITS_K, lineList, requireGasModel, type LineList } from './lines.js';

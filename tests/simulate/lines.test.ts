@@ -3,19 +3,13 @@ import { isBandwrightError } from '../../src/errors.js';
 import {
   CARBON_DIOXIDE_NU3,
   CARBON_MONOXIDE_12C16O,
-  GAS_MODELS,
   HYDROGEN_CHLORIDE_H35CL,
   HYDROGEN_CHLORIDE_H37CL,
   NITROUS_OXIDE_NU3,
 } from '../../src/simulate/constants.js';
-import {
-  bandOrigin,
-  diatomicPartitionSum,
-  lineList,
-  rotationalConstant,
-  type LineList,
-  type SpectralLine,
-} from '../../src/simulate/lines.js';
+import { GAS_MODELS } from '../../src/simulate/gas-models.js';
+import { bandOrigin, diatomicPartitionSum, rotationalConstant } from '../../src/simulate/levels.js';
+import { lineList, type LineList, type SpectralLine } from '../../src/simulate/lines.js';
 
 const C2 = 1.438776877; // second radiation constant, cm·K (CODATA 2018, facts.md)
 
