@@ -9,8 +9,7 @@
  * Pure: the caller reads the files (through `src/store`) and says what it found; this module only
  * turns that into text.
  */
-import { formatWindow } from '../bands/windows.js';
-import type { Calibration, CalibrationInput, GasCalibration } from '../calibration/calibration.js';
+import type { Calibration, CalibrationInput } from '../calibration/calibration.js';
 import { unitLabel } from '../gas/units.js';
 import {
   bulletList,
@@ -27,6 +26,17 @@ import {
 import { element, escapeText, shortNumber, slug } from './svg/markup.js';
 import { calibrationPlots, controlChartPlot, type NamedPlot, type StandardSpectrum } from './svg/plot-set.js';
 import type { ControlChartInput } from './svg/control-chart.js';
+import {
+  clsSection,
+  concentrationColumns,
+  gasHeading,
+  levelText,
+  limitsTable,
+  linearityText,
+  maybe,
+  standardsTable,
+  statisticsTable,
+} from './html-calibration.js';
 import type { WavenumberAxis } from './svg/spectra.js';
 import { formatNumber } from './table.js';
 
@@ -107,258 +117,6 @@ export interface CalibrationReportOptions {
   level?: number;
 }
 
-const CURVE_WORDS = {
-  linear: 'straight line r = a + b·c',
-  origin: 'straight line through the origin r = b·c',
-  quadratic: 'second order r = a + b·c + c₂·c²',
-} as const;
-
-function levelText(level: number): string {
-  return `${formatNumber(level * 100, 3).replace(/\.?0+$/, '')} %`;
-}
-
-function maybe(value: number | null, digits = 4): string {
-  return value === null ? 'not available' : formatNumber(value, digits);
-}
-
-function statisticsTable(gas: GasCalibration): string {
-  const model = gas.model;
-  const unit = unitLabel(gas.unit);
-  const names: Record<'a' | 'b' | 'c', string> = {
-    a: 'a (intercept)',
-    b: `b (slope, per ${unit})`,
-    c: `c₂ (second order, per ${unit}²)`,
-  };
-  const rows: Cell[][] = model.parameters.map((p) => [
-    names[p],
-    numberCell(formatNumber(model.coefficients[p], 6)),
-    numberCell(formatNumber(model.standardErrors[p], 3)),
-  ]);
-  const table = htmlTable({
-    caption: `${gas.gas}: coefficients`,
-    header: ['coefficient', numberCell('value'), numberCell('standard error')],
-    rows,
-  });
-  const facts = htmlTable({
-    caption: `${gas.gas}: fit statistics`,
-    header: ['statistic', numberCell('value')],
-    rows: [
-      ['standards (n)', numberCell(String(model.n))],
-      ['concentration levels', numberCell(String(model.levels.length))],
-      [
-        'calibrated range',
-        numberCell(`${formatNumber(model.range[0])} – ${formatNumber(model.range[1])} ${unit}`),
-      ],
-      ['residual SD s', numberCell(formatNumber(model.residualSD, 4))],
-      ['degrees of freedom', numberCell(String(model.df))],
-      [`R² (${model.rSquaredKind})`, numberCell(model.rSquared.toFixed(6))],
-      ['condition number (scaled design)', numberCell(formatNumber(model.conditionNumber, 3))],
-      ['weighting', model.weighting.rule],
-    ],
-  });
-  return table + facts;
-}
-
-function linearityText(gas: GasCalibration): string {
-  const mandel = gas.model.mandel;
-  if (mandel === null)
-    return paragraph(
-      'Linearity: the Mandel fitting test needs at least 4 standards at 3 or more levels; it was not made.',
-      'verdict',
-    );
-  return (
-    element('p', { class: 'verdict' }, escapeText(`Linearity (Mandel test): ${mandel.recommendation}`)) +
-    htmlTable({
-      caption: `${gas.gas}: Mandel fitting test`,
-      header: ['quantity', numberCell('value')],
-      rows: [
-        ['DS² = (n−2)s²(linear) − (n−3)s²(second order)', numberCell(formatNumber(mandel.ds2, 4))],
-        ['test value PW = DS²/s²(second order)', numberCell(formatNumber(mandel.testValue, 4))],
-        [
-          `F(${mandel.confidence}; ${mandel.df[0]}, ${mandel.df[1]})`,
-          numberCell(formatNumber(mandel.fCritical, 4)),
-        ],
-        ['p value', numberCell(formatNumber(mandel.pValue, 3))],
-        [
-          'significant',
-          mandel.significant
-            ? 'yes: the second-order curve fits significantly better'
-            : 'no: a straight line is adequate',
-        ],
-      ],
-    }) +
-    paragraph(mandel.definition, 'muted')
-  );
-}
-
-function limitsTable(gas: GasCalibration): string {
-  const unit = unitLabel(gas.unit);
-  const limits = gas.model.limits;
-  const rows: Cell[][] = [
-    ['decision limit x_C', numberCell(maybe(limits.decision.value, 3)), unit, limits.decision.definition],
-    [
-      'detection limit x_D (LOD)',
-      numberCell(maybe(limits.detection.value, 3)),
-      unit,
-      limits.detection.definition,
-    ],
-    [
-      'determination limit x_Q (LOQ)',
-      numberCell(maybe(limits.determination.value, 3)),
-      unit,
-      limits.determination.definition,
-    ],
-    [
-      'ICH Q2 detection 3.3σ/b',
-      numberCell(maybe(limits.ichDetection.value, 3)),
-      unit,
-      limits.ichDetection.definition,
-    ],
-    [
-      'ICH Q2 quantitation 10σ/b',
-      numberCell(maybe(limits.ichQuantitation.value, 3)),
-      unit,
-      limits.ichQuantitation.definition,
-    ],
-  ];
-  if (gas.zeroGasLimit !== undefined)
-    rows.push([
-      'zero-gas limit',
-      numberCell(formatNumber(gas.zeroGasLimit.value, 3)),
-      unit,
-      gas.zeroGasLimit.definition,
-    ]);
-  return htmlTable({
-    caption: `${gas.gas}: detection and determination limits (α = ${limits.alpha}, β = ${limits.beta}, k = ${limits.k})`,
-    header: ['limit', numberCell('value'), 'unit', 'definition'],
-    rows,
-  });
-}
-
-function gasHeading(gas: GasCalibration): string {
-  const feature = gas.feature;
-  const where =
-    feature === undefined
-      ? 'from tabulated responses'
-      : `${feature.response === 'area' ? 'band area' : 'peak height'} over ${formatWindow(feature.band)}${feature.baseline.length > 0 ? `, baseline of order ${feature.baselineOrder} through ${feature.baseline.map(formatWindow).join(', ')}` : ', no baseline correction'}`;
-  return paragraph(
-    `${where}; curve: ${CURVE_WORDS[gas.model.form]}, ${gas.model.weights === 'none' ? 'unweighted' : `weighted ${gas.model.weights}`}.`,
-  );
-}
-
-function concentrationColumns(calibration: Calibration): { gas: string; unit: string }[] {
-  if (calibration.cls !== undefined)
-    return calibration.cls.model.components.map((c) => ({ gas: c.name, unit: c.unit }));
-  return calibration.gases.map((g) => ({ gas: g.gas, unit: unitLabel(g.unit) }));
-}
-
-function standardsTable(calibration: Calibration, spectrumStatus: (index: number) => string): string {
-  const gases = calibration.gases;
-  const columns = concentrationColumns(calibration);
-  const header: Cell[] = [
-    '#',
-    'scan',
-    'lot',
-    ...columns.map((g) => numberCell(`${g.gas} / ${g.unit}`)),
-    numberCell('path / m'),
-    numberCell('T / K'),
-    numberCell('P / kPa'),
-    numberCell('φ'),
-    ...gases.flatMap((g) => [numberCell(`${g.gas} response (scaled)`), numberCell(`${g.gas} residual`)]),
-    'spectrum',
-  ];
-  const rows = calibration.standards.map((standard, i): Cell[] => [
-    numberCell(String(i + 1)),
-    { text: standard.scan, className: 'hash' },
-    standard.lot ?? '',
-    ...columns.map((g) =>
-      numberCell(
-        standard.concentrations[g.gas] === undefined
-          ? ''
-          : formatNumber(standard.concentrations[g.gas] as number, 5),
-      ),
-    ),
-    numberCell(formatNumber(standard.conditions.pathLength_m, 4)),
-    numberCell(formatNumber(standard.conditions.temperature_K, 5)),
-    numberCell(formatNumber(standard.conditions.pressure_kPa, 5)),
-    numberCell(formatNumber(standard.phi, 5)),
-    ...gases.flatMap((g) => {
-      const response = standard.responses[g.gas];
-      const residual = g.model.residuals[i];
-      return [
-        numberCell(response === undefined ? '' : formatNumber(response.scaled, 5)),
-        numberCell(residual === undefined ? '' : formatNumber(residual, 3)),
-      ];
-    }),
-    spectrumStatus(i),
-  ]);
-  return htmlTable({
-    caption:
-      gases.length > 0
-        ? 'Standards (certified values, cell conditions, responses at reference conditions, residuals)'
-        : 'Standards (certified values and cell conditions)',
-    header,
-    rows,
-  });
-}
-
-function clsSection(calibration: Calibration): string {
-  const cls = calibration.cls;
-  if (cls === undefined || calibration.method.model !== 'cls') return '';
-  const model = cls.model;
-  const method = calibration.method;
-  const statistics = model.calibration;
-  const components = htmlTable({
-    caption: 'Components',
-    header: [
-      'component',
-      'role',
-      'unit',
-      numberCell('calibrated range'),
-      numberCell('RMSECV'),
-      numberCell('interval inflation'),
-      numberCell('LOD'),
-    ],
-    rows: model.components.map((c, i): Cell[] => {
-      const range = model.ranges[i];
-      const rmsecv = model.crossValidation.rmsecv[i];
-      const limit = cls.detectionLimits[c.name];
-      return [
-        c.name,
-        c.reported ? 'reported' : 'interferent',
-        c.unit,
-        numberCell(range === undefined ? '' : `${formatNumber(range.min)} – ${formatNumber(range.max)}`),
-        numberCell(rmsecv === undefined || rmsecv === null ? 'not available' : formatNumber(rmsecv, 3)),
-        numberCell(formatNumber(model.crossValidation.inflation[i] ?? 1, 3)),
-        numberCell(limit === undefined ? '—' : formatNumber(limit, 3)),
-      ];
-    }),
-  });
-  const facts = htmlTable({
-    caption: 'Fit statistics',
-    header: ['statistic', numberCell('value')],
-    rows: [
-      ['fit regions', cls.regions.map(formatWindow).join(', ')],
-      ['baseline polynomial order per region', numberCell(String(method.baselineOrder))],
-      ['background spectrum', method.background === undefined ? 'none' : String(method.background)],
-      ['channels', numberCell(String(model.channelCount))],
-      ['standards', numberCell(String(statistics.standards))],
-      ['residual RMS of the standards / AU', numberCell(formatNumber(statistics.residualRms, 3))],
-      ['residual degrees of freedom', numberCell(formatNumber(statistics.degreesOfFreedom, 4))],
-      ['condition number, concentrations', numberCell(formatNumber(statistics.conditionConcentrations, 3))],
-      ['condition number, pure spectra', numberCell(formatNumber(statistics.conditionPureSpectra, 3))],
-    ],
-  });
-  return (
-    paragraph(
-      `Every component is fitted together over the regions (K-matrix classical least squares); the baseline polynomials are projected out of every spectrum. Interferents are modelled but not reported. Ranges and detection limits (LOD) are at the reference conditions: the LOD is 3.3 × the prediction standard error of a blank, and a sample's limit is this ÷ its φ. RMSECV is the root-mean-square error of leave-one-out cross-validation over the standards; the interval inflation is the factor the prediction intervals are widened by so that they cover those errors.`,
-    ) +
-    components +
-    facts
-  );
-}
-
-/** An ISO time as `YYYY-MM-DD HH:MM` (UTC), or the text as given when it is not a time. */
 function minuteText(iso: string): string {
   const ms = Date.parse(iso);
   return Number.isFinite(ms) ? new Date(ms).toISOString().slice(0, 16).replace('T', ' ') : iso;
