@@ -5,6 +5,7 @@
 import { readdirSync, statSync } from 'node:fs';
 import { extname, join } from 'node:path';
 import { BandwrightError } from '../errors.js';
+import { fileSystemError } from './file-errors.js';
 import { parseJson } from './json-file.js';
 import { readText } from './text-file.js';
 
@@ -30,15 +31,7 @@ export function findCalibrationFiles(folder: string): { calibrations: string[]; 
       throw new BandwrightError('FILE_READ', `${folder} is not a folder`, { file: folder });
     names = readdirSync(folder).sort();
   } catch (error) {
-    if (error instanceof BandwrightError) throw error;
-    if ((error as NodeJS.ErrnoException).code === 'ENOENT')
-      throw new BandwrightError('FILE_NOT_FOUND', `${folder}: no such folder`, { file: folder });
-    throw new BandwrightError(
-      'FILE_READ',
-      `${folder}: cannot list: ${(error as Error).message}`,
-      { file: folder },
-      { cause: error },
-    );
+    throw fileSystemError(error, folder, { kind: 'folder', action: 'list' });
   }
   const calibrations: string[] = [];
   const skipped: SkippedFile[] = [];
@@ -89,7 +82,8 @@ export function collectCalibrationFiles(targets: readonly string[]): CollectedCa
   const skipped: SkippedFile[] = [];
   const emptyFolders: string[] = [];
   for (const target of targets) {
-    let folder = false;
+    // A path that cannot be examined is taken as a file: reading it then says what is wrong.
+    let folder: boolean;
     try {
       folder = statSync(target).isDirectory();
     } catch {

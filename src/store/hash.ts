@@ -5,6 +5,7 @@
 import { createHash } from 'node:crypto';
 import { closeSync, openSync, readSync, statSync } from 'node:fs';
 import { BandwrightError } from '../errors.js';
+import { fileSystemError } from './file-errors.js';
 
 /**
  * SHA-256 of bytes.
@@ -34,15 +35,7 @@ export function sha256OfFile(path: string): string {
       throw new BandwrightError('FILE_READ', `${path} is a folder, expected a file`, { file: path });
     descriptor = openSync(path, 'r');
   } catch (error) {
-    if (error instanceof BandwrightError) throw error;
-    if ((error as NodeJS.ErrnoException).code === 'ENOENT')
-      throw new BandwrightError('FILE_NOT_FOUND', `${path}: no such file`, { file: path });
-    throw new BandwrightError(
-      'FILE_READ',
-      `${path}: cannot read: ${(error as Error).message}`,
-      { file: path },
-      { cause: error },
-    );
+    throw fileSystemError(error, path);
   }
   const hash = createHash('sha256');
   const buffer = Buffer.allocUnsafe(1 << 20);

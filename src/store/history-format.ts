@@ -90,7 +90,9 @@ export function formatHistoryHeader(calibrationSha256: string, calibrationFile?:
   const name =
     calibrationFile === undefined
       ? ''
-      : `; file ${basename(calibrationFile).replace(/[\u0000-\u001f\u007f]/g, '?')}`;
+      : // Control characters in a file name would break the one-line header: they are what is matched.
+        // eslint-disable-next-line no-control-regex
+        `; file ${basename(calibrationFile).replace(/[\u0000-\u001f\u007f]/g, '?')}`;
   return `# bandwright check history; format ${HISTORY_FORMAT_VERSION}; calibration sha256 ${calibrationSha256}${name}\n${HISTORY_COLUMNS.join(',')}\n`;
 }
 

@@ -4,6 +4,7 @@
  */
 import { closeSync, openSync, readSync, statSync } from 'node:fs';
 import { BandwrightError } from '../errors.js';
+import { fileSystemError } from './file-errors.js';
 import { parseScan, STDIN_SOURCE, type ParseScanOptions } from '../formats/scan.js';
 import { resourceLimits } from '../resource-limits.js';
 import type { Spectrum } from '../spectrum/spectrum.js';
@@ -91,15 +92,7 @@ export function readScan(path: string, options: ReadScanOptions = {}): Spectrum 
         );
       descriptor = openSync(path, 'r');
     } catch (error) {
-      if (error instanceof BandwrightError) throw error;
-      if ((error as NodeJS.ErrnoException).code === 'ENOENT')
-        throw new BandwrightError('FILE_NOT_FOUND', `${path}: no such file`, { file: path });
-      throw new BandwrightError(
-        'FILE_READ',
-        `${path}: cannot read: ${(error as Error).message}`,
-        { file: path },
-        { cause: error },
-      );
+      throw fileSystemError(error, path);
     }
     try {
       bytes = readAll(descriptor, path, maxBytes);

@@ -3,6 +3,7 @@
  */
 import { readFileSync, statSync } from 'node:fs';
 import { BandwrightError } from '../errors.js';
+import { fileSystemError } from './file-errors.js';
 import { resourceLimits } from '../resource-limits.js';
 
 /**
@@ -25,16 +26,7 @@ export function readBytes(
       throw new BandwrightError('FILE_READ', `${path} is a folder, expected a file`, { file: path });
     size = stats.size;
   } catch (error) {
-    if (error instanceof BandwrightError) throw error;
-    const code = (error as NodeJS.ErrnoException).code;
-    if (code === 'ENOENT')
-      throw new BandwrightError('FILE_NOT_FOUND', `${path}: no such file`, { file: path });
-    throw new BandwrightError(
-      'FILE_READ',
-      `${path}: cannot read: ${(error as Error).message}`,
-      { file: path },
-      { cause: error },
-    );
+    throw fileSystemError(error, path);
   }
   if (size > maxBytes) {
     throw new BandwrightError(
