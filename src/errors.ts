@@ -60,29 +60,82 @@ export interface ErrorLocation {
 }
 
 /**
+ * How a caller names the core's parameters in messages: the library's own names (`gas`,
+ * `overwrite`, `pathLength_m` …) mapped to the caller's (the CLI maps `overwrite` to `--force`).
+ * A name missing from the map is shown as the library name in backticks.
+ */
+export type ParameterNames = Readonly<Record<string, string>>;
+
+/**
+ * A message that names parameters: it is given a function that returns the caller's name for a
+ * library parameter, so each caller words the same error with its own names.
+ *
+ * @example
+ * (name) => `the calibration has 2 gases; choose the check standard's gas with ${name('gas')}`
+ */
+export type ParameterWording = (name: (parameter: string) => string) => string;
+
+/**
+ * Renders a {@link ParameterWording} with the given names.
+ *
+ * @param wording - the message function
+ * @param names - caller's names for library parameters (default: the library names in backticks)
+ * @returns the message text
+ */
+export function wordWithNames(wording: ParameterWording, names: ParameterNames = {}): string {
+  return wording((parameter) => names[parameter] ?? `\`${parameter}\``);
+}
+
+/**
  * The one error type the core throws.
+ *
+ * The message is complete for library users. Where it must name a parameter of the caller (an
+ * option that would fix the problem), it is given as a {@link ParameterWording}, and
+ * {@link BandwrightError.describe} words it with the caller's names: the CLI passes its flags, so a
+ * core error never hard-codes a command-line spelling.
  *
  * @example
  * throw new BandwrightError('INVALID_VALUE', 'standards.csv line 4: path_length_m = -1, must be > 0',
  *   { file: 'standards.csv', line: 4, parameter: 'path_length_m' });
+ * throw new BandwrightError('FILE_EXISTS', (name) => `out.json exists; set ${name('overwrite')} to replace it`,
+ *   { file: 'out.json', parameter: 'overwrite' });
  */
 export class BandwrightError extends Error {
   /** Stable machine-readable code. */
   readonly code: ErrorCode;
   /** Where the problem is, for tools that want it separately from the message. */
   readonly location: ErrorLocation;
+  /** The message as a function of parameter names, when it names any. */
+  readonly wording: ParameterWording | undefined;
 
   /**
    * @param code - stable error code
-   * @param message - full human message: where, the value, the rule
+   * @param message - full human message (where, the value, the rule), or a wording that names
+   *   parameters through the function it is given
    * @param location - optional structured location
    * @param options - optional `cause`
    */
-  constructor(code: ErrorCode, message: string, location: ErrorLocation = {}, options?: { cause?: unknown }) {
-    super(message, options);
+  constructor(
+    code: ErrorCode,
+    message: string | ParameterWording,
+    location: ErrorLocation = {},
+    options?: { cause?: unknown },
+  ) {
+    super(typeof message === 'string' ? message : wordWithNames(message), options);
     this.name = 'BandwrightError';
     this.code = code;
     this.location = location;
+    this.wording = typeof message === 'string' ? undefined : message;
+  }
+
+  /**
+   * The message worded with the caller's names for parameters.
+   *
+   * @param names - library parameter name to the caller's name (e.g. `{ overwrite: '--force' }`)
+   * @returns the message; the plain message when it names no parameter
+   */
+  describe(names: ParameterNames = {}): string {
+    return this.wording === undefined ? this.message : wordWithNames(this.wording, names);
   }
 }
 

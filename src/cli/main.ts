@@ -8,6 +8,7 @@ import { BandwrightError, TOOL, resourceLimits, resourceLimitsHelp } from '../in
 import { registerCalibrate } from './calibrate.js';
 import { registerDemo } from './demo.js';
 import type { CommandContext, TextSink } from './context.js';
+import { CLI_PARAMETER_NAMES } from './parameter-names.js';
 import { registerInspect } from './inspect.js';
 import { registerQuantify } from './quantify.js';
 import { registerRecheck } from './recheck.js';
@@ -100,7 +101,7 @@ export async function main(
       return error.exitCode === 0 ? 0 : 2;
     }
     if (error instanceof BandwrightError) {
-      context.stderr.write(`bandwright: ${error.message}\n`);
+      context.stderr.write(`bandwright: ${error.describe(CLI_PARAMETER_NAMES)}\n`);
       return error.code === 'USAGE' ? 2 : 1;
     }
     context.stderr.write(

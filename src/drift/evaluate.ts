@@ -18,14 +18,7 @@
  */
 import { BandwrightError } from '../errors.js';
 import type { RecheckPolicy } from '../calibration/method.js';
-import {
-  deviationPercent,
-  isZeroCheck,
-  recoveryPercent,
-  type CheckRecord,
-  type ControlRuleName,
-  type Verdict,
-} from './record.js';
+import { deviationPercent, isZeroCheck, recoveryPercent, type CheckRecord, type Verdict } from './record.js';
 import { controlRulesAt, type RuleFiring } from './rules.js';
 import { fitDriftTrend, type DriftTrend } from './trend.js';
 
@@ -224,7 +217,7 @@ function chooseGas(records: readonly CheckRecord[], gas: string | undefined): st
   if (gases.length > 1)
     throw new BandwrightError(
       'INVALID_VALUE',
-      `the history holds checks of ${gases.join(', ')}; name the gas to evaluate (--gas)`,
+      (name) => `the history holds checks of ${gases.join(', ')}; name the gas to evaluate (${name('gas')})`,
       { parameter: 'gas' },
     );
   return gases[0] ?? '';
@@ -316,7 +309,7 @@ export function evaluateHistory(records: readonly CheckRecord[], options: Evalua
       recoveryPct: recovery,
       recoveryLowPct: lowPct,
       recoveryHighPct: highPct,
-      controlZ: z[z.length - 1] as number,
+      controlZ: z[z.length - 1],
       sigma,
       limits,
       rules,
@@ -465,7 +458,7 @@ export function judgeCheck(
   const record: CheckRecord = {
     ...provisional,
     verdict: check.verdict,
-    rules: check.rules.map((r) => r.rule as ControlRuleName),
+    rules: check.rules.map((r) => r.rule),
     ...(check.sigma === undefined ? {} : { sigmaPct: check.sigma.valuePct }),
   };
   check.record = record;

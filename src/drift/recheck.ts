@@ -66,23 +66,25 @@ export function measureCheck(
     if (names.length !== 1)
       throw new BandwrightError(
         'INVALID_VALUE',
-        `the calibration has ${names.length} gases (${names.join(', ')}); choose the gas of the check standard with --gas`,
-        { parameter: '--gas' },
+        (name) =>
+          `the calibration has ${names.length} gases (${names.join(', ')}); ` +
+          `choose the gas of the check standard with ${name('gas')}`,
+        { parameter: 'gas' },
       );
-    gasName = names[0] as string;
+    gasName = names[0];
   }
-  const gas = gases.find((g) => g.gas.toLowerCase() === (gasName as string).toLowerCase());
+  const gas = gases.find((g) => g.gas.toLowerCase() === gasName.toLowerCase());
   if (gas === undefined)
     throw new BandwrightError(
       'INVALID_VALUE',
-      `--gas = ${JSON.stringify(gasName)}, the calibration has ${names.join(', ')}`,
-      { parameter: '--gas' },
+      (name) => `${name('gas')} = ${JSON.stringify(gasName)}, the calibration has ${names.join(', ')}`,
+      { parameter: 'gas' },
     );
   if (!Number.isFinite(options.certified) || options.certified < 0) {
     throw new BandwrightError(
       'INVALID_VALUE',
-      `--certified = ${options.certified}, must be a concentration >= 0 (0 for zero gas)`,
-      { parameter: '--certified' },
+      (name) => `${name('certified')} = ${options.certified}, must be a concentration >= 0 (0 for zero gas)`,
+      { parameter: 'certified' },
     );
   }
   const certified =
@@ -98,7 +100,7 @@ export function measureCheck(
     throw new BandwrightError(
       'INVALID_VALUE',
       `the calibration gave no result for ${gas.gas} in ${result.scan}`,
-      { parameter: '--gas' },
+      { parameter: 'gas' },
     );
   const measurement: CheckMeasurement = {
     gas: gas.gas,

@@ -10,7 +10,7 @@
  * heights only near the reference temperature and pressure (line shapes change with T and P),
  * hence the `conditions-far` flag.
  */
-import { BandwrightError, assertPositive } from '../errors.js';
+import { BandwrightError, assertPositive, type ParameterWording } from '../errors.js';
 
 /** Conditions of the gas in the cell. */
 export interface CellConditions {
@@ -35,11 +35,15 @@ export interface ResolvedConditions extends CellConditions {
 export type PartialConditions = Partial<CellConditions>;
 
 const FIELDS = ['pathLength_m', 'temperature_K', 'pressure_kPa'] as const;
-const DESCRIPTION: Record<(typeof FIELDS)[number], string> = {
-  pathLength_m: 'path length (manifest column path_length_m, JCAMP-DX ##PATH LENGTH, option --path-length)',
-  temperature_K:
-    'temperature (manifest column temperature_K or temperature_C, JCAMP-DX ##TEMPERATURE, option --temperature)',
-  pressure_kPa: 'pressure (manifest column pressure_kPa, JCAMP-DX ##PRESSURE, option --pressure)',
+/** Where each quantity can be given; the default conditions' option as the caller names it. */
+const DESCRIPTION: Record<(typeof FIELDS)[number], ParameterWording> = {
+  pathLength_m: (name) =>
+    `path length (manifest column path_length_m, JCAMP-DX ##PATH LENGTH, option ${name('pathLength_m')})`,
+  temperature_K: (name) =>
+    'temperature (manifest column temperature_K or temperature_C, JCAMP-DX ##TEMPERATURE, ' +
+    `option ${name('temperature_K')})`,
+  pressure_kPa: (name) =>
+    `pressure (manifest column pressure_kPa, JCAMP-DX ##PRESSURE, option ${name('pressure_kPa')})`,
 };
 
 /**
@@ -71,7 +75,7 @@ export function resolveConditions(
     if (result[field] === undefined) {
       throw new BandwrightError(
         'CONDITIONS_MISSING',
-        `${where}: no ${DESCRIPTION[field]} is given; give it in one of those places`,
+        (name) => `${where}: no ${DESCRIPTION[field](name)} is given; give it in one of those places`,
         { file: where, parameter: field },
       );
     }

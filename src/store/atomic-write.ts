@@ -91,7 +91,14 @@ export function writeFileAtomic(
   options: AtomicWriteOptions = {},
 ): void {
   if (!options.overwrite && existsSync(path)) {
-    throw new BandwrightError('FILE_EXISTS', `${path} exists; use --force to replace it`, { file: path });
+    throw new BandwrightError(
+      'FILE_EXISTS',
+      (name) => `${path} exists; use ${name('overwrite')} to replace it`,
+      {
+        file: path,
+        parameter: 'overwrite',
+      },
+    );
   }
   const folder = dirname(path);
   if (options.createFolder) mkdirSync(folder, { recursive: true });
@@ -106,9 +113,11 @@ export function writeFileAtomic(
     closeSync(descriptor);
     descriptor = undefined;
     if (!options.overwrite && existsSync(path)) {
-      throw new BandwrightError('FILE_EXISTS', `${path} appeared while writing; use --force to replace it`, {
-        file: path,
-      });
+      throw new BandwrightError(
+        'FILE_EXISTS',
+        (name) => `${path} appeared while writing; use ${name('overwrite')} to replace it`,
+        { file: path, parameter: 'overwrite' },
+      );
     }
     renameSync(temporary, path);
     removeLeftTemporaries(path);

@@ -133,7 +133,7 @@ describe('calibrate refuses bad input', () => {
     [
       'missing conditions',
       () => [manifest('m-bare.csv', ['bare.csv,100', 's0.csv,0', 's50.csv,50']), ...bandArgs, ...out],
-      /bare.csv \(manifest line 2\): no path length/,
+      /bare.csv \(manifest line 2\): no path length .*option --path-length\)/,
     ],
     [
       'an unknown gas',

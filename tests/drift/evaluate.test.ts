@@ -231,7 +231,7 @@ describe('order, gases, recorded verdicts', () => {
   it('needs the gas when the history holds several, and evaluates only that gas', () => {
     const records = [check(0, 100), check(0, 90, { gas: 'NO' }), check(7, 96.5), check(7, 99, { gas: 'NO' })];
     expect(() => evaluateHistory(records, { policy })).toThrow(
-      /the history holds checks of CO, NO; name the gas to evaluate \(--gas\)/,
+      /the history holds checks of CO, NO; name the gas to evaluate \(`gas`\)/,
     );
     const no = evaluateHistory(records, { policy, gas: 'NO' });
     expect(no.checks.map((c) => c.record.measured)).toEqual([90, 99]);

@@ -44,7 +44,7 @@ describe('resolveConditions', () => {
 
   it('refuses a quantity missing everywhere, naming it and where to give it', () => {
     expect(() => resolveConditions({ scan: { pathLength_m: 1, temperature_K: 296 } }, 'co-100.csv')).toThrow(
-      /co-100.csv: no pressure .*--pressure/,
+      /co-100.csv: no pressure .*option `pressure_kPa`/,
     );
   });
 

@@ -6,6 +6,7 @@
 import { existsSync, readFileSync, readdirSync, utimesSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
+import { BandwrightError } from '../../src/errors.js';
 import {
   LEFT_TEMPORARY_AGE_MS,
   removeLeftTemporaries,
@@ -32,7 +33,19 @@ describe('writeFileAtomic', () => {
     const target = join(folder.path, 'a.json');
     writeFileAtomic(target, 'first\n');
     expect(readFileSync(target, 'utf8')).toBe('first\n');
-    expect(() => writeFileAtomic(target, 'second\n')).toThrow(/a\.json exists; use --force/);
+    // The core names its own parameter; a caller words it with its own names (the CLI: --force).
+    let refusal: unknown;
+    try {
+      writeFileAtomic(target, 'second\n');
+    } catch (error) {
+      refusal = error;
+    }
+    expect(refusal).toBeInstanceOf(BandwrightError);
+    const error = refusal as BandwrightError;
+    expect(error.code).toBe('FILE_EXISTS');
+    expect(error.message).toMatch(/a\.json exists; use `overwrite` to replace it/);
+    expect(error.describe({ overwrite: '--force' })).toMatch(/a\.json exists; use --force to replace it/);
+    expect(error.location.parameter).toBe('overwrite');
     writeFileAtomic(target, 'second\n', { overwrite: true });
     expect(readFileSync(target, 'utf8')).toBe('second\n');
     expect(readdirSync(folder.path).filter((name) => name.includes('.tmp-'))).toEqual([]);
