@@ -61,18 +61,16 @@ export function measureCheck(
 ): CheckMeasurement {
   const gases = reportedGases(calibration);
   const names = gases.map((g) => g.gas);
-  let gasName = options.gas;
-  if (gasName === undefined) {
-    if (names.length !== 1)
-      throw new BandwrightError(
-        'INVALID_VALUE',
-        (name) =>
-          `the calibration has ${names.length} gases (${names.join(', ')}); ` +
-          `choose the gas of the check standard with ${name('gas')}`,
-        { parameter: 'gas' },
-      );
-    gasName = names[0];
-  }
+  const onlyGas = names.length === 1 ? names[0] : undefined;
+  const gasName = options.gas ?? onlyGas;
+  if (gasName === undefined)
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      (name) =>
+        `the calibration has ${names.length} gases (${names.join(', ')}); ` +
+        `choose the gas of the check standard with ${name('gas')}`,
+      { parameter: 'gas' },
+    );
   const gas = gases.find((g) => g.gas.toLowerCase() === gasName.toLowerCase());
   if (gas === undefined)
     throw new BandwrightError(
