@@ -88,7 +88,7 @@ describe('σ: tolerance/3 until the baseline exists, then the baseline SD, froze
   });
 
   it('falls back to tolerance/3 when the baseline SD is 0, and says so', () => {
-    const evaluation = evaluateHistory(series(Array(9).fill(100)), { policy });
+    const evaluation = evaluateHistory(series(new Array<number>(9).fill(100)), { policy });
     expect(evaluation.sigma.basis).toBe('tolerance');
     expect(evaluation.sigma.reason).toMatch(/have an SD of 0/);
   });

@@ -73,8 +73,8 @@ describe('each rule fires on its sequence and not on its near miss (Westgard et 
     },
     {
       rule: '10-x',
-      fires: Array(10).fill(-0.3),
-      nearMiss: [...Array(9).fill(-0.3), 0],
+      fires: new Array<number>(10).fill(-0.3),
+      nearMiss: [...new Array<number>(9).fill(-0.3), 0],
       why: 'ten below vs nine below and one on the mean (not on either side)',
     },
   ];
@@ -96,7 +96,7 @@ describe('rule firings say which checks and why', () => {
     const twoTwo = firings.find((f) => f.rule === '2-2s');
     expect(twoTwo?.checks).toEqual([1, 2]);
     expect(twoTwo?.reason).toBe('b (−2.30σ) and c (−2.60σ) are both beyond −2σ');
-    const tenFirings = controlRulesAt(Array(12).fill(0.5), 11);
+    const tenFirings = controlRulesAt(new Array<number>(12).fill(0.5), 11);
     expect(tenFirings.find((f) => f.rule === '10-x')?.checks).toEqual([2, 3, 4, 5, 6, 7, 8, 9, 10, 11]);
     expect(tenFirings.find((f) => f.rule === '10-x')?.reason).toBe(
       'check 3 to check 12: ten consecutive checks above the certified value',

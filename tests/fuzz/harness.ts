@@ -60,9 +60,12 @@ export class FuzzTally {
       if (!(error instanceof BandwrightError))
         throw new Error(
           `${this.reader}: not a BandwrightError: ${error instanceof Error ? (error.stack ?? error.message) : String(error)}`,
+          { cause: error },
         );
-      if (!CODES.has(error.code)) throw new Error(`${this.reader}: unknown error code ${error.code}`);
-      if (error.message.trim() === '') throw new Error(`${this.reader}: empty message for ${error.code}`);
+      if (!CODES.has(error.code))
+        throw new Error(`${this.reader}: unknown error code ${error.code}`, { cause: error });
+      if (error.message.trim() === '')
+        throw new Error(`${this.reader}: empty message for ${error.code}`, { cause: error });
       this.refused.set(error.code, (this.refused.get(error.code) ?? 0) + 1);
       return;
     }
@@ -132,6 +135,6 @@ export function mutated(base: fc.Arbitrary<string>, alphabet: readonly string[])
 
 /** True when every value is a finite number. */
 export function allFinite(values: ArrayLike<number>): boolean {
-  for (let i = 0; i < values.length; i++) if (!Number.isFinite(values[i] as number)) return false;
+  for (let i = 0; i < values.length; i++) if (!Number.isFinite(values[i])) return false;
   return true;
 }

@@ -101,8 +101,8 @@ describe(`univariate model fuzz (seed ${FUZZ_SEED}, ${FUZZ_RUNS} cases)`, () => 
         (data, form, weights, responses, chosenLevel, method) => {
           tally.attempt(() => {
             const model: UnivariateModel = fitUnivariate(data, {
-              form: form as UnivariateModel['form'],
-              weights: weights as UnivariateModel['weights'],
+              form: form,
+              weights: weights,
             });
             invariant(
               allFinite([
@@ -115,7 +115,7 @@ describe(`univariate model fuzz (seed ${FUZZ_SEED}, ${FUZZ_RUNS} cases)`, () => 
             );
             return predictConcentration(model, responses, {
               level: chosenLevel,
-              method: method as 'standard' | 'fieller',
+              method: method,
             });
           }, checkPrediction);
         },

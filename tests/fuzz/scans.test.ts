@@ -66,7 +66,7 @@ const smallSpectrum = fc
     return makeSpectrum({
       x,
       y,
-      yKind: kind as Spectrum['yKind'],
+      yKind: kind,
       metadata:
         pathLength === undefined ? {} : { pathLength_m: pathLength, temperature_K: 296, pressure_kPa: 101.3 },
     });
@@ -142,7 +142,7 @@ describe(`spectrum table reader fuzz (seed ${FUZZ_SEED}, ${FUZZ_RUNS} cases)`, (
               parseSpectrumTable(bytes, {
                 source: 'fuzz.csv',
                 maxPoints: 200,
-                ...(yKind === undefined ? {} : { yKind: yKind as Spectrum['yKind'] }),
+                ...(yKind === undefined ? {} : { yKind: yKind }),
               }),
             checkSpectrum,
           );
