@@ -114,7 +114,9 @@ export function fitBaseline(spectrum: Spectrum, band: Window, spec: BaselineSpec
   if (values.length < order + 1) {
     throw new BandwrightError(
       'WINDOW',
-      `${spectrum.metadata.source ?? 'scan'}: baseline windows ${spec.windows.map(formatWindow).join(', ')} hold ${values.length} point(s), an order-${order} baseline needs at least ${order + 1}`,
+      `${spectrum.metadata.source ?? 'scan'}: ` +
+        `baseline windows ${spec.windows.map(formatWindow).join(', ')} ` +
+        `hold ${values.length} point(s), an order-${order} baseline needs at least ${order + 1}`,
       { file: spectrum.metadata.source },
     );
   }

@@ -41,7 +41,8 @@ export function assertWindow(window: readonly unknown[], where: string): asserts
   if (!(window[0] < window[1])) {
     throw new BandwrightError(
       'WINDOW',
-      `${where} = ${formatWindow(window as unknown as Window)}, is inverted or empty: the low end must be below the high end`,
+      `${where} = ${formatWindow(window as unknown as Window)}, is inverted or empty: ` +
+        'the low end must be below the high end',
       { parameter: where },
     );
   }
@@ -68,7 +69,8 @@ export function assertBandWindows(band: Window, baseline: readonly Window[], whe
     if (windowsOverlap(window, band)) {
       throw new BandwrightError(
         'WINDOW',
-        `${where} baseline[${i}] = ${formatWindow(window)} overlaps the band ${formatWindow(band)}: baseline windows must lie outside the band`,
+        `${where} baseline[${i}] = ${formatWindow(window)} overlaps the band ${formatWindow(band)}: ` +
+          'baseline windows must lie outside the band',
         { parameter: `${where} baseline` },
       );
     }
@@ -77,7 +79,8 @@ export function assertBandWindows(band: Window, baseline: readonly Window[], whe
       if (windowsOverlap(window, other)) {
         throw new BandwrightError(
           'WINDOW',
-          `${where} baseline[${j}] = ${formatWindow(other)} and baseline[${i}] = ${formatWindow(window)} overlap: use one window or separate them`,
+          `${where} baseline[${j}] = ${formatWindow(other)} ` +
+            `and baseline[${i}] = ${formatWindow(window)} overlap: use one window or separate them`,
           { parameter: `${where} baseline` },
         );
       }
@@ -118,7 +121,8 @@ export function windowIndices(
   if (end - start < minPoints) {
     throw new BandwrightError(
       'WINDOW',
-      `${scan}: ${what} ${formatWindow(window)} holds ${end - start} grid point(s), needs at least ${minPoints}: widen it or use a finer scan`,
+      `${scan}: ${what} ${formatWindow(window)} holds ${end - start} grid point(s), ` +
+        `needs at least ${minPoints}: widen it or use a finer scan`,
       { file: spectrum.metadata.source },
     );
   }

@@ -182,7 +182,11 @@ function toleranceSigma(policy: RecheckPolicy, have: number, size: number, extra
   return {
     valuePct: value,
     basis: 'tolerance',
-    reason: `σ = tolerance/3 = ${pct(policy.tolerancePct, 3).replace(/\.?0+$/, '')} %/3 = ${pct(value, 3)} %: ${extra || `${have} of the ${size} baseline checks within tolerance exist so far`}, so the ±3σ action limit is the tolerance`,
+    reason:
+      `σ = tolerance/3 = ${pct(policy.tolerancePct, 3).replace(/\.?0+$/, '')} %/3 = ` +
+      `${pct(value, 3)} %: ` +
+      `${extra || `${have} of the ${size} baseline checks within tolerance exist so far`}` +
+      ', so the ±3σ action limit is the tolerance',
   };
 }
 
@@ -193,7 +197,8 @@ function timeOrder(records: readonly CheckRecord[]): CheckRecord[] {
     if (!Number.isFinite(ms)) {
       throw new BandwrightError(
         'INVALID_VALUE',
-        `check ${record.line === undefined ? i + 1 : `on line ${record.line}`}: time = ${JSON.stringify(record.time)}, must be an ISO 8601 time`,
+        `check ${record.line === undefined ? i + 1 : `on line ${record.line}`}: ` +
+          `time = ${JSON.stringify(record.time)}, must be an ISO 8601 time`,
         { parameter: 'time' },
       );
     }
@@ -286,7 +291,8 @@ export function evaluateHistory(records: readonly CheckRecord[], options: Evalua
     } else if (rejects.length > 0) {
       verdict = 'fail';
       reasons.push(
-        `recovery ${pct(recovery)} % is within the tolerance, but the check is out of statistical control: ${rejects.map((r) => r.rule).join(', ')} fired`,
+        `recovery ${pct(recovery)} % is within the tolerance, ` +
+          `but the check is out of statistical control: ${rejects.map((r) => r.rule).join(', ')} fired`,
       );
     } else if (rules.length > 0 || near) {
       verdict = 'warning';
@@ -294,11 +300,13 @@ export function evaluateHistory(records: readonly CheckRecord[], options: Evalua
         reasons.push(`recovery ${pct(recovery)} % is within the tolerance; warning rule 1-2s fired`);
       if (near)
         reasons.push(
-          `the prediction interval ${pct(lowPct)}–${pct(highPct)} % reaches beyond the tolerance ${pct(100 - tolerance)}–${pct(100 + tolerance)} %: the check cannot tell a pass from a fail`,
+          `the prediction interval ${pct(lowPct)}–${pct(highPct)} % reaches beyond the tolerance ` +
+            `${pct(100 - tolerance)}–${pct(100 + tolerance)} %: the check cannot tell a pass from a fail`,
         );
     } else {
       reasons.push(
-        `recovery ${pct(recovery)} % is within the tolerance ${pct(100 - tolerance)}–${pct(100 + tolerance)} % and no control rule fired`,
+        `recovery ${pct(recovery)} % is within the tolerance ` +
+          `${pct(100 - tolerance)}–${pct(100 + tolerance)} % and no control rule fired`,
       );
     }
     reasons.push(...rules.map((r) => `${r.rule}: ${r.reason} (σ = ${pct(sigma.valuePct, 3)} %)`));
@@ -339,12 +347,15 @@ export function evaluateHistory(records: readonly CheckRecord[], options: Evalua
         } else {
           const wide =
             3 * sd > tolerance
-              ? `; its ±3σ action limit (±${pct(3 * sd)} %) is wider than the tolerance: the checks' repeatability is poor for this tolerance`
+              ? `; its ±3σ action limit (±${pct(3 * sd)} %) is wider than the tolerance: ` +
+                "the checks' repeatability is poor for this tolerance"
               : '';
           frozen = {
             valuePct: sd,
             basis: 'baseline',
-            reason: `σ = ${pct(sd, 3)} %, the SD of the first ${size} checks within tolerance (${span}, mean ${pct(mean)} %), frozen so that later drift cannot widen the limits${wide}`,
+            reason:
+              `σ = ${pct(sd, 3)} %, the SD of the first ${size} checks within tolerance ` +
+              `(${span}, mean ${pct(mean)} %), frozen so that later drift cannot widen the limits${wide}`,
           };
         }
       }
@@ -385,10 +396,19 @@ export function evaluateHistory(records: readonly CheckRecord[], options: Evalua
 function verdictNotes(checks: readonly EvaluatedCheck[], tolerance: number): string[] {
   return checks
     .filter((check) => check.verdict !== check.record.verdict)
-    .map(
-      (check) =>
-        `${label(check.record)}${check.record.line === undefined ? '' : ` (history line ${check.record.line})`} was recorded as ${check.record.verdict} (tolerance ±${check.record.tolerancePct} %) and is judged ${check.verdict} now (tolerance ±${tolerance} %${check.record.tolerancePct === tolerance ? '; the checks before it are not those it was judged with, e.g. one was recorded later for an earlier time' : ''})`,
-    );
+    .map((check) => {
+      const where = check.record.line === undefined ? '' : ` (history line ${check.record.line})`;
+      const sameToleranceNote =
+        check.record.tolerancePct === tolerance
+          ? '; the checks before it are not those it was judged with, ' +
+            'e.g. one was recorded later for an earlier time'
+          : '';
+      return (
+        `${label(check.record)}${where} was recorded as ${check.record.verdict} ` +
+        `(tolerance ±${check.record.tolerancePct} %) and is judged ${check.verdict} now ` +
+        `(tolerance ±${tolerance} %${sameToleranceNote})`
+      );
+    });
 }
 
 function judgeZero(record: CheckRecord, index: number): EvaluatedCheck {
@@ -399,11 +419,17 @@ function judgeZero(record: CheckRecord, index: number): EvaluatedCheck {
   if (limit !== undefined && Number.isFinite(limit) && limit > 0) {
     outside = !(Math.abs(record.measured) < limit);
     reason = outside
-      ? `zero gas: |measured| = ${pct(Math.abs(record.measured), 3)} ${record.unit} is not below the detection limit ${pct(limit, 3)} ${record.unit}: the zero has shifted`
-      : `zero gas: |measured| = ${pct(Math.abs(record.measured), 3)} ${record.unit} is below the detection limit ${pct(limit, 3)} ${record.unit}, consistent with zero`;
+      ? `zero gas: |measured| = ${pct(Math.abs(record.measured), 3)} ${record.unit} ` +
+        `is not below the detection limit ${pct(limit, 3)} ${record.unit}: the zero has shifted`
+      : `zero gas: |measured| = ${pct(Math.abs(record.measured), 3)} ${record.unit} ` +
+        `is below the detection limit ${pct(limit, 3)} ${record.unit}, consistent with zero`;
   } else {
     outside = !(record.low <= 0 && record.high >= 0);
-    reason = `zero gas, judged by the prediction interval (the calibration has no detection limit for ${record.gas}): measured ${value}, interval ${pct(record.low, 3)}–${pct(record.high, 3)} ${record.unit} ${outside ? 'excludes' : 'includes'} 0`;
+    reason =
+      'zero gas, judged by the prediction interval ' +
+      `(the calibration has no detection limit for ${record.gas}): measured ${value}, ` +
+      `interval ${pct(record.low, 3)}–${pct(record.high, 3)} ${record.unit} ` +
+      `${outside ? 'excludes' : 'includes'} 0`;
   }
   return {
     record,

@@ -45,7 +45,8 @@ export const CONTROL_RULES: Readonly<
   'R-4s': {
     severity: 'reject',
     description:
-      'one check beyond +2σ and the next beyond −2σ, or the reverse (applied across two consecutive checks, one check per run)',
+      'one check beyond +2σ and the next beyond −2σ, or the reverse ' +
+      '(applied across two consecutive checks, one check per run)',
   },
   '4-1s': { severity: 'reject', description: 'four consecutive checks beyond the same ±1σ limit' },
   '10-x': {
@@ -134,7 +135,9 @@ export function controlRulesAt(
         rule: '2-2s',
         severity: 'reject',
         checks: [index - 1, index],
-        reason: `${label(index - 1)} (${formatZ(previous)}) and ${label(index)} (${formatZ(current)}) are both beyond ${signedLimit(twoTwo, 2)}`,
+        reason:
+          `${label(index - 1)} (${formatZ(previous)}) and ${label(index)} (${formatZ(current)}) ` +
+          `are both beyond ${signedLimit(twoTwo, 2)}`,
       });
     }
     if ((previous > 2 && current < -2) || (previous < -2 && current > 2)) {
@@ -142,7 +145,9 @@ export function controlRulesAt(
         rule: 'R-4s',
         severity: 'reject',
         checks: [index - 1, index],
-        reason: `${label(index - 1)} (${formatZ(previous)}) and ${label(index)} (${formatZ(current)}) lie beyond opposite 2σ limits, a range above 4σ (applied across two consecutive checks)`,
+        reason:
+          `${label(index - 1)} (${formatZ(previous)}) and ${label(index)} (${formatZ(current)}) ` +
+          'lie beyond opposite 2σ limits, a range above 4σ (applied across two consecutive checks)',
       });
     }
   }

@@ -67,7 +67,11 @@ function day(iso: string): string {
  * @returns state, next due time, days until due / overdue, reason
  * @throws BandwrightError `INVALID_VALUE` for a non-positive interval or an unreadable time
  * @example
- * scheduleFor([{ time: '2026-09-01T09:30:00Z', verdict: 'pass' }], { everyDays: 7, calibrationCreatedAt: '2026-08-30T00:00:00Z', now: '2026-09-07T12:00:00Z' });
+ * scheduleFor([{ time: '2026-09-01T09:30:00Z', verdict: 'pass' }], {
+ *   everyDays: 7,
+ *   calibrationCreatedAt: '2026-08-30T00:00:00Z',
+ *   now: '2026-09-07T12:00:00Z',
+ * });
  * // { state: 'due', nextDue: '2026-09-08T09:30:00.000Z', … }
  */
 export function scheduleFor(
@@ -98,7 +102,9 @@ export function scheduleFor(
       ...schedule,
       basis: 'check',
       daysOverdue: Math.max(0, since),
-      reason: `the latest check (${day(new Date(latest.ms).toISOString())}) failed: find the cause, then recheck, or rebuild the calibration`,
+      reason:
+        `the latest check (${day(new Date(latest.ms).toISOString())}) failed: ` +
+        'find the cause, then recheck, or rebuild the calibration',
     };
   }
   const fromCheck = latest !== undefined;

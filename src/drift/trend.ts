@@ -235,7 +235,9 @@ export function fitDriftTrend(points: readonly TrendPoint[], options: TrendOptio
   const day = (iso: string): string => iso.slice(0, 10);
   trend.summary = alreadyOutside
     ? `drift ${slopeText}: the trend line crossed ${limitPct} % on ${day(trend.projection.date)}`
-    : `drift ${slopeText}: projected to cross ${limitPct} % on ${day(trend.projection.date)} (${Math.round(level * 100)} % range ${day(trend.projection.earliest)} to ${day(trend.projection.latest)})`;
+    : `drift ${slopeText}: projected to cross ${limitPct} % on ${day(trend.projection.date)} ` +
+      `(${Math.round(level * 100)} % range ${day(trend.projection.earliest)} ` +
+      `to ${day(trend.projection.latest)})`;
   return trend;
 }
 

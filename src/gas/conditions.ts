@@ -138,13 +138,17 @@ export function conditionsFarReasons(
   const dT = conditions.temperature_K - reference.temperature_K;
   if (Math.abs(dT) > tolerance.temperature_K) {
     reasons.push(
-      `temperature ${conditions.temperature_K.toFixed(2)} K is ${Math.abs(dT).toFixed(1)} K from the calibration's ${reference.temperature_K.toFixed(2)} K (limit ±${tolerance.temperature_K} K)`,
+      `temperature ${conditions.temperature_K.toFixed(2)} K is ${Math.abs(dT).toFixed(1)} K ` +
+        `from the calibration's ${reference.temperature_K.toFixed(2)} K ` +
+        `(limit ±${tolerance.temperature_K} K)`,
     );
   }
   const dP = conditions.pressure_kPa / reference.pressure_kPa - 1;
   if (Math.abs(dP) > tolerance.pressureFraction) {
     reasons.push(
-      `pressure ${conditions.pressure_kPa.toFixed(2)} kPa is ${(Math.abs(dP) * 100).toFixed(1)} % from the calibration's ${reference.pressure_kPa.toFixed(2)} kPa (limit ±${(tolerance.pressureFraction * 100).toFixed(0)} %)`,
+      `pressure ${conditions.pressure_kPa.toFixed(2)} kPa is ${(Math.abs(dP) * 100).toFixed(1)} % ` +
+        `from the calibration's ${reference.pressure_kPa.toFixed(2)} kPa ` +
+        `(limit ±${(tolerance.pressureFraction * 100).toFixed(0)} %)`,
     );
   }
   return reasons;

@@ -11,7 +11,9 @@ import { ppmToMgPerM3, toPpm, type ConcentrationUnit } from './units.js';
 
 /** General caution for compressed-gas standards and the cell, shown once per output. */
 export const GENERAL_CAUTION =
-  "bandwright is not a life-safety monitor. Compare results with the exposure limits that apply where you work, follow licensed industrial-hygiene practice, vent the gas cell to a safe place, and handle standards' cylinders (high pressure, toxic contents) as their safety data sheets say.";
+  'bandwright is not a life-safety monitor. Compare results with the exposure limits that apply ' +
+  'where you work, follow licensed industrial-hygiene practice, vent the gas cell to a safe place, ' +
+  "and handle standards' cylinders (high pressure, toxic contents) as their safety data sheets say.";
 
 /**
  * The hazard statement for one gas, or undefined when the gas needs none.
@@ -54,7 +56,10 @@ export interface ExposureLimit {
   gas: string;
   /** Limit value in `unit`. */
   limit: number;
-  /** Unit of the limit; mg/m³ are taken at 25 °C and 101.325 kPa (the usual hygiene convention, NIOSH Pocket Guide). */
+  /**
+   * Unit of the limit; mg/m³ are taken at 25 °C and 101.325 kPa (the usual hygiene convention,
+   * NIOSH Pocket Guide).
+   */
   unit: LimitUnit;
   /** What the limit is, e.g. `TWA 8 h`, `ceiling`, `IDLH`. */
   basis: string;
@@ -62,7 +67,10 @@ export interface ExposureLimit {
   source: string;
 }
 
-/** 25 °C, 101.325 kPa: the state at which hygiene limits in mg/m³ are stated (NIOSH Pocket Guide; common practice). */
+/**
+ * 25 °C, 101.325 kPa: the state at which hygiene limits in mg/m³ are stated (NIOSH Pocket Guide;
+ * common practice).
+ */
 const HYGIENE_STATE = { temperature_K: 298.15, pressure_kPa: 101.325 };
 
 /**
@@ -103,6 +111,8 @@ export function exceededLimits(
     .filter((limit) => highPpm > limitInPpm(limit))
     .map((limit) => ({
       limit,
-      message: `${name}: the interval reaches ${highPpm.toPrecision(4)} ppm, above the ${limit.basis} limit of ${limit.limit} ${limit.unit} (${limit.source}); local rules govern`,
+      message:
+        `${name}: the interval reaches ${highPpm.toPrecision(4)} ppm, above the ${limit.basis} limit ` +
+        `of ${limit.limit} ${limit.unit} (${limit.source}); local rules govern`,
     }));
 }

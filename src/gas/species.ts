@@ -50,7 +50,8 @@ export interface Species {
 }
 
 const HOMONUCLEAR =
-  'homonuclear diatomic: its only vibration does not change the dipole moment, so it has no infrared absorption spectrum (common practice)';
+  'homonuclear diatomic: its only vibration does not change the dipole moment, ' +
+  'so it has no infrared absorption spectrum (common practice)';
 
 // Atomic weights, g/mol (IUPAC conventional standard atomic weights; common practice).
 const H = 1.008;
@@ -354,7 +355,8 @@ export function requireInfraredSpecies(name: string, where = 'gas'): Species {
   if (!species.irActive) {
     throw new BandwrightError(
       'IR_INACTIVE',
-      `${where}: ${species.name} (${species.commonName}) cannot be measured by infrared absorption: ${species.irInactiveReason ?? 'no IR-active vibration'}`,
+      `${where}: ${species.name} (${species.commonName}) cannot be measured by infrared absorption: ` +
+        `${species.irInactiveReason ?? 'no IR-active vibration'}`,
       { parameter: where },
     );
   }

@@ -176,7 +176,9 @@ export function correctToReferenceOxygen(value: number, correction: OxygenCorrec
   if (air - correction.measured_pct < MIN_OXYGEN_GAP_PCT) {
     throw new BandwrightError(
       'CONVERSION',
-      `measured O2 = ${correction.measured_pct} % is within ${MIN_OXYGEN_GAP_PCT} % points of the O2 of air (${air} %): the correction factor (${air} − ${correction.reference_pct})/(${air} − ${correction.measured_pct}) is meaningless there`,
+      `measured O2 = ${correction.measured_pct} % is within ${MIN_OXYGEN_GAP_PCT} % points ` +
+        `of the O2 of air (${air} %): the correction factor ` +
+        `(${air} − ${correction.reference_pct})/(${air} − ${correction.measured_pct}) is meaningless there`,
       { parameter: 'measured O2' },
     );
   }

@@ -146,7 +146,8 @@ export const CARBON_MONOXIDE_12C16O: DiatomicConstants = {
   De: 6.12147e-6, // Huber & Herzberg 1979, from memory
   betae: 0,
   source:
-    'ωe, ωexe, ωeye, Be, αe: Huber & Herzberg 1979 (NIST WebBook), facts.md, from memory; De: Huber & Herzberg 1979, from memory',
+    'ωe, ωexe, ωeye, Be, αe: Huber & Herzberg 1979 (NIST WebBook), facts.md, from memory; ' +
+    'De: Huber & Herzberg 1979, from memory',
 };
 
 /**
@@ -179,9 +180,9 @@ export const ATOMIC_MASS_U = {
 } as const;
 
 /**
- * Constants of another isotopologue by the isotope relations (ρ = √(μ/μᵢ)): ωe ∝ ρ, ωexe ∝ ρ²,
- * ωeye ∝ ρ³, ωeze ∝ ρ⁴, Be ∝ ρ², αe ∝ ρ³, γe ∝ ρ⁴, De ∝ ρ⁴, βe ∝ ρ⁵ (Born–Oppenheimer mass
- * scaling; common practice).
+ * Constants of another isotopologue by the isotope relations (ρ = √(μ/μᵢ)):
+ * ωe ∝ ρ, ωexe ∝ ρ², ωeye ∝ ρ³, ωeze ∝ ρ⁴, Be ∝ ρ², αe ∝ ρ³,
+ * γe ∝ ρ⁴, De ∝ ρ⁴, βe ∝ ρ⁵ (Born–Oppenheimer mass scaling; common practice).
  *
  * @param constants - the reference isotopologue
  * @param rho - √(μ_reference/μ_other), dimensionless
@@ -203,7 +204,9 @@ export function isotopeScaledConstants(
     gammae: constants.gammae * rho ** 4,
     De: constants.De * rho ** 4,
     betae: constants.betae * rho ** 5,
-    source: `${constants.molecule} constants scaled by the isotope relations with ρ = ${rho.toFixed(7)} (common practice); ${constants.source}`,
+    source:
+      `${constants.molecule} constants scaled by the isotope relations with ρ = ${rho.toFixed(7)} ` +
+      `(common practice); ${constants.source}`,
   };
 }
 
@@ -252,7 +255,8 @@ export const CARBON_DIOXIDE_NU3: LinearBandConstants = {
   upperD: 1.331e-7, // from memory
   lowerStateJ: 'even', // ¹⁶O has nuclear spin 0: only even J in the Σg⁺ ground state (common practice)
   source:
-    'ν0 = 2349.143, B″ = 0.390219, B′ = 0.387141, D″ ≈ D′ ≈ 1.33e-7 cm⁻¹: from memory (facts.md gives ν3 ≈ 2349.1); even-J-only ground state: nuclear-spin statistics, common practice',
+    'ν0 = 2349.143, B″ = 0.390219, B′ = 0.387141, D″ ≈ D′ ≈ 1.33e-7 cm⁻¹: from memory ' +
+    '(facts.md gives ν3 ≈ 2349.1); even-J-only ground state: nuclear-spin statistics, common practice',
 };
 
 /** ¹⁴N₂¹⁶O ν₃ (00⁰1 ← 00⁰0). Band origin and rotational constants from memory. */
@@ -266,7 +270,8 @@ export const NITROUS_OXIDE_NU3: LinearBandConstants = {
   upperD: 1.75e-7, // from memory
   lowerStateJ: 'all', // NNO has no exchange symmetry
   source:
-    'ν0 = 2223.757, B″ = 0.419011, B′ = 0.415559, D″ ≈ D′ ≈ 1.75e-7 cm⁻¹: from memory (facts.md gives ν3 ≈ 2224)',
+    'ν0 = 2223.757, B″ = 0.419011, B′ = 0.415559, D″ ≈ D′ ≈ 1.75e-7 cm⁻¹: from memory ' +
+    '(facts.md gives ν3 ≈ 2224)',
 };
 
 // ---------------------------------------------------------------------------------------------

@@ -153,7 +153,8 @@ function speciesMolarMass(name: string): number {
 const FROM_MEMORY_MODES =
   'fundamental wavenumbers from memory (facts.md / species table where listed), harmonic approximation';
 const APPROXIMATE_NOTE =
-  'approximate band model: band centres from the species table, integrated strengths from memory (±30 % or worse), invented pseudo-line pattern; not for quantifying this gas';
+  'approximate band model: band centres from the species table, integrated strengths from memory ' +
+  '(±30 % or worse), invented pseudo-line pattern; not for quantifying this gas';
 
 /** The simulator's gas models, keyed by canonical gas name. */
 export const GAS_MODELS: Readonly<Record<string, GasModel>> = {
@@ -177,7 +178,8 @@ export const GAS_MODELS: Readonly<Record<string, GasModel>> = {
       airBroadening_cm_atm: 0.065,
       temperatureExponent: 0.7,
       source:
-        'γ_air ≈ 0.05–0.08 cm⁻¹/atm at 296 K (facts.md, from memory), 0.065 taken for every line; n ≈ 0.7 from memory',
+        'γ_air ≈ 0.05–0.08 cm⁻¹/atm at 296 K (facts.md, from memory), 0.065 taken for every line; ' +
+        'n ≈ 0.7 from memory',
     },
     notes: ['Herman–Wallis factors not applied (no sourced coefficients); hot bands omitted'],
   },
@@ -203,7 +205,8 @@ export const GAS_MODELS: Readonly<Record<string, GasModel>> = {
     bandStrength: {
       value_cm_per_molecule: 5.0e-18,
       source:
-        'HCl 1–0 band ≈ 5.0e-18 cm/molecule at 296 K (≈ 130 cm⁻² atm⁻¹ at 273 K), from memory, uncertain by about 20 %',
+        'HCl 1–0 band ≈ 5.0e-18 cm/molecule at 296 K (≈ 130 cm⁻² atm⁻¹ at 273 K), ' +
+        'from memory, uncertain by about 20 %',
     },
     broadening: {
       airBroadening_cm_atm: 0.05,
@@ -221,11 +224,14 @@ export const GAS_MODELS: Readonly<Record<string, GasModel>> = {
     bandStrength: {
       value_cm_per_molecule: 4.1e-18,
       source:
-        'NO 1–0 band ≈ 4.1e-18 cm/molecule at 296 K (≈ 110 cm⁻² atm⁻¹ at 273 K), from memory, uncertain by about 20 %',
+        'NO 1–0 band ≈ 4.1e-18 cm/molecule at 296 K (≈ 110 cm⁻² atm⁻¹ at 273 K), ' +
+        'from memory, uncertain by about 20 %',
     },
     broadening: { airBroadening_cm_atm: 0.055, temperatureExponent: 0.75, source: 'from memory' },
     notes: [
-      "simplified ²Π model: Hund's case (a) Ω = ½ and 3/2 sub-bands with P, Q and R branches, Λ-doubling and spin uncoupling neglected; high-J line positions are off by up to tenths of a cm⁻¹",
+      "simplified ²Π model: Hund's case (a) Ω = ½ and 3/2 sub-bands with P, Q and R branches, " +
+        'Λ-doubling and spin uncoupling neglected; ' +
+        'high-J line positions are off by up to tenths of a cm⁻¹',
     ],
   },
   CO2: {
@@ -237,7 +243,8 @@ export const GAS_MODELS: Readonly<Record<string, GasModel>> = {
     bandStrength: {
       value_cm_per_molecule: 9.5e-17,
       source:
-        'CO₂ ν3 (626 fundamental) ≈ 9.5e-17 cm/molecule at 296 K (≈ 2500 cm⁻² atm⁻¹ at 273 K), from memory, uncertain by about 10 %',
+        'CO₂ ν3 (626 fundamental) ≈ 9.5e-17 cm/molecule at 296 K (≈ 2500 cm⁻² atm⁻¹ at 273 K), ' +
+        'from memory, uncertain by about 10 %',
     },
     broadening: { airBroadening_cm_atm: 0.07, temperatureExponent: 0.75, source: 'from memory' },
     vibrationalModes: [
@@ -257,7 +264,8 @@ export const GAS_MODELS: Readonly<Record<string, GasModel>> = {
     bandStrength: {
       value_cm_per_molecule: 5.0e-17,
       source:
-        'N₂O ν3 ≈ 5.0e-17 cm/molecule at 296 K (≈ 1300 cm⁻² atm⁻¹ at 273 K), from memory, uncertain by about 20 %',
+        'N₂O ν3 ≈ 5.0e-17 cm/molecule at 296 K (≈ 1300 cm⁻² atm⁻¹ at 273 K), ' +
+        'from memory, uncertain by about 20 %',
     },
     broadening: { airBroadening_cm_atm: 0.075, temperatureExponent: 0.75, source: 'from memory' },
     vibrationalModes: [
@@ -352,7 +360,8 @@ export const GAS_MODELS: Readonly<Record<string, GasModel>> = {
           value_cm_per_molecule: 1.1e-17,
           source: 'CH₄ ν3 ≈ 1.1e-17 cm/molecule at 296 K, from memory (approximate)',
         },
-        // spherical-top P/R lines 2B(1 − ζ3) ≈ 9.9 cm⁻¹ apart (B ≈ 5.24, ζ3 ≈ 0.05; from memory), tetrahedral multiplets
+        // spherical-top P/R lines 2B(1 − ζ3) ≈ 9.9 cm⁻¹ apart (B ≈ 5.24, ζ3 ≈ 0.05; from memory),
+        // tetrahedral multiplets
         envelopeB_cm: 4.95,
         lineSpacing_cm: 9.9,
         positionJitter: 0,
@@ -408,7 +417,8 @@ export const GAS_MODELS: Readonly<Record<string, GasModel>> = {
         bandStrength: {
           value_cm_per_molecule: 6e-18,
           source:
-            'NH₃ ν2 ≈ 1.2e-17 cm/molecule at 296 K shared between the inversion components at 931.6 and 968.1 cm⁻¹, from memory (approximate)',
+            'NH₃ ν2 ≈ 1.2e-17 cm/molecule at 296 K shared between the inversion components ' +
+            'at 931.6 and 968.1 cm⁻¹, from memory (approximate)',
         },
         envelopeB_cm: 9.94,
         lineSpacing_cm: 19.9,
@@ -426,7 +436,8 @@ export const GAS_MODELS: Readonly<Record<string, GasModel>> = {
         bandStrength: {
           value_cm_per_molecule: 6e-18,
           source:
-            'NH₃ ν2 ≈ 1.2e-17 cm/molecule at 296 K shared between the inversion components at 931.6 and 968.1 cm⁻¹, from memory (approximate)',
+            'NH₃ ν2 ≈ 1.2e-17 cm/molecule at 296 K shared between the inversion components ' +
+            'at 931.6 and 968.1 cm⁻¹, from memory (approximate)',
         },
         envelopeB_cm: 9.94,
         lineSpacing_cm: 19.9,

@@ -93,7 +93,8 @@ export function convolveWithInstrument(
   if (!(step_cm > 0) || !(resolution_cm > 0) || !(step_cm < resolution_cm / 2)) {
     throw new BandwrightError(
       'INVALID_VALUE',
-      `instrument grid step = ${step_cm} cm⁻¹ at resolution ${resolution_cm} cm⁻¹, must be > 0 and below resolution/2`,
+      `instrument grid step = ${step_cm} cm⁻¹ at resolution ${resolution_cm} cm⁻¹, ` +
+        'must be > 0 and below resolution/2',
       { parameter: 'step_cm' },
     );
   }

@@ -14,13 +14,15 @@
  * partition sum of the model's levels (a direct sum over v and J, not the high-temperature
  * approximation). The list is normalised so that at 296 K the intensities add up to the band
  * strength: S_i(T) = S_band · w_i(T) / Σ_j w_j(296 K). Hence S_i(T) = S_i(296)·Q(296)/Q(T)·
- * exp(−c₂E″/T)/exp(−c₂E″/296)·(1 − exp(−c₂ν/T))/(1 − exp(−c₂ν/296)), the scaling in facts.md.
+ * exp(−c₂E″/T)/exp(−c₂E″/296)·(1 − exp(−c₂ν/T))/(1 − exp(−c₂ν/296)),
+ * the scaling in facts.md.
  */
 import { BandwrightError } from '../errors.js';
 import { requireInfraredSpecies } from '../gas/species.js';
 import {
   REFERENCE_TEMPERATURE_K,
   SECOND_RADIATION_CONSTANT_CM_K as C2,
+  // eslint-disable-next-line @typescript-eslint/no-unused-vars -- named by the {@link} in the module comment
   type DiatomicConstants,
 } from './constants.js';
 import {
@@ -401,7 +403,8 @@ export function requireGasModel(gas: string, where = 'gas'): GasModel {
   if (model === undefined) {
     throw new BandwrightError(
       'INVALID_VALUE',
-      `${where} = ${JSON.stringify(gas)}, the simulator has no spectral model for ${species.name}; simulated gases: ${Object.keys(GAS_MODELS).join(', ')}`,
+      `${where} = ${JSON.stringify(gas)}, the simulator has no spectral model for ${species.name}; ` +
+        `simulated gases: ${Object.keys(GAS_MODELS).join(', ')}`,
       { parameter: where },
     );
   }
@@ -465,7 +468,8 @@ export function lineList(gas: string, temperature_K: number): LineList {
   ) {
     throw new BandwrightError(
       'INVALID_VALUE',
-      `temperature_K = ${String(temperature_K)}, must be between ${TEMPERATURE_LIMITS_K[0]} and ${TEMPERATURE_LIMITS_K[1]} K`,
+      `temperature_K = ${String(temperature_K)}, must be between ${TEMPERATURE_LIMITS_K[0]} ` +
+        `and ${TEMPERATURE_LIMITS_K[1]} K`,
       { parameter: 'temperature_K' },
     );
   }

@@ -243,7 +243,8 @@ function resolveOptions(options: SimulationOptions): Resolved {
   if (outputPoints > MAX_OUTPUT_POINTS) {
     throw new BandwrightError(
       'LIMIT',
-      `pointSpacing_cm = ${pointSpacing_cm} over ${range[0]}–${range[1]} cm⁻¹ gives ${outputPoints} points, at most ${MAX_OUTPUT_POINTS} are allowed`,
+      `pointSpacing_cm = ${pointSpacing_cm} over ${range[0]}–${range[1]} cm⁻¹ ` +
+        `gives ${outputPoints} points, at most ${MAX_OUTPUT_POINTS} are allowed`,
       { parameter: 'pointSpacing_cm' },
     );
   }
@@ -257,7 +258,10 @@ function resolveOptions(options: SimulationOptions): Resolved {
   if (!Number.isInteger(seed)) invalid('seed', seed, 'must be an integer');
   const title =
     options.title ??
-    `simulated: ${gases.length === 0 ? 'no absorber' : gases.map(({ model, ppm }) => `${model.gas} ${ppm} ppm`).join(', ')}`;
+    'simulated: ' +
+      (gases.length === 0
+        ? 'no absorber'
+        : gases.map(({ model, ppm }) => `${model.gas} ${ppm} ppm`).join(', '));
   if (typeof title !== 'string') invalid('title', title, 'must be a string');
   return {
     gases,
@@ -337,7 +341,8 @@ export function simulateSpectrum(options: SimulationOptions): SimulationResult {
   const notes: string[] = [];
   const approximateGases: string[] = [];
 
-  const numberDensityFactor = ((o.pressure_kPa * 1e3) / (BOLTZMANN_J_K * o.temperature_K)) * 1e-6; // molecules/cm³ per unit mole fraction
+  // molecules/cm³ per unit mole fraction
+  const numberDensityFactor = ((o.pressure_kPa * 1e3) / (BOLTZMANN_J_K * o.temperature_K)) * 1e-6;
   const pathLength_cm = o.pathLength_m * 100;
   const edge = 50 * o.resolution_cm + 2; // margin beyond the output range, cm⁻¹
   const fineLo = lo - edge;
@@ -383,7 +388,9 @@ export function simulateSpectrum(options: SimulationOptions): SimulationResult {
     if (model.approximate) {
       approximateGases.push(model.gas);
       warnings.push(
-        `${model.gas}: approximate band model (band centres right, strengths from memory, invented line pattern); use it as an interferent or for demonstrations, not to judge how well ${model.gas} is quantified`,
+        `${model.gas}: approximate band model (band centres right, strengths from memory, ` +
+          'invented line pattern); use it as an interferent or for demonstrations, ' +
+          `not to judge how well ${model.gas} is quantified`,
       );
     } else {
       for (const note of model.notes) notes.push(`${model.gas}: ${note}`);
@@ -392,7 +399,8 @@ export function simulateSpectrum(options: SimulationOptions): SimulationResult {
   }
   if (o.temperature_K < 200 || o.temperature_K > 800) {
     warnings.push(
-      `temperature_K = ${o.temperature_K}: broadening exponents and the approximate band models are meant for about 200–800 K`,
+      `temperature_K = ${o.temperature_K}: broadening exponents and the approximate band models ` +
+        'are meant for about 200–800 K',
     );
   }
 
@@ -407,7 +415,9 @@ export function simulateSpectrum(options: SimulationOptions): SimulationResult {
   if (finePoints > MAX_FINE_POINTS) {
     throw new BandwrightError(
       'LIMIT',
-      `range_cm = [${lo}, ${hi}] needs ${finePoints} fine-grid points at ${step.toPrecision(3)} cm⁻¹ spacing (narrow lines at pressure_kPa = ${o.pressure_kPa}), at most ${MAX_FINE_POINTS} are allowed; narrow the range or raise the pressure`,
+      `range_cm = [${lo}, ${hi}] needs ${finePoints} fine-grid points ` +
+        `at ${step.toPrecision(3)} cm⁻¹ spacing (narrow lines at pressure_kPa = ${o.pressure_kPa}), ` +
+        `at most ${MAX_FINE_POINTS} are allowed; narrow the range or raise the pressure`,
       { parameter: 'range_cm' },
     );
   }
@@ -466,12 +476,15 @@ export function simulateSpectrum(options: SimulationOptions): SimulationResult {
   }
   if (capped > 0) {
     warnings.push(
-      `${capped} point(s) with apparent transmittance below ${TRANSMITTANCE_FLOOR}${o.apodization === 'boxcar' ? ' (full absorption or boxcar ringing)' : ' (full absorption)'}: absorbance capped at ${-Math.log10(TRANSMITTANCE_FLOOR)} AU there`,
+      `${capped} point(s) with apparent transmittance below ${TRANSMITTANCE_FLOOR}` +
+        `${o.apodization === 'boxcar' ? ' (full absorption or boxcar ringing)' : ' (full absorption)'}` +
+        `: absorbance capped at ${-Math.log10(TRANSMITTANCE_FLOOR)} AU there`,
     );
   }
   if (peak > 1) {
     warnings.push(
-      `peak absorbance ${peak.toFixed(2)} AU at ${peakAt.toFixed(2)} cm⁻¹ is above 1 AU: lines saturate and band areas grow less than linearly with concentration`,
+      `peak absorbance ${peak.toFixed(2)} AU at ${peakAt.toFixed(2)} cm⁻¹ is above 1 AU: ` +
+        'lines saturate and band areas grow less than linearly with concentration',
     );
   }
 

@@ -279,7 +279,8 @@ export function resample(spectrum: Spectrum, grid: Float64Array): Spectrum {
   if (grid.length > 0 && ((grid[0] as number) < first || (grid[grid.length - 1] as number) > last)) {
     throw new BandwrightError(
       'WINDOW',
-      `${label(spectrum)}: covers ${first}–${last} cm⁻¹, cannot be resampled onto ${grid[0]}–${grid[grid.length - 1]} cm⁻¹`,
+      `${label(spectrum)}: covers ${first}–${last} cm⁻¹, ` +
+        `cannot be resampled onto ${grid[0]}–${grid[grid.length - 1]} cm⁻¹`,
       { file: spectrum.metadata.source },
     );
   }

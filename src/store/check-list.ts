@@ -40,7 +40,8 @@ export function readCheckList(path: string): CheckListEntry[] {
   if (!keys.includes('scan') || !keys.includes('measured_at') || certifiedColumns.length !== 1) {
     throw new BandwrightError(
       'PARSE',
-      `${path} line 1: a check list needs the columns scan, certified_<ppm|ppb|pct> (one) and measured_at (found: ${table.columns.join(', ')})`,
+      `${path} line 1: a check list needs the columns scan, ` +
+        `certified_<ppm|ppb|pct> (one) and measured_at (found: ${table.columns.join(', ')})`,
       { file: path, line: 1 },
     );
   }
@@ -70,7 +71,8 @@ export function readCheckList(path: string): CheckListEntry[] {
     if (!Number.isFinite(ms))
       throw new BandwrightError(
         'PARSE',
-        `${path} line ${row.line}: measured_at = ${JSON.stringify(time)}, must be an ISO 8601 time with a zone, e.g. 2026-09-01T09:30:00Z`,
+        `${path} line ${row.line}: measured_at = ${JSON.stringify(time)}, ` +
+          'must be an ISO 8601 time with a zone, e.g. 2026-09-01T09:30:00Z',
         { file: path, line: row.line, parameter: 'measured_at' },
       );
     const entry: CheckListEntry = {

@@ -2,11 +2,13 @@
  * The format of a calibration's check history: an append-only CSV file beside the calibration
  * (`<calibration without .json>.history.csv`).
  *
- * Format 1:
+ * Format 1 (the header and the record are wrapped here; in the file each is one line):
  * ```
  * # bandwright check history; format 1; calibration sha256 <64 hex>; file lab-co.calibration.json
- * time,recorded_at,gas,unit,certified,measured,low,high,se,detection_limit,recovery_pct,z,verdict,rules,sigma_pct,tolerance_pct,scan,scan_sha256,tool_version
- * 2026-09-01T09:30:00.000Z,2026-11-20T08:00:00.000Z,CO,ppm,100,100.7,98.1,103.4,1.19,4.14,100.7,0.62,pass,,1.667,5,checks/check-0901.jdx,3f…,0.1.0
+ * time,recorded_at,gas,unit,certified,measured,low,high,se,detection_limit,recovery_pct,z,verdict,
+ *   rules,sigma_pct,tolerance_pct,scan,scan_sha256,tool_version
+ * 2026-09-01T09:30:00.000Z,2026-11-20T08:00:00.000Z,CO,ppm,100,100.7,98.1,103.4,1.19,4.14,100.7,
+ *   0.62,pass,,1.667,5,checks/check-0901.jdx,3f…,0.1.0
  * ```
  * The first line ties the history to one calibration (its content hash), so a history cannot be
  * read with the wrong calibration. Times are ISO 8601 UTC. Empty cells: an unbounded interval end,
@@ -93,7 +95,10 @@ export function formatHistoryHeader(calibrationSha256: string, calibrationFile?:
       : // Control characters in a file name would break the one-line header: they are what is matched.
         // eslint-disable-next-line no-control-regex
         `; file ${basename(calibrationFile).replace(/[\u0000-\u001f\u007f]/g, '?')}`;
-  return `# bandwright check history; format ${HISTORY_FORMAT_VERSION}; calibration sha256 ${calibrationSha256}${name}\n${HISTORY_COLUMNS.join(',')}\n`;
+  return (
+    `# bandwright check history; format ${HISTORY_FORMAT_VERSION}; ` +
+    `calibration sha256 ${calibrationSha256}${name}\n${HISTORY_COLUMNS.join(',')}\n`
+  );
 }
 
 function quote(cell: string): string {
@@ -125,7 +130,8 @@ export function formatHistoryRecord(record: CheckRecord): string {
     if (/[\r\n]/.test(value))
       throw new BandwrightError(
         'INVALID_VALUE',
-        `${field} = ${JSON.stringify(value)}: a line break cannot be kept in the history (one record per line); rename the file`,
+        `${field} = ${JSON.stringify(value)}: a line break cannot be kept in the history ` +
+          '(one record per line); rename the file',
         { parameter: field },
       );
   }
@@ -187,7 +193,8 @@ function parseRecord(line: string, lineNumber: number, source: string): CheckRec
   if (cells.length !== HISTORY_COLUMNS.length) {
     throw new BandwrightError(
       'PARSE',
-      `${where}: ${cells.length} cells, a record has ${HISTORY_COLUMNS.length} (${HISTORY_COLUMNS.join(',')}); the line is damaged: ${shown(line)}`,
+      `${where}: ${cells.length} cells, a record has ${HISTORY_COLUMNS.length} ` +
+        `(${HISTORY_COLUMNS.join(',')}); the line is damaged: ${shown(line)}`,
       { file: source, line: lineNumber },
     );
   }
@@ -293,8 +300,10 @@ export function parseHistory(text: string, source: string, options: ReadHistoryO
     const torn = lines[number - 1] as string;
     throw new BandwrightError(
       'PARSE',
-      `${source} line ${number}: the last line is incomplete (no end of line), a record torn when a recheck was interrupted: ${shown(torn)}. ` +
-        `Nothing is appended until it is repaired: compare it with the scan and the recheck output, then delete that line (or, if it is whole, end it with a line break) and run recheck again`,
+      `${source} line ${number}: the last line is incomplete (no end of line), ` +
+        `a record torn when a recheck was interrupted: ${shown(torn)}. ` +
+        'Nothing is appended until it is repaired: compare it with the scan and the recheck output, ' +
+        'then delete that line (or, if it is whole, end it with a line break) and run recheck again',
       { file: source, line: number },
     );
   }
@@ -309,14 +318,16 @@ export function parseHistory(text: string, source: string, options: ReadHistoryO
   if (match === null)
     throw new BandwrightError(
       'PARSE',
-      `${source} line 1: ${shown(first)} is not a bandwright history first line ("# bandwright check history; format 1; calibration sha256 …")`,
+      `${source} line 1: ${shown(first)} is not a bandwright history first line ` +
+        '("# bandwright check history; format 1; calibration sha256 …")',
       { file: source, line: 1 },
     );
   const formatVersion = Number(match[1]);
   if (formatVersion > HISTORY_FORMAT_VERSION)
     throw new BandwrightError(
       'SCHEMA',
-      `${source} line 1: history format ${formatVersion} is newer than this tool reads (${HISTORY_FORMAT_VERSION}); update bandwright`,
+      `${source} line 1: history format ${formatVersion} is newer than this tool reads ` +
+        `(${HISTORY_FORMAT_VERSION}); update bandwright`,
       { file: source, line: 1 },
     );
   const calibrationSha256 = match[2] as string;
@@ -324,7 +335,11 @@ export function parseHistory(text: string, source: string, options: ReadHistoryO
     const name = options.calibrationFile ?? 'the calibration';
     throw new BandwrightError(
       'INTEGRITY',
-      `${source} line 1: this history belongs to the calibration with sha256 ${calibrationSha256.slice(0, 12)}…, but ${name} has sha256 ${options.calibrationSha256.slice(0, 12)}…: the calibration was rebuilt or the history was copied from another; move the old history aside (rename it) to start a new one`,
+      `${source} line 1: this history belongs to the calibration with sha256 ` +
+        `${calibrationSha256.slice(0, 12)}…, but ${name} ` +
+        `has sha256 ${options.calibrationSha256.slice(0, 12)}…: ` +
+        'the calibration was rebuilt or the history was copied from another; ' +
+        'move the old history aside (rename it) to start a new one',
       { file: source, line: 1 },
     );
   }
@@ -338,7 +353,8 @@ export function parseHistory(text: string, source: string, options: ReadHistoryO
   if (header !== HISTORY_COLUMNS.join(','))
     throw new BandwrightError(
       'PARSE',
-      `${source} line 2: header ${shown(header)} is not the format ${formatVersion} header (${HISTORY_COLUMNS.join(',')})`,
+      `${source} line 2: header ${shown(header)} is not the format ${formatVersion} header ` +
+        `(${HISTORY_COLUMNS.join(',')})`,
       { file: source, line: 2 },
     );
   const records: CheckRecord[] = [];

@@ -43,7 +43,9 @@ export function historyPathFor(calibrationPath: string): string {
  * @param options - the calibration it must belong to
  * @throws BandwrightError `FILE_NOT_FOUND`, `FILE_READ`, and those of {@link parseHistory}
  * @example
- * const history = readHistory('calibrations/lab-co.calibration.history.csv', { calibrationSha256: calibration.sha256 });
+ * const history = readHistory('calibrations/lab-co.calibration.history.csv', {
+ *   calibrationSha256: calibration.sha256,
+ * });
  */
 export function readHistory(path: string, options: ReadHistoryOptions = {}): History {
   return parseHistory(readText(path), path, options);

@@ -194,9 +194,11 @@ export function withFileLock<T>(lockPath: string, action: () => T, options: Lock
         seen.owner === undefined
           ? 'another process'
           : `process ${seen.owner.pid} on ${seen.owner.host} since ${seen.owner.time}`;
+      const waited = timeoutMs >= 1000 ? `${(timeoutMs / 1000).toFixed(0)} s` : `${timeoutMs} ms`;
       throw new BandwrightError(
         'LOCKED',
-        `${lockPath}: locked by ${who} for more than ${timeoutMs >= 1000 ? `${(timeoutMs / 1000).toFixed(0)} s` : `${timeoutMs} ms`}; if no other bandwright command is writing this history, delete the lock file and retry`,
+        `${lockPath}: locked by ${who} for more than ${waited}; ` +
+          'if no other bandwright command is writing this history, delete the lock file and retry',
         { file: lockPath },
       );
     }

@@ -71,7 +71,8 @@ const GAS_COLUMN = /^(.+)_(ppm|ppb|pct)$/i;
  * @returns the manifest with scan paths resolved against its folder
  * @throws BandwrightError `FILE_NOT_FOUND`/`FILE_READ`, `PARSE` (missing `scan` column, no gas
  *   column, bad cells), `INVALID_VALUE` (negative concentration, non-positive condition),
- *   `UNKNOWN_GAS`/`IR_INACTIVE` (gas columns), `WINDOW`-free; scan paths outside the manifest's folder → `INVALID_VALUE`
+ *   `UNKNOWN_GAS`/`IR_INACTIVE` (gas columns), `WINDOW`-free; scan paths outside the manifest's
+ *   folder → `INVALID_VALUE`
  */
 export function readManifest(path: string): Manifest {
   return parseManifest(readText(path), path);
@@ -90,7 +91,8 @@ export function parseManifest(text: string, path: string): Manifest {
   if (!keys.includes('scan')) {
     throw new BandwrightError(
       'PARSE',
-      `${path} line 1: no "scan" column; the header must name the scan files' column "scan" (found: ${table.columns.join(', ')})`,
+      `${path} line 1: no "scan" column; the header must name the scan files' column "scan" ` +
+        `(found: ${table.columns.join(', ')})`,
       { file: path, line: 1 },
     );
   }
@@ -139,7 +141,8 @@ export function parseManifest(text: string, path: string): Manifest {
     // One scan listed twice counts one measurement as two standards and understates the scatter.
     else
       warnings.push(
-        `${path} line ${entry.line}: scan ${entry.scan} is already listed at line ${earlier}; it counts as a second standard, which understates the calibration's scatter`,
+        `${path} line ${entry.line}: scan ${entry.scan} is already listed at line ${earlier}; ` +
+          "it counts as a second standard, which understates the calibration's scatter",
       );
   }
   return { path, gases, entries, warnings };
@@ -188,7 +191,8 @@ function parseEntry(
     if (value === undefined) {
       throw new BandwrightError(
         'INVALID_VALUE',
-        `${path} line ${row.line}: ${column} is empty; give the certified value (0 for a gas the standard does not contain)`,
+        `${path} line ${row.line}: ${column} is empty; ` +
+          'give the certified value (0 for a gas the standard does not contain)',
         { file: path, line: row.line, parameter: column },
       );
     }
@@ -202,7 +206,8 @@ function parseEntry(
     if (toPpm(value, unit) > 1e6) {
       throw new BandwrightError(
         'INVALID_VALUE',
-        `${path} line ${row.line}: ${column} = ${value}, above 100 % by volume (10⁶ ppm); a concentration cannot exceed the whole gas`,
+        `${path} line ${row.line}: ${column} = ${value}, above 100 % by volume (10⁶ ppm); ` +
+          'a concentration cannot exceed the whole gas',
         { file: path, line: row.line, parameter: column },
       );
     }
@@ -241,7 +246,8 @@ function parseEntry(
 }
 
 /**
- * Refuses a path written in a manifest that leaves the manifest's folder (absolute paths or `..`), so a manifest cannot pull in unrelated files.
+ * Refuses a path written in a manifest that leaves the manifest's folder (absolute paths or `..`),
+ * so a manifest cannot pull in unrelated files.
  */
 function insideFolder(
   written: string,
@@ -253,7 +259,8 @@ function insideFolder(
   if (isAbsolute(written) || rel === '' || rel.startsWith(`..${sep}`) || rel === '..' || isAbsolute(rel)) {
     throw new BandwrightError(
       'INVALID_VALUE',
-      `${where.file} line ${where.line}: ${where.column} = ${JSON.stringify(written)}, must be a path inside the manifest's folder (relative, without "..")`,
+      `${where.file} line ${where.line}: ${where.column} = ${JSON.stringify(written)}, ` +
+        `must be a path inside the manifest's folder (relative, without "..")`,
       { file: where.file, line: where.line, parameter: where.column },
     );
   }

@@ -12,7 +12,8 @@ import { resourceLimits } from '../resource-limits.js';
  * @param path - file path
  * @param options - `maxBytes`: refuse larger files (default 64 MiB, or BANDWRIGHT_MAX_TABLE_BYTES);
  *   `limitVariable`: the environment variable named in the message (default BANDWRIGHT_MAX_TABLE_BYTES)
- * @throws BandwrightError `FILE_NOT_FOUND`, `FILE_READ` (folder, permissions), `LIMIT` (too large); `USAGE` for a bad limit variable
+ * @throws BandwrightError `FILE_NOT_FOUND`, `FILE_READ` (folder, permissions), `LIMIT` (too large);
+ *   `USAGE` for a bad limit variable
  */
 export function readBytes(
   path: string,
@@ -29,9 +30,13 @@ export function readBytes(
     throw fileSystemError(error, path);
   }
   if (size > maxBytes) {
+    const howToRaise =
+      options.limitVariable === undefined && options.maxBytes !== undefined
+        ? ''
+        : ` (${options.limitVariable ?? 'BANDWRIGHT_MAX_TABLE_BYTES'} raises it)`;
     throw new BandwrightError(
       'LIMIT',
-      `${path}: ${size} bytes, above the limit of ${maxBytes} bytes${options.limitVariable === undefined && options.maxBytes !== undefined ? '' : ` (${options.limitVariable ?? 'BANDWRIGHT_MAX_TABLE_BYTES'} raises it)`}`,
+      `${path}: ${size} bytes, above the limit of ${maxBytes} bytes${howToRaise}`,
       { file: path },
     );
   }
