@@ -62,6 +62,67 @@ export const LABEL_FONT_SIZE = 12;
 /** Title font size, px. */
 export const TITLE_FONT_SIZE = 14;
 
+/** Stroke of a line drawn across or along a panel. */
+export interface RuleStyle {
+  /** Class of the line. */
+  className?: string;
+  /** `data-*` attributes, written after the class. */
+  data?: Readonly<Record<string, string>>;
+  /** Stroke colour. */
+  colour: string;
+  /** Stroke width, px. */
+  width: number;
+  /** Dash pattern (undefined: solid). */
+  dash?: string | undefined;
+}
+
+function rule(
+  style: RuleStyle,
+  ends: { x1: number; x2: number; y1: number; y2: number },
+  children?: string,
+): string {
+  return element(
+    'line',
+    {
+      class: style.className,
+      ...style.data,
+      ...ends,
+      stroke: style.colour,
+      'stroke-width': style.width,
+      'stroke-dasharray': style.dash,
+    },
+    children,
+  );
+}
+
+/**
+ * A horizontal line across a panel, from its left to its right edge.
+ *
+ * @param panel - the panel
+ * @param y - height of the line, px
+ * @param style - class, data attributes and stroke
+ * @param children - inner markup (e.g. a `<title>`)
+ */
+export function horizontalRule(panel: Panel, y: number, style: RuleStyle, children?: string): string {
+  return rule(style, { x1: panel.left, x2: panelRight(panel), y1: y, y2: y }, children);
+}
+
+/**
+ * A vertical line through a panel, from its top to its bottom edge.
+ *
+ * @param panel - the panel
+ * @param x - position of the line, px
+ * @param style - class, data attributes and stroke
+ * @param children - inner markup (e.g. a `<title>`)
+ */
+export function verticalRule(panel: Panel, x: number, style: RuleStyle, children?: string): string {
+  return rule(style, { x1: x, x2: x, y1: panel.top, y2: panelBottom(panel) }, children);
+}
+
+const DOMAIN_STYLE: RuleStyle = { className: 'domain', colour: INK, width: 1 };
+const GRID_STYLE: RuleStyle = { className: 'grid', colour: GRID, width: 0.6 };
+const TICK_STYLE: RuleStyle = { className: 'tick', colour: INK, width: 1 };
+
 /**
  * Renders an axis with ticks, tick labels, optional grid lines and its label.
  *
@@ -71,153 +132,54 @@ export const TITLE_FONT_SIZE = 14;
  */
 export function renderAxis(panel: Panel, spec: AxisSpec): string {
   const grid = spec.grid ?? true;
-  const parts: string[] = [];
   const bottom = panelBottom(panel);
-  if (spec.side === 'bottom') {
+  const horizontal = spec.side === 'bottom';
+  const parts: string[] = [
+    horizontal ? horizontalRule(panel, bottom, DOMAIN_STYLE) : verticalRule(panel, panel.left, DOMAIN_STYLE),
+  ];
+  for (const value of spec.ticks) {
+    const at = spec.position(value);
+    if (grid)
+      parts.push(horizontal ? verticalRule(panel, at, GRID_STYLE) : horizontalRule(panel, at, GRID_STYLE));
     parts.push(
-      element('line', {
-        class: 'domain',
-        x1: panel.left,
-        x2: panelRight(panel),
-        y1: bottom,
-        y2: bottom,
-        stroke: INK,
-        'stroke-width': 1,
-      }),
+      horizontal
+        ? rule(TICK_STYLE, { x1: at, x2: at, y1: bottom, y2: bottom + 5 })
+        : rule(TICK_STYLE, { x1: panel.left - 5, x2: panel.left, y1: at, y2: at }),
     );
-    for (const value of spec.ticks) {
-      const x = spec.position(value);
-      if (grid)
-        parts.push(
-          element('line', {
-            class: 'grid',
-            x1: x,
-            x2: x,
-            y1: panel.top,
-            y2: bottom,
-            stroke: GRID,
-            'stroke-width': 0.6,
-          }),
-        );
-      parts.push(
-        element('line', {
-          class: 'tick',
-          x1: x,
-          x2: x,
-          y1: bottom,
-          y2: bottom + 5,
-          stroke: INK,
-          'stroke-width': 1,
-        }),
-      );
-      if (!spec.hideTickLabels) {
-        parts.push(
-          element(
-            'text',
-            {
-              class: 'tick-label',
-              x,
-              y: bottom + 8 + TICK_FONT_SIZE * 0.8,
-              'text-anchor': 'middle',
-              'font-size': TICK_FONT_SIZE,
-              fill: MUTED,
-            },
-            escapeText(spec.format(value)),
-          ),
-        );
-      }
-    }
-    if (spec.label !== '') {
+    if (!spec.hideTickLabels) {
+      const place = horizontal
+        ? { x: at, y: bottom + 8 + TICK_FONT_SIZE * 0.8, 'text-anchor': 'middle' }
+        : { x: panel.left - 8, y: at + TICK_FONT_SIZE * 0.35, 'text-anchor': 'end' };
       parts.push(
         element(
           'text',
-          {
-            class: 'axis-label',
-            x: panel.left + panel.width / 2,
-            y: bottom + (spec.hideTickLabels ? 18 : 36),
-            'text-anchor': 'middle',
-            'font-size': LABEL_FONT_SIZE,
-            fill: INK,
-          },
-          escapeText(spec.label),
-        ),
-      );
-    }
-  } else {
-    parts.push(
-      element('line', {
-        class: 'domain',
-        x1: panel.left,
-        x2: panel.left,
-        y1: panel.top,
-        y2: bottom,
-        stroke: INK,
-        'stroke-width': 1,
-      }),
-    );
-    for (const value of spec.ticks) {
-      const y = spec.position(value);
-      if (grid)
-        parts.push(
-          element('line', {
-            class: 'grid',
-            x1: panel.left,
-            x2: panelRight(panel),
-            y1: y,
-            y2: y,
-            stroke: GRID,
-            'stroke-width': 0.6,
-          }),
-        );
-      parts.push(
-        element('line', {
-          class: 'tick',
-          x1: panel.left - 5,
-          x2: panel.left,
-          y1: y,
-          y2: y,
-          stroke: INK,
-          'stroke-width': 1,
-        }),
-      );
-      if (!spec.hideTickLabels) {
-        parts.push(
-          element(
-            'text',
-            {
-              class: 'tick-label',
-              x: panel.left - 8,
-              y: y + TICK_FONT_SIZE * 0.35,
-              'text-anchor': 'end',
-              'font-size': TICK_FONT_SIZE,
-              fill: MUTED,
-            },
-            escapeText(spec.format(value)),
-          ),
-        );
-      }
-    }
-    if (spec.label !== '') {
-      const x = panel.left - 54;
-      const y = panel.top + panel.height / 2;
-      parts.push(
-        element(
-          'text',
-          {
-            class: 'axis-label',
-            x,
-            y,
-            transform: `rotate(-90 ${coordinate(x)} ${coordinate(y)})`,
-            'text-anchor': 'middle',
-            'font-size': LABEL_FONT_SIZE,
-            fill: INK,
-          },
-          escapeText(spec.label),
+          { class: 'tick-label', ...place, 'font-size': TICK_FONT_SIZE, fill: MUTED },
+          escapeText(spec.format(value)),
         ),
       );
     }
   }
-  const axisClass = `axis ${spec.side === 'bottom' ? 'axis-x' : 'axis-y'}${spec.className === undefined ? '' : ` ${spec.className}`}`;
+  if (spec.label !== '') {
+    // The left axis label is turned to run up the side of the panel, centred on it.
+    const x = horizontal ? panel.left + panel.width / 2 : panel.left - 54;
+    const y = horizontal ? bottom + (spec.hideTickLabels ? 18 : 36) : panel.top + panel.height / 2;
+    parts.push(
+      element(
+        'text',
+        {
+          class: 'axis-label',
+          x,
+          y,
+          transform: horizontal ? undefined : `rotate(-90 ${coordinate(x)} ${coordinate(y)})`,
+          'text-anchor': 'middle',
+          'font-size': LABEL_FONT_SIZE,
+          fill: INK,
+        },
+        escapeText(spec.label),
+      ),
+    );
+  }
+  const axisClass = `axis ${horizontal ? 'axis-x' : 'axis-y'}${spec.className === undefined ? '' : ` ${spec.className}`}`;
   return element('g', { class: axisClass }, parts.join(''));
 }
 
