@@ -1,7 +1,7 @@
 /**
- * The parts every plot is made of: the document element, panels (a plotting rectangle inside
- * margins), axes with ticks, grid and a label that names the quantity and its unit, legends,
- * markers and clip paths. Everything is returned as SVG text; text is real `<text>` elements so it
+ * The parts every plot is made of: the document element, the layout of legend and panels (the
+ * panels themselves are in `panel.ts`), axes with ticks, grid and a label that names the quantity
+ * and its unit, wavenumber axes, legends, notes, markers and clip paths. Everything is returned as SVG text; text is real `<text>` elements so it
  * can be selected, searched and read by screen readers, and stays sharp when printed.
  *
  * Coordinates are in user units equal to CSS pixels at the plot's natural size (the `width` and
@@ -11,29 +11,24 @@ import { scaleLinear, type ScaleLinear } from 'd3-scale';
 import { symbol, type SymbolType } from 'd3-shape';
 import { BandwrightError } from '../../errors.js';
 import { coordinate, element, escapeText, plainMinus } from './markup.js';
-import { FONT_FAMILY, GRID, INK, MUTED } from './palette.js';
-
-/** A plotting rectangle in SVG user units. */
-export interface Panel {
-  /** Left edge. */
-  left: number;
-  /** Top edge. */
-  top: number;
-  /** Width. */
-  width: number;
-  /** Height. */
-  height: number;
-}
-
-/** Right edge of a panel. */
-export function panelRight(panel: Panel): number {
-  return panel.left + panel.width;
-}
-
-/** Bottom edge of a panel. */
-export function panelBottom(panel: Panel): number {
-  return panel.top + panel.height;
-}
+import {
+  FONT_FAMILY,
+  GRID,
+  INK,
+  LABEL_FONT_SIZE,
+  MUTED,
+  TICK_FONT_SIZE,
+  TITLE_FONT_SIZE,
+} from './palette.js';
+import {
+  horizontalRule,
+  lineSegment,
+  panelBottom,
+  PLOT_MARGIN,
+  verticalRule,
+  type Panel,
+  type RuleStyle,
+} from './panel.js';
 
 /** Axis options shared by {@link renderAxis} callers. */
 export interface AxisSpec {
@@ -53,70 +48,6 @@ export interface AxisSpec {
   className?: string;
   /** Leave tick labels out (for a panel stacked above another with the same x axis). */
   hideTickLabels?: boolean;
-}
-
-/** Tick label font size, px. */
-export const TICK_FONT_SIZE = 11;
-/** Axis label font size, px. */
-export const LABEL_FONT_SIZE = 12;
-/** Title font size, px. */
-export const TITLE_FONT_SIZE = 14;
-
-/** Stroke of a line drawn across or along a panel. */
-export interface RuleStyle {
-  /** Class of the line. */
-  className?: string;
-  /** `data-*` attributes, written after the class. */
-  data?: Readonly<Record<string, string>>;
-  /** Stroke colour. */
-  colour: string;
-  /** Stroke width, px. */
-  width: number;
-  /** Dash pattern (undefined: solid). */
-  dash?: string | undefined;
-}
-
-function rule(
-  style: RuleStyle,
-  ends: { x1: number; x2: number; y1: number; y2: number },
-  children?: string,
-): string {
-  return element(
-    'line',
-    {
-      class: style.className,
-      ...style.data,
-      ...ends,
-      stroke: style.colour,
-      'stroke-width': style.width,
-      'stroke-dasharray': style.dash,
-    },
-    children,
-  );
-}
-
-/**
- * A horizontal line across a panel, from its left to its right edge.
- *
- * @param panel - the panel
- * @param y - height of the line, px
- * @param style - class, data attributes and stroke
- * @param children - inner markup (e.g. a `<title>`)
- */
-export function horizontalRule(panel: Panel, y: number, style: RuleStyle, children?: string): string {
-  return rule(style, { x1: panel.left, x2: panelRight(panel), y1: y, y2: y }, children);
-}
-
-/**
- * A vertical line through a panel, from its top to its bottom edge.
- *
- * @param panel - the panel
- * @param x - position of the line, px
- * @param style - class, data attributes and stroke
- * @param children - inner markup (e.g. a `<title>`)
- */
-export function verticalRule(panel: Panel, x: number, style: RuleStyle, children?: string): string {
-  return rule(style, { x1: x, x2: x, y1: panel.top, y2: panelBottom(panel) }, children);
 }
 
 const DOMAIN_STYLE: RuleStyle = { className: 'domain', colour: INK, width: 1 };
@@ -143,8 +74,8 @@ export function renderAxis(panel: Panel, spec: AxisSpec): string {
       parts.push(horizontal ? verticalRule(panel, at, GRID_STYLE) : horizontalRule(panel, at, GRID_STYLE));
     parts.push(
       horizontal
-        ? rule(TICK_STYLE, { x1: at, x2: at, y1: bottom, y2: bottom + 5 })
-        : rule(TICK_STYLE, { x1: panel.left - 5, x2: panel.left, y1: at, y2: at }),
+        ? lineSegment(TICK_STYLE, { x1: at, x2: at, y1: bottom, y2: bottom + 5 })
+        : lineSegment(TICK_STYLE, { x1: panel.left - 5, x2: panel.left, y1: at, y2: at }),
     );
     if (!spec.hideTickLabels) {
       const place = horizontal
@@ -356,6 +287,110 @@ export function renderLegend(
     svg: element('g', { class: 'legend' }, parts.join('')),
     height: Math.ceil(entries.length / columns) * LEGEND_ROW,
   };
+}
+
+/** Options every plot takes besides its own. */
+export interface PlotOptions {
+  /** Unique id of the plot in its document, the prefix of every id inside it (default: the plot's kind). */
+  id?: string;
+  /** Width, px (default 720). */
+  width?: number;
+}
+
+/** Top of the legend, under the plot title, px. */
+const LEGEND_TOP = 28;
+
+/**
+ * The top of a plot: the legend under the title, across the width inside the margins, and the
+ * first panel under the legend.
+ *
+ * @param entries - legend entries
+ * @param layout - `width` of the plot, `panelHeight` and the `gap` between legend and panel (default 10), px
+ * @returns the legend (markup and height) and the panel
+ */
+export function legendAndPanel(
+  entries: readonly LegendEntry[],
+  layout: { width: number; panelHeight: number; gap?: number },
+): { legend: { svg: string; height: number }; panel: Panel } {
+  const width = layout.width - PLOT_MARGIN.left - PLOT_MARGIN.right;
+  const legend = renderLegend(entries, { x: PLOT_MARGIN.left, y: LEGEND_TOP, width });
+  return {
+    legend,
+    panel: {
+      left: PLOT_MARGIN.left,
+      top: LEGEND_TOP + legend.height + (layout.gap ?? 10),
+      width,
+      height: layout.panelHeight,
+    },
+  };
+}
+
+/** An axis of {@link panelAxes}: an {@link AxisSpec} without its side. */
+export type PanelAxisSpec = Omit<AxisSpec, 'side'>;
+
+/**
+ * The bottom and the left axis of a panel, in that order.
+ *
+ * @param panel - the panel
+ * @param bottom - the x axis
+ * @param left - the y axis
+ * @returns two `<g class="axis …">` elements
+ */
+export function panelAxes(panel: Panel, bottom: PanelAxisSpec, left: PanelAxisSpec): string {
+  return renderAxis(panel, { side: 'bottom', ...bottom }) + renderAxis(panel, { side: 'left', ...left });
+}
+
+/** Distance between the baselines of notes under a plot, px. */
+export const NOTE_LINE_HEIGHT = 15;
+
+/**
+ * Notes in lines under a panel's x axis (the plot's height must leave room for them).
+ *
+ * @param panel - the lowest panel of the plot
+ * @param notes - plain text, one line each
+ * @param spacing - `gap` under the bottom margin to the first baseline (default 4) and `lineHeight`
+ *   (default {@link NOTE_LINE_HEIGHT}), px
+ * @returns one `plot-note` text element per note
+ */
+export function notesBelow(
+  panel: Panel,
+  notes: readonly string[],
+  spacing: { gap: number; lineHeight: number } = { gap: 4, lineHeight: NOTE_LINE_HEIGHT },
+): string[] {
+  const top = panelBottom(panel) + PLOT_MARGIN.bottom + spacing.gap;
+  return notes.map((note, i) => noteText(panel.left, top + i * spacing.lineHeight, note));
+}
+
+/** Direction of a wavenumber axis. */
+export type WavenumberAxis = 'descending' | 'ascending';
+
+/**
+ * A wavenumber axis over a panel's width: high wavenumbers on the left for `descending` (the usual
+ * infrared layout), 8 ticks, the range used as given.
+ *
+ * @param range - [low, high], cm⁻¹
+ * @param panel - the panel
+ * @param direction - axis direction
+ */
+export function wavenumberScale(
+  range: readonly [number, number],
+  panel: Panel,
+  direction: WavenumberAxis,
+): LinearAxisScale {
+  return linearAxisScale(
+    direction === 'descending' ? [range[1], range[0]] : range,
+    [panel.left, panel.left + panel.width],
+    { nice: false, tickCount: 8 },
+  );
+}
+
+/**
+ * The label of a wavenumber axis, saying which way it runs.
+ *
+ * @param direction - axis direction
+ */
+export function wavenumberAxisLabel(direction: WavenumberAxis): string {
+  return `wavenumber / cm⁻¹ (${direction === 'descending' ? 'decreasing to the right' : 'increasing to the right'})`;
 }
 
 /**

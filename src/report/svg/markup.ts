@@ -70,6 +70,17 @@ export function coordinate(value: number): string {
   return String(rounded === 0 ? 0 : rounded);
 }
 
+/**
+ * An SVG `transform` that moves a shape drawn around (0, 0), such as a marker, to a point.
+ *
+ * @param x - px
+ * @param y - px
+ * @returns e.g. `translate(12.5,40)`
+ */
+export function translate(x: number, y: number): string {
+  return `translate(${coordinate(x)},${coordinate(y)})`;
+}
+
 /** The minus sign every plot and report uses in numbers: ASCII hyphen-minus, like the text tables. */
 export const MINUS = '-';
 
