@@ -107,6 +107,16 @@ export function slug(text: string): string {
 }
 
 /**
+ * The last part of a path, after its last `/` or `\` (either separator, whichever system wrote it).
+ *
+ * @param path - a file path as the user named it
+ * @returns e.g. `lab-co.calibration.json` for `calibrations/lab-co.calibration.json`
+ */
+export function fileName(path: string): string {
+  return path.replace(/^.*[\\/]/, '');
+}
+
+/**
  * A number for labels and legends: at most `digits` significant digits, trailing zeros dropped,
  * ASCII minus (e.g. `5`, `1.2`, `-0.031`).
  *

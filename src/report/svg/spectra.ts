@@ -347,6 +347,16 @@ export interface LabelledSpectrum {
   group?: string;
 }
 
+/** A labelled spectrum as a series to draw, given the spectrum in absorbance. */
+function labelledSeries(item: LabelledSpectrum, absorbance: Spectrum): SpectrumSeries {
+  return {
+    label: item.label,
+    x: absorbance.x,
+    y: absorbance.y,
+    ...(item.group === undefined ? {} : { group: item.group }),
+  };
+}
+
 /**
  * Plot input for the spectra of one gas of a band calibration: each spectrum, the gas's band
  * and baseline windows, and each spectrum's baseline fitted exactly as the calibration fits it
@@ -369,12 +379,7 @@ export function gasSpectraData(
   spectra.forEach((item) => {
     const absorbance = toAbsorbance(item.spectrum);
     const index = series.length;
-    series.push({
-      label: item.label,
-      x: absorbance.x,
-      y: absorbance.y,
-      ...(item.group === undefined ? {} : { group: item.group }),
-    });
+    series.push(labelledSeries(item, absorbance));
     if (feature === undefined || feature.baseline.length === 0) return;
     try {
       const fitted = fitBaseline(absorbance, feature.band, {
@@ -427,15 +432,7 @@ export function clsStandardsSpectraData(
 ): SpectraPlotInput {
   return {
     title: `Standards: spectra over the fit regions`,
-    series: spectra.map((item) => {
-      const absorbance = toAbsorbance(item.spectrum);
-      return {
-        label: item.label,
-        x: absorbance.x,
-        y: absorbance.y,
-        ...(item.group === undefined ? {} : { group: item.group }),
-      };
-    }),
+    series: spectra.map((item) => labelledSeries(item, toAbsorbance(item.spectrum))),
     baselineWindows: [],
     regions: calibration.cls?.regions ?? [],
     baselines: [],
