@@ -5,8 +5,8 @@
  * tampered with cannot run code or call out when opened.
  *
  * Small builders for the parts reports share: the page's header, sections and footer, escaped
- * text, tables, definition lists, figures and caution boxes. Every string that reaches the page passes through {@link escapeText} unless
- * it is markup built here.
+ * text, tables, definition lists, figures and caution boxes. Every string that reaches the page
+ * passes through {@link escapeText} unless it is markup built here.
  */
 import { element, escapeText } from './svg/markup.js';
 import { formatNumber } from './table.js';

@@ -287,14 +287,14 @@ export function calibrationReportHtml(
   const reference = calibration.reference;
 
   const parts: string[] = [];
+  const gasNames = concentrationColumns(calibration)
+    .map((g) => g.gas)
+    .join(', ');
   parts.push(
     pageHeader(
       `Calibration report: ${title}`,
-      `${concentrationColumns(calibration)
-        .map((g) => g.gas)
-        .join(
-          ', ',
-        )} · ${calibration.method.model} method · ${calibration.standards.length} standards · built ${calibration.createdAt}`,
+      `${gasNames} · ${calibration.method.model} method · ${calibration.standards.length} standards · ` +
+        `built ${calibration.createdAt}`,
     ),
   );
   parts.push(cautionBox(calibration.cautions));
@@ -422,7 +422,8 @@ export function calibrationReportHtml(
   parts.push(cautionBox(calibration.cautions, 'safety-end'));
   parts.push(
     pageFooter(
-      `${input.tool.name} ${input.tool.version} · report made ${input.generatedAt} · calibration SHA-256 ${calibration.sha256}`,
+      `${input.tool.name} ${input.tool.version} · report made ${input.generatedAt} · ` +
+        `calibration SHA-256 ${calibration.sha256}`,
     ),
   );
   return htmlPage({ title: `Calibration report: ${title}`, body: parts.join('\n') });

@@ -1,8 +1,9 @@
 /**
  * The parts every plot is made of: the document element, the layout of legend and panels (the
  * panels themselves are in `panel.ts`), axes with ticks, grid and a label that names the quantity
- * and its unit, wavenumber axes, legends, notes, markers and clip paths. Everything is returned as SVG text; text is real `<text>` elements so it
- * can be selected, searched and read by screen readers, and stays sharp when printed.
+ * and its unit, wavenumber axes, legends, notes, markers and clip paths. Everything is returned as
+ * SVG text; text is real `<text>` elements so it can be selected, searched and read by screen
+ * readers, and stays sharp when printed.
  *
  * Coordinates are in user units equal to CSS pixels at the plot's natural size (the `width` and
  * `height` attributes equal the `viewBox`).
@@ -110,7 +111,8 @@ export function renderAxis(panel: Panel, spec: AxisSpec): string {
       ),
     );
   }
-  const axisClass = `axis ${horizontal ? 'axis-x' : 'axis-y'}${spec.className === undefined ? '' : ` ${spec.className}`}`;
+  const sideClass = horizontal ? 'axis axis-x' : 'axis axis-y';
+  const axisClass = spec.className === undefined ? sideClass : `${sideClass} ${spec.className}`;
   return element('g', { class: axisClass }, parts.join(''));
 }
 
