@@ -6,7 +6,7 @@
 import { formatWindow } from '../bands/windows.js';
 import type { Calibration, GasCalibration } from '../calibration/calibration.js';
 import { unitLabel } from '../gas/units.js';
-import { htmlTable, numberCell, paragraph, type Cell } from './html-page.js';
+import { hashCell, htmlTable, numberCell, paragraph, type Cell } from './html-page.js';
 import { element, escapeText } from './svg/markup.js';
 import { formatNumber } from './table.js';
 
@@ -15,11 +15,6 @@ const CURVE_WORDS = {
   origin: 'straight line through the origin r = b·c',
   quadratic: 'second order r = a + b·c + c₂·c²',
 } as const;
-
-/** A probability level as a percentage, without trailing zeros (0.95 -> "95 %"). */
-export function levelText(level: number): string {
-  return `${formatNumber(level * 100, 3).replace(/\.?0+$/, '')} %`;
-}
 
 /** A value with `digits` significant digits, or "not available" when the calibration has none. */
 export function maybe(value: number | null, digits = 4): string {
@@ -102,40 +97,20 @@ export function linearityText(gas: GasCalibration): string {
 export function limitsTable(gas: GasCalibration): string {
   const unit = unitLabel(gas.unit);
   const limits = gas.model.limits;
-  const rows: Cell[][] = [
-    ['decision limit x_C', numberCell(maybe(limits.decision.value, 3)), unit, limits.decision.definition],
-    [
-      'detection limit x_D (LOD)',
-      numberCell(maybe(limits.detection.value, 3)),
-      unit,
-      limits.detection.definition,
-    ],
-    [
-      'determination limit x_Q (LOQ)',
-      numberCell(maybe(limits.determination.value, 3)),
-      unit,
-      limits.determination.definition,
-    ],
-    [
-      'ICH Q2 detection 3.3σ/b',
-      numberCell(maybe(limits.ichDetection.value, 3)),
-      unit,
-      limits.ichDetection.definition,
-    ],
-    [
-      'ICH Q2 quantitation 10σ/b',
-      numberCell(maybe(limits.ichQuantitation.value, 3)),
-      unit,
-      limits.ichQuantitation.definition,
-    ],
+  const row = (name: string, limit: { value: number | null; definition: string }): Cell[] => [
+    name,
+    numberCell(maybe(limit.value, 3)),
+    unit,
+    limit.definition,
   ];
-  if (gas.zeroGasLimit !== undefined)
-    rows.push([
-      'zero-gas limit',
-      numberCell(formatNumber(gas.zeroGasLimit.value, 3)),
-      unit,
-      gas.zeroGasLimit.definition,
-    ]);
+  const rows: Cell[][] = [
+    row('decision limit x_C', limits.decision),
+    row('detection limit x_D (LOD)', limits.detection),
+    row('determination limit x_Q (LOQ)', limits.determination),
+    row('ICH Q2 detection 3.3σ/b', limits.ichDetection),
+    row('ICH Q2 quantitation 10σ/b', limits.ichQuantitation),
+  ];
+  if (gas.zeroGasLimit !== undefined) rows.push(row('zero-gas limit', gas.zeroGasLimit));
   return htmlTable({
     caption: `${gas.gas}: detection and determination limits (α = ${limits.alpha}, β = ${limits.beta}, k = ${limits.k})`,
     header: ['limit', numberCell('value'), 'unit', 'definition'],
@@ -185,7 +160,7 @@ export function standardsTable(calibration: Calibration, spectrumStatus: (index:
   ];
   const rows = calibration.standards.map((standard, i): Cell[] => [
     numberCell(String(i + 1)),
-    { text: standard.scan, className: 'hash' },
+    hashCell(standard.scan),
     standard.lot ?? '',
     ...columns.map((g) =>
       numberCell(
@@ -274,5 +249,3 @@ export function clsSection(calibration: Calibration): string {
     facts
   );
 }
-
-/** An ISO time as `YYYY-MM-DD HH:MM` (UTC), or the text as given when it is not a time. */

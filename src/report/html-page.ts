@@ -4,11 +4,12 @@
  * security policy that forbids scripts and every external fetch, so even a file that were
  * tampered with cannot run code or call out when opened.
  *
- * Small builders for the parts reports share: escaped text, tables, definition lists, figures
- * and caution boxes. Every string that reaches the page passes through {@link escapeText} unless
- * it is markup built here.
+ * Small builders for the parts reports share: the page's header, sections and footer, escaped
+ * text, tables, definition lists, figures and caution boxes. Every string that reaches the page
+ * passes through {@link escapeText} unless it is markup built here.
  */
 import { element, escapeText } from './svg/markup.js';
+import { formatNumber } from './table.js';
 
 /** Content security policy of every report: no scripts, no fetches; inline styles and data: images only. */
 export const REPORT_CSP =
@@ -103,6 +104,20 @@ function cellMarkup(tag: 'td' | 'th', cell: Cell): string {
 /** A number cell: right-aligned text. */
 export function numberCell(text: string): Cell {
   return { text, className: 'number' };
+}
+
+/** A cell in the monospace style of hashes, so file paths and SHA-256 values wrap anywhere and read exactly. */
+export function hashCell(text: string): Cell {
+  return { text, className: 'hash' };
+}
+
+/**
+ * A fact value (see {@link factList}) in the monospace style of hashes: a file path or a SHA-256.
+ *
+ * @param text - plain text
+ */
+export function hashValue(text: string): { html: string } {
+  return { html: element('span', { class: 'hash' }, escapeText(text)) };
 }
 
 /**
@@ -207,4 +222,44 @@ export function cautionBox(cautions: readonly string[], id = 'safety'): string {
  */
 export function notice(text: string): string {
   return element('p', { class: 'notice' }, escapeText(text));
+}
+
+/**
+ * The page header: the report's title as the page heading, and a subtitle line under it.
+ *
+ * @param title - plain text
+ * @param subtitle - plain text
+ */
+export function pageHeader(title: string, subtitle: string): string {
+  return element('header', {}, element('h1', {}, escapeText(title)) + paragraph(subtitle, 'subtitle'));
+}
+
+/**
+ * A section of the page under its heading; the id is the target of the page's links.
+ *
+ * @param id - element id
+ * @param heading - plain text
+ * @param content - markup
+ */
+export function pageSection(id: string, heading: string, content: string): string {
+  return element('section', { id }, element('h2', {}, escapeText(heading)) + content);
+}
+
+/**
+ * The page footer: one line of small print.
+ *
+ * @param text - plain text
+ */
+export function pageFooter(text: string): string {
+  return element('footer', {}, escapeText(text));
+}
+
+/**
+ * A probability level as a percentage, without trailing zeros.
+ *
+ * @param level - probability in (0, 1)
+ * @returns e.g. `95 %` for 0.95
+ */
+export function levelText(level: number): string {
+  return `${formatNumber(level * 100, 3).replace(/\.?0+$/, '')} %`;
 }

@@ -14,16 +14,22 @@ import {
   cautionBox,
   factList,
   figure,
+  hashCell,
+  hashValue,
   htmlPage,
   htmlTable,
+  levelText,
   notice,
   numberCell,
+  pageFooter,
+  pageHeader,
+  pageSection,
   paragraph,
   type Cell,
 } from './html-page.js';
 import { isFailure, type BatchEntry } from './results.js';
 import type { ClsFitPlotInput } from './svg/cls-fit.js';
-import { element, escapeText } from './svg/markup.js';
+import { element, escapeText, fileName } from './svg/markup.js';
 import { samplePlots, uniqueFileNames, type NamedPlot } from './svg/plot-set.js';
 import type { WavenumberAxis } from './svg/spectra.js';
 import { formatNumber } from './table.js';
@@ -80,10 +86,6 @@ function gasesOf(calibration: Calibration): string {
   return calibration.gases
     .map((g) => `${g.gas} (${unitLabel(g.unit)}, calibrated ${g.model.range[0]}–${g.model.range[1]})`)
     .join('; ');
-}
-
-function levelText(level: number): string {
-  return `${formatNumber(level * 100, 3).replace(/\.?0+$/, '')} %`;
 }
 
 /**
@@ -143,7 +145,7 @@ export function quantifyReportHtml(input: QuantifyReportInput, options: Quantify
   const cautions = new Set<string>(calibration.cautions);
   for (const entry of entries) {
     if (isFailure(entry)) {
-      rows.push([{ text: entry.scan, className: 'hash' }, '—', 'failed', '', '', '', entry.error]);
+      rows.push([hashCell(entry.scan), '—', 'failed', '', '', '', entry.error]);
       rowClasses.push('failed');
       continue;
     }
@@ -151,7 +153,7 @@ export function quantifyReportHtml(input: QuantifyReportInput, options: Quantify
     for (const gas of entry.gases) {
       const value = formatNumber(gas.value);
       rows.push([
-        { text: entry.scan, className: 'hash' },
+        hashCell(entry.scan),
         gas.gas,
         numberCell(gas.flags.includes('below-lod') ? `< LOD (${value})` : value),
         numberCell(`${formatNumber(gas.low)} – ${formatNumber(gas.high)}`),
@@ -224,8 +226,8 @@ export function quantifyReportHtml(input: QuantifyReportInput, options: Quantify
   });
 
   const facts: [string, string | { html: string }][] = [
-    ['calibration', { html: element('span', { class: 'hash' }, escapeText(input.calibrationFile)) }],
-    ['calibration SHA-256', { html: element('span', { class: 'hash' }, escapeText(calibration.sha256)) }],
+    ['calibration', hashValue(input.calibrationFile)],
+    ['calibration SHA-256', hashValue(calibration.sha256)],
     ['calibration built', `${calibration.createdAt} by ${calibration.tool.name} ${calibration.tool.version}`],
     ['gases', gasesOf(calibration)],
     ['samples', `${entries.length}${failed > 0 ? `, ${failed} could not be quantified` : ''}`],
@@ -236,57 +238,35 @@ export function quantifyReportHtml(input: QuantifyReportInput, options: Quantify
     ['report made', `${input.generatedAt} by ${input.tool.name} ${input.tool.version}`],
   ];
   const body = [
-    element(
-      'header',
-      {},
-      element(
-        'h1',
-        {},
-        escapeText(
-          `Quantification report: ${calibration.title ?? input.calibrationFile.replace(/^.*[\\/]/, '')}`,
-        ),
-      ) +
-        paragraph(
-          `${entries.length} sample(s) · ${reportedGases(calibration)
-            .map((g) => g.gas)
-            .join(', ')} · ${level} prediction intervals`,
-          'subtitle',
-        ),
+    pageHeader(
+      `Quantification report: ${calibration.title ?? fileName(input.calibrationFile)}`,
+      `${entries.length} sample(s) · ${reportedGases(calibration)
+        .map((g) => g.gas)
+        .join(', ')} · ${level} prediction intervals`,
     ),
     cautionBox([...cautions]),
-    element(
-      'section',
-      { id: 'results' },
-      element('h2', {}, 'Results') +
-        table +
+    pageSection(
+      'results',
+      'Results',
+      table +
         paragraph(
           'Flags: below-lod (report as "< LOD"), below-loq, extrapolated (outside the calibrated range), saturated, poor-fit, over-limit (upper end of the interval above a given limit), conditions-far (far from the calibration’s conditions). The notes under each sample say why.',
           'muted',
         ),
     ),
-    element(
-      'section',
-      { id: 'samples' },
-      element('h2', {}, 'Samples') +
-        paragraph(
-          'Each sample’s notes and spectrum plot; open a sample to see them (all open when printed).',
-          'muted',
-        ) +
-        sampleSections.join(''),
+    pageSection(
+      'samples',
+      'Samples',
+      paragraph(
+        'Each sample’s notes and spectrum plot; open a sample to see them (all open when printed).',
+        'muted',
+      ) + sampleSections.join(''),
     ),
-    element(
-      'section',
-      { id: 'provenance' },
-      element('h2', {}, 'Calibration and provenance') + factList(facts),
-    ),
-    element(
-      'footer',
-      {},
-      escapeText(`${input.tool.name} ${input.tool.version} · report made ${input.generatedAt}`),
-    ),
+    pageSection('provenance', 'Calibration and provenance', factList(facts)),
+    pageFooter(`${input.tool.name} ${input.tool.version} · report made ${input.generatedAt}`),
   ];
   return htmlPage({
-    title: `Quantification report: ${input.calibrationFile.replace(/^.*[\\/]/, '')}`,
+    title: `Quantification report: ${fileName(input.calibrationFile)}`,
     body: body.join('\n'),
   });
 }

@@ -16,21 +16,26 @@ import {
   cautionBox,
   factList,
   figure,
+  hashCell,
+  hashValue,
   htmlPage,
   htmlTable,
+  levelText,
   notice,
   numberCell,
+  pageFooter,
+  pageHeader,
+  pageSection,
   paragraph,
   type Cell,
 } from './html-page.js';
-import { element, escapeText, shortNumber, slug } from './svg/markup.js';
+import { element, escapeText, fileName, shortNumber, slug } from './svg/markup.js';
 import { calibrationPlots, controlChartPlot, type NamedPlot, type StandardSpectrum } from './svg/plot-set.js';
 import type { ControlChartInput } from './svg/control-chart.js';
 import {
   clsSection,
   concentrationColumns,
   gasHeading,
-  levelText,
   limitsTable,
   linearityText,
   maybe,
@@ -117,6 +122,7 @@ export interface CalibrationReportOptions {
   level?: number;
 }
 
+/** An ISO time as `YYYY-MM-DD HH:MM` (UTC), or the text as given when it is not a time. */
 function minuteText(iso: string): string {
   const ms = Date.parse(iso);
   return Number.isFinite(ms) ? new Date(ms).toISOString().slice(0, 16).replace('T', ' ') : iso;
@@ -133,8 +139,8 @@ function provenance(input: CalibrationReportInput): string {
   const { calibration } = input;
   const rows = input.inputs.map((check): Cell[] => [
     check.role,
-    { text: check.path, className: 'hash' },
-    { text: check.sha256, className: 'hash' },
+    hashCell(check.path),
+    hashCell(check.sha256),
     `${STATUS_WORDS[check.status]}${check.currentSha256 === undefined ? '' : `; now ${check.currentSha256}`}${check.message === undefined ? '' : `; ${check.message}`}`,
   ]);
   const changed = input.inputs.filter((c) => c.status !== 'unchanged');
@@ -142,8 +148,8 @@ function provenance(input: CalibrationReportInput): string {
     calibration.tool.name === input.tool.name && calibration.tool.version === input.tool.version;
   return (
     factList([
-      ['calibration file', { html: element('span', { class: 'hash' }, escapeText(input.calibrationFile)) }],
-      ['calibration SHA-256', { html: element('span', { class: 'hash' }, escapeText(calibration.sha256)) }],
+      ['calibration file', hashValue(input.calibrationFile)],
+      ['calibration SHA-256', hashValue(calibration.sha256)],
       ['content check', 'the recorded SHA-256 matches the calibration content (verified on load)'],
       ['schema version', calibration.schemaVersion],
       ['built', `${calibration.createdAt} by ${calibration.tool.name} ${calibration.tool.version}`],
@@ -226,7 +232,7 @@ function historySection(
           numberCell(r.recoveryPct === undefined ? 'zero gas' : shown(r.recoveryPct, 5)),
           r.verdict,
           r.rules.join(', '),
-          { text: r.scan, className: 'hash' },
+          hashCell(r.scan),
         ]),
         rowClasses: rows.map((r) => (r.verdict === 'fail' ? 'failed' : undefined)),
       })
@@ -268,7 +274,7 @@ export function calibrationReportHtml(
 ): string {
   const { calibration } = input;
   const level = options.level ?? 0.95;
-  const title = calibration.title ?? input.calibrationFile.replace(/^.*[\\/]/, '');
+  const title = calibration.title ?? fileName(input.calibrationFile);
   const plots = calibrationPlots(calibration, input.spectra, {
     ...options,
     level,
@@ -281,25 +287,19 @@ export function calibrationReportHtml(
   const reference = calibration.reference;
 
   const parts: string[] = [];
+  const gasNames = concentrationColumns(calibration)
+    .map((g) => g.gas)
+    .join(', ');
   parts.push(
-    element(
-      'header',
-      {},
-      element('h1', {}, escapeText(`Calibration report: ${title}`)) +
-        paragraph(
-          `${concentrationColumns(calibration)
-            .map((g) => g.gas)
-            .join(
-              ', ',
-            )} · ${calibration.method.model} method · ${calibration.standards.length} standards · built ${calibration.createdAt}`,
-          'subtitle',
-        ),
+    pageHeader(
+      `Calibration report: ${title}`,
+      `${gasNames} · ${calibration.method.model} method · ${calibration.standards.length} standards · ` +
+        `built ${calibration.createdAt}`,
     ),
   );
   parts.push(cautionBox(calibration.cautions));
-  const gasLinks = calibration.gases.map((g) =>
-    element('li', {}, element('a', { href: `#gas-${slug(g.gas)}` }, escapeText(g.gas))),
-  );
+  const navItem = (target: string, text: string): string =>
+    element('li', {}, element('a', { href: `#${target}` }, escapeText(text)));
   parts.push(
     element(
       'nav',
@@ -308,14 +308,12 @@ export function calibrationReportHtml(
         'ol',
         {},
         [
-          element('li', {}, element('a', { href: '#summary' }, 'Summary')),
-          ...gasLinks,
-          ...(calibration.cls === undefined
-            ? []
-            : [element('li', {}, element('a', { href: '#cls' }, 'Classical least squares'))]),
-          element('li', {}, element('a', { href: '#standards' }, 'Standards')),
-          element('li', {}, element('a', { href: '#rechecks' }, 'Recheck history')),
-          element('li', {}, element('a', { href: '#provenance' }, 'Provenance')),
+          navItem('summary', 'Summary'),
+          ...calibration.gases.map((g) => navItem(`gas-${slug(g.gas)}`, g.gas)),
+          ...(calibration.cls === undefined ? [] : [navItem('cls', 'Classical least squares')]),
+          navItem('standards', 'Standards'),
+          navItem('rechecks', 'Recheck history'),
+          navItem('provenance', 'Provenance'),
         ].join(''),
       ),
     ),
@@ -352,11 +350,10 @@ export function calibrationReportHtml(
       `${g.gas}: ${g.model.mandel === null ? 'linearity not tested (too few standards or levels)' : g.model.mandel.recommendation}; LOD ${maybe(g.model.limits.detection.value, 3)} ${unitLabel(g.unit)}`,
   );
   parts.push(
-    element(
-      'section',
-      { id: 'summary' },
-      element('h2', {}, 'Summary') +
-        factList(summaryFacts) +
+    pageSection(
+      'summary',
+      'Summary',
+      factList(summaryFacts) +
         bulletList(verdicts) +
         (calibration.warnings.length > 0
           ? element('h3', {}, 'Warnings') + bulletList(calibration.warnings)
@@ -392,15 +389,10 @@ export function calibrationReportHtml(
       );
     for (const warning of gas.model.warnings) figures.push(notice(warning));
     parts.push(
-      element(
-        'section',
-        { id: `gas-${name}` },
-        element('h2', {}, escapeText(gas.gas)) +
-          gasHeading(gas) +
-          statisticsTable(gas) +
-          linearityText(gas) +
-          limitsTable(gas) +
-          figures.join(''),
+      pageSection(
+        `gas-${name}`,
+        gas.gas,
+        gasHeading(gas) + statisticsTable(gas) + linearityText(gas) + limitsTable(gas) + figures.join(''),
       ),
     );
   }
@@ -408,11 +400,10 @@ export function calibrationReportHtml(
   if (calibration.cls !== undefined) {
     const spectra = plotFor('standard-spectra.svg');
     parts.push(
-      element(
-        'section',
-        { id: 'cls' },
-        element('h2', {}, 'Classical least squares') +
-          clsSection(calibration) +
+      pageSection(
+        'cls',
+        'Classical least squares',
+        clsSection(calibration) +
           (spectra === undefined
             ? notice('No standard spectrum could be read and verified, so the spectra plot is left out.')
             : figure(
@@ -425,23 +416,14 @@ export function calibrationReportHtml(
 
   const spectrumStatus = (index: number): string =>
     loaded.has(index) ? 'read, hash matches' : calibration.method.model === 'responses' ? '—' : 'not drawn';
-  parts.push(
-    element(
-      'section',
-      { id: 'standards' },
-      element('h2', {}, 'Standards') + standardsTable(calibration, spectrumStatus),
-    ),
-  );
-  parts.push(element('section', { id: 'rechecks' }, element('h2', {}, 'Recheck history') + history.html));
-  parts.push(element('section', { id: 'provenance' }, element('h2', {}, 'Provenance') + provenance(input)));
+  parts.push(pageSection('standards', 'Standards', standardsTable(calibration, spectrumStatus)));
+  parts.push(pageSection('rechecks', 'Recheck history', history.html));
+  parts.push(pageSection('provenance', 'Provenance', provenance(input)));
   parts.push(cautionBox(calibration.cautions, 'safety-end'));
   parts.push(
-    element(
-      'footer',
-      {},
-      escapeText(
-        `${input.tool.name} ${input.tool.version} · report made ${input.generatedAt} · calibration SHA-256 ${calibration.sha256}`,
-      ),
+    pageFooter(
+      `${input.tool.name} ${input.tool.version} · report made ${input.generatedAt} · ` +
+        `calibration SHA-256 ${calibration.sha256}`,
     ),
   );
   return htmlPage({ title: `Calibration report: ${title}`, body: parts.join('\n') });

@@ -15,18 +15,27 @@ import { responseBand } from '../../models/univariate.js';
 import { formatNumber } from '../table.js';
 import {
   clipPath,
+  legendAndPanel,
   linearAxisScale,
   markerPath,
   paddedExtent,
-  panelBottom,
-  renderAxis,
-  renderLegend,
+  panelAxes,
   svgDocument,
   type LegendEntry,
-  type Panel,
+  type PanelAxisSpec,
+  type PlotOptions,
 } from './chart.js';
-import { coordinate, element, escapeText } from './markup.js';
-import { ALERT, INK, INTERVAL_FILL, MUTED, seriesStyle } from './palette.js';
+import { element, escapeText, translate } from './markup.js';
+import {
+  horizontalRule,
+  panelBelow,
+  panelBottom,
+  panelFrame,
+  panelTitle,
+  PLOT_MARGIN,
+  verticalRule,
+} from './panel.js';
+import { ALERT, INK, INTERVAL_FILL, seriesStyle } from './palette.js';
 
 /** One standard on the plot. */
 export interface CurveStandardPoint {
@@ -82,12 +91,8 @@ export interface CalibrationCurvePlotInput {
   curveName?: string;
 }
 
-/** Size and axis options of {@link renderCalibrationCurve}. */
-export interface CalibrationCurveOptions {
-  /** Unique id of the plot in its document (default `calibration-curve`). */
-  id?: string;
-  /** Width, px (default 720). */
-  width?: number;
+/** Size and axis options of {@link renderCalibrationCurve} (default id `calibration-curve`). */
+export interface CalibrationCurveOptions extends PlotOptions {
   /** Height of the curve panel, px (default 300). */
   curveHeight?: number;
   /** Height of the residual panel, px (default 110). */
@@ -99,12 +104,6 @@ export interface CalibrationCurveOptions {
   /** Residual axis [bottom, top], used as given (default: symmetric about 0). */
   residualDomain?: readonly [number, number];
 }
-
-/** Margins around the panels (left: room for tick labels and the rotated axis label), px. */
-export const CURVE_MARGIN = { left: 78, right: 20, bottom: 50 } as const;
-
-/** Vertical gap between the curve panel and the residual panel (tick labels, axis label, panel title), px. */
-export const PANEL_GAP = 74;
 
 /** Concentrations are never negative: when every value is ≥ 0 the axis starts exactly at 0. */
 function startAtZero(extent: [number, number], values: readonly number[]): [number, number] {
@@ -154,7 +153,7 @@ export function calibrationCurveData(
       concentration,
       response: model.data.response[i] as number,
       residual: model.residuals[i] as number,
-      ...(options.standardLabels?.[i] === undefined ? {} : { label: options.standardLabels[i] as string }),
+      ...(options.standardLabels?.[i] === undefined ? {} : { label: options.standardLabels[i] }),
     })),
     curve: band.map((point) => ({
       concentration: point.concentration,
@@ -221,25 +220,9 @@ export function renderCalibrationCurve(
       line: true,
     });
   });
-  const legend = renderLegend(legendEntries, {
-    x: CURVE_MARGIN.left,
-    y: 28,
-    width: width - CURVE_MARGIN.left - CURVE_MARGIN.right,
-  });
-
-  const curvePanel: Panel = {
-    left: CURVE_MARGIN.left,
-    top: 28 + legend.height + 10,
-    width: width - CURVE_MARGIN.left - CURVE_MARGIN.right,
-    height: curveHeight,
-  };
-  const residualPanel: Panel = {
-    left: curvePanel.left,
-    top: panelBottom(curvePanel) + PANEL_GAP,
-    width: curvePanel.width,
-    height: residualHeight,
-  };
-  const height = panelBottom(residualPanel) + CURVE_MARGIN.bottom;
+  const { legend, panel: curvePanel } = legendAndPanel(legendEntries, { width, panelHeight: curveHeight });
+  const residualPanel = panelBelow(curvePanel, residualHeight);
+  const height = panelBottom(residualPanel) + PLOT_MARGIN.bottom;
 
   const concentrationValues = [
     ...input.standards.map((s) => s.concentration),
@@ -278,37 +261,21 @@ export function renderCalibrationCurve(
   const px = (c: number): number => x.scale(c);
   const py = (v: number): number => y.scale(v);
 
-  const body: string[] = [];
-  body.push(
-    element('rect', {
-      class: 'panel-frame',
-      'data-panel': 'curve',
-      x: curvePanel.left,
-      y: curvePanel.top,
-      width: curvePanel.width,
-      height: curvePanel.height,
-      fill: 'none',
-      stroke: 'none',
-    }),
-  );
-  body.push(
-    renderAxis(curvePanel, {
-      side: 'bottom',
-      ticks: x.ticks,
-      position: px,
-      format: x.format,
-      label: `${input.gas} concentration / ${input.unit}`,
-    }),
-  );
-  body.push(
-    renderAxis(curvePanel, {
-      side: 'left',
+  const concentrationAxis: PanelAxisSpec = {
+    ticks: x.ticks,
+    position: px,
+    format: x.format,
+    label: `${input.gas} concentration / ${input.unit}`,
+  };
+  const body: string[] = [
+    panelFrame(curvePanel, 'curve'),
+    panelAxes(curvePanel, concentrationAxis, {
       ticks: y.ticks,
       position: py,
       format: y.format,
       label: input.responseLabel,
     }),
-  );
+  ];
 
   const inside: string[] = [];
   const predictionArea = area<CurveBandPoint>()
@@ -358,20 +325,35 @@ export function renderCalibrationCurve(
   body.push(element('g', { class: 'curve-layer', 'clip-path': `url(#${clipCurve})` }, inside.join('')));
 
   const marker = markerPath(symbolCircle);
-  const standards = input.standards.map((s) =>
+  // Standards and their residuals share one look, so the reader pairs them across the panels.
+  const standardMark = (
+    className: string,
+    standard: CurveStandardPoint,
+    pixelY: number,
+    data: Readonly<Record<string, string>>,
+    children?: string,
+  ): string =>
     element(
       'path',
       {
-        class: 'standard',
+        class: className,
         d: marker,
-        transform: `translate(${coordinate(px(s.concentration))},${coordinate(py(s.response))})`,
-        'data-concentration': String(s.concentration),
-        'data-response': String(s.response),
+        transform: translate(px(standard.concentration), pixelY),
+        'data-concentration': String(standard.concentration),
+        ...data,
         fill: INK,
         'fill-opacity': 0.85,
         stroke: '#ffffff',
         'stroke-width': 0.8,
       },
+      children,
+    );
+  const standards = input.standards.map((s) =>
+    standardMark(
+      'standard',
+      s,
+      py(s.response),
+      { 'data-response': String(s.response) },
       element(
         'title',
         {},
@@ -395,96 +377,34 @@ export function renderCalibrationCurve(
         `${limit.name} = ${formatNumber(limit.value, 4)} ${input.unit}${limit.definition === undefined ? '' : `: ${limit.definition}`}`,
       ),
     );
+    const rule = { colour: style.colour, width: 1.4, dash: style.dash };
     return element(
       'g',
       { class: 'limit-line', 'data-limit': limit.name },
-      element(
-        'line',
-        {
-          x1: lx,
-          x2: lx,
-          y1: curvePanel.top,
-          y2: panelBottom(curvePanel),
-          stroke: style.colour,
-          'stroke-width': 1.4,
-          'stroke-dasharray': style.dash,
-        },
-        tooltip,
-      ) +
-        element('line', {
-          x1: lx,
-          x2: lx,
-          y1: residualPanel.top,
-          y2: panelBottom(residualPanel),
-          stroke: style.colour,
-          'stroke-width': 1.4,
-          'stroke-dasharray': style.dash,
-        }),
+      verticalRule(curvePanel, lx, rule, tooltip) + verticalRule(residualPanel, lx, rule),
     );
   });
   body.push(element('g', { class: 'limits' }, limitLines.join('')));
 
   body.push(
-    element('rect', {
-      class: 'panel-frame',
-      'data-panel': 'residuals',
-      x: residualPanel.left,
-      y: residualPanel.top,
-      width: residualPanel.width,
-      height: residualPanel.height,
-      fill: 'none',
-      stroke: 'none',
-    }),
-  );
-  body.push(
-    renderAxis(residualPanel, {
-      side: 'bottom',
-      ticks: x.ticks,
-      position: px,
-      format: x.format,
-      label: `${input.gas} concentration / ${input.unit}`,
-    }),
-  );
-  body.push(
-    renderAxis(residualPanel, {
-      side: 'left',
+    panelFrame(residualPanel, 'residuals'),
+    panelAxes(residualPanel, concentrationAxis, {
       ticks: r.ticks,
       position: (v) => r.scale(v),
       format: r.format,
       label: 'residual',
       className: 'axis-residual',
     }),
+    panelTitle(residualPanel, 'Residuals (response − fitted) against concentration'),
   );
-  body.push(
-    element(
-      'text',
-      { class: 'panel-title', x: residualPanel.left, y: residualPanel.top - 8, 'font-size': 12, fill: MUTED },
-      escapeText('Residuals (response − fitted) against concentration'),
-    ),
-  );
-  const zero = r.scale(0);
   const residualMarks = [
-    element('line', {
-      class: 'zero-line',
-      x1: residualPanel.left,
-      x2: residualPanel.left + residualPanel.width,
-      y1: zero,
-      y2: zero,
-      stroke: curveStyle.colour,
-      'stroke-width': 1.2,
+    horizontalRule(residualPanel, r.scale(0), {
+      className: 'zero-line',
+      colour: curveStyle.colour,
+      width: 1.2,
     }),
     ...input.standards.map((s) =>
-      element('path', {
-        class: 'residual',
-        d: marker,
-        transform: `translate(${coordinate(px(s.concentration))},${coordinate(r.scale(s.residual))})`,
-        'data-concentration': String(s.concentration),
-        'data-residual': String(s.residual),
-        fill: INK,
-        'fill-opacity': 0.85,
-        stroke: '#ffffff',
-        'stroke-width': 0.8,
-      }),
+      standardMark('residual', s, r.scale(s.residual), { 'data-residual': String(s.residual) }),
     ),
   ];
   body.push(

@@ -1,8 +1,9 @@
 /**
- * The parts every plot is made of: the document element, panels (a plotting rectangle inside
- * margins), axes with ticks, grid and a label that names the quantity and its unit, legends,
- * markers and clip paths. Everything is returned as SVG text; text is real `<text>` elements so it
- * can be selected, searched and read by screen readers, and stays sharp when printed.
+ * The parts every plot is made of: the document element, the layout of legend and panels (the
+ * panels themselves are in `panel.ts`), axes with ticks, grid and a label that names the quantity
+ * and its unit, wavenumber axes, legends, notes, markers and clip paths. Everything is returned as
+ * SVG text; text is real `<text>` elements so it can be selected, searched and read by screen
+ * readers, and stays sharp when printed.
  *
  * Coordinates are in user units equal to CSS pixels at the plot's natural size (the `width` and
  * `height` attributes equal the `viewBox`).
@@ -11,29 +12,24 @@ import { scaleLinear, type ScaleLinear } from 'd3-scale';
 import { symbol, type SymbolType } from 'd3-shape';
 import { BandwrightError } from '../../errors.js';
 import { coordinate, element, escapeText, plainMinus } from './markup.js';
-import { FONT_FAMILY, GRID, INK, MUTED } from './palette.js';
-
-/** A plotting rectangle in SVG user units. */
-export interface Panel {
-  /** Left edge. */
-  left: number;
-  /** Top edge. */
-  top: number;
-  /** Width. */
-  width: number;
-  /** Height. */
-  height: number;
-}
-
-/** Right edge of a panel. */
-export function panelRight(panel: Panel): number {
-  return panel.left + panel.width;
-}
-
-/** Bottom edge of a panel. */
-export function panelBottom(panel: Panel): number {
-  return panel.top + panel.height;
-}
+import {
+  FONT_FAMILY,
+  GRID,
+  INK,
+  LABEL_FONT_SIZE,
+  MUTED,
+  TICK_FONT_SIZE,
+  TITLE_FONT_SIZE,
+} from './palette.js';
+import {
+  horizontalRule,
+  lineSegment,
+  panelBottom,
+  PLOT_MARGIN,
+  verticalRule,
+  type Panel,
+  type RuleStyle,
+} from './panel.js';
 
 /** Axis options shared by {@link renderAxis} callers. */
 export interface AxisSpec {
@@ -55,12 +51,9 @@ export interface AxisSpec {
   hideTickLabels?: boolean;
 }
 
-/** Tick label font size, px. */
-export const TICK_FONT_SIZE = 11;
-/** Axis label font size, px. */
-export const LABEL_FONT_SIZE = 12;
-/** Title font size, px. */
-export const TITLE_FONT_SIZE = 14;
+const DOMAIN_STYLE: RuleStyle = { className: 'domain', colour: INK, width: 1 };
+const GRID_STYLE: RuleStyle = { className: 'grid', colour: GRID, width: 0.6 };
+const TICK_STYLE: RuleStyle = { className: 'tick', colour: INK, width: 1 };
 
 /**
  * Renders an axis with ticks, tick labels, optional grid lines and its label.
@@ -71,153 +64,55 @@ export const TITLE_FONT_SIZE = 14;
  */
 export function renderAxis(panel: Panel, spec: AxisSpec): string {
   const grid = spec.grid ?? true;
-  const parts: string[] = [];
   const bottom = panelBottom(panel);
-  if (spec.side === 'bottom') {
+  const horizontal = spec.side === 'bottom';
+  const parts: string[] = [
+    horizontal ? horizontalRule(panel, bottom, DOMAIN_STYLE) : verticalRule(panel, panel.left, DOMAIN_STYLE),
+  ];
+  for (const value of spec.ticks) {
+    const at = spec.position(value);
+    if (grid)
+      parts.push(horizontal ? verticalRule(panel, at, GRID_STYLE) : horizontalRule(panel, at, GRID_STYLE));
     parts.push(
-      element('line', {
-        class: 'domain',
-        x1: panel.left,
-        x2: panelRight(panel),
-        y1: bottom,
-        y2: bottom,
-        stroke: INK,
-        'stroke-width': 1,
-      }),
+      horizontal
+        ? lineSegment(TICK_STYLE, { x1: at, x2: at, y1: bottom, y2: bottom + 5 })
+        : lineSegment(TICK_STYLE, { x1: panel.left - 5, x2: panel.left, y1: at, y2: at }),
     );
-    for (const value of spec.ticks) {
-      const x = spec.position(value);
-      if (grid)
-        parts.push(
-          element('line', {
-            class: 'grid',
-            x1: x,
-            x2: x,
-            y1: panel.top,
-            y2: bottom,
-            stroke: GRID,
-            'stroke-width': 0.6,
-          }),
-        );
-      parts.push(
-        element('line', {
-          class: 'tick',
-          x1: x,
-          x2: x,
-          y1: bottom,
-          y2: bottom + 5,
-          stroke: INK,
-          'stroke-width': 1,
-        }),
-      );
-      if (!spec.hideTickLabels) {
-        parts.push(
-          element(
-            'text',
-            {
-              class: 'tick-label',
-              x,
-              y: bottom + 8 + TICK_FONT_SIZE * 0.8,
-              'text-anchor': 'middle',
-              'font-size': TICK_FONT_SIZE,
-              fill: MUTED,
-            },
-            escapeText(spec.format(value)),
-          ),
-        );
-      }
-    }
-    if (spec.label !== '') {
+    if (!spec.hideTickLabels) {
+      const place = horizontal
+        ? { x: at, y: bottom + 8 + TICK_FONT_SIZE * 0.8, 'text-anchor': 'middle' }
+        : { x: panel.left - 8, y: at + TICK_FONT_SIZE * 0.35, 'text-anchor': 'end' };
       parts.push(
         element(
           'text',
-          {
-            class: 'axis-label',
-            x: panel.left + panel.width / 2,
-            y: bottom + (spec.hideTickLabels ? 18 : 36),
-            'text-anchor': 'middle',
-            'font-size': LABEL_FONT_SIZE,
-            fill: INK,
-          },
-          escapeText(spec.label),
-        ),
-      );
-    }
-  } else {
-    parts.push(
-      element('line', {
-        class: 'domain',
-        x1: panel.left,
-        x2: panel.left,
-        y1: panel.top,
-        y2: bottom,
-        stroke: INK,
-        'stroke-width': 1,
-      }),
-    );
-    for (const value of spec.ticks) {
-      const y = spec.position(value);
-      if (grid)
-        parts.push(
-          element('line', {
-            class: 'grid',
-            x1: panel.left,
-            x2: panelRight(panel),
-            y1: y,
-            y2: y,
-            stroke: GRID,
-            'stroke-width': 0.6,
-          }),
-        );
-      parts.push(
-        element('line', {
-          class: 'tick',
-          x1: panel.left - 5,
-          x2: panel.left,
-          y1: y,
-          y2: y,
-          stroke: INK,
-          'stroke-width': 1,
-        }),
-      );
-      if (!spec.hideTickLabels) {
-        parts.push(
-          element(
-            'text',
-            {
-              class: 'tick-label',
-              x: panel.left - 8,
-              y: y + TICK_FONT_SIZE * 0.35,
-              'text-anchor': 'end',
-              'font-size': TICK_FONT_SIZE,
-              fill: MUTED,
-            },
-            escapeText(spec.format(value)),
-          ),
-        );
-      }
-    }
-    if (spec.label !== '') {
-      const x = panel.left - 54;
-      const y = panel.top + panel.height / 2;
-      parts.push(
-        element(
-          'text',
-          {
-            class: 'axis-label',
-            x,
-            y,
-            transform: `rotate(-90 ${coordinate(x)} ${coordinate(y)})`,
-            'text-anchor': 'middle',
-            'font-size': LABEL_FONT_SIZE,
-            fill: INK,
-          },
-          escapeText(spec.label),
+          { class: 'tick-label', ...place, 'font-size': TICK_FONT_SIZE, fill: MUTED },
+          escapeText(spec.format(value)),
         ),
       );
     }
   }
-  const axisClass = `axis ${spec.side === 'bottom' ? 'axis-x' : 'axis-y'}${spec.className === undefined ? '' : ` ${spec.className}`}`;
+  if (spec.label !== '') {
+    // The left axis label is turned to run up the side of the panel, centred on it.
+    const x = horizontal ? panel.left + panel.width / 2 : panel.left - 54;
+    const y = horizontal ? bottom + (spec.hideTickLabels ? 18 : 36) : panel.top + panel.height / 2;
+    parts.push(
+      element(
+        'text',
+        {
+          class: 'axis-label',
+          x,
+          y,
+          transform: horizontal ? undefined : `rotate(-90 ${coordinate(x)} ${coordinate(y)})`,
+          'text-anchor': 'middle',
+          'font-size': LABEL_FONT_SIZE,
+          fill: INK,
+        },
+        escapeText(spec.label),
+      ),
+    );
+  }
+  const sideClass = horizontal ? 'axis axis-x' : 'axis axis-y';
+  const axisClass = spec.className === undefined ? sideClass : `${sideClass} ${spec.className}`;
   return element('g', { class: axisClass }, parts.join(''));
 }
 
@@ -394,6 +289,110 @@ export function renderLegend(
     svg: element('g', { class: 'legend' }, parts.join('')),
     height: Math.ceil(entries.length / columns) * LEGEND_ROW,
   };
+}
+
+/** Options every plot takes besides its own. */
+export interface PlotOptions {
+  /** Unique id of the plot in its document, the prefix of every id inside it (default: the plot's kind). */
+  id?: string;
+  /** Width, px (default 720). */
+  width?: number;
+}
+
+/** Top of the legend, under the plot title, px. */
+const LEGEND_TOP = 28;
+
+/**
+ * The top of a plot: the legend under the title, across the width inside the margins, and the
+ * first panel under the legend.
+ *
+ * @param entries - legend entries
+ * @param layout - `width` of the plot, `panelHeight` and the `gap` between legend and panel (default 10), px
+ * @returns the legend (markup and height) and the panel
+ */
+export function legendAndPanel(
+  entries: readonly LegendEntry[],
+  layout: { width: number; panelHeight: number; gap?: number },
+): { legend: { svg: string; height: number }; panel: Panel } {
+  const width = layout.width - PLOT_MARGIN.left - PLOT_MARGIN.right;
+  const legend = renderLegend(entries, { x: PLOT_MARGIN.left, y: LEGEND_TOP, width });
+  return {
+    legend,
+    panel: {
+      left: PLOT_MARGIN.left,
+      top: LEGEND_TOP + legend.height + (layout.gap ?? 10),
+      width,
+      height: layout.panelHeight,
+    },
+  };
+}
+
+/** An axis of {@link panelAxes}: an {@link AxisSpec} without its side. */
+export type PanelAxisSpec = Omit<AxisSpec, 'side'>;
+
+/**
+ * The bottom and the left axis of a panel, in that order.
+ *
+ * @param panel - the panel
+ * @param bottom - the x axis
+ * @param left - the y axis
+ * @returns two `<g class="axis …">` elements
+ */
+export function panelAxes(panel: Panel, bottom: PanelAxisSpec, left: PanelAxisSpec): string {
+  return renderAxis(panel, { side: 'bottom', ...bottom }) + renderAxis(panel, { side: 'left', ...left });
+}
+
+/** Distance between the baselines of notes under a plot, px. */
+export const NOTE_LINE_HEIGHT = 15;
+
+/**
+ * Notes in lines under a panel's x axis (the plot's height must leave room for them).
+ *
+ * @param panel - the lowest panel of the plot
+ * @param notes - plain text, one line each
+ * @param spacing - `gap` under the bottom margin to the first baseline (default 4) and `lineHeight`
+ *   (default {@link NOTE_LINE_HEIGHT}), px
+ * @returns one `plot-note` text element per note
+ */
+export function notesBelow(
+  panel: Panel,
+  notes: readonly string[],
+  spacing: { gap: number; lineHeight: number } = { gap: 4, lineHeight: NOTE_LINE_HEIGHT },
+): string[] {
+  const top = panelBottom(panel) + PLOT_MARGIN.bottom + spacing.gap;
+  return notes.map((note, i) => noteText(panel.left, top + i * spacing.lineHeight, note));
+}
+
+/** Direction of a wavenumber axis. */
+export type WavenumberAxis = 'descending' | 'ascending';
+
+/**
+ * A wavenumber axis over a panel's width: high wavenumbers on the left for `descending` (the usual
+ * infrared layout), 8 ticks, the range used as given.
+ *
+ * @param range - [low, high], cm⁻¹
+ * @param panel - the panel
+ * @param direction - axis direction
+ */
+export function wavenumberScale(
+  range: readonly [number, number],
+  panel: Panel,
+  direction: WavenumberAxis,
+): LinearAxisScale {
+  return linearAxisScale(
+    direction === 'descending' ? [range[1], range[0]] : range,
+    [panel.left, panel.left + panel.width],
+    { nice: false, tickCount: 8 },
+  );
+}
+
+/**
+ * The label of a wavenumber axis, saying which way it runs.
+ *
+ * @param direction - axis direction
+ */
+export function wavenumberAxisLabel(direction: WavenumberAxis): string {
+  return `wavenumber / cm⁻¹ (${direction === 'descending' ? 'decreasing to the right' : 'increasing to the right'})`;
 }
 
 /**

@@ -15,7 +15,7 @@ import { BandwrightError } from '../../errors.js';
 import { densityPathFactor, type CellConditions } from '../../gas/conditions.js';
 import { predictCls } from '../../models/cls.js';
 import type { Spectrum } from '../../spectrum/spectrum.js';
-import type { ClsContribution, ClsFitPlotInput } from './cls-fit.js';
+import type { ClsFitPlotInput } from './cls-fit.js';
 
 /**
  * Builds the CLS fit plot input for one sample.
@@ -78,7 +78,7 @@ export function clsFitData(
     grid,
     measured,
     fitted,
-    contributions: contributions as ClsContribution[],
+    contributions,
     residual: prediction.residual,
     regions: cls.regions,
     residualRms: prediction.residualRms,

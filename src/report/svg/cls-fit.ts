@@ -14,19 +14,30 @@ import { BandwrightError } from '../../errors.js';
 import { formatNumber } from '../table.js';
 import {
   clipPath,
+  legendAndPanel,
   linearAxisScale,
-  noteText,
+  NOTE_LINE_HEIGHT,
+  notesBelow,
   paddedExtent,
-  panelBottom,
-  renderAxis,
-  renderLegend,
+  panelAxes,
   svgDocument,
+  wavenumberAxisLabel,
+  wavenumberScale,
   type LegendEntry,
-  type Panel,
+  type PlotOptions,
+  type WavenumberAxis,
 } from './chart.js';
-import { element, escapeText } from './markup.js';
-import { BASELINE_FILL, INK, MUTED, seriesStyle } from './palette.js';
-import type { WavenumberAxis } from './spectra.js';
+import { element } from './markup.js';
+import { BASELINE_FILL, INK, seriesStyle } from './palette.js';
+import {
+  horizontalRule,
+  panelBelow,
+  panelBottom,
+  panelFrame,
+  panelTitle,
+  PLOT_MARGIN,
+  windowRect,
+} from './panel.js';
 
 /** One component's share of the fitted spectrum. */
 export interface ClsContribution {
@@ -62,12 +73,8 @@ export interface ClsFitPlotInput {
   notes?: readonly string[];
 }
 
-/** Size and axis options of {@link renderClsFit}. */
-export interface ClsFitOptions {
-  /** Unique id (default `cls-fit`). */
-  id?: string;
-  /** Width, px (default 720). */
-  width?: number;
+/** Size and axis options of {@link renderClsFit} (default id `cls-fit`). */
+export interface ClsFitOptions extends PlotOptions {
   /** Fit panel height, px (default 260). */
   fitHeight?: number;
   /** Residual panel height, px (default 110). */
@@ -75,8 +82,6 @@ export interface ClsFitOptions {
   /** Wavenumber axis direction (default `descending`). */
   wavenumberAxis?: WavenumberAxis;
 }
-
-const MARGIN = { left: 78, right: 20, bottom: 50 } as const;
 
 /** Breaks lines at gaps: returns indices after which a gap wider than 3 median spacings follows. */
 function gapsAfter(grid: ArrayLike<number>): Set<number> {
@@ -145,33 +150,17 @@ export function renderClsFit(input: ClsFitPlotInput, options: ClsFitOptions = {}
   ];
   if ((input.regions ?? []).length > 0)
     legendEntries.push({ label: 'fit regions', colour: BASELINE_FILL, area: 0.08 });
-  const legend = renderLegend(legendEntries, {
-    x: MARGIN.left,
-    y: 28,
-    width: width - MARGIN.left - MARGIN.right,
+  const { legend, panel: fitPanel } = legendAndPanel(legendEntries, {
+    width,
+    panelHeight: options.fitHeight ?? 260,
   });
-  const fitPanel: Panel = {
-    left: MARGIN.left,
-    top: 28 + legend.height + 10,
-    width: width - MARGIN.left - MARGIN.right,
-    height: options.fitHeight ?? 260,
-  };
-  const residualPanel: Panel = {
-    left: fitPanel.left,
-    top: panelBottom(fitPanel) + 74,
-    width: fitPanel.width,
-    height: options.residualHeight ?? 110,
-  };
+  const residualPanel = panelBelow(fitPanel, options.residualHeight ?? 110);
   const notes = input.notes ?? [];
-  const height = panelBottom(residualPanel) + MARGIN.bottom + notes.length * 15;
+  const height = panelBottom(residualPanel) + PLOT_MARGIN.bottom + notes.length * NOTE_LINE_HEIGHT;
 
   const n = input.grid.length;
   const range: [number, number] = n === 0 ? [0, 1] : [input.grid[0] as number, input.grid[n - 1] as number];
-  const x = linearAxisScale(
-    direction === 'descending' ? [range[1], range[0]] : range,
-    [fitPanel.left, fitPanel.left + fitPanel.width],
-    { nice: false, tickCount: 8 },
-  );
+  const x = wavenumberScale(range, fitPanel, direction);
   const y = linearAxisScale(
     paddedExtent([input.measured, input.fitted, ...input.contributions.map((c) => c.values)], { pad: 0.05 }),
     [panelBottom(fitPanel), fitPanel.top],
@@ -195,7 +184,7 @@ export function renderClsFit(input: ClsFitPlotInput, options: ClsFitOptions = {}
   }
   const trace = (values: ArrayLike<number>, scale: (v: number) => number): string =>
     line<number>()
-      .defined((i) => i >= 0 && Number.isFinite(values[i] as number))
+      .defined((i) => i >= 0 && Number.isFinite(values[i]))
       .x((i) => px(input.grid[i] as number))
       .y((i) => scale(values[i] as number))
       .digits(2)(withBreaks) ?? '';
@@ -204,59 +193,29 @@ export function renderClsFit(input: ClsFitPlotInput, options: ClsFitOptions = {}
   const clipResidual = `${id}-clip-residual`;
   const defs = clipPath(clipFit, fitPanel) + clipPath(clipResidual, residualPanel);
   const body: string[] = [];
-  const regions = (input.regions ?? []).map((region) => {
-    const a = px(region[0]);
-    const b = px(region[1]);
-    return [fitPanel, residualPanel]
-      .map((panel) =>
-        element(
-          'rect',
-          {
-            class: 'region',
-            'data-low': String(region[0]),
-            'data-high': String(region[1]),
-            x: Math.min(a, b),
-            y: panel.top,
-            width: Math.abs(b - a),
-            height: panel.height,
-            fill: BASELINE_FILL,
-            'fill-opacity': 0.08,
-          },
-          element('title', {}, escapeText(`fit region ${formatWindow(region)}`)),
-        ),
-      )
-      .join('');
-  });
-  body.push(element('g', { class: 'regions' }, regions.join('')));
-  body.push(
-    element('rect', {
-      class: 'panel-frame',
-      'data-panel': 'fit',
-      x: fitPanel.left,
-      y: fitPanel.top,
-      width: fitPanel.width,
-      height: fitPanel.height,
-      fill: 'none',
-      stroke: 'none',
-    }),
+  const regions = (input.regions ?? []).flatMap((region) =>
+    [fitPanel, residualPanel].map((panel) =>
+      windowRect(panel, region, px, {
+        className: 'region',
+        fill: BASELINE_FILL,
+        opacity: 0.08,
+        label: `fit region ${formatWindow(region)}`,
+      }),
+    ),
   );
   body.push(
-    renderAxis(fitPanel, {
-      side: 'bottom',
-      ticks: x.ticks,
-      position: px,
-      format: x.format,
-      label: `wavenumber / cm⁻¹ (${direction === 'descending' ? 'decreasing to the right' : 'increasing to the right'})`,
-    }),
-  );
-  body.push(
-    renderAxis(fitPanel, {
-      side: 'left',
-      ticks: y.ticks,
-      position: (v) => y.scale(v),
-      format: y.format,
-      label: 'absorbance (decadic) / AU',
-    }),
+    element('g', { class: 'regions' }, regions.join('')),
+    panelFrame(fitPanel, 'fit'),
+    panelAxes(
+      fitPanel,
+      { ticks: x.ticks, position: px, format: x.format, label: wavenumberAxisLabel(direction) },
+      {
+        ticks: y.ticks,
+        position: (v) => y.scale(v),
+        format: y.format,
+        label: 'absorbance (decadic) / AU',
+      },
+    ),
   );
   const fitLines = [
     ...input.contributions.map((c, i) =>
@@ -289,60 +248,32 @@ export function renderClsFit(input: ClsFitPlotInput, options: ClsFitOptions = {}
   body.push(element('g', { class: 'fit-layer', 'clip-path': `url(#${clipFit})` }, fitLines.join('')));
 
   body.push(
-    element('rect', {
-      class: 'panel-frame',
-      'data-panel': 'residual',
-      x: residualPanel.left,
-      y: residualPanel.top,
-      width: residualPanel.width,
-      height: residualPanel.height,
-      fill: 'none',
-      stroke: 'none',
-    }),
-  );
-  body.push(
-    renderAxis(residualPanel, {
-      side: 'bottom',
-      ticks: x.ticks,
-      position: px,
-      format: x.format,
-      label: 'wavenumber / cm⁻¹',
-    }),
-  );
-  body.push(
-    renderAxis(residualPanel, {
-      side: 'left',
-      ticks: r.ticks,
-      position: (v) => r.scale(v),
-      format: r.format,
-      label: 'residual / AU',
-      className: 'axis-residual',
-    }),
+    panelFrame(residualPanel, 'residual'),
+    panelAxes(
+      residualPanel,
+      { ticks: x.ticks, position: px, format: x.format, label: 'wavenumber / cm⁻¹' },
+      {
+        ticks: r.ticks,
+        position: (v) => r.scale(v),
+        format: r.format,
+        label: 'residual / AU',
+        className: 'axis-residual',
+      },
+    ),
   );
   const rmsText =
     input.residualRms === undefined
       ? ''
       : `: RMS ${formatNumber(input.residualRms, 3)} AU${input.calibrationResidualRms === undefined ? '' : ` (calibration ${formatNumber(input.calibrationResidualRms, 3)} AU)`}`;
   body.push(
-    element(
-      'text',
-      { class: 'panel-title', x: residualPanel.left, y: residualPanel.top - 8, 'font-size': 12, fill: MUTED },
-      escapeText(`Residual (measured − fitted)${rmsText}`),
-    ),
-  );
-  const zero = r.scale(0);
-  body.push(
+    panelTitle(residualPanel, `Residual (measured − fitted)${rmsText}`),
     element(
       'g',
       { class: 'residual-layer', 'clip-path': `url(#${clipResidual})` },
-      element('line', {
-        class: 'zero-line',
-        x1: residualPanel.left,
-        x2: residualPanel.left + residualPanel.width,
-        y1: zero,
-        y2: zero,
-        stroke: fittedStyle.colour,
-        'stroke-width': 1,
+      horizontalRule(residualPanel, r.scale(0), {
+        className: 'zero-line',
+        colour: fittedStyle.colour,
+        width: 1,
       }) +
         element('path', {
           class: 'residual-spectrum',
@@ -352,9 +283,7 @@ export function renderClsFit(input: ClsFitPlotInput, options: ClsFitOptions = {}
           'stroke-width': 1,
         }),
     ),
-  );
-  notes.forEach((note, i) =>
-    body.push(noteText(residualPanel.left, panelBottom(residualPanel) + MARGIN.bottom + 4 + i * 15, note)),
+    ...notesBelow(residualPanel, notes),
   );
   body.push(legend.svg);
   return svgDocument({

@@ -13,18 +13,26 @@ import { BandwrightError } from '../../errors.js';
 import { formatNumber } from '../table.js';
 import {
   clipPath,
+  legendAndPanel,
   linearAxisScale,
   markerPath,
+  notesBelow,
   noteText,
-  panelBottom,
-  renderAxis,
-  renderLegend,
+  panelAxes,
   svgDocument,
   type LegendEntry,
-  type Panel,
+  type PlotOptions,
 } from './chart.js';
-import { coordinate, element, escapeText, shortNumber } from './markup.js';
+import { element, escapeText, shortNumber, translate } from './markup.js';
 import { ALERT, INK, MUTED, seriesStyle } from './palette.js';
+import {
+  horizontalRule,
+  panelBottom,
+  panelFrame,
+  PLOT_MARGIN,
+  verticalRule,
+  type RuleStyle,
+} from './panel.js';
 
 /** Verdict of one check. */
 export type CheckVerdict = 'pass' | 'warning' | 'fail';
@@ -81,19 +89,13 @@ export interface ControlChartInput {
   nextDue?: string;
 }
 
-/** Size options of {@link renderControlChart}. */
-export interface ControlChartOptions {
-  /** Unique id (default `control-chart`). */
-  id?: string;
-  /** Width, px (default 720). */
-  width?: number;
+/** Size options of {@link renderControlChart} (default id `control-chart`). */
+export interface ControlChartOptions extends PlotOptions {
   /** Panel height, px (default 280). */
   panelHeight?: number;
   /** Recovery axis [bottom, top], %, used as given (default: limits and data with a margin). */
   recoveryDomain?: readonly [number, number];
 }
-
-const MARGIN = { left: 78, right: 20, bottom: 50 } as const;
 
 /** Splits text into lines of at most `width` characters at spaces (a longer word stays whole). */
 export function wrapWords(text: string, width: number): string[] {
@@ -194,24 +196,19 @@ export function renderControlChart(input: ControlChartInput, options: ControlCha
       lineWidth: 2,
     });
   }
-  const legend = renderLegend(legendEntries, {
-    x: MARGIN.left,
-    y: 28,
-    width: width - MARGIN.left - MARGIN.right,
+  // The strip between legend and panel holds the labels of the control rules that fired.
+  const { legend, panel } = legendAndPanel(legendEntries, {
+    width,
+    panelHeight: options.panelHeight ?? 280,
+    gap: 36,
   });
-  const panel: Panel = {
-    left: MARGIN.left,
-    top: 28 + legend.height + 36,
-    width: width - MARGIN.left - MARGIN.right,
-    height: options.panelHeight ?? 280,
-  };
   const footnotes: string[] = [];
   const crossing = input.trend?.leavesToleranceAt;
   const sigmaLines = [
-    ...wrapWords(`σ: ${input.sigmaSource}`, Math.floor((width - MARGIN.left - MARGIN.right) / 6.2)),
+    ...wrapWords(`σ: ${input.sigmaSource}`, Math.floor(panel.width / 6.2)),
     ...(crossing === undefined || crossing === null ? [] : ['']),
   ];
-  const height = panelBottom(panel) + MARGIN.bottom + 8 + 14 * sigmaLines.length;
+  const height = panelBottom(panel) + PLOT_MARGIN.bottom + 8 + 14 * sigmaLines.length;
 
   const times = records.map((r) => r.at);
   if (input.trend !== undefined) times.push(timeOf(input.trend.projectUntil, 'trend.projectUntil'));
@@ -248,111 +245,53 @@ export function renderControlChart(input: ControlChartInput, options: ControlCha
   const clip = `${id}-clip`;
   const defs = clipPath(clip, panel);
 
-  const body: string[] = [];
-  body.push(
-    element('rect', {
-      class: 'panel-frame',
-      x: panel.left,
-      y: panel.top,
-      width: panel.width,
-      height: panel.height,
-      fill: 'none',
-      stroke: 'none',
-    }),
-  );
-  body.push(
-    renderAxis(panel, {
-      side: 'bottom',
-      ticks: timeTicks.map((t) => t.getTime()),
-      position: px,
-      format: timeFormatter(timeTicks),
-      label: 'check time (UTC)',
-    }),
-  );
-  body.push(
-    renderAxis(panel, {
-      side: 'left',
-      ticks: y.ticks,
-      position: py,
-      format: y.format,
-      label: 'recovery / %',
-    }),
-  );
-
-  const horizontal = (
-    value: number,
-    className: string,
-    colour: string,
-    dash: string | undefined,
-    widthPx: number,
-    label: string,
-  ): string => {
-    const yy = py(value);
-    return element(
-      'line',
+  const body: string[] = [
+    panelFrame(panel),
+    panelAxes(
+      panel,
       {
-        class: className,
-        'data-value': String(value),
-        x1: panel.left,
-        x2: panel.left + panel.width,
-        y1: yy,
-        y2: yy,
-        stroke: colour,
-        'stroke-width': widthPx,
-        'stroke-dasharray': dash,
+        ticks: timeTicks.map((t) => t.getTime()),
+        position: px,
+        format: timeFormatter(timeTicks),
+        label: 'check time (UTC)',
       },
+      { ticks: y.ticks, position: py, format: y.format, label: 'recovery / %' },
+    ),
+  ];
+
+  const horizontal = (value: number, style: RuleStyle, label: string): string =>
+    horizontalRule(
+      panel,
+      py(value),
+      { ...style, data: { 'data-value': String(value) } },
       element('title', {}, escapeText(label)),
     );
-  };
+  // A limit on both sides of the centre line; `sign` is the sign its hover text starts with.
+  const bothSides = (offset: number, style: RuleStyle, label: (sign: '+' | '-') => string): string[] => [
+    horizontal(c + offset, style, label('+')),
+    horizontal(c - offset, style, label('-')),
+  ];
+  const toleranceStyle: RuleStyle = { className: 'tolerance-line', colour: ALERT, width: 2 };
   const lines = [
-    horizontal(c, 'centre-line', INK, undefined, 1, `certified value ${formatNumber(c, 4)} %`),
     horizontal(
-      c + input.tolerancePct,
-      'tolerance-line',
-      ALERT,
-      undefined,
-      2,
-      `tolerance +${shortNumber(input.tolerancePct)} %`,
+      c,
+      { className: 'centre-line', colour: INK, width: 1 },
+      `certified value ${formatNumber(c, 4)} %`,
     ),
-    horizontal(
-      c - input.tolerancePct,
-      'tolerance-line',
-      ALERT,
-      undefined,
-      2,
-      `tolerance -${shortNumber(input.tolerancePct)} %`,
+    ...bothSides(
+      input.tolerancePct,
+      toleranceStyle,
+      (sign) => `tolerance ${sign}${shortNumber(input.tolerancePct)} %`,
     ),
-    horizontal(
-      c + 2 * input.sigmaPct,
-      'warning-line',
-      warningStyle.colour,
-      warningStyle.dash,
-      1.3,
-      `+2σ warning limit (${input.sigmaSource})`,
+    ...bothSides(
+      2 * input.sigmaPct,
+      { className: 'warning-line', ...warningStyle, width: 1.3 },
+      (sign) => `${sign}2σ warning limit (${input.sigmaSource})`,
     ),
-    horizontal(
-      c - 2 * input.sigmaPct,
-      'warning-line',
-      warningStyle.colour,
-      warningStyle.dash,
-      1.3,
-      `-2σ warning limit (${input.sigmaSource})`,
-    ),
-    horizontal(
-      c + 3 * input.sigmaPct,
-      'action-line',
-      actionStyle.colour,
-      actionStyle.dash,
-      1.3,
-      `+3σ action limit (${input.sigmaSource})`,
-    ),
-    horizontal(
-      c - 3 * input.sigmaPct,
-      'action-line',
-      actionStyle.colour,
-      actionStyle.dash,
-      1.3,
-      `-3σ action limit (${input.sigmaSource})`,
+    ...bothSides(
+      3 * input.sigmaPct,
+      { className: 'action-line', ...actionStyle, width: 1.3 },
+      (sign) => `${sign}3σ action limit (${input.sigmaSource})`,
     ),
   ];
   body.push(element('g', { class: 'limits', 'clip-path': `url(#${clip})` }, lines.join('')));
@@ -402,7 +341,7 @@ export function renderControlChart(input: ControlChartInput, options: ControlCha
             'path',
             {
               d: markerPath(symbolDiamond, 70),
-              transform: `translate(${coordinate(lx)},${coordinate(ly)})`,
+              transform: translate(lx, ly),
               fill: '#ffffff',
               stroke: trendStyle.colour,
               'stroke-width': 1.6,
@@ -470,7 +409,7 @@ export function renderControlChart(input: ControlChartInput, options: ControlCha
           'data-recovery': String(record.recoveryPct),
           'data-time': record.time,
           d: markerPath(shape, record.verdict === 'pass' ? 42 : 64),
-          transform: `translate(${coordinate(cx)},${coordinate(cy)})`,
+          transform: translate(cx, cy),
           fill: colour,
           stroke: '#ffffff',
           'stroke-width': 0.8,
@@ -486,15 +425,7 @@ export function renderControlChart(input: ControlChartInput, options: ControlCha
       element(
         'g',
         { class: 'next-due' },
-        element('line', {
-          x1: dx,
-          x2: dx,
-          y1: panel.top,
-          y2: panelBottom(panel),
-          stroke: MUTED,
-          'stroke-width': 1,
-          'stroke-dasharray': '1 3',
-        }) +
+        verticalRule(panel, dx, { colour: MUTED, width: 1, dash: '1 3' }) +
           element(
             'text',
             { x: dx, y: panel.top + 12, 'text-anchor': 'middle', 'font-size': 10, fill: MUTED },
@@ -505,9 +436,7 @@ export function renderControlChart(input: ControlChartInput, options: ControlCha
   }
   if (records.length === 0) body.push(noteText(panel.left + 10, panel.top + 20, 'no rechecks recorded yet'));
   const noteLines = [...sigmaLines.filter((l) => l !== ''), ...footnotes];
-  noteLines.forEach((text, i) =>
-    body.push(noteText(panel.left, panelBottom(panel) + MARGIN.bottom + 10 + 14 * i, text)),
-  );
+  body.push(...notesBelow(panel, noteLines, { gap: 10, lineHeight: 14 }));
   body.push(legend.svg);
 
   const fired = records.filter((r) => r.rules.length > 0).length;

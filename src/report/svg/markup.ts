@@ -70,6 +70,17 @@ export function coordinate(value: number): string {
   return String(rounded === 0 ? 0 : rounded);
 }
 
+/**
+ * An SVG `transform` that moves a shape drawn around (0, 0), such as a marker, to a point.
+ *
+ * @param x - px
+ * @param y - px
+ * @returns e.g. `translate(12.5,40)`
+ */
+export function translate(x: number, y: number): string {
+  return `translate(${coordinate(x)},${coordinate(y)})`;
+}
+
 /** The minus sign every plot and report uses in numbers: ASCII hyphen-minus, like the text tables. */
 export const MINUS = '-';
 
@@ -93,6 +104,16 @@ export function plainMinus(text: string): string {
 export function slug(text: string): string {
   const cleaned = text.replace(/[^A-Za-z0-9._-]+/g, '-').replace(/^[-.]+|-+$/g, '');
   return cleaned === '' ? 'plot' : cleaned;
+}
+
+/**
+ * The last part of a path, after its last `/` or `\` (either separator, whichever system wrote it).
+ *
+ * @param path - a file path as the user named it
+ * @returns e.g. `lab-co.calibration.json` for `calibrations/lab-co.calibration.json`
+ */
+export function fileName(path: string): string {
+  return path.replace(/^.*[\\/]/, '');
 }
 
 /**

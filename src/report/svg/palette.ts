@@ -1,5 +1,5 @@
 /**
- * Colours, dash patterns and marker shapes of every plot.
+ * Colours, dash patterns, marker shapes and type sizes of every plot.
  *
  * The series colours were chosen for this project (DEVELOPERS.md "Plots" says how): a greedy
  * search over sRGB colours for the set whose smallest pairwise CIELAB ΔE*ab stays large in normal
@@ -115,3 +115,10 @@ export function seriesStyle(index: number): SeriesStyle {
 
 /** Font stack of all plot text: installed sans-serif faces only, no web fonts. */
 export const FONT_FAMILY = "system-ui, 'DejaVu Sans', 'Liberation Sans', Arial, sans-serif";
+
+/** Tick label font size, px. */
+export const TICK_FONT_SIZE = 11;
+/** Axis label and panel title font size, px. */
+export const LABEL_FONT_SIZE = 12;
+/** Title font size, px. */
+export const TITLE_FONT_SIZE = 14;

@@ -10,7 +10,7 @@ import { clsFitData } from './cls-data.js';
 import { calibrationCurveData, renderCalibrationCurve } from './calibration-curve.js';
 import { renderClsFit, type ClsFitPlotInput } from './cls-fit.js';
 import { renderControlChart, type ControlChartInput } from './control-chart.js';
-import { slug } from './markup.js';
+import { fileName, slug } from './markup.js';
 import {
   clsStandardsSpectraData,
   concentrationGroup,
@@ -65,12 +65,12 @@ export function calibrationPlots(
   options: PlotSetOptions & { spectraNotes?: readonly string[] } = {},
 ): NamedPlot[] {
   const prefix = options.idPrefix ?? 'plot';
+  const axis = wavenumberAxisOption(options);
+  const notes = options.spectraNotes === undefined ? {} : { notes: options.spectraNotes };
+  const labels = calibration.standards.map((_, index) => standardLabel(calibration, index));
   const plots: NamedPlot[] = [];
   calibration.gases.forEach((gas, g) => {
     const name = slug(gas.gas);
-    const labels = calibration.standards.map(
-      (s) => `${s.scan}${s.lot === undefined ? '' : `, lot ${s.lot}`}`,
-    );
     const curveData = calibrationCurveData(gas, {
       ...(options.level === undefined ? {} : { level: options.level }),
       standardLabels: labels,
@@ -84,15 +84,10 @@ export function calibrationPlots(
       plots.push({
         file: `${name}-standard-spectra.svg`,
         title: `${gas.gas} standards: spectra, band and baseline windows`,
-        svg: renderSpectra(
-          gasSpectraData(gas, standardSeries(calibration, gas, spectra), {
-            ...(options.spectraNotes === undefined ? {} : { notes: options.spectraNotes }),
-          }),
-          {
-            id: `${prefix}-${g}-spectra`,
-            ...(options.wavenumberAxis === undefined ? {} : { wavenumberAxis: options.wavenumberAxis }),
-          },
-        ),
+        svg: renderSpectra(gasSpectraData(gas, standardSeries(calibration, gas, spectra), notes), {
+          id: `${prefix}-${g}-spectra`,
+          ...axis,
+        }),
       });
     }
   });
@@ -111,27 +106,29 @@ export function calibrationPlots(
                   `${c.name} ${concentrationGroup(standard?.concentrations[c.name] as number, c.unit as ConcentrationUnit)}`,
               )
               .join(', ');
-      return {
-        label: `${standard?.scan ?? `standard ${index + 1}`}${standard?.lot === undefined ? '' : `, lot ${standard.lot}`}`,
-        spectrum,
-        group,
-      };
+      return { label: standardLabel(calibration, index), spectrum, group };
     });
     plots.push({
       file: 'standard-spectra.svg',
       title: 'Standards: spectra over the fit regions',
-      svg: renderSpectra(
-        clsStandardsSpectraData(calibration, labelled, {
-          ...(options.spectraNotes === undefined ? {} : { notes: options.spectraNotes }),
-        }),
-        {
-          id: `${prefix}-cls-spectra`,
-          ...(options.wavenumberAxis === undefined ? {} : { wavenumberAxis: options.wavenumberAxis }),
-        },
-      ),
+      svg: renderSpectra(clsStandardsSpectraData(calibration, labelled, notes), {
+        id: `${prefix}-cls-spectra`,
+        ...axis,
+      }),
     });
   }
   return plots;
+}
+
+/** How a standard is named on plots: its scan, and its lot when it has one. */
+function standardLabel(calibration: Calibration, index: number): string {
+  const standard = calibration.standards[index];
+  return `${standard?.scan ?? `standard ${index + 1}`}${standard?.lot === undefined ? '' : `, lot ${standard.lot}`}`;
+}
+
+/** The axis direction as a plot option, left out when not given so the plot's default holds. */
+function wavenumberAxisOption(options: PlotSetOptions): { wavenumberAxis?: WavenumberAxis } {
+  return options.wavenumberAxis === undefined ? {} : { wavenumberAxis: options.wavenumberAxis };
 }
 
 function standardSeries(
@@ -143,7 +140,7 @@ function standardSeries(
     const standard = calibration.standards[index];
     const value = standard?.concentrations[gas.gas];
     return {
-      label: `${standard?.scan ?? `standard ${index + 1}`}${standard?.lot === undefined ? '' : `, lot ${standard.lot}`}`,
+      label: standardLabel(calibration, index),
       spectrum,
       group: value === undefined ? 'unknown concentration' : concentrationGroup(value, gas.unit),
     };
@@ -168,8 +165,8 @@ export function samplePlots(
   options: PlotSetOptions = {},
 ): NamedPlot[] {
   const prefix = options.idPrefix ?? 'plot';
-  const base = slug(sample.scan.replace(/^.*[\\/]/, '').replace(/\.[^.]*$/, ''));
-  const axis = options.wavenumberAxis === undefined ? {} : { wavenumberAxis: options.wavenumberAxis };
+  const base = slug(fileName(sample.scan).replace(/\.[^.]*$/, ''));
+  const axis = wavenumberAxisOption(options);
   const plots: NamedPlot[] = [];
   const cls =
     sample.cls ??

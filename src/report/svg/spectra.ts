@@ -19,18 +19,23 @@ import { formatNumber } from '../table.js';
 import {
   clipPath,
   hatchPattern,
+  legendAndPanel,
   linearAxisScale,
+  NOTE_LINE_HEIGHT,
+  notesBelow,
   noteText,
   paddedExtent,
-  panelBottom,
-  renderAxis,
-  renderLegend,
+  panelAxes,
   svgDocument,
+  wavenumberAxisLabel,
+  wavenumberScale,
   type LegendEntry,
-  type Panel,
+  type PlotOptions,
+  type WavenumberAxis,
 } from './chart.js';
 import { element, escapeText } from './markup.js';
 import { BAND_FILL, BASELINE_FILL, MUTED, seriesStyle } from './palette.js';
+import { panelBottom, panelFrame, PLOT_MARGIN, windowRect } from './panel.js';
 
 /** One spectrum to draw. */
 export interface SpectrumSeries {
@@ -74,12 +79,8 @@ export interface SpectraPlotInput {
   notes?: readonly string[];
 }
 
-/** Size and axis options of {@link renderSpectra}. */
-export interface SpectraOptions {
-  /** Unique id of the plot in its document (default `spectra`). */
-  id?: string;
-  /** Width, px (default 720). */
-  width?: number;
+/** Size and axis options of {@link renderSpectra} (default id `spectra`). */
+export interface SpectraOptions extends PlotOptions {
   /** Panel height, px (default 300). */
   panelHeight?: number;
   /** Wavenumber axis direction: `descending` (high wavenumbers on the left, the usual IR layout; default) or `ascending`. */
@@ -90,11 +91,7 @@ export interface SpectraOptions {
   absorbanceDomain?: readonly [number, number];
 }
 
-/** Direction of a wavenumber axis. */
-export type WavenumberAxis = 'descending' | 'ascending';
-
-/** Margins, px. */
-export const SPECTRA_MARGIN = { left: 78, right: 20, bottom: 50 } as const;
+export type { WavenumberAxis } from './chart.js';
 
 /**
  * Index range [first, end) of the points of ascending `x` inside [low, high], widened by one point
@@ -208,19 +205,9 @@ export function renderSpectra(input: SpectraPlotInput, options: SpectraOptions =
       line: true,
       lineWidth: 1.2,
     });
-  const legend = renderLegend(legendEntries, {
-    x: SPECTRA_MARGIN.left,
-    y: 28,
-    width: width - SPECTRA_MARGIN.left - SPECTRA_MARGIN.right,
-  });
-  const panel: Panel = {
-    left: SPECTRA_MARGIN.left,
-    top: 28 + legend.height + 10,
-    width: width - SPECTRA_MARGIN.left - SPECTRA_MARGIN.right,
-    height: panelHeight,
-  };
+  const { legend, panel } = legendAndPanel(legendEntries, { width, panelHeight });
   const notes = input.notes ?? [];
-  const height = panelBottom(panel) + SPECTRA_MARGIN.bottom + notes.length * 15;
+  const height = panelBottom(panel) + PLOT_MARGIN.bottom + notes.length * NOTE_LINE_HEIGHT;
 
   let range: [number, number];
   if (options.range !== undefined) range = [options.range[0], options.range[1]];
@@ -241,11 +228,7 @@ export function renderSpectra(input: SpectraPlotInput, options: SpectraOptions =
     if (input.series.length > 0)
       range = [Math.max(range[0], dataExtent[0]), Math.min(range[1], dataExtent[1])];
   }
-  const x = linearAxisScale(
-    direction === 'descending' ? [range[1], range[0]] : range,
-    [panel.left, panel.left + panel.width],
-    { nice: false, tickCount: 8 },
-  );
+  const x = wavenumberScale(range, panel, direction);
   const thinned = input.series.map((s) =>
     thinForDrawing(s.x, s.y, range[0], range[1], Math.ceil(panel.width)),
   );
@@ -267,50 +250,19 @@ export function renderSpectra(input: SpectraPlotInput, options: SpectraOptions =
   const clip = `${id}-clip`;
   const defs = clipPath(clip, panel) + hatchPattern(`${id}-hatch`, BASELINE_FILL);
 
-  const body: string[] = [];
-  body.push(
-    element('rect', {
-      class: 'panel-frame',
-      x: panel.left,
-      y: panel.top,
-      width: panel.width,
-      height: panel.height,
-      fill: 'none',
-      stroke: 'none',
-    }),
-  );
-  const windowRect = (
+  const shade = (
     window: Window,
     className: string,
     fill: string,
     opacity: number | undefined,
     label: string,
-  ): string => {
-    const a = px(window[0]);
-    const b = px(window[1]);
-    return element(
-      'rect',
-      {
-        class: className,
-        'data-low': String(window[0]),
-        'data-high': String(window[1]),
-        x: Math.min(a, b),
-        y: panel.top,
-        width: Math.abs(b - a),
-        height: panel.height,
-        fill,
-        'fill-opacity': opacity,
-        stroke: 'none',
-      },
-      element('title', {}, escapeText(label)),
-    );
-  };
+  ) => windowRect(panel, window, px, { className, fill, opacity, stroke: 'none', label });
   const windows: string[] = [];
   for (const region of input.regions ?? [])
-    windows.push(windowRect(region, 'region', BASELINE_FILL, 0.12, `fit region ${formatWindow(region)}`));
+    windows.push(shade(region, 'region', BASELINE_FILL, 0.12, `fit region ${formatWindow(region)}`));
   if (input.band !== undefined)
     windows.push(
-      windowRect(
+      shade(
         input.band,
         'band-window',
         BAND_FILL,
@@ -320,28 +272,18 @@ export function renderSpectra(input: SpectraPlotInput, options: SpectraOptions =
     );
   input.baselineWindows.forEach((w) =>
     windows.push(
-      windowRect(w, 'baseline-window', `url(#${id}-hatch)`, undefined, `baseline window ${formatWindow(w)}`),
+      shade(w, 'baseline-window', `url(#${id}-hatch)`, undefined, `baseline window ${formatWindow(w)}`),
     ),
   );
-  body.push(element('g', { class: 'windows', 'clip-path': `url(#${clip})` }, windows.join('')));
-  body.push(
-    renderAxis(panel, {
-      side: 'bottom',
-      ticks: x.ticks,
-      position: px,
-      format: x.format,
-      label: `wavenumber / cm⁻¹ (${direction === 'descending' ? 'decreasing to the right' : 'increasing to the right'})`,
-    }),
-  );
-  body.push(
-    renderAxis(panel, {
-      side: 'left',
-      ticks: y.ticks,
-      position: py,
-      format: y.format,
-      label: input.yLabel ?? 'absorbance (decadic) / AU',
-    }),
-  );
+  const body: string[] = [
+    panelFrame(panel),
+    element('g', { class: 'windows', 'clip-path': `url(#${clip})` }, windows.join('')),
+    panelAxes(
+      panel,
+      { ticks: x.ticks, position: px, format: x.format, label: wavenumberAxisLabel(direction) },
+      { ticks: y.ticks, position: py, format: y.format, label: input.yLabel ?? 'absorbance (decadic) / AU' },
+    ),
+  ];
 
   const path = line<number>().digits(2);
   const spectra = thinned.map((t, i) => {
@@ -380,9 +322,7 @@ export function renderSpectra(input: SpectraPlotInput, options: SpectraOptions =
     element('g', { class: 'series', 'clip-path': `url(#${clip})` }, spectra.join('') + baselines.join('')),
   );
   if (input.series.length === 0) body.push(noteText(panel.left + 10, panel.top + 20, 'no spectra to draw'));
-  notes.forEach((note, i) =>
-    body.push(noteText(panel.left, panelBottom(panel) + SPECTRA_MARGIN.bottom + 4 + i * 15, note)),
-  );
+  body.push(...notesBelow(panel, notes));
   body.push(legend.svg);
 
   return svgDocument({
@@ -407,6 +347,16 @@ export interface LabelledSpectrum {
   group?: string;
 }
 
+/** A labelled spectrum as a series to draw, given the spectrum in absorbance. */
+function labelledSeries(item: LabelledSpectrum, absorbance: Spectrum): SpectrumSeries {
+  return {
+    label: item.label,
+    x: absorbance.x,
+    y: absorbance.y,
+    ...(item.group === undefined ? {} : { group: item.group }),
+  };
+}
+
 /**
  * Plot input for the spectra of one gas of a band calibration: each spectrum, the gas's band
  * and baseline windows, and each spectrum's baseline fitted exactly as the calibration fits it
@@ -429,12 +379,7 @@ export function gasSpectraData(
   spectra.forEach((item) => {
     const absorbance = toAbsorbance(item.spectrum);
     const index = series.length;
-    series.push({
-      label: item.label,
-      x: absorbance.x,
-      y: absorbance.y,
-      ...(item.group === undefined ? {} : { group: item.group }),
-    });
+    series.push(labelledSeries(item, absorbance));
     if (feature === undefined || feature.baseline.length === 0) return;
     try {
       const fitted = fitBaseline(absorbance, feature.band, {
@@ -487,15 +432,7 @@ export function clsStandardsSpectraData(
 ): SpectraPlotInput {
   return {
     title: `Standards: spectra over the fit regions`,
-    series: spectra.map((item) => {
-      const absorbance = toAbsorbance(item.spectrum);
-      return {
-        label: item.label,
-        x: absorbance.x,
-        y: absorbance.y,
-        ...(item.group === undefined ? {} : { group: item.group }),
-      };
-    }),
+    series: spectra.map((item) => labelledSeries(item, toAbsorbance(item.spectrum))),
     baselineWindows: [],
     regions: calibration.cls?.regions ?? [],
     baselines: [],
