@@ -247,7 +247,7 @@ async function prepareData(log: (line: string) => void): Promise<BenchData> {
   writeFileSync(join(DATA, 'standards.csv'), `${manifest.join('\n')}\n`);
   const bandManifest = [
     manifest[0],
-    ...manifest.slice(1).filter((row) => /standards\/(zero|co-)/.test(row as string)),
+    ...manifest.slice(1).filter((row) => /standards\/(zero|co-)/.test(row)),
   ];
   writeFileSync(join(DATA, 'co-standards.csv'), `${bandManifest.join('\n')}\n`);
   writeFileSync(
@@ -391,7 +391,7 @@ function buildProgram(log: (line: string) => void): void {
   );
   if (
     !existsSync(join(DATA, 'dist', 'cli', 'main.js')) ||
-    !existsSync(join(DATA, 'dist', 'cli', 'batch-worker.js'))
+    !existsSync(join(DATA, 'dist', 'batch', 'worker.js'))
   )
     throw new Error('tsc did not produce bench/data/dist');
   writeFileSync(
@@ -696,7 +696,7 @@ export async function run(
     );
     if (typeof numpy === 'string') say(numpy);
     else {
-      const mine = ours['csv-cls-1000'] as RunResult;
+      const mine = ours['csv-cls-1000'];
       const difference = compareResults(join(results, 'csv-cls-1000.csv'), join(results, 'numpy-1000.csv'));
       say(
         `numpy (np.loadtxt + np.interp + matrix projection), same 1,000 CSV scans, four gases: ${numpy.seconds.toFixed(2)} s (${(1000 / numpy.seconds).toFixed(0)} scans/s; ${numpy.wallSeconds.toFixed(2)} s with interpreter start); bandwright ${mine.seconds.toFixed(2)} s (${mine.wallSeconds.toFixed(2)} s with start): ${(numpy.seconds / mine.seconds).toFixed(1)}× faster (${(numpy.wallSeconds / mine.wallSeconds).toFixed(1)}× counting process start); concentrations agree within ${difference.toExponential(1)} (relative)`,

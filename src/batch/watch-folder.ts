@@ -193,7 +193,7 @@ export function createFolderWatcher(folder: string, options: FolderWatcherOption
         const changed = seen === undefined || seen.size !== size || seen.mtimeNs !== stats.mtimeNs;
         if (changed) observations.set(name, { size, mtimeNs: stats.mtimeNs, since: time });
         const renamed = stats.ctimeNs > stats.mtimeNs;
-        const settled = !changed && time - (seen as Observation).since >= settleMs;
+        const settled = !changed && time - seen.since >= settleMs;
         if (renamed || settled) {
           ready.push({
             name,

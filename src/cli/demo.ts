@@ -8,14 +8,10 @@
 import { join, relative } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import type { Command } from 'commander';
-import {
-  BandwrightError,
-  historyPathFor,
-  isNonEmptyFolder,
-  moveHistoryAside,
-  readCheckList,
-  writeFileAtomic,
-} from '../index.js';
+import { BandwrightError } from '../errors.js';
+import { writeFileAtomic } from '../store/atomic-write.js';
+import { isNonEmptyFolder } from '../store/folders.js';
+import { historyPathFor, moveHistoryAside, readCheckList } from '../store/history.js';
 import { note, raiseStatus, type CommandContext } from './context.js';
 
 /** The bundled examples folder, found from this file (works from src/ under tsx and from dist/). */

@@ -4,14 +4,11 @@
  */
 import { extname } from 'node:path';
 import type { Command } from 'commander';
-import {
-  BandwrightError,
-  formatJcamp,
-  formatSpectrumCsv,
-  simulateSpectrum,
-  writeFileAtomic,
-  type SimulationOptions,
-} from '../index.js';
+import { BandwrightError } from '../errors.js';
+import { formatJcamp } from '../formats/jcamp/write.js';
+import { formatSpectrumCsv } from '../formats/spectrum-csv-write.js';
+import { simulateSpectrum, type SimulationOptions } from '../simulate/index.js';
+import { writeFileAtomic } from '../store/atomic-write.js';
 import { note, type CommandContext } from './context.js';
 import { collect, parseNumberOption, parsePositiveOption, parseWindowOption } from './parse.js';
 
