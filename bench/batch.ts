@@ -245,10 +245,7 @@ async function prepareData(log: (line: string) => void): Promise<BenchData> {
     );
   });
   writeFileSync(join(DATA, 'standards.csv'), `${manifest.join('\n')}\n`);
-  const bandManifest = [
-    manifest[0],
-    ...manifest.slice(1).filter((row) => /standards\/(zero|co-)/.test(row)),
-  ];
+  const bandManifest = [manifest[0], ...manifest.slice(1).filter((row) => /standards\/(zero|co-)/.test(row))];
   writeFileSync(join(DATA, 'co-standards.csv'), `${bandManifest.join('\n')}\n`);
   writeFileSync(
     join(DATA, 'co-band.method.json'),

@@ -120,7 +120,10 @@ function workerStart(data: WorkerStart): { script: URL | string; options: Worker
       .replace(/\.cjs$/, '.mjs'),
   ).href;
   const target = new URL('./worker.ts', here).href;
-  const code = `import(${JSON.stringify(api)}).then((tsx) => { tsx.register(); return import(${JSON.stringify(target)}); }).catch((error) => { setImmediate(() => { throw error; }); });`;
+  const code =
+    `import(${JSON.stringify(api)})` +
+    `.then((tsx) => { tsx.register(); return import(${JSON.stringify(target)}); })` +
+    '.catch((error) => { setImmediate(() => { throw error; }); });';
   return { script: code, options: { eval: true, workerData: data } };
 }
 

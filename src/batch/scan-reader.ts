@@ -129,7 +129,8 @@ function parse(
     if (options.yKind !== undefined && options.yKind !== spectrum.yKind) {
       throw new BandwrightError(
         'PARSE',
-        `${source}: the JCAMP-DX file declares ${spectrum.yKind} (##YUNITS) but the y-kind option says ${options.yKind}; remove the option or fix the file`,
+        `${source}: the JCAMP-DX file declares ${spectrum.yKind} (##YUNITS) ` +
+          `but the y-kind option says ${options.yKind}; remove the option or fix the file`,
         { file: source, parameter: 'yKind' },
       );
     }

@@ -284,7 +284,8 @@ export function readProcessedRecord(path: string): Map<string, FileStamp> {
     ) {
       throw new BandwrightError(
         'PARSE',
-        `${path} line ${i + 1}: not a processed-file record ({"name", "size", "mtimeMs"}); delete the file to process the folder afresh`,
+        `${path} line ${i + 1}: not a processed-file record ({"name", "size", "mtimeMs"}); ` +
+          'delete the file to process the folder afresh',
         { file: path, line: i + 1 },
       );
     }

@@ -29,7 +29,8 @@ export function buildProgram(context: CommandContext): Command {
   program
     .name('bandwright')
     .description(
-      'Gas-cell infrared quantification: calibrate from certified standards, quantify samples with prediction intervals, recheck drift.',
+      'Gas-cell infrared quantification: calibrate from certified standards, ' +
+        'quantify samples with prediction intervals, recheck drift.',
     )
     .version(TOOL.version, '-V, --version')
     .showHelpAfterError('(run with --help for usage)')

@@ -127,7 +127,8 @@ export function registerRecheck(program: Command, context: CommandContext): void
   program
     .command('recheck')
     .description(
-      "measure a check standard, judge it (tolerance and control rules), append it to the calibration's history, and give the next due date (exit 0 pass, 3 warning, 4 fail)",
+      'measure a check standard, judge it (tolerance and control rules), ' +
+        "append it to the calibration's history, and give the next due date (exit 0 pass, 3 warning, 4 fail)",
     )
     .argument('<calibration>', 'calibration file (JSON) made by calibrate')
     .argument('<scan>', 'scan of the check standard (a file: its path and SHA-256 go into the history)')
@@ -145,7 +146,8 @@ export function registerRecheck(program: Command, context: CommandContext): void
     .option('--json', 'print the result as JSON on stdout')
     .option(
       '--plot <dir>',
-      'also write the control chart as <gas>-control-chart.svg into this folder (regenerated from the history, so replaced each time)',
+      'also write the control chart as <gas>-control-chart.svg into this folder ' +
+        '(regenerated from the history, so replaced each time)',
     )
     .action((calibrationPath: string, scan: string, flags: RecheckFlags) => {
       // Options first, so that a mistyped value fails before any file is read.

@@ -49,16 +49,22 @@ export function loadRecordedStandards(
   if (calibration.method.model === 'responses') return { spectra, notes };
   if (standardChecks.length !== calibration.standards.length) {
     notes.push(
-      `the calibration records ${standardChecks.length} standard scan file(s) for ${calibration.standards.length} standards, so the spectra cannot be matched to the standards and are not drawn`,
+      `the calibration records ${standardChecks.length} standard scan file(s) ` +
+        `for ${calibration.standards.length} standards, ` +
+        'so the spectra cannot be matched to the standards and are not drawn',
     );
     return { spectra, notes };
   }
   const problems: string[] = [];
   standardChecks.forEach((check, index) => {
     if (check.status !== 'unchanged') {
-      problems.push(
-        `${check.path} (${check.status === 'changed' ? 'changed since the calibration was built' : check.status === 'missing' ? 'missing' : `unreadable: ${check.message ?? ''}`})`,
-      );
+      const why =
+        check.status === 'changed'
+          ? 'changed since the calibration was built'
+          : check.status === 'missing'
+            ? 'missing'
+            : `unreadable: ${check.message ?? ''}`;
+      problems.push(`${check.path} (${why})`);
       return;
     }
     try {
@@ -110,7 +116,8 @@ export function recheckHistoryViews(
     return {
       views: [],
       notes: [
-        `${path} belongs to another calibration (sha256 ${history.calibrationSha256.slice(0, 12)}…, this one ${calibration.sha256.slice(0, 12)}…); its checks are not shown`,
+        `${path} belongs to another calibration (sha256 ${history.calibrationSha256.slice(0, 12)}…, ` +
+          `this one ${calibration.sha256.slice(0, 12)}…); its checks are not shown`,
       ],
     };
   }
@@ -202,7 +209,8 @@ export function registerReport(program: Command, context: CommandContext): void 
   program
     .command('report')
     .description(
-      'write one self-contained HTML page for a calibration: statistics, limits, plots, recheck history, provenance, cautions',
+      'write one self-contained HTML page for a calibration: ' +
+        'statistics, limits, plots, recheck history, provenance, cautions',
     )
     .argument('<calibration>', 'calibration file (JSON) made by calibrate')
     .option(
@@ -235,7 +243,10 @@ export function registerReport(program: Command, context: CommandContext): void 
       if (changed.length > 0)
         note(
           context,
-          `note: ${changed.length} recorded input file(s) are missing or changed: ${changed.map((c) => `${resolve(recordedInputPath(calibrationPath, c.path))} (${c.status})`).join(', ')}`,
+          `note: ${changed.length} recorded input file(s) are missing or changed: ` +
+            changed
+              .map((c) => `${resolve(recordedInputPath(calibrationPath, c.path))} (${c.status})`)
+              .join(', '),
         );
       if (flags.plot !== undefined) {
         const written = writePlotFiles(flags.plot, plots, { force: true });

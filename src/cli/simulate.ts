@@ -128,7 +128,9 @@ export function registerSimulate(program: Command, context: CommandContext): voi
       for (const gas of result.gases) {
         note(
           context,
-          `${gas.name}: ${gas.ppm} ppm, weak-absorption band area ${gas.weakLimitBandArea_AU_cm.toPrecision(5)} AU·cm⁻¹ (${gas.lineCount} lines${gas.approximate ? ', approximate band model' : ''})`,
+          `${gas.name}: ${gas.ppm} ppm, ` +
+            `weak-absorption band area ${gas.weakLimitBandArea_AU_cm.toPrecision(5)} AU·cm⁻¹ ` +
+            `(${gas.lineCount} lines${gas.approximate ? ', approximate band model' : ''})`,
         );
       }
       for (const warning of [...result.warnings, ...result.notes]) note(context, `note: ${warning}`);

@@ -42,7 +42,8 @@ export function registerStatus(program: Command, context: CommandContext): void 
   program
     .command('status')
     .description(
-      'table of calibrations: last check, verdict, next due, days overdue, trend (exit 0 all current, 3 due within a day, 4 overdue or failed)',
+      'table of calibrations: last check, verdict, next due, days overdue, trend ' +
+        '(exit 0 all current, 3 due within a day, 4 overdue or failed)',
     )
     .argument(
       '[targets...]',
@@ -102,10 +103,12 @@ export function registerStatus(program: Command, context: CommandContext): void 
       const report: StatusReport = { now, rows, skipped, errors, exitStatus };
       if (flags.json) context.stdout.write(`${JSON.stringify(statusDocument(report), null, 2)}\n`);
       else context.stdout.write(`${formatStatusText(report)}\n`);
-      for (const problem of errors)
-        context.stderr.write(
-          `bandwright: ${problem.message.startsWith(problem.file) ? problem.message : `${problem.file}: ${problem.message}`}\n`,
-        );
+      for (const problem of errors) {
+        const message = problem.message.startsWith(problem.file)
+          ? problem.message
+          : `${problem.file}: ${problem.message}`;
+        context.stderr.write(`bandwright: ${message}\n`);
+      }
       raiseStatus(context, exitStatus);
     });
 }

@@ -61,7 +61,8 @@ export function registerVerify(program: Command, context: CommandContext): void 
           .join(', ');
         note(
           context,
-          `bandwright: ${bad.length} of ${report.inputs.length} input file(s) of ${calibrationPath} changed or missing since it was built: ${list}; rebuild the calibration or restore the files`,
+          `bandwright: ${bad.length} of ${report.inputs.length} input file(s) of ${calibrationPath} ` +
+            `changed or missing since it was built: ${list}; rebuild the calibration or restore the files`,
         );
         raiseStatus(context, 1);
       } else {
