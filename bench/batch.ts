@@ -11,7 +11,9 @@
  * linear mix is enough for timing; the physics is tested elsewhere). Everything is generated
  * deterministically under `bench/data/` (git-ignored) and reused while its recipe is unchanged.
  * The program is compiled with tsc into `bench/data/dist/` and each run is a fresh node process
- * (so the peak RSS is that of one batch; files are in the page cache after the first pass).
+ * (so the peak RSS is that of one batch; files are in the page cache after the first pass). Every
+ * run is the real `quantify` or `watch` command, so what is timed is the one quantify engine
+ * (`src/batch/quantify-run.ts`, its worker threads and sinks) behind the command-line shell.
  *
  * Run with `npm run bench` (through `bench/run.ts`) or alone with `npx tsx bench/batch.ts`.
  */

@@ -213,6 +213,24 @@ export interface QuantifyRunOutcome {
   spectra: SampleSpectrum[];
 }
 
+/** Completes the outputs of a run and makes its outcome. */
+function completeRun(
+  session: QuantifySession,
+  started: number,
+  run: Pick<QuantifyRunOutcome, 'total' | 'workers' | 'stopped' | 'workersOutOfMemory'>,
+): QuantifyRunOutcome {
+  const files = session.finish();
+  return {
+    ...run,
+    scans: session.scans,
+    failed: session.failed,
+    seconds: (performance.now() - started) / 1000,
+    files,
+    entries: session.entries,
+    spectra: session.spectra,
+  };
+}
+
 /** Options of {@link quantifyScans}. */
 export interface QuantifyScansOptions {
   /** Worker threads: `auto` or a count (0: this thread); see `workerCount`. */
@@ -264,19 +282,12 @@ export async function quantifyScans(
     session.abort();
     throw error;
   }
-  const files = session.finish();
-  return {
-    scans: session.scans,
-    failed: session.failed,
+  return completeRun(session, started, {
     total: paths.length,
-    seconds: (performance.now() - started) / 1000,
     workers,
     stopped: batch.stopped,
     workersOutOfMemory: batch.workersOutOfMemory,
-    files,
-    entries: session.entries,
-    spectra: session.spectra,
-  };
+  });
 }
 
 /**
@@ -299,17 +310,5 @@ export function quantifyGivenResponses(job: QuantifyJob, responses: readonly num
     session.abort();
     throw error;
   }
-  const files = session.finish();
-  return {
-    scans: session.scans,
-    failed: session.failed,
-    total: 1,
-    seconds: (performance.now() - started) / 1000,
-    workers: 0,
-    stopped: false,
-    workersOutOfMemory: 0,
-    files,
-    entries: session.entries,
-    spectra: [],
-  };
+  return completeRun(session, started, { total: 1, workers: 0, stopped: false, workersOutOfMemory: 0 });
 }
