@@ -1,10 +1,10 @@
 /**
- * The batch engine behind `quantify` on many scans: scans are read and quantified one after
- * another in this thread, or in worker threads (`worker.ts`) that each take chunks of paths;
- * either way items (a scan's result lines, its failure, its entry if kept) come back to the
- * caller strictly in input order, a few chunks at a time, so memory stays flat in the number of
- * scans. A stop request (Ctrl-C, SIGTERM) ends the dispatch of
- * new chunks; the chunks already handed out are finished and delivered, then the engine returns.
+ * How the quantify engine (`quantify-run.ts`) spreads a list of scans over threads: scans are read
+ * and quantified one after another in this thread, or in worker threads (`worker.ts`) that each
+ * take chunks of paths; either way items (a scan's result lines, its failure, its entry if kept)
+ * come back to the caller strictly in input order, a few chunks at a time, so memory stays flat in
+ * the number of scans. A stop request (Ctrl-C, SIGTERM) ends the dispatch of new chunks; the
+ * chunks already handed out are finished and delivered, then the engine returns.
  */
 import { createRequire } from 'node:module';
 import { availableParallelism, loadavg } from 'node:os';
