@@ -11,7 +11,9 @@
  * linear mix is enough for timing; the physics is tested elsewhere). Everything is generated
  * deterministically under `bench/data/` (git-ignored) and reused while its recipe is unchanged.
  * The program is compiled with tsc into `bench/data/dist/` and each run is a fresh node process
- * (so the peak RSS is that of one batch; files are in the page cache after the first pass).
+ * (so the peak RSS is that of one batch; files are in the page cache after the first pass). Every
+ * run is the real `quantify` or `watch` command, so what is timed is the one quantify engine
+ * (`src/batch/quantify-run.ts`, its worker threads and sinks) behind the command-line shell.
  *
  * Run with `npm run bench` (through `bench/run.ts`) or alone with `npx tsx bench/batch.ts`.
  */
@@ -245,10 +247,7 @@ async function prepareData(log: (line: string) => void): Promise<BenchData> {
     );
   });
   writeFileSync(join(DATA, 'standards.csv'), `${manifest.join('\n')}\n`);
-  const bandManifest = [
-    manifest[0],
-    ...manifest.slice(1).filter((row) => /standards\/(zero|co-)/.test(row as string)),
-  ];
+  const bandManifest = [manifest[0], ...manifest.slice(1).filter((row) => /standards\/(zero|co-)/.test(row))];
   writeFileSync(join(DATA, 'co-standards.csv'), `${bandManifest.join('\n')}\n`);
   writeFileSync(
     join(DATA, 'co-band.method.json'),
@@ -391,7 +390,7 @@ function buildProgram(log: (line: string) => void): void {
   );
   if (
     !existsSync(join(DATA, 'dist', 'cli', 'main.js')) ||
-    !existsSync(join(DATA, 'dist', 'cli', 'batch-worker.js'))
+    !existsSync(join(DATA, 'dist', 'batch', 'worker.js'))
   )
     throw new Error('tsc did not produce bench/data/dist');
   writeFileSync(
@@ -696,7 +695,7 @@ export async function run(
     );
     if (typeof numpy === 'string') say(numpy);
     else {
-      const mine = ours['csv-cls-1000'] as RunResult;
+      const mine = ours['csv-cls-1000'];
       const difference = compareResults(join(results, 'csv-cls-1000.csv'), join(results, 'numpy-1000.csv'));
       say(
         `numpy (np.loadtxt + np.interp + matrix projection), same 1,000 CSV scans, four gases: ${numpy.seconds.toFixed(2)} s (${(1000 / numpy.seconds).toFixed(0)} scans/s; ${numpy.wallSeconds.toFixed(2)} s with interpreter start); bandwright ${mine.seconds.toFixed(2)} s (${mine.wallSeconds.toFixed(2)} s with start): ${(numpy.seconds / mine.seconds).toFixed(1)}× faster (${(numpy.wallSeconds / mine.wallSeconds).toFixed(1)}× counting process start); concentrations agree within ${difference.toExponential(1)} (relative)`,

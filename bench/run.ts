@@ -9,7 +9,7 @@ import { run as simulate } from './simulate.js';
 
 const started = performance.now();
 console.log('## Simulator');
-for (const line of await simulate()) console.log(line);
+for (const line of simulate()) console.log(line);
 console.log('');
 console.log('## Batch quantification');
 await batch((line) => console.log(line));

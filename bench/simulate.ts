@@ -41,7 +41,7 @@ function time(
  *
  * @returns the lines it reports (also printed when the file is run directly)
  */
-export async function run(): Promise<string[]> {
+export function run(): string[] {
   const lines: string[] = [];
   const co: SimulationOptions = {
     gases: [{ name: 'CO', ppm: 100 }],
@@ -81,5 +81,5 @@ export async function run(): Promise<string[]> {
 }
 
 if (process.argv[1] !== undefined && import.meta.url === pathToFileURL(process.argv[1]).href) {
-  for (const line of await run()) console.log(line);
+  for (const line of run()) console.log(line);
 }

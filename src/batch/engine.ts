@@ -1,16 +1,15 @@
 /**
- * The batch engine behind `quantify` on many scans: scans are read and quantified one after
- * another in this thread, or in worker threads (`worker.ts`) that each take chunks of paths;
- * either way items (a scan's result lines, its failure, its entry if kept) come back to the
- * caller strictly in input order, a few chunks at a time, so memory stays flat in the number of
- * scans. A stop request (Ctrl-C, SIGTERM) ends the dispatch of
- * new chunks; the chunks already handed out are finished and delivered, then the engine returns.
+ * How the quantify engine (`quantify-run.ts`) spreads a list of scans over threads: scans are read
+ * and quantified one after another in this thread, or in worker threads (`worker.ts`) that each
+ * take chunks of paths; either way items (a scan's result lines, its failure, its entry if kept)
+ * come back to the caller strictly in input order, a few chunks at a time, so memory stays flat in
+ * the number of scans. A stop request (Ctrl-C, SIGTERM) ends the dispatch of new chunks; the
+ * chunks already handed out are finished and delivered, then the engine returns.
  */
 import { createRequire } from 'node:module';
 import { availableParallelism, loadavg } from 'node:os';
 import { pathToFileURL } from 'node:url';
 import { Worker, type WorkerOptions } from 'node:worker_threads';
-import { BandwrightError } from '../index.js';
 import { computedQuantiles } from '../stats/distributions.js';
 import {
   createScanQuantifier,
@@ -42,7 +41,10 @@ export interface WorkerHeapLimits {
 
 /** Options of {@link runBatch}. */
 export interface RunBatchOptions {
-  /** Worker threads that quantify (this thread then only writes); 0 quantifies in this thread. */
+  /**
+   * Worker threads that quantify (this thread then only writes); 0 quantifies in this thread, as
+   * does a setup that keeps spectra.
+   */
   workers: number;
   /** Paths per message to a worker (default 8). */
   chunkSize?: number;
@@ -118,7 +120,10 @@ function workerStart(data: WorkerStart): { script: URL | string; options: Worker
       .replace(/\.cjs$/, '.mjs'),
   ).href;
   const target = new URL('./worker.ts', here).href;
-  const code = `import(${JSON.stringify(api)}).then((tsx) => { tsx.register(); return import(${JSON.stringify(target)}); }).catch((error) => { setImmediate(() => { throw error; }); });`;
+  const code =
+    `import(${JSON.stringify(api)})` +
+    `.then((tsx) => { tsx.register(); return import(${JSON.stringify(target)}); })` +
+    '.catch((error) => { setImmediate(() => { throw error; }); });';
   return { script: code, options: { eval: true, workerData: data } };
 }
 
@@ -142,7 +147,7 @@ export async function runBatch(
 ): Promise<BatchOutcome> {
   const shouldStop = options.shouldStop ?? (() => false);
   const quantify = createScanQuantifier(setup);
-  if (options.workers <= 0 || paths.length === 0)
+  if (options.workers <= 0 || paths.length === 0 || setup.keepSpectra === true)
     return runHere(quantify, paths, 0, options.onItem, shouldStop);
   // This thread quantifies scans until one gives a result: the t and F quantiles it needed are
   // then handed to the workers, which so need not load the distribution kernels (about 10 MB of
@@ -213,7 +218,7 @@ function runInWorkers(
       for (const worker of running.keys()) void worker.terminate();
       if (error === undefined)
         resolve({ delivered: nextToDeliver - from, stopped, workersOutOfMemory: outOfMemory });
-      else reject(error);
+      else reject(error instanceof Error ? error : new Error('the batch failed', { cause: error }));
     };
     /** The next chunk of paths, or undefined when there is none or a stop was asked. */
     const take = (): WorkerTask | undefined => {
@@ -329,20 +334,3 @@ export const WORKER_HEAP_LIMITS: WorkerHeapLimits = {
   maxYoungGenerationSizeMb: 8,
   maxOldGenerationSizeMb: 32,
 };
-
-/**
- * Parses `--workers`: `auto` or a whole number ≥ 0.
- *
- * @param text - the option's text
- * @throws BandwrightError `USAGE` naming the value
- */
-export function workersOption(text: string): 'auto' | number {
-  if (text === 'auto') return 'auto';
-  if (!/^\d+$/.test(text.trim()) || Number(text) > 64)
-    throw new BandwrightError(
-      'USAGE',
-      `--workers = ${JSON.stringify(text)}, must be auto or a whole number from 0 to 64`,
-      { parameter: '--workers' },
-    );
-  return Number(text);
-}

@@ -41,7 +41,10 @@ export interface ResultsWriterOptions {
   overwrite?: boolean;
   /** Create the target's folder when missing (default false). */
   createFolder?: boolean;
-  /** Buffered text is written out when it exceeds this many characters (default 65,536; append mode writes every row). */
+  /**
+   * Buffered text is written out when it exceeds this many characters (default 65,536; append mode
+   * writes every row).
+   */
   bufferCharacters?: number;
   /** Buffered text is written out when older than this, ms (default 250). */
   flushIntervalMs?: number;
@@ -153,7 +156,8 @@ export function assertAppendable(path: string, header: string | undefined): void
   if (ends.lastByte !== 0x0a) {
     throw new BandwrightError(
       'PARSE',
-      `${path}: the last line is incomplete (no line break at the end); the file was cut short, repair or move it before appending`,
+      `${path}: the last line is incomplete (no line break at the end); the file was cut short, ` +
+        'repair or move it before appending',
       { file: path },
     );
   }
@@ -163,7 +167,9 @@ export function assertAppendable(path: string, header: string | undefined): void
       const found = firstLine.replace(/\r?\n$/, '');
       throw new BandwrightError(
         'PARSE',
-        `${path} line 1: the header ${JSON.stringify(found.length > 200 ? `${found.slice(0, 200)}…` : found)} does not match this calibration's columns ${JSON.stringify(header.trimEnd())}; results of another calibration or unit cannot be appended, choose another file`,
+        `${path} line 1: the header ${JSON.stringify(found.length > 200 ? `${found.slice(0, 200)}…` : found)} ` +
+          `does not match this calibration's columns ${JSON.stringify(header.trimEnd())}; ` +
+          'results of another calibration or unit cannot be appended, choose another file',
         { file: path, line: 1 },
       );
     }
@@ -184,7 +190,8 @@ export function assertAppendable(path: string, header: string | undefined): void
   ) {
     throw new BandwrightError(
       'PARSE',
-      `${path} line 1: not a bandwright results line (a JSON object with "scan" and "calibrationSha256"); choose another file`,
+      `${path} line 1: not a bandwright results line ` +
+        '(a JSON object with "scan" and "calibrationSha256"); choose another file',
       { file: path, line: 1 },
     );
   }

@@ -13,8 +13,9 @@ import { quantifyScan, type QuantifyOptions } from '../calibration/quantify.js';
 import { BandwrightError } from '../errors.js';
 import { formatCsv } from '../formats/csv-table.js';
 import { createScanReader, type ScanReader } from './scan-reader.js';
+import type { SampleSpectrum } from '../report/html-quantify.js';
 import { isFailure, resultRow, type BatchEntry } from '../report/results.js';
-import type { YKind } from '../spectrum/spectrum.js';
+import type { Spectrum, YKind } from '../spectrum/spectrum.js';
 
 /** Gases as result columns: name and unit, in calibration order. */
 export type ResultGases = readonly { gas: string; unit: string }[];
@@ -35,6 +36,11 @@ export interface BatchSetup {
   lineFormats?: readonly LineFormat[];
   /** Whether each item carries its whole entry, for outputs that need more than lines (default false). */
   keepEntries?: boolean;
+  /**
+   * Whether each item carries the spectrum read, for reports and plots (default false). Such
+   * spectra own their arrays, so a batch that keeps them runs in this thread only.
+   */
+  keepSpectra?: boolean;
 }
 
 /** What the batch hands on for one scan. */
@@ -45,6 +51,8 @@ export interface BatchItem {
   lines: string[];
   /** The entry, when the setup keeps entries. */
   entry?: BatchEntry;
+  /** The scan as named and the spectrum read (also when it could not be quantified), when the setup keeps spectra. */
+  sample?: SampleSpectrum;
 }
 
 /** Quantifies one path at a time with a reader of its own (one per thread). */
@@ -86,32 +94,50 @@ export function formatLine(entry: BatchEntry, format: LineFormat): string {
 }
 
 /**
+ * The item of one entry: its line in each of the setup's formats, its failure reason, and the
+ * entry itself when the setup keeps entries.
+ *
+ * @param entry - result or failure
+ * @param setup - line formats and whether to keep entries
+ */
+export function batchItem(
+  entry: BatchEntry,
+  setup: Pick<BatchSetup, 'lineFormats' | 'keepEntries'>,
+): BatchItem {
+  const item: BatchItem = { lines: (setup.lineFormats ?? []).map((format) => formatLine(entry, format)) };
+  if (isFailure(entry)) item.error = entry.error;
+  if (setup.keepEntries === true) item.entry = entry;
+  return item;
+}
+
+/**
  * Makes the per-scan function of a batch.
  *
- * @param setup - calibration, options, y-kind, line formats, whether to keep entries
+ * @param setup - calibration, options, y-kind, line formats, whether to keep entries and spectra
  * @returns a function from a scan path to its item; a scan that cannot be read or quantified
  *   gives an item with the reason (and an error line in every format)
  * @throws Error (from the returned function) only for faults that are not about the scan (bugs)
  */
 export function createScanQuantifier(setup: BatchSetup): ScanQuantifier {
-  // Each spectrum is quantified before the next is read, so the readers' buffers can be reused.
+  const keepSpectra = setup.keepSpectra === true;
+  // Each spectrum is quantified before the next is read, so the readers' buffers can be reused,
+  // unless the spectra are kept.
   const read: ScanReader = createScanReader({
-    reuseOutput: true,
+    reuseOutput: !keepSpectra,
     ...(setup.yKind === undefined ? {} : { yKind: setup.yKind }),
   });
-  const formats = setup.lineFormats ?? [];
-  const keepEntries = setup.keepEntries === true;
   return (path: string): BatchItem => {
     let entry: BatchEntry;
+    let spectrum: Spectrum | undefined;
     try {
-      entry = quantifyScan(setup.calibration, read(path), setup.options);
+      spectrum = read(path);
+      entry = quantifyScan(setup.calibration, spectrum, setup.options);
     } catch (error) {
       if (!(error instanceof BandwrightError)) throw error;
       entry = { scan: path, error: error.message };
     }
-    const item: BatchItem = { lines: formats.map((format) => formatLine(entry, format)) };
-    if (isFailure(entry)) item.error = entry.error;
-    if (keepEntries) item.entry = entry;
+    const item = batchItem(entry, setup);
+    if (keepSpectra && spectrum !== undefined) item.sample = { scan: path, spectrum };
     return item;
   };
 }

@@ -42,14 +42,14 @@ export interface ScanReaderOptions extends Omit<ReadScanOptions, 'source'> {
 export function createScanReader(options: ScanReaderOptions = {}): ScanReader {
   // The limits are read once, not per scan (BANDWRIGHT_MAX_SCAN_BYTES, BANDWRIGHT_MAX_POINTS).
   const limits = resourceLimits();
-  const maxBytes = options.maxBytes ?? limits.maxScanBytes;
+  const { maxBytes: givenMaxBytes, reuseOutput: givenReuseOutput, ...rest } = options;
+  const maxBytes = givenMaxBytes ?? limits.maxScanBytes;
   if (!(maxBytes > 0))
     throw new BandwrightError('INVALID_VALUE', `maxBytes = ${maxBytes}, must be > 0`, {
       parameter: 'maxBytes',
     });
-  const { maxBytes: _maxBytes, reuseOutput: _reuse, ...rest } = options;
   const parseOptions = { ...rest, maxPoints: options.maxPoints ?? limits.maxPoints };
-  const reuseOutput = options.reuseOutput === true;
+  const reuseOutput = givenReuseOutput === true;
   let buffer = Buffer.allocUnsafe(1 << 20);
   return (path: string): Spectrum => {
     if (path === '-') return readScan(path, { ...parseOptions, maxBytes });
@@ -129,7 +129,8 @@ function parse(
     if (options.yKind !== undefined && options.yKind !== spectrum.yKind) {
       throw new BandwrightError(
         'PARSE',
-        `${source}: the JCAMP-DX file declares ${spectrum.yKind} (##YUNITS) but the y-kind option says ${options.yKind}; remove the option or fix the file`,
+        `${source}: the JCAMP-DX file declares ${spectrum.yKind} (##YUNITS) ` +
+          `but the y-kind option says ${options.yKind}; remove the option or fix the file`,
         { file: source, parameter: 'yKind' },
       );
     }

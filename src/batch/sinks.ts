@@ -5,14 +5,9 @@
  * Each output holds at most one page of entries, so memory stays flat in the number of scans,
  * and each gives the same text as the whole-batch formatters of `report/results.ts`.
  */
-import {
-  formatCsv,
-  formatResultsText,
-  openResultsWriter,
-  resultColumns,
-  resultsDocument,
-  type BatchEntry,
-} from '../index.js';
+import { formatCsv } from '../formats/csv-table.js';
+import { formatResultsText, resultColumns, resultsDocument, type BatchEntry } from '../report/results.js';
+import { openResultsWriter } from './results-writer.js';
 import type { BatchItem, LineFormat, ResultGases } from './scan-quantifier.js';
 
 /** A place to write text (a stream, or a buffer in tests). */
@@ -28,8 +23,8 @@ export interface EntrySink {
   finish(): void;
   /** Gives up (removes a temporary file); safe to call after a failed finish. */
   abort(): void;
-  /** A line for the user once finished (e.g. where results were written), or undefined. */
-  readonly doneMessage?: string;
+  /** The file this output writes, for a result file. */
+  readonly file?: string;
 }
 
 /** The header line of a results CSV for these gases. */
@@ -103,7 +98,7 @@ export function openResultFiles(
         add: (item) => writer.write(item.lines[line] as string),
         finish: () => writer.commit(),
         abort: () => writer.abort(),
-        doneMessage: `results written to ${path}`,
+        file: path,
       });
     });
   } catch (error) {
@@ -117,9 +112,9 @@ export function openResultFiles(
 export const TABLE_PAGE_SCANS = 500;
 
 /**
- * The terminal table, printed a page at a time (needs the batch to keep entries); a batch of at most `pageScans` scans prints exactly
- * the one table `formatResultsText` gives for all of it, longer batches one such table per page,
- * separated by a blank line.
+ * The terminal table, printed a page at a time (needs the batch to keep entries); a batch of at
+ * most `pageScans` scans prints exactly the one table `formatResultsText` gives for all of it,
+ * longer batches one such table per page, separated by a blank line.
  *
  * @param out - standard output
  * @param level - interval level, for the header
@@ -147,8 +142,9 @@ export function textTableSink(out: TextSink, level: number, pageScans: number = 
 }
 
 /**
- * The `quantify --json` document streamed entry by entry (needs the batch to keep entries); the text is byte for byte what
- * `JSON.stringify(resultsDocument(entries, calibration, level), null, 2)` gives, plus a line break.
+ * The `quantify --json` document streamed entry by entry (needs the batch to keep entries); the
+ * text is byte for byte what `JSON.stringify(resultsDocument(entries, calibration, level), null, 2)`
+ * gives, plus a line break.
  *
  * @param out - standard output
  * @param calibration - the calibration's file and hash

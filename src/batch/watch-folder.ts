@@ -193,7 +193,7 @@ export function createFolderWatcher(folder: string, options: FolderWatcherOption
         const changed = seen === undefined || seen.size !== size || seen.mtimeNs !== stats.mtimeNs;
         if (changed) observations.set(name, { size, mtimeNs: stats.mtimeNs, since: time });
         const renamed = stats.ctimeNs > stats.mtimeNs;
-        const settled = !changed && time - (seen as Observation).since >= settleMs;
+        const settled = !changed && time - seen.since >= settleMs;
         if (renamed || settled) {
           ready.push({
             name,
@@ -284,7 +284,8 @@ export function readProcessedRecord(path: string): Map<string, FileStamp> {
     ) {
       throw new BandwrightError(
         'PARSE',
-        `${path} line ${i + 1}: not a processed-file record ({"name", "size", "mtimeMs"}); delete the file to process the folder afresh`,
+        `${path} line ${i + 1}: not a processed-file record ({"name", "size", "mtimeMs"}); ` +
+          'delete the file to process the folder afresh',
         { file: path, line: i + 1 },
       );
     }

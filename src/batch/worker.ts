@@ -1,6 +1,6 @@
 /**
  * Worker thread of a batch: receives chunks of scan paths, answers with their items in the same
- * order. Started by `batch.ts` with the batch setup and the quantiles computed so far as its
+ * order. Started by `engine.ts` with the batch setup and the quantiles computed so far as its
  * worker data.
  */
 import { parentPort, workerData } from 'node:worker_threads';

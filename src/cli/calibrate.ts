@@ -4,32 +4,23 @@
  */
 import { basename, dirname, extname, isAbsolute, join, relative, resolve } from 'node:path';
 import type { Command } from 'commander';
-import {
-  BandwrightError,
-  buildBandCalibration,
-  buildClsCalibration,
-  readScan,
-  buildResponseCalibration,
-  loadStandards,
-  parseMethod,
-  parseResponseMethod,
-  readManifest,
-  readMethod,
-  readResponseTable,
-  sha256OfFile,
-  writeCalibration,
-  Y_KINDS,
-  type BandMethod,
-  type Calibration,
-  type CalibrationInput,
-  type PartialConditions,
-  type YKind,
-  calibrationPlots,
-  type StandardSpectrum,
-} from '../index.js';
+import { buildClsCalibration } from '../calibration/build-cls.js';
+import { buildBandCalibration, buildResponseCalibration } from '../calibration/build.js';
+import type { Calibration, CalibrationInput } from '../calibration/calibration.js';
+import { parseMethod, parseResponseMethod, type BandMethod } from '../calibration/method.js';
+import { BandwrightError } from '../errors.js';
+import { calibrationPlots, type StandardSpectrum } from '../report/svg/plot-set.js';
+import { Y_KINDS } from '../spectrum/spectrum.js';
+import { readMethod, writeCalibration } from '../store/calibration-file.js';
+import { sha256OfFile } from '../store/hash.js';
+import { readManifest } from '../store/manifest.js';
+import { readScan } from '../store/scan-file.js';
+import { loadStandards } from '../store/standards.js';
+import { readResponseTable } from '../store/tables.js';
 import { formatCalibrationSummary } from '../report/calibration-summary.js';
 import { note, type CommandContext } from './context.js';
-import { refuseExistingPlots, wavenumberAxisOption, writePlotFiles } from './report.js';
+import { conditionOptions, wavenumberAxisOption, yKindOption } from './options.js';
+import { refuseExistingPlots, writePlotFiles } from './output-files.js';
 import { creationTime, parsePositiveOption, parseWindowListOption, parseWindowOption } from './parse.js';
 
 interface CalibrateOptions {
@@ -55,42 +46,6 @@ interface CalibrateOptions {
   json?: boolean;
   plot?: string;
   wavenumberAxis?: string;
-}
-
-/**
- * Conditions given on the command line (path length m, temperature K, pressure kPa).
- *
- * @param options - parsed options with `pathLength`, `temperature`, `pressure`
- */
-export function conditionOptions(options: {
-  pathLength?: string;
-  temperature?: string;
-  pressure?: string;
-}): PartialConditions {
-  const conditions: PartialConditions = {};
-  if (options.pathLength !== undefined)
-    conditions.pathLength_m = parsePositiveOption(options.pathLength, '--path-length');
-  if (options.temperature !== undefined)
-    conditions.temperature_K = parsePositiveOption(options.temperature, '--temperature');
-  if (options.pressure !== undefined)
-    conditions.pressure_kPa = parsePositiveOption(options.pressure, '--pressure');
-  return conditions;
-}
-
-/**
- * Parses `--y-kind`.
- *
- * @param text - option value
- */
-export function yKindOption(text: string | undefined): YKind | undefined {
-  if (text === undefined) return undefined;
-  if (!(Y_KINDS as readonly string[]).includes(text))
-    throw new BandwrightError(
-      'USAGE',
-      `--y-kind = ${JSON.stringify(text)}, must be one of ${Y_KINDS.join(', ')}`,
-      { parameter: '--y-kind' },
-    );
-  return text as YKind;
 }
 
 function recheckFromFlags(options: CalibrateOptions): { everyDays?: number; tolerancePct?: number } {

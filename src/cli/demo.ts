@@ -8,14 +8,10 @@
 import { join, relative } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import type { Command } from 'commander';
-import {
-  BandwrightError,
-  historyPathFor,
-  isNonEmptyFolder,
-  moveHistoryAside,
-  readCheckList,
-  writeFileAtomic,
-} from '../index.js';
+import { BandwrightError } from '../errors.js';
+import { writeFileAtomic } from '../store/atomic-write.js';
+import { isNonEmptyFolder } from '../store/folders.js';
+import { historyPathFor, moveHistoryAside, readCheckList } from '../store/history.js';
 import { note, raiseStatus, type CommandContext } from './context.js';
 
 /** The bundled examples folder, found from this file (works from src/ under tsx and from dist/). */
@@ -32,7 +28,10 @@ interface DemoStep {
   stdoutFile?: string;
   /** Exit statuses that count as the step working as intended. */
   expected?: number[];
-  /** Print one line made from the command's standard output instead of the step's block (the title, when not empty, is shown once). */
+  /**
+   * Print one line made from the command's standard output instead of the step's block (the title,
+   * when not empty, is shown once).
+   */
   line?: (stdout: string) => string;
   /** Creation time for a calibrate step, seconds since 1970 (as SOURCE_DATE_EPOCH). */
   createdAt?: string;
@@ -63,7 +62,8 @@ function recheckLine(stdout: string): string {
     rules: { rule: string }[];
   };
   const recovery = result.recoveryPct === null ? 'zero gas' : `recovery ${result.recoveryPct.toFixed(2)} %`;
-  return `${result.time.slice(0, 10)}  ${recovery}  ${result.verdict}${result.rules.length > 0 ? ` (${result.rules.map((r) => r.rule).join(', ')})` : ''}`;
+  const rules = result.rules.length > 0 ? ` (${result.rules.map((r) => r.rule).join(', ')})` : '';
+  return `${result.time.slice(0, 10)}  ${recovery}  ${result.verdict}${rules}`;
 }
 
 /**
@@ -139,7 +139,8 @@ export function registerDemo(
         steps.push({
           title:
             k === 0
-              ? `Recheck the ${checks.length} weekly check-standard scans in order (--at the time each was measured): recovery, control rules, trend`
+              ? `Recheck the ${checks.length} weekly check-standard scans in order ` +
+                '(--at the time each was measured): recovery, control rules, trend'
               : '',
           args: [
             'recheck',
@@ -165,14 +166,16 @@ export function registerDemo(
       });
       steps.push({
         title:
-          'Write the calibration report: one self-contained HTML page with statistics, limits, plots, the recheck history, provenance and cautions',
+          'Write the calibration report: one self-contained HTML page with statistics, limits, plots, ' +
+          'the recheck history, provenance and cautions',
         args: ['report', at('lab-co.calibration.json'), '-o', at('lab-co.report.html'), ...force],
       });
       const stack = join(examples, 'stack-mixture');
       steps.push(
         {
           title:
-            'Calibrate the stack method by classical least squares: CO and N2O under CO2 and water vapour, 26 standards, second-order terms for the saturating CO, N2O and water lines',
+            'Calibrate the stack method by classical least squares: CO and N2O under CO2 and water vapour, ' +
+            '26 standards, second-order terms for the saturating CO, N2O and water lines',
           args: [
             'calibrate',
             join(stack, 'standards.csv'),
@@ -186,7 +189,8 @@ export function registerDemo(
         },
         {
           title:
-            'Quantify the six stack samples on a dry basis (water from the same scan) and in mg/m³ at 273.15 K and 101.325 kPa; the sample taken during a water-spray upset is flagged poor-fit',
+            'Quantify the six stack samples on a dry basis (water from the same scan) and in mg/m³ ' +
+            'at 273.15 K and 101.325 kPa; the sample taken during a water-spray upset is flagged poor-fit',
           args: [
             'quantify',
             at('stack-k2.calibration.json'),
@@ -217,7 +221,10 @@ export function registerDemo(
         }
         note(
           context,
-          `\n${step.title === '' ? number : ++number}. ${step.title || step.args.slice(0, 3).join(' ')}\n   $ bandwright ${step.args.join(' ')}${step.stdoutFile === undefined ? '' : `\n   → ${at(step.stdoutFile)}`}${ok ? '' : `\n   ! exit status ${result.status}:\n${result.stderr}`}`,
+          `\n${step.title === '' ? number : ++number}. ${step.title || step.args.slice(0, 3).join(' ')}` +
+            `\n   $ bandwright ${step.args.join(' ')}` +
+            `${step.stdoutFile === undefined ? '' : `\n   → ${at(step.stdoutFile)}`}` +
+            `${ok ? '' : `\n   ! exit status ${result.status}:\n${result.stderr}`}`,
         );
         if (!ok) {
           raiseStatus(context, 1);

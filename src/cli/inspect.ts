@@ -2,9 +2,11 @@
  * `bandwright inspect`: what a scan file holds, before it is used.
  */
 import type { Command } from 'commander';
-import { BandwrightError, expandScanArguments, readScan } from '../index.js';
+import { expandScanArguments } from '../batch/scan-paths.js';
+import { BandwrightError } from '../errors.js';
+import { readScan } from '../store/scan-file.js';
 import { describeScan, formatScanDescriptions, type ScanDescription } from '../report/inspect.js';
-import { yKindOption } from './calibrate.js';
+import { yKindOption } from './options.js';
 import { note, raiseStatus, type CommandContext } from './context.js';
 
 /**

@@ -4,7 +4,9 @@
  * use 3 and 4).
  */
 import { Command, CommanderError } from 'commander';
-import { BandwrightError, TOOL, resourceLimits, resourceLimitsHelp } from '../index.js';
+import { BandwrightError } from '../errors.js';
+import { resourceLimits, resourceLimitsHelp } from '../resource-limits.js';
+import { TOOL } from '../version.js';
 import { registerCalibrate } from './calibrate.js';
 import { registerDemo } from './demo.js';
 import type { CommandContext, TextSink } from './context.js';
@@ -28,7 +30,8 @@ export function buildProgram(context: CommandContext): Command {
   program
     .name('bandwright')
     .description(
-      'Gas-cell infrared quantification: calibrate from certified standards, quantify samples with prediction intervals, recheck drift.',
+      'Gas-cell infrared quantification: calibrate from certified standards, ' +
+        'quantify samples with prediction intervals, recheck drift.',
     )
     .version(TOOL.version, '-V, --version')
     .showHelpAfterError('(run with --help for usage)')
@@ -123,7 +126,7 @@ export function runAsProcess(argv: readonly string[]): void {
     if (error.code === 'EPIPE') process.exit(process.exitCode ?? 0);
     throw error;
   });
-  main(argv).then((status) => {
+  void main(argv).then((status) => {
     process.exitCode = status;
   });
 }

@@ -1,7 +1,7 @@
 /**
  * Parsing command-line option values into numbers and lists, with messages that name the option.
  */
-import { BandwrightError } from '../index.js';
+import { BandwrightError } from '../errors.js';
 
 /**
  * Parses a number option strictly.

@@ -1,56 +1,38 @@
 /**
  * `bandwright quantify`: concentrations with prediction intervals for sample scans, or for
- * responses given on the command line.
+ * responses given on the command line. A thin shell over the quantify engine
+ * (`batch/quantify-run.ts`): flags in, the engine streams every scan to the outputs, and this file
+ * words the outcome — a progress bar on an interactive terminal, failures as they happen, a
+ * summary, the report and plots, and the exit status (1 when a scan failed, 130/143 when stopped
+ * by SIGINT/SIGTERM).
  */
 import type { Command } from 'commander';
+import { MIN_SCANS_FOR_WORKERS } from '../batch/engine.js';
 import {
-  BandwrightError,
-  expandScanArguments,
-  formatResultsText,
-  quantifyScan,
-  quantifyResponses,
-  readCalibration,
-  reportedGases,
-  readLimits,
-  readScan,
-  resultsCsv,
-  resultsDocument,
-  writeFileAtomic,
-  parseConcentrationUnit,
-  correctToReferenceOxygen,
-  isFailure,
-  type BatchEntry,
-  type Calibration,
-  type QuantifyOptions,
-  type SampleSpectrum,
-  readScanList,
-} from '../index.js';
-import { QUANTIFY_BATCH_HELP, runQuantifyBatch } from './batch-command.js';
-import { resultsJsonLine } from '../batch/scan-quantifier.js';
-import { workersOption } from '../batch/engine.js';
-import { conditionOptions, yKindOption } from './calibrate.js';
+  quantifyGivenResponses,
+  quantifyScans,
+  type QuantifyJob,
+  type QuantifyOutputs,
+  type QuantifyRunOutcome,
+} from '../batch/quantify-run.js';
+import { readScanList } from '../batch/scan-list.js';
+import { expandScanArguments } from '../batch/scan-paths.js';
+import { TABLE_PAGE_SCANS } from '../batch/sinks.js';
+import { BandwrightError } from '../errors.js';
+import { readCalibration } from '../store/calibration-file.js';
 import { note, raiseStatus, type CommandContext } from './context.js';
-import { collect, parseNumberOption, parsePositiveOption } from './parse.js';
-import { refuseExisting, wavenumberAxisOption, writeQuantifyOutputs } from './report.js';
-
-/** The flags {@link withReportingOptions} adds, as commander parses them. */
-export interface ReportingFlags {
-  level: string;
-  pathLength?: string;
-  temperature?: string;
-  pressure?: string;
-  mgM3?: boolean;
-  refTemperature: string;
-  refPressure: string;
-  dry?: boolean;
-  h2o?: string;
-  o2?: string;
-  o2Ref?: string;
-  o2Air: string;
-  limits?: string;
-  unit?: string;
-  yKind?: string;
-}
+import {
+  quantifyOptionsFrom,
+  wavenumberAxisOption,
+  withReportingOptions,
+  workersOption,
+  yKindOption,
+  type ReportingFlags,
+} from './options.js';
+import { refuseExisting, writeQuantifyReport } from './output-files.js';
+import { collect, parseNumberOption } from './parse.js';
+import { createProgress } from './progress.js';
+import { installStopHandlers, SIGNAL_EXIT_STATUS } from './signals.js';
 
 interface QuantifyFlags extends ReportingFlags {
   report?: string;
@@ -66,107 +48,113 @@ interface QuantifyFlags extends ReportingFlags {
   response?: string[];
 }
 
+/** Help text of `quantify` about long batches and how result files are written. */
+export const QUANTIFY_BATCH_HELP = `
+Batches:
+  Scans come from the arguments (files, folders, globs, - for stdin) and from --from <list>
+  (one path per line; relative paths are relative to the current folder; # comments).
+  A scan that cannot be read or quantified gets an error row (scan, reason) and the batch
+  goes on; the exit status is then 1. Results go to --csv and/or --jsonl as they come; the
+  table on stdout is printed in pages of ${TABLE_PAGE_SCANS} scans, the --json document streamed whole;
+  --quiet prints nothing on stdout. With --report or --plot the whole batch is kept in memory
+  for the report and quantified in this thread.
+  On an interactive terminal a progress bar is drawn on stderr; a summary (scans, failures,
+  time, scans/s) ends every batch. Worker threads (--workers auto: one per idle core when two
+  or more are idle, for batches of ${MIN_SCANS_FOR_WORKERS} scans or more) read and quantify while the
+  main thread writes; the results are the same, in the same order, as with --workers 0.
+
+Result files (--csv, --jsonl):
+  Rows stream into .<name>.partial-<pid> beside the file, which is renamed into place when the
+  batch ends, so the file is either the complete new one or the previous one. An existing file
+  is replaced only with --force. Ctrl-C or SIGTERM: the scans in hand are finished, the file is
+  renamed into place with every finished row, and the exit status is 130 (SIGINT) or 143
+  (SIGTERM). A second signal or SIGKILL stops at once: an earlier file is left as it was and
+  the .partial file holds the rows written so far.
+`;
+
 /**
- * Turns quantify flags into core options.
- *
- * @param flags - parsed flags
- * @returns options for the quantify functions
- * @throws BandwrightError `USAGE` for bad values or incomplete combinations
+ * Runs a batch of scans through the engine for the command line: progress, failures as they
+ * come, the stop handlers, the summary and the exit status.
  */
-export function quantifyOptionsFrom(flags: ReportingFlags): QuantifyOptions {
-  const percent = (text: string, option: string): number =>
-    parseNumberOption(text, option, [(n) => n >= 0 && n <= 100, 'must be a percentage from 0 to 100']);
-  const options: QuantifyOptions = {
-    level: parseNumberOption(flags.level, '--level', [
-      (n) => n > 0 && n < 1,
-      'must be between 0 and 1, e.g. 0.95',
-    ]),
-    defaultConditions: conditionOptions(flags),
-  };
-  if (flags.mgM3)
-    options.massConcentration = {
-      temperature_K: parsePositiveOption(flags.refTemperature, '--ref-temperature'),
-      pressure_kPa: parsePositiveOption(flags.refPressure, '--ref-pressure'),
-    };
-  if (flags.h2o !== undefined && !flags.dry)
-    throw new BandwrightError('USAGE', '--h2o gives the water vapour for --dry; add --dry', {
-      parameter: '--h2o',
+async function runBatch(
+  context: CommandContext,
+  job: QuantifyJob,
+  paths: readonly string[],
+  workers: 'auto' | number,
+): Promise<QuantifyRunOutcome> {
+  const progress = createProgress(context, { total: paths.length });
+  // Reading standard input blocks this thread, so a handler could not run: Ctrl-C keeps its
+  // usual meaning there.
+  const stop = paths.includes('-')
+    ? undefined
+    : installStopHandlers((name) =>
+        progress.note(
+          `bandwright: ${name}: finishing the scans in hand, then writing the results ` +
+            `(a second ${name} stops at once)`,
+        ),
+      );
+  let outcome: QuantifyRunOutcome;
+  try {
+    outcome = await quantifyScans(job, paths, {
+      workers,
+      ...(stop === undefined ? {} : { signal: stop.signal }),
+      onItem: (item, counts) => {
+        if (item.error !== undefined) progress.note(`bandwright: ${item.error}`);
+        progress.update(counts.done, counts.failed);
+      },
+      // The bar goes before the end of the --json document is printed.
+      beforeFinish: () => progress.finish(),
     });
-  if (flags.dry)
-    options.dryBasis = flags.h2o === undefined ? {} : { waterFraction: percent(flags.h2o, '--h2o') / 100 };
-  if ((flags.o2 === undefined) !== (flags.o2Ref === undefined))
+  } finally {
+    progress.finish();
+    stop?.remove();
+  }
+  const { scans, failed, seconds } = outcome;
+  if (outcome.workersOutOfMemory > 0)
+    note(
+      context,
+      `bandwright: ${outcome.workersOutOfMemory} worker thread(s) ran out of heap; ` +
+        'their scans were quantified in the main thread',
+    );
+  for (const file of outcome.files) note(context, `results written to ${file}`);
+  if (failed > 0) {
+    note(context, `${failed} of ${scans} scan(s) could not be quantified`);
+    raiseStatus(context, 1);
+  }
+  const rate = seconds > 0 ? scans / seconds : Number.POSITIVE_INFINITY;
+  const threads = outcome.workers > 0 ? `, ${outcome.workers} worker threads` : '';
+  note(
+    context,
+    `${scans} scan(s), ${failed} failed, in ${seconds.toFixed(2)} s ` +
+      `(${Number.isFinite(rate) ? rate.toFixed(0) : '—'} scans/s${threads})`,
+  );
+  const stoppedBy = stop?.stoppedBy();
+  if (stoppedBy !== undefined) {
+    note(
+      context,
+      `bandwright: interrupted by ${stoppedBy} after ${scans} of ${outcome.total} scans; ` +
+        `the results of those ${scans} are complete`,
+    );
+    raiseStatus(context, SIGNAL_EXIT_STATUS[stoppedBy]);
+  }
+  return outcome;
+}
+
+/** The scan paths of the arguments and of `--from`, in that order. */
+function scanPaths(scanArguments: readonly string[], from: string | undefined): string[] {
+  if (scanArguments.length === 0 && from === undefined)
     throw new BandwrightError(
       'USAGE',
-      'the O2 correction needs both --o2 <measured %> and --o2-ref <reference %>',
-      { parameter: flags.o2 === undefined ? '--o2' : '--o2-ref' },
+      'quantify: give at least one scan (file, folder, glob or -), --from <list>, or --response',
+      { parameter: 'scans' },
     );
-  if (flags.o2 !== undefined && flags.o2Ref !== undefined) {
-    options.oxygen = {
-      measured_pct: percent(flags.o2, '--o2'),
-      reference_pct: percent(flags.o2Ref, '--o2-ref'),
-      air_pct: percent(flags.o2Air, '--o2-air'),
-    };
-    // The O2 values do not depend on the scan: refuse an impossible correction before reading any.
-    correctToReferenceOxygen(1, options.oxygen);
-  }
-  if (flags.limits !== undefined) options.limits = readLimits(flags.limits);
-  if (flags.unit !== undefined) options.unit = parseConcentrationUnit(flags.unit, '--unit');
-  return options;
-}
-
-/**
- * Quantifies scans one by one; a scan that fails becomes a failure entry and the batch goes on.
- *
- * @param calibration - verified calibration
- * @param scans - scan paths (or `-`)
- * @param options - quantify options
- * @param yKind - y-kind for scans that do not declare one
- * @param spectra - when given, every scan read is added to it (for plots and reports)
- */
-export function quantifyScans(
-  calibration: Calibration,
-  scans: readonly string[],
-  options: QuantifyOptions,
-  yKind?: string,
-  spectra?: SampleSpectrum[],
-): BatchEntry[] {
-  const kind = yKindOption(yKind);
-  return scans.map((scan): BatchEntry => {
-    try {
-      const spectrum = readScan(scan, kind === undefined ? {} : { yKind: kind });
-      spectra?.push({ scan, spectrum });
-      return quantifyScan(calibration, spectrum, options);
-    } catch (error) {
-      if (error instanceof BandwrightError) return { scan, error: error.message };
-      throw error;
-    }
-  });
-}
-
-/**
- * Adds the options every quantifying command shares (quantify, watch): interval level, default
- * conditions, reporting unit and conversions, exposure limits, y-kind.
- *
- * @param command - the command to extend
- * @returns the same command
- */
-export function withReportingOptions(command: Command): Command {
-  return command
-    .option('--level <p>', 'prediction-interval level', '0.95')
-    .option('--path-length <m>', 'path length for scans that do not state it, m')
-    .option('--temperature <K>', 'gas temperature for scans that do not state it, K')
-    .option('--pressure <kPa>', 'gas pressure for scans that do not state it, kPa')
-    .option('--unit <unit>', "report in ppm, ppb or pct (default: the calibration's unit)")
-    .option('--mg-m3', 'also report mg/m³ at the reference temperature and pressure')
-    .option('--ref-temperature <K>', 'reference temperature for --mg-m3, K', '273.15')
-    .option('--ref-pressure <kPa>', 'reference pressure for --mg-m3, kPa', '101.325')
-    .option('--dry', 'also report on a dry basis (H2O from the same scan, or --h2o)')
-    .option('--h2o <pct>', 'water vapour in the sample, % by volume, for --dry')
-    .option('--o2 <pct>', 'measured O2, %, for the oxygen reference correction')
-    .option('--o2-ref <pct>', 'reference O2, %, to correct to')
-    .option('--o2-air <pct>', 'O2 of air, %, in the correction', '20.9')
-    .option('--limits <file>', 'CSV of exposure limits (gas,limit,unit,basis,source) for the over-limit flag')
-    .option('--y-kind <kind>', 'y values of scans that do not declare them');
+  const paths = [
+    ...(scanArguments.length === 0 ? [] : expandScanArguments(scanArguments)),
+    ...(from === undefined ? [] : readScanList(from)),
+  ];
+  if (paths.length === 0)
+    throw new BandwrightError('USAGE', `quantify: ${from} lists no scans`, { parameter: '--from' });
+  return paths;
 }
 
 /**
@@ -215,26 +203,36 @@ export function registerQuantify(program: Command, context: CommandContext): voi
     .addHelpText('after', QUANTIFY_BATCH_HELP)
     .action(async (calibrationPath: string, scanArguments: string[], flags: QuantifyFlags) => {
       const wavenumberAxis = wavenumberAxisOption(flags.wavenumberAxis);
-      if (flags.report !== undefined) refuseExisting(flags.report, flags.force === true, '--report');
-      const spectra: SampleSpectrum[] = [];
+      const force = flags.force === true;
+      if (flags.report !== undefined) refuseExisting(flags.report, force, '--report');
       const calibration = readCalibration(calibrationPath);
       const options = quantifyOptionsFrom(flags);
-      const level = options.level ?? 0.95;
-      let entries: BatchEntry[];
+      const reporting = flags.report !== undefined || flags.plot !== undefined;
+      const outputs: QuantifyOutputs = {
+        csv: flags.csv,
+        jsonl: flags.jsonl,
+        mode: 'replace',
+        overwrite: force,
+        ...(flags.json
+          ? { stdout: { sink: context.stdout, form: 'json' as const } }
+          : flags.quiet
+            ? {}
+            : { stdout: { sink: context.stdout, form: 'table' as const } }),
+        // A report needs the whole batch: the entries and the spectra read.
+        collectEntries: reporting,
+        collectSpectra: reporting,
+      };
+      const job: QuantifyJob = { calibration, calibrationPath, options, outputs };
+      let outcome: QuantifyRunOutcome;
       if (flags.response !== undefined) {
         if (scanArguments.length > 0 || flags.from !== undefined)
           throw new BandwrightError('USAGE', 'quantify: give scans or --response values, not both', {
             parameter: '--response',
           });
         const responses = flags.response.map((text, i) => parseNumberOption(text, `--response ${i + 1}`));
-        entries = [quantifyResponses(calibration, responses, options)];
+        outcome = quantifyGivenResponses(job, responses);
+        for (const file of outcome.files) note(context, `results written to ${file}`);
       } else {
-        if (scanArguments.length === 0 && flags.from === undefined)
-          throw new BandwrightError(
-            'USAGE',
-            'quantify: give at least one scan (file, folder, glob or -), --from <list>, or --response',
-            { parameter: 'scans' },
-          );
         if (flags.json && flags.quiet)
           throw new BandwrightError(
             'USAGE',
@@ -242,73 +240,21 @@ export function registerQuantify(program: Command, context: CommandContext): voi
             { parameter: '--quiet' },
           );
         const workers = workersOption(flags.workers ?? 'auto');
-        const paths = [
-          ...(scanArguments.length === 0 ? [] : expandScanArguments(scanArguments)),
-          ...(flags.from === undefined ? [] : readScanList(flags.from)),
-        ];
-        if (paths.length === 0)
-          throw new BandwrightError('USAGE', `quantify: ${flags.from} lists no scans`, {
-            parameter: '--from',
-          });
-        if (flags.report === undefined && flags.plot === undefined) {
-          // Streaming batch: entries go to the outputs as they come (batch-command.ts).
-          await runQuantifyBatch(context, {
-            calibration,
-            calibrationPath,
-            options,
-            ...(flags.yKind === undefined ? {} : { yKind: yKindOption(flags.yKind) }),
-            paths,
-            json: flags.json === true,
-            quiet: flags.quiet === true,
-            ...(flags.csv === undefined ? {} : { csv: flags.csv }),
-            ...(flags.jsonl === undefined ? {} : { jsonl: flags.jsonl }),
-            force: flags.force === true,
-            workers,
-          });
-          return;
-        }
-        entries = quantifyScans(calibration, paths, options, flags.yKind, spectra);
+        const paths = scanPaths(scanArguments, flags.from);
+        job.yKind = yKindOption(flags.yKind);
+        outcome = await runBatch(context, job, paths, workers);
       }
-      const gases = reportedGases(calibration).map((g) => ({ gas: g.gas, unit: options.unit ?? g.unit }));
-      if (flags.csv !== undefined) {
-        writeFileAtomic(flags.csv, resultsCsv(entries, gases, calibration.sha256), {
-          overwrite: flags.force === true,
-          createFolder: true,
-        });
-        note(context, `results written to ${flags.csv}`);
-      }
-      if (flags.jsonl !== undefined) {
-        writeFileAtomic(
-          flags.jsonl,
-          entries.map((entry) => resultsJsonLine(entry, calibration.sha256)).join(''),
-          { overwrite: flags.force === true, createFolder: true },
-        );
-        note(context, `results written to ${flags.jsonl}`);
-      }
-      if (flags.report !== undefined || flags.plot !== undefined) {
-        writeQuantifyOutputs(context, {
+      if (reporting)
+        writeQuantifyReport(context, {
           calibration,
           calibrationPath,
-          entries,
-          spectra,
+          entries: outcome.entries,
+          spectra: outcome.spectra,
           options,
           report: flags.report,
           plot: flags.plot,
-          force: flags.force === true,
+          force,
           wavenumberAxis,
         });
-      }
-      if (flags.json)
-        context.stdout.write(
-          `${JSON.stringify(resultsDocument(entries, { file: calibrationPath, sha256: calibration.sha256 }, level), null, 2)}\n`,
-        );
-      else context.stdout.write(`${formatResultsText(entries, level)}\n`);
-      const failures = entries.filter(isFailure);
-      for (const failure of failures) note(context, `bandwright: ${failure.error}`);
-      const failed = failures.length;
-      if (failed > 0) {
-        note(context, `${failed} of ${entries.length} scan(s) could not be quantified`);
-        raiseStatus(context, 1);
-      }
     });
 }

@@ -4,29 +4,35 @@
  * when the next recheck is due. Exit status 0 pass, 3 warning, 4 fail (DESIGN §4).
  */
 import type { Command } from 'commander';
+import type { RecheckPolicy } from '../calibration/method.js';
 import {
-  BandwrightError,
-  checkRecordOf,
-  formatRecheckText,
-  historyPathFor,
-  measureCheck,
-  parseConcentrationUnit,
-  readCalibration,
-  readScan,
-  recheckDocument,
-  recheckExitCode,
-  appendHistoryRecord,
   judgeCheck,
   type JudgedCheck,
-  scheduleFor,
-  sha256OfFile,
+  type DriftEvaluation,
   type CheckMeasurementRecord,
-  type RecheckPolicy,
-} from '../index.js';
-import { conditionOptions, yKindOption } from './calibrate.js';
-import { raiseStatus, type CommandContext } from './context.js';
-import { parseNumberOption, parsePositiveOption } from './parse.js';
-import { writeRecheckPlot } from './report.js';
+} from '../drift/evaluate.js';
+import { checkRecordOf, measureCheck } from '../drift/recheck.js';
+import { scheduleFor } from '../drift/schedule.js';
+import { recheckExitCode } from '../drift/status.js';
+import { BandwrightError } from '../errors.js';
+import { parseConcentrationUnit } from '../gas/units.js';
+import { formatRecheckText, recheckDocument } from '../report/drift-text.js';
+import { controlChartFromEvaluation } from '../report/svg/control-chart-data.js';
+import { controlChartPlot } from '../report/svg/plot-set.js';
+import { readCalibration } from '../store/calibration-file.js';
+import { sha256OfFile } from '../store/hash.js';
+import { historyPathFor, appendHistoryRecord } from '../store/history.js';
+import { readScan } from '../store/scan-file.js';
+import { note, raiseStatus, type CommandContext } from './context.js';
+import {
+  conditionOptions,
+  levelOption,
+  parseTimeOption,
+  recheckPolicyOptions,
+  yKindOption,
+} from './options.js';
+import { writePlotFiles } from './output-files.js';
+import { parseNumberOption } from './parse.js';
 
 /**
  * Judges a new check against the history and appends it, both while the history's lock is held,
@@ -70,47 +76,6 @@ interface RecheckFlags {
   plot?: string;
 }
 
-const ISO_TIME = /^\d{4}-\d{2}-\d{2}(?:T\d{2}:\d{2}(?::\d{2}(?:\.\d{1,9})?)?(Z|[+-]\d{2}:\d{2}))?$/;
-
-/**
- * Parses an ISO 8601 time option: a date (`2026-09-01`, taken as 00:00 UTC) or a date and time with
- * its zone (`2026-09-01T09:30Z`, `2026-09-01T11:30+02:00`). A time without a zone is refused, so a
- * record never depends on the computer's time zone.
- *
- * @param text - the option's text
- * @param option - option name for messages
- * @returns the time as ISO 8601 UTC (`toISOString`)
- * @throws BandwrightError `USAGE`
- */
-export function parseTimeOption(text: string, option: string): string {
-  const trimmed = text.trim();
-  if (/^\d{4}-\d{2}-\d{2}T\d{2}:\d{2}(?::\d{2}(?:\.\d+)?)?$/.test(trimmed)) {
-    throw new BandwrightError(
-      'USAGE',
-      `${option} = ${JSON.stringify(text)} has no time zone; add Z (UTC) or an offset such as +02:00`,
-      { parameter: option },
-    );
-  }
-  const ms = ISO_TIME.test(trimmed)
-    ? Date.parse(trimmed.length === 10 ? `${trimmed}T00:00:00Z` : trimmed)
-    : Number.NaN;
-  if (!Number.isFinite(ms)) {
-    throw new BandwrightError(
-      'USAGE',
-      `${option} = ${JSON.stringify(text)}, must be an ISO 8601 date or time such as 2026-09-01 or 2026-09-01T09:30:00Z`,
-      { parameter: option },
-    );
-  }
-  const iso = new Date(ms).toISOString();
-  // Date.parse rolls 2026-02-30 over to March: refuse dates that do not exist.
-  if (iso.slice(0, 10) !== trimmed.slice(0, 10) && !/[+-]\d{2}:\d{2}$/.test(trimmed)) {
-    throw new BandwrightError('USAGE', `${option} = ${JSON.stringify(text)} is not a calendar date`, {
-      parameter: option,
-    });
-  }
-  return iso;
-}
-
 /**
  * The recheck policy: the calibration's, with the command's overrides.
  *
@@ -118,18 +83,35 @@ export function parseTimeOption(text: string, option: string): string {
  * @param flags - `everyDays`, `tolerancePct` option texts
  * @throws BandwrightError `USAGE`
  */
-export function policyFrom(
+function policyFrom(
   base: RecheckPolicy,
   flags: { everyDays?: string; tolerancePct?: string },
 ): RecheckPolicy {
-  const policy = { ...base };
-  if (flags.everyDays !== undefined) policy.everyDays = parsePositiveOption(flags.everyDays, '--every-days');
-  if (flags.tolerancePct !== undefined)
-    policy.tolerancePct = parseNumberOption(flags.tolerancePct, '--tolerance-pct', [
-      (n) => n > 0 && n < 100,
-      'must be a percentage > 0 and < 100',
-    ]);
-  return policy;
+  return { ...base, ...recheckPolicyOptions(flags) };
+}
+
+/**
+ * Writes the control chart of a gas's evaluated history for `recheck --plot`: the file
+ * `<gas>-control-chart.svg` is regenerated from the history on every recheck, so it is replaced.
+ *
+ * @param context - where to print the note
+ * @param folder - destination folder
+ * @param evaluation - the evaluated history after the new check
+ * @param nextDue - next due time, ISO, when known
+ */
+function writeRecheckPlot(
+  context: CommandContext,
+  folder: string,
+  evaluation: DriftEvaluation,
+  nextDue?: string,
+): void {
+  const chart = controlChartFromEvaluation(evaluation, nextDue === undefined ? {} : { nextDue });
+  const written = writePlotFiles(
+    folder,
+    [controlChartPlot(chart, { file: `${evaluation.gas}-control-chart` })],
+    { force: true },
+  );
+  note(context, `control chart written to ${written.join(', ')}`);
 }
 
 /** Lateness allowed for `--at` beyond the clock, for clocks that disagree a little, ms. */
@@ -145,7 +127,8 @@ export function registerRecheck(program: Command, context: CommandContext): void
   program
     .command('recheck')
     .description(
-      "measure a check standard, judge it (tolerance and control rules), append it to the calibration's history, and give the next due date (exit 0 pass, 3 warning, 4 fail)",
+      'measure a check standard, judge it (tolerance and control rules), ' +
+        "append it to the calibration's history, and give the next due date (exit 0 pass, 3 warning, 4 fail)",
     )
     .argument('<calibration>', 'calibration file (JSON) made by calibrate')
     .argument('<scan>', 'scan of the check standard (a file: its path and SHA-256 go into the history)')
@@ -163,7 +146,8 @@ export function registerRecheck(program: Command, context: CommandContext): void
     .option('--json', 'print the result as JSON on stdout')
     .option(
       '--plot <dir>',
-      'also write the control chart as <gas>-control-chart.svg into this folder (regenerated from the history, so replaced each time)',
+      'also write the control chart as <gas>-control-chart.svg into this folder ' +
+        '(regenerated from the history, so replaced each time)',
     )
     .action((calibrationPath: string, scan: string, flags: RecheckFlags) => {
       // Options first, so that a mistyped value fails before any file is read.
@@ -172,10 +156,7 @@ export function registerRecheck(program: Command, context: CommandContext): void
         'must be a concentration >= 0 (0 for zero gas)',
       ]);
       const unit = flags.unit === undefined ? undefined : parseConcentrationUnit(flags.unit, '--unit');
-      const level = parseNumberOption(flags.level, '--level', [
-        (n) => n > 0 && n < 1,
-        'must be between 0 and 1, e.g. 0.95',
-      ]);
+      const level = levelOption(flags.level);
       const nowMs = Date.now();
       const recordedAt = new Date(nowMs).toISOString();
       const time = flags.at === undefined ? recordedAt : parseTimeOption(flags.at, '--at');

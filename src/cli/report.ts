@@ -1,66 +1,33 @@
 /**
- * `bandwright report <calibration>`: one self-contained HTML page for a calibration, and the
- * helpers `calibrate --plot`, `quantify --plot/--report` and `recheck --plot` share: checking the
- * recorded inputs against their SHA-256, re-reading the standards' spectra that still match,
- * writing plots as SVG files and reports atomically.
+ * `bandwright report <calibration>`: one self-contained HTML page for a calibration, made from
+ * what is on disk: the recorded inputs checked against their SHA-256, the standards' spectra that
+ * still match, and the recheck history beside the calibration.
  */
 import { basename, dirname, extname, join, resolve } from 'node:path';
 import type { Command } from 'commander';
+import type { Calibration } from '../calibration/calibration.js';
+import { evaluateHistory } from '../drift/evaluate.js';
+import { scheduleFor } from '../drift/schedule.js';
+import { BandwrightError } from '../errors.js';
 import {
-  BandwrightError,
   calibrationReportHtml,
-  isNonEmptyFolder,
   calibrationReportPlots,
-  readCalibration,
-  readScan,
-  checkInputs,
-  recordedInputPath,
-  svgFile,
-  TOOL,
-  writeFileAtomic,
-  type Calibration,
   type CalibrationReportInput,
   type InputCheck,
-  type NamedPlot,
-  type QuantifyOptions,
-  type BatchEntry,
-  type SampleSpectrum,
-  quantifyReportHtml,
-  quantifyReportPlots,
   type RecheckHistoryView,
-  type DriftEvaluation,
-  controlChartFromEvaluation,
-  controlChartPlot,
-  evaluateHistory,
-  historyPathFor,
-  readHistoryIfExists,
-  scheduleFor,
-  type StandardSpectrum,
-  type WavenumberAxis,
-} from '../index.js';
+} from '../report/html.js';
+import { controlChartFromEvaluation } from '../report/svg/control-chart-data.js';
+import type { StandardSpectrum } from '../report/svg/plot-set.js';
+import { writeFileAtomic } from '../store/atomic-write.js';
+import { readCalibration } from '../store/calibration-file.js';
+import { historyPathFor, readHistoryIfExists } from '../store/history.js';
+import { readScan } from '../store/scan-file.js';
+import { checkInputs, recordedInputPath } from '../store/verify.js';
+import { TOOL } from '../version.js';
 import { note, type CommandContext } from './context.js';
-import { creationTime, parseNumberOption } from './parse.js';
-
-/** Values of `--wavenumber-axis`. */
-export const WAVENUMBER_AXIS_CHOICES: readonly WavenumberAxis[] = ['descending', 'ascending'];
-
-/**
- * Parses `--wavenumber-axis`.
- *
- * @param text - option value (`descending`: high wavenumbers on the left; `ascending`)
- * @throws BandwrightError `USAGE` for another value
- */
-export function wavenumberAxisOption(text: string | undefined): WavenumberAxis {
-  if (text === undefined) return 'descending';
-  if (!(WAVENUMBER_AXIS_CHOICES as readonly string[]).includes(text)) {
-    throw new BandwrightError(
-      'USAGE',
-      `--wavenumber-axis = ${JSON.stringify(text)}, must be descending (high wavenumbers on the left) or ascending`,
-      { parameter: '--wavenumber-axis' },
-    );
-  }
-  return text as WavenumberAxis;
-}
+import { levelOption, wavenumberAxisOption } from './options.js';
+import { refuseExisting, refuseExistingPlots, writePlotFiles } from './output-files.js';
+import { creationTime } from './parse.js';
 
 /**
  * Re-reads the standards' spectra whose files still match their recorded SHA-256. The i-th
@@ -82,16 +49,22 @@ export function loadRecordedStandards(
   if (calibration.method.model === 'responses') return { spectra, notes };
   if (standardChecks.length !== calibration.standards.length) {
     notes.push(
-      `the calibration records ${standardChecks.length} standard scan file(s) for ${calibration.standards.length} standards, so the spectra cannot be matched to the standards and are not drawn`,
+      `the calibration records ${standardChecks.length} standard scan file(s) ` +
+        `for ${calibration.standards.length} standards, ` +
+        'so the spectra cannot be matched to the standards and are not drawn',
     );
     return { spectra, notes };
   }
   const problems: string[] = [];
   standardChecks.forEach((check, index) => {
     if (check.status !== 'unchanged') {
-      problems.push(
-        `${check.path} (${check.status === 'changed' ? 'changed since the calibration was built' : check.status === 'missing' ? 'missing' : `unreadable: ${check.message ?? ''}`})`,
-      );
+      const why =
+        check.status === 'changed'
+          ? 'changed since the calibration was built'
+          : check.status === 'missing'
+            ? 'missing'
+            : `unreadable: ${check.message ?? ''}`;
+      problems.push(`${check.path} (${why})`);
       return;
     }
     try {
@@ -106,63 +79,6 @@ export function loadRecordedStandards(
       `${problems.length} of ${standardChecks.length} standard spectra are not drawn: ${problems.join('; ')}`,
     );
   return { spectra, notes };
-}
-
-/**
- * Writes plots as SVG files into a folder (created when missing). Refuses before writing anything
- * when a file exists and `force` is off, so a refusal leaves the folder as it was.
- *
- * @param folder - destination folder
- * @param plots - plots with unique file names
- * @param options - `force` to replace existing files
- * @returns the paths written
- * @throws BandwrightError `FILE_EXISTS` naming the first existing file; `FILE_READ` when the folder cannot be written
- */
-export function writePlotFiles(
-  folder: string,
-  plots: readonly NamedPlot[],
-  options: { force?: boolean } = {},
-): string[] {
-  const paths = plots.map((plot) => join(folder, plot.file));
-  refuseExistingPlots(folder, plots, options.force === true);
-  plots.forEach((plot, i) =>
-    writeFileAtomic(paths[i] as string, svgFile(plot.svg), { overwrite: true, createFolder: true }),
-  );
-  return paths;
-}
-
-/**
- * Refuses when any plot file would replace an existing file and `force` is off.
- *
- * @param folder - destination folder
- * @param plots - plots to write
- * @param force - whether replacing is allowed
- * @throws BandwrightError `FILE_EXISTS` naming the first existing file
- */
-export function refuseExistingPlots(folder: string, plots: readonly NamedPlot[], force: boolean): void {
-  if (force) return;
-  const existing = plots.map((plot) => join(folder, plot.file)).find((path) => isNonEmptyFolder(path));
-  if (existing !== undefined)
-    throw new BandwrightError(
-      'FILE_EXISTS',
-      `${existing} exists; use --force to replace the plots in ${folder}`,
-      { file: existing, parameter: '--plot' },
-    );
-}
-
-/**
- * Refuses early when an output file exists and `force` is off (before any work is done).
- *
- * @param path - output path
- * @param force - whether replacing is allowed
- * @param option - option name for the message
- */
-export function refuseExisting(path: string, force: boolean, option: string): void {
-  if (!force && isNonEmptyFolder(path))
-    throw new BandwrightError('FILE_EXISTS', `${path} exists; use --force to replace it`, {
-      file: path,
-      parameter: option,
-    });
 }
 
 /**
@@ -200,7 +116,8 @@ export function recheckHistoryViews(
     return {
       views: [],
       notes: [
-        `${path} belongs to another calibration (sha256 ${history.calibrationSha256.slice(0, 12)}…, this one ${calibration.sha256.slice(0, 12)}…); its checks are not shown`,
+        `${path} belongs to another calibration (sha256 ${history.calibrationSha256.slice(0, 12)}…, ` +
+          `this one ${calibration.sha256.slice(0, 12)}…); its checks are not shown`,
       ],
     };
   }
@@ -274,30 +191,6 @@ export function calibrationReportInput(
   };
 }
 
-/**
- * Writes the control chart of a gas's evaluated history for `recheck --plot`: the file
- * `<gas>-control-chart.svg` is regenerated from the history on every recheck, so it is replaced.
- *
- * @param context - where to print the note
- * @param folder - destination folder
- * @param evaluation - the evaluated history after the new check
- * @param nextDue - next due time, ISO, when known
- */
-export function writeRecheckPlot(
-  context: CommandContext,
-  folder: string,
-  evaluation: DriftEvaluation,
-  nextDue?: string,
-): void {
-  const chart = controlChartFromEvaluation(evaluation, nextDue === undefined ? {} : { nextDue });
-  const written = writePlotFiles(
-    folder,
-    [controlChartPlot(chart, { file: `${evaluation.gas}-control-chart` })],
-    { force: true },
-  );
-  note(context, `control chart written to ${written.join(', ')}`);
-}
-
 interface ReportFlags {
   output?: string;
   force?: boolean;
@@ -316,7 +209,8 @@ export function registerReport(program: Command, context: CommandContext): void 
   program
     .command('report')
     .description(
-      'write one self-contained HTML page for a calibration: statistics, limits, plots, recheck history, provenance, cautions',
+      'write one self-contained HTML page for a calibration: ' +
+        'statistics, limits, plots, recheck history, provenance, cautions',
     )
     .argument('<calibration>', 'calibration file (JSON) made by calibrate')
     .option(
@@ -331,10 +225,7 @@ export function registerReport(program: Command, context: CommandContext): void 
       'spectra with wavenumbers descending (high on the left, default) or ascending',
     )
     .action((calibrationPath: string, flags: ReportFlags) => {
-      const level = parseNumberOption(flags.level, '--level', [
-        (n) => n > 0 && n < 1,
-        'must be between 0 and 1, e.g. 0.95',
-      ]);
+      const level = levelOption(flags.level);
       const wavenumberAxis = wavenumberAxisOption(flags.wavenumberAxis);
       const output = flags.output ?? defaultReportPath(calibrationPath);
       const force = flags.force === true;
@@ -352,96 +243,14 @@ export function registerReport(program: Command, context: CommandContext): void 
       if (changed.length > 0)
         note(
           context,
-          `note: ${changed.length} recorded input file(s) are missing or changed: ${changed.map((c) => `${resolve(recordedInputPath(calibrationPath, c.path))} (${c.status})`).join(', ')}`,
+          `note: ${changed.length} recorded input file(s) are missing or changed: ` +
+            changed
+              .map((c) => `${resolve(recordedInputPath(calibrationPath, c.path))} (${c.status})`)
+              .join(', '),
         );
       if (flags.plot !== undefined) {
         const written = writePlotFiles(flags.plot, plots, { force: true });
         note(context, `${written.length} plot(s) written to ${flags.plot}`);
       }
     });
-}
-
-/** What {@link writeQuantifyOutputs} writes from. */
-export interface QuantifyOutputs {
-  /** The calibration used. */
-  calibration: Calibration;
-  /** Its file as named. */
-  calibrationPath: string;
-  /** Results and failures. */
-  entries: readonly BatchEntry[];
-  /** The scans that were read. */
-  spectra: readonly SampleSpectrum[];
-  /** The options the results were computed with. */
-  options: QuantifyOptions;
-  /** HTML report to write, if any. */
-  report?: string | undefined;
-  /** Folder for SVG plots, if any. */
-  plot?: string | undefined;
-  /** Replace existing files. */
-  force: boolean;
-  /** Wavenumber axis direction. */
-  wavenumberAxis: WavenumberAxis;
-}
-
-/**
- * The reporting options in words, for the report's facts.
- *
- * @param options - quantify options
- */
-export function reportingWords(options: QuantifyOptions): string[] {
-  const words: string[] = [];
-  if (options.unit !== undefined) words.push(`reported in ${options.unit}`);
-  if (options.dryBasis !== undefined)
-    words.push(
-      options.dryBasis.waterFraction === undefined
-        ? 'dry basis (water from the same scan)'
-        : `dry basis (water ${(options.dryBasis.waterFraction * 100).toFixed(2)} % as given)`,
-    );
-  if (options.oxygen !== undefined)
-    words.push(
-      `corrected to ${options.oxygen.reference_pct} % O2 (measured ${options.oxygen.measured_pct} %, air ${options.oxygen.air_pct ?? 20.9} %)`,
-    );
-  if (options.massConcentration !== undefined)
-    words.push(
-      `mg/m³ at ${options.massConcentration.temperature_K} K and ${options.massConcentration.pressure_kPa} kPa`,
-    );
-  if (options.limits !== undefined)
-    words.push(`${options.limits.length} exposure limit(s) for the over-limit flag`);
-  return words;
-}
-
-/**
- * Writes `quantify --report` and `--plot`: refuses before writing anything when a file exists
- * and `force` is off.
- *
- * @param context - where to print notes
- * @param outputs - results, spectra and destinations
- * @throws BandwrightError `FILE_EXISTS`; `FILE_READ` when a folder cannot be written
- */
-export function writeQuantifyOutputs(context: CommandContext, outputs: QuantifyOutputs): void {
-  const input = {
-    calibration: outputs.calibration,
-    calibrationFile: outputs.calibrationPath,
-    entries: outputs.entries,
-    level: outputs.options.level ?? 0.95,
-    spectra: outputs.spectra,
-    generatedAt: creationTime(),
-    tool: { name: TOOL.name, version: TOOL.version },
-    options: reportingWords(outputs.options),
-  };
-  const plots =
-    outputs.plot === undefined ? [] : quantifyReportPlots(input, { wavenumberAxis: outputs.wavenumberAxis });
-  if (outputs.report !== undefined) refuseExisting(outputs.report, outputs.force, '--report');
-  if (outputs.plot !== undefined) refuseExistingPlots(outputs.plot, plots, outputs.force);
-  if (outputs.report !== undefined) {
-    writeFileAtomic(outputs.report, quantifyReportHtml(input, { wavenumberAxis: outputs.wavenumberAxis }), {
-      overwrite: outputs.force,
-      createFolder: true,
-    });
-    note(context, `report written to ${outputs.report}`);
-  }
-  if (outputs.plot !== undefined) {
-    const written = writePlotFiles(outputs.plot, plots, { force: true });
-    note(context, `${written.length} plot(s) written to ${outputs.plot}`);
-  }
 }

@@ -4,14 +4,11 @@
  */
 import { extname } from 'node:path';
 import type { Command } from 'commander';
-import {
-  BandwrightError,
-  formatJcamp,
-  formatSpectrumCsv,
-  simulateSpectrum,
-  writeFileAtomic,
-  type SimulationOptions,
-} from '../index.js';
+import { BandwrightError } from '../errors.js';
+import { formatJcamp } from '../formats/jcamp/write.js';
+import { formatSpectrumCsv } from '../formats/spectrum-csv-write.js';
+import { simulateSpectrum, type SimulationOptions } from '../simulate/index.js';
+import { writeFileAtomic } from '../store/atomic-write.js';
 import { note, type CommandContext } from './context.js';
 import { collect, parseNumberOption, parsePositiveOption, parseWindowOption } from './parse.js';
 
@@ -131,7 +128,9 @@ export function registerSimulate(program: Command, context: CommandContext): voi
       for (const gas of result.gases) {
         note(
           context,
-          `${gas.name}: ${gas.ppm} ppm, weak-absorption band area ${gas.weakLimitBandArea_AU_cm.toPrecision(5)} AU·cm⁻¹ (${gas.lineCount} lines${gas.approximate ? ', approximate band model' : ''})`,
+          `${gas.name}: ${gas.ppm} ppm, ` +
+            `weak-absorption band area ${gas.weakLimitBandArea_AU_cm.toPrecision(5)} AU·cm⁻¹ ` +
+            `(${gas.lineCount} lines${gas.approximate ? ', approximate band model' : ''})`,
         );
       }
       for (const warning of [...result.warnings, ...result.notes]) note(context, `note: ${warning}`);

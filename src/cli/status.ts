@@ -4,24 +4,23 @@
  * a calibration or history could not be read (DESIGN §4).
  */
 import type { Command } from 'commander';
+import { calibrationStatus, statusExitCode, type GasStatus } from '../drift/status.js';
+import { BandwrightError } from '../errors.js';
 import {
-  BandwrightError,
-  calibrationStatus,
-  collectCalibrationFiles,
-  findCalibrationFiles,
   formatStatusText,
-  historyPathFor,
-  readCalibration,
-  readHistoryIfExists,
   statusDocument,
-  statusExitCode,
-  type GasStatus,
   type StatusProblem,
   type StatusReport,
-} from '../index.js';
+} from '../report/drift-text.js';
+import { readCalibration } from '../store/calibration-file.js';
+import {
+  collectCalibrationFiles,
+  findCalibrationFiles,
+  historyPathFor,
+  readHistoryIfExists,
+} from '../store/history.js';
 import { raiseStatus, type CommandContext } from './context.js';
-import { parseNumberOption, parsePositiveOption } from './parse.js';
-import { parseTimeOption } from './recheck.js';
+import { parseTimeOption, recheckPolicyOptions } from './options.js';
 
 interface StatusFlags {
   json?: boolean;
@@ -43,7 +42,8 @@ export function registerStatus(program: Command, context: CommandContext): void 
   program
     .command('status')
     .description(
-      'table of calibrations: last check, verdict, next due, days overdue, trend (exit 0 all current, 3 due within a day, 4 overdue or failed)',
+      'table of calibrations: last check, verdict, next due, days overdue, trend ' +
+        '(exit 0 all current, 3 due within a day, 4 overdue or failed)',
     )
     .argument(
       '[targets...]',
@@ -61,14 +61,7 @@ export function registerStatus(program: Command, context: CommandContext): void 
     .option('--json', 'print the status as JSON on stdout')
     .action((targets: string[], flags: StatusFlags) => {
       const now = flags.now === undefined ? new Date().toISOString() : parseTimeOption(flags.now, '--now');
-      const policy: { everyDays?: number; tolerancePct?: number } = {};
-      if (flags.everyDays !== undefined)
-        policy.everyDays = parsePositiveOption(flags.everyDays, '--every-days');
-      if (flags.tolerancePct !== undefined)
-        policy.tolerancePct = parseNumberOption(flags.tolerancePct, '--tolerance-pct', [
-          (n) => n > 0 && n < 100,
-          'must be a percentage > 0 and < 100',
-        ]);
+      const policy = recheckPolicyOptions(flags);
       if (targets.length === 0) {
         try {
           findCalibrationFiles(DEFAULT_CALIBRATION_FOLDER);
@@ -110,10 +103,12 @@ export function registerStatus(program: Command, context: CommandContext): void 
       const report: StatusReport = { now, rows, skipped, errors, exitStatus };
       if (flags.json) context.stdout.write(`${JSON.stringify(statusDocument(report), null, 2)}\n`);
       else context.stdout.write(`${formatStatusText(report)}\n`);
-      for (const problem of errors)
-        context.stderr.write(
-          `bandwright: ${problem.message.startsWith(problem.file) ? problem.message : `${problem.file}: ${problem.message}`}\n`,
-        );
+      for (const problem of errors) {
+        const message = problem.message.startsWith(problem.file)
+          ? problem.message
+          : `${problem.file}: ${problem.message}`;
+        context.stderr.write(`bandwright: ${message}\n`);
+      }
       raiseStatus(context, exitStatus);
     });
 }

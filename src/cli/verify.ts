@@ -4,7 +4,8 @@
  * cannot be read, or when the calibration itself fails its hash.
  */
 import type { Command } from 'commander';
-import { formatTextTable, verifyInputs, type IntegrityReport, type RecordedInputCheck } from '../index.js';
+import { formatTextTable } from '../report/table.js';
+import { verifyInputs, type IntegrityReport, type RecordedInputCheck } from '../store/verify.js';
 import { note, raiseStatus, type CommandContext } from './context.js';
 
 const STATUS_WORDS: Record<RecordedInputCheck['status'], string> = {
@@ -60,7 +61,8 @@ export function registerVerify(program: Command, context: CommandContext): void 
           .join(', ');
         note(
           context,
-          `bandwright: ${bad.length} of ${report.inputs.length} input file(s) of ${calibrationPath} changed or missing since it was built: ${list}; rebuild the calibration or restore the files`,
+          `bandwright: ${bad.length} of ${report.inputs.length} input file(s) of ${calibrationPath} ` +
+            `changed or missing since it was built: ${list}; rebuild the calibration or restore the files`,
         );
         raiseStatus(context, 1);
       } else {

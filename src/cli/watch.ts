@@ -2,28 +2,23 @@
  * `bandwright watch <calibration> <folder>`: quantify each new complete scan as an instrument
  * writes it into a folder, append its result, and keep going past bad files; stop cleanly on
  * Ctrl-C or SIGTERM. `--once` processes the complete scans already there and exits (for cron).
+ * A thin shell over the engine's folder watching (`batch/watch-run.ts`): flags in, events and
+ * the outcome worded here.
  */
-import { basename, dirname, join } from 'node:path';
 import type { Command } from 'commander';
-import {
-  BandwrightError,
-  createFolderWatcher,
-  formatNumber,
-  isFailure,
-  openProcessedRecord,
-  readCalibration,
-  readProcessedRecord,
-  reportedGases,
-  type BatchEntry,
-  type FileStamp,
-  type ProcessedRecordFile,
-} from '../index.js';
-import { openResultFiles, resultFiles } from '../batch/sinks.js';
-import { createScanQuantifier } from '../batch/scan-quantifier.js';
-import { yKindOption } from './calibrate.js';
+import { watchFolder } from '../batch/watch-run.js';
+import { isFailure, type BatchEntry } from '../report/results.js';
+import { formatNumber } from '../report/table.js';
+import { readCalibration } from '../store/calibration-file.js';
 import { note, raiseStatus, type CommandContext } from './context.js';
-import { parseNumberOption } from './parse.js';
-import { quantifyOptionsFrom, withReportingOptions, type ReportingFlags } from './quantify.js';
+import {
+  millisecondsOption,
+  quantifyOptionsFrom,
+  withReportingOptions,
+  yKindOption,
+  type ReportingFlags,
+} from './options.js';
+import { installStopHandlers } from './signals.js';
 
 interface WatchFlags extends ReportingFlags {
   csv?: string;
@@ -59,18 +54,13 @@ Stopping:
 /** One result as a line for the terminal. */
 export function watchLine(entry: BatchEntry): string {
   if (isFailure(entry)) return `${entry.scan}: failed: ${entry.error}`;
-  const gases = entry.gases.map(
-    (g) =>
-      `${g.gas} ${g.flags.includes('below-lod') ? '< LOD ' : ''}${formatNumber(g.value)} ${g.unit} [${formatNumber(g.low)}, ${formatNumber(g.high)}]${g.flags.length > 0 ? ` (${g.flags.join(', ')})` : ''}`,
-  );
+  const gases = entry.gases.map((g) => {
+    const belowLod = g.flags.includes('below-lod') ? '< LOD ' : '';
+    const interval = `[${formatNumber(g.low)}, ${formatNumber(g.high)}]`;
+    const flags = g.flags.length > 0 ? ` (${g.flags.join(', ')})` : '';
+    return `${g.gas} ${belowLod}${formatNumber(g.value)} ${g.unit} ${interval}${flags}`;
+  });
   return `${entry.scan}: ${gases.join('; ')}`;
-}
-
-function millisecondsOption(text: string, option: string, minimum: number): number {
-  return parseNumberOption(text, option, [
-    (n) => Number.isInteger(n) && n >= minimum,
-    `must be a whole number of milliseconds >= ${minimum}`,
-  ]);
 }
 
 /**
@@ -103,143 +93,63 @@ export function registerWatch(program: Command, context: CommandContext): void {
       const calibration = readCalibration(calibrationPath);
       const options = quantifyOptionsFrom(flags);
       const yKind = yKindOption(flags.yKind);
-      const gases = reportedGases(calibration).map((g) => ({ gas: g.gas, unit: options.unit ?? g.unit }));
-      const resultsFile = flags.csv ?? flags.jsonl;
-      const statePath =
-        flags.state ??
-        (resultsFile === undefined
-          ? undefined
-          : join(dirname(resultsFile), `.${basename(resultsFile)}.watch-state`));
-      const processed =
-        statePath === undefined ? new Map<string, FileStamp>() : readProcessedRecord(statePath);
-      const watcher = createFolderWatcher(folder, {
-        settleMs,
-        pollMs,
-        processed,
-        ignore: [flags.csv, flags.jsonl, statePath].filter((p): p is string => p !== undefined),
-      });
-      const { sinks, lineFormats } = openResultFiles(resultFiles(flags, gases, calibration.sha256), {
-        mode: 'append',
-      });
-      let record: ProcessedRecordFile | undefined;
+      const printLines = flags.csv === undefined && flags.jsonl === undefined && !flags.quiet;
+      const stop = installStopHandlers();
+      let outcome;
       try {
-        if (statePath !== undefined) record = openProcessedRecord(statePath);
-      } catch (error) {
-        for (const sink of sinks) sink.abort();
-        throw error;
-      }
-      const quantify = createScanQuantifier({
-        calibration,
-        options,
-        lineFormats,
-        keepEntries: true,
-        ...(yKind === undefined ? {} : { yKind }),
-      });
-
-      let stopping: string | undefined;
-      let wake: (() => void) | undefined;
-      const onSignal = (signal: string): void => {
-        if (stopping !== undefined) {
-          removeHandlers();
-          process.kill(process.pid, signal);
-          return;
-        }
-        stopping = signal;
-        wake?.();
-      };
-      const onInterrupt = (): void => onSignal('SIGINT');
-      const onTerminate = (): void => onSignal('SIGTERM');
-      const removeHandlers = (): void => {
-        process.off('SIGINT', onInterrupt);
-        process.off('SIGTERM', onTerminate);
-      };
-      process.on('SIGINT', onInterrupt);
-      process.on('SIGTERM', onTerminate);
-      const sleep = (ms: number): Promise<void> =>
-        new Promise((resolve) => {
-          const done = (): void => {
-            clearTimeout(timer);
-            wake = undefined;
-            resolve();
-          };
-          const timer = setTimeout(done, ms);
-          wake = done;
+        outcome = await watchFolder({
+          job: {
+            calibration,
+            calibrationPath,
+            options,
+            yKind,
+            outputs: { csv: flags.csv, jsonl: flags.jsonl },
+          },
+          folder,
+          settleMs,
+          pollMs,
+          state: flags.state,
+          once: flags.once === true,
+          signal: stop.signal,
+          events: {
+            onWatching: () =>
+              note(context, `watching ${folder} (settle ${settleMs} ms); Ctrl-C or SIGTERM stops`),
+            onFolder: (problem) =>
+              note(
+                context,
+                problem === undefined
+                  ? `bandwright: ${folder} can be read again`
+                  : `bandwright: ${problem}; still watching`,
+              ),
+            onScan: (file, item) => {
+              if (file.previously !== undefined)
+                note(
+                  context,
+                  `bandwright: ${file.path} changed after it was quantified ` +
+                    `(size ${file.previously.size} → ${file.stamp.size} bytes); quantified again`,
+                );
+              const entry = item.entry as BatchEntry;
+              if (isFailure(entry)) note(context, `bandwright: ${entry.error}`);
+              else if (printLines) context.stdout.write(`${watchLine(entry)}\n`);
+            },
+          },
         });
-
-      let done = 0;
-      let failed = 0;
-      let folderProblem: string | undefined;
-      const look = (): void => {
-        let ready;
-        try {
-          ready = watcher.poll();
-          if (folderProblem !== undefined) note(context, `bandwright: ${folder} can be read again`);
-          folderProblem = undefined;
-        } catch (error) {
-          if (!(error instanceof BandwrightError)) throw error;
-          // Log once and keep looking: a network folder may come back.
-          if (folderProblem !== error.message) note(context, `bandwright: ${error.message}; still watching`);
-          folderProblem = error.message;
-          return;
-        }
-        for (const file of ready) {
-          if (stopping !== undefined) return;
-          if (file.previously !== undefined)
-            note(
-              context,
-              `bandwright: ${file.path} changed after it was quantified (size ${file.previously.size} → ${file.stamp.size} bytes); quantified again`,
-            );
-          const item = quantify(file.path);
-          for (const sink of sinks) sink.add(item);
-          record?.add(file.name, file.stamp);
-          watcher.markProcessed(file);
-          done++;
-          const entry = item.entry as BatchEntry;
-          if (isFailure(entry)) {
-            failed++;
-            note(context, `bandwright: ${entry.error}`);
-          } else if (sinks.length === 0 && !flags.quiet) context.stdout.write(`${watchLine(entry)}\n`);
-        }
-      };
-
-      const started = performance.now();
-      try {
-        // The first look fails loudly when the folder cannot be read at all.
-        watcher.poll();
-        watcher.onChange(() => wake?.());
-        look();
-        if (flags.once) {
-          if (watcher.pending().length > 0 && stopping === undefined) {
-            await sleep(settleMs + 1);
-            look();
-          }
-          const left = watcher.pending();
-          if (left.length > 0)
-            note(
-              context,
-              `bandwright: ${left.length} file(s) still being written, left for the next run: ${left.slice(0, 5).join(', ')}${left.length > 5 ? ', …' : ''}`,
-            );
-        } else {
-          note(context, `watching ${folder} (settle ${settleMs} ms); Ctrl-C or SIGTERM stops`);
-          while (stopping === undefined) {
-            await sleep(watcher.nextDelayMs());
-            if (stopping === undefined) look();
-          }
-        }
-        for (const sink of sinks) sink.finish();
-      } catch (error) {
-        for (const sink of sinks) sink.abort();
-        throw error;
       } finally {
-        watcher.close();
-        record?.close();
-        removeHandlers();
+        stop.remove();
       }
-      const seconds = (performance.now() - started) / 1000;
+      const left = outcome.stillWriting;
+      if (left.length > 0)
+        note(
+          context,
+          `bandwright: ${left.length} file(s) still being written, left for the next run: ` +
+            `${left.slice(0, 5).join(', ')}${left.length > 5 ? ', …' : ''}`,
+        );
+      const stoppedBy = stop.stoppedBy();
       note(
         context,
-        `${done} scan(s) quantified, ${failed} failed, in ${seconds.toFixed(1)} s${stopping === undefined ? '' : `; stopped by ${stopping}`}`,
+        `${outcome.scans} scan(s) quantified, ${outcome.failed} failed, in ${outcome.seconds.toFixed(1)} s` +
+          `${stoppedBy === undefined ? '' : `; stopped by ${stoppedBy}`}`,
       );
-      if (failed > 0) raiseStatus(context, 1);
+      if (outcome.failed > 0) raiseStatus(context, 1);
     });
 }

@@ -2,10 +2,10 @@
  * How many worker threads a batch takes: explicit counts as given (never more than the scans),
  * `auto` only for long batches with two or more idle cores (cores less the 1-minute load
  * average), and none for a scan from standard input. The rule and its measurements are in
- * src/cli/batch.ts and bench/batch.ts.
+ * src/batch/engine.ts and bench/batch.ts.
  */
 import { describe, expect, it } from 'vitest';
-import { MIN_SCANS_FOR_WORKERS, workerCount, workersOption } from '../../src/batch/engine.js';
+import { MIN_SCANS_FOR_WORKERS, workerCount } from '../../src/batch/engine.js';
 
 describe('workerCount', () => {
   const long = MIN_SCANS_FOR_WORKERS;
@@ -27,13 +27,5 @@ describe('workerCount', () => {
     expect(workerCount(0, 10_000, false)).toBe(0);
     expect(workerCount(2, 10_000, true)).toBe(0);
     expect(workerCount('auto', 0, false, { cores: 8, load: 0 })).toBe(0);
-  });
-
-  it('parses --workers', () => {
-    expect(workersOption('auto')).toBe('auto');
-    expect(workersOption('0')).toBe(0);
-    expect(workersOption('12')).toBe(12);
-    for (const bad of ['-1', '1.5', 'two', '', '65'])
-      expect(() => workersOption(bad)).toThrow(/--workers = .*, must be auto or a whole number from 0 to 64/);
   });
 });
