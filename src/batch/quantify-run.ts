@@ -12,6 +12,7 @@
  */
 import { reportedGases, type Calibration } from '../calibration/calibration.js';
 import { quantifyResponses, type QuantifyOptions } from '../calibration/quantify.js';
+import type { ParameterNames } from '../errors.js';
 import type { SampleSpectrum } from '../report/html-quantify.js';
 import type { BatchEntry } from '../report/results.js';
 import type { YKind } from '../spectrum/spectrum.js';
@@ -67,6 +68,8 @@ export interface QuantifyJob {
   yKind?: YKind | undefined;
   /** Outputs and what to keep. */
   outputs: QuantifyOutputs;
+  /** The caller's names for the core's parameters, in the reasons of failed scans (default the core's). */
+  parameterNames?: ParameterNames | undefined;
 }
 
 /** The open outputs of a quantify run, taking items one at a time. */
@@ -143,6 +146,7 @@ export function openQuantifySession(job: QuantifyJob): QuantifySession {
     keepEntries: outputs.stdout !== undefined || collectEntries || outputs.entriesInItems === true,
     keepSpectra: collectSpectra,
     ...(job.yKind === undefined ? {} : { yKind: job.yKind }),
+    ...(job.parameterNames === undefined ? {} : { parameterNames: job.parameterNames }),
   };
   const entries: BatchEntry[] = [];
   const spectra: SampleSpectrum[] = [];

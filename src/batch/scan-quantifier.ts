@@ -10,7 +10,7 @@
 // Direct module imports rather than the public index: a worker thread loads only what it runs.
 import type { Calibration } from '../calibration/calibration.js';
 import { quantifyScan, type QuantifyOptions } from '../calibration/quantify.js';
-import { BandwrightError } from '../errors.js';
+import { BandwrightError, type ParameterNames } from '../errors.js';
 import { formatCsv } from '../formats/csv-table.js';
 import { createScanReader, type ScanReader } from './scan-reader.js';
 import type { SampleSpectrum } from '../report/html-quantify.js';
@@ -41,6 +41,8 @@ export interface BatchSetup {
    * spectra own their arrays, so a batch that keeps them runs in this thread only.
    */
   keepSpectra?: boolean;
+  /** The caller's names for the core's parameters, in the reasons of failed scans. */
+  parameterNames?: ParameterNames;
 }
 
 /** What the batch hands on for one scan. */
@@ -134,7 +136,7 @@ export function createScanQuantifier(setup: BatchSetup): ScanQuantifier {
       entry = quantifyScan(setup.calibration, spectrum, setup.options);
     } catch (error) {
       if (!(error instanceof BandwrightError)) throw error;
-      entry = { scan: path, error: error.message };
+      entry = { scan: path, error: error.describe(setup.parameterNames) };
     }
     const item = batchItem(entry, setup);
     if (keepSpectra && spectrum !== undefined) item.sample = { scan: path, spectrum };

@@ -11,7 +11,8 @@ import type { Command } from 'commander';
 import { BandwrightError } from '../errors.js';
 import { writeFileAtomic } from '../store/atomic-write.js';
 import { isNonEmptyFolder } from '../store/folders.js';
-import { historyPathFor, moveHistoryAside, readCheckList } from '../store/history.js';
+import { readCheckList } from '../store/check-list.js';
+import { historyPathFor, moveHistoryAside } from '../store/history.js';
 import { note, raiseStatus, type CommandContext } from './context.js';
 
 /** The bundled examples folder, found from this file (works from src/ under tsx and from dist/). */

@@ -8,6 +8,7 @@ import { readScan } from '../store/scan-file.js';
 import { describeScan, formatScanDescriptions, type ScanDescription } from '../report/inspect.js';
 import { yKindOption } from './options.js';
 import { note, raiseStatus, type CommandContext } from './context.js';
+import { CLI_PARAMETER_NAMES } from './parameter-names.js';
 
 /**
  * Registers `inspect` on the program.
@@ -31,7 +32,7 @@ export function registerInspect(program: Command, context: CommandContext): void
           descriptions.push(describeScan(scan, readScan(scan, yKind === undefined ? {} : { yKind })));
         } catch (error) {
           if (!(error instanceof BandwrightError)) throw error;
-          failures.push({ scan, error: error.message });
+          failures.push({ scan, error: error.describe(CLI_PARAMETER_NAMES) });
         }
       }
       if (flags.json) context.stdout.write(`${JSON.stringify({ scans: descriptions, failures }, null, 2)}\n`);

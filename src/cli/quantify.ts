@@ -20,6 +20,7 @@ import { expandScanArguments } from '../batch/scan-paths.js';
 import { TABLE_PAGE_SCANS } from '../batch/sinks.js';
 import { BandwrightError } from '../errors.js';
 import { readCalibration } from '../store/calibration-file.js';
+import { CLI_PARAMETER_NAMES } from './parameter-names.js';
 import { note, raiseStatus, type CommandContext } from './context.js';
 import {
   quantifyOptionsFrom,
@@ -222,7 +223,13 @@ export function registerQuantify(program: Command, context: CommandContext): voi
         collectEntries: reporting,
         collectSpectra: reporting,
       };
-      const job: QuantifyJob = { calibration, calibrationPath, options, outputs };
+      const job: QuantifyJob = {
+        calibration,
+        calibrationPath,
+        options,
+        outputs,
+        parameterNames: CLI_PARAMETER_NAMES,
+      };
       let outcome: QuantifyRunOutcome;
       if (flags.response !== undefined) {
         if (scanArguments.length > 0 || flags.from !== undefined)

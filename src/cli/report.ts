@@ -25,6 +25,7 @@ import { readScan } from '../store/scan-file.js';
 import { checkInputs, recordedInputPath } from '../store/verify.js';
 import { TOOL } from '../version.js';
 import { note, type CommandContext } from './context.js';
+import { CLI_PARAMETER_NAMES } from './parameter-names.js';
 import { levelOption, wavenumberAxisOption } from './options.js';
 import { refuseExisting, refuseExistingPlots, writePlotFiles } from './output-files.js';
 import { creationTime } from './parse.js';
@@ -71,7 +72,7 @@ export function loadRecordedStandards(
       spectra.push({ index, spectrum: readScan(recordedInputPath(calibrationPath, check.path)) });
     } catch (error) {
       if (!(error instanceof BandwrightError)) throw error;
-      problems.push(`${check.path} (cannot be read: ${error.message})`);
+      problems.push(`${check.path} (cannot be read: ${error.describe(CLI_PARAMETER_NAMES)})`);
     }
   });
   if (problems.length > 0)
@@ -176,7 +177,10 @@ export function calibrationReportInput(
   } catch (error) {
     // A damaged history must not hide the rest of the report: say so and draw what can be drawn.
     if (!(error instanceof BandwrightError)) throw error;
-    history = { views: [], notes: [`the recheck history could not be read: ${error.message}`] };
+    history = {
+      views: [],
+      notes: [`the recheck history could not be read: ${error.describe(CLI_PARAMETER_NAMES)}`],
+    };
   }
   return {
     calibration,

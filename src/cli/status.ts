@@ -13,13 +13,10 @@ import {
   type StatusReport,
 } from '../report/drift-text.js';
 import { readCalibration } from '../store/calibration-file.js';
-import {
-  collectCalibrationFiles,
-  findCalibrationFiles,
-  historyPathFor,
-  readHistoryIfExists,
-} from '../store/history.js';
+import { collectCalibrationFiles, findCalibrationFiles } from '../store/calibration-files.js';
+import { historyPathFor, readHistoryIfExists } from '../store/history.js';
 import { raiseStatus, type CommandContext } from './context.js';
+import { CLI_PARAMETER_NAMES } from './parameter-names.js';
 import { parseTimeOption, recheckPolicyOptions } from './options.js';
 
 interface StatusFlags {
@@ -93,7 +90,7 @@ export function registerStatus(program: Command, context: CommandContext): void 
           rows.push(...calibrationStatus(calibration, file, history?.records ?? [], { policy, now }));
         } catch (error) {
           if (!(error instanceof BandwrightError)) throw error;
-          errors.push({ file, message: error.message });
+          errors.push({ file, message: error.describe(CLI_PARAMETER_NAMES) });
         }
       }
       const exitStatus = Math.max(

@@ -10,6 +10,7 @@ import { watchFolder } from '../batch/watch-run.js';
 import { isFailure, type BatchEntry } from '../report/results.js';
 import { formatNumber } from '../report/table.js';
 import { readCalibration } from '../store/calibration-file.js';
+import { CLI_PARAMETER_NAMES } from './parameter-names.js';
 import { note, raiseStatus, type CommandContext } from './context.js';
 import {
   millisecondsOption,
@@ -104,6 +105,7 @@ export function registerWatch(program: Command, context: CommandContext): void {
             options,
             yKind,
             outputs: { csv: flags.csv, jsonl: flags.jsonl },
+            parameterNames: CLI_PARAMETER_NAMES,
           },
           folder,
           settleMs,

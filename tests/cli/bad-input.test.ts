@@ -221,7 +221,7 @@ describe('quantify refuses bad input', () => {
     expect(run.status).toBe(1);
     const results = JSON.parse(run.stdout).results;
     expect(results[0].gases[0].value).toBeCloseTo(100, 0);
-    expect(results[1].error).toMatch(/bare.csv: no path length/);
+    expect(results[1].error).toMatch(/bare.csv: no path length .*option --path-length\)/);
   });
 
   it('takes missing conditions from options', async () => {
