@@ -5,7 +5,7 @@ import prettier from 'eslint-config-prettier';
 import tseslint from 'typescript-eslint';
 
 export default tseslint.config(
-  { ignores: ['dist/**', 'node_modules/**', 'coverage/**', 'bin/**', 'eslint.config.js'] },
+  { ignores: ['dist/**', 'node_modules/**', 'coverage/**', 'bin/**', 'bench/data/**', 'eslint.config.js'] },
   js.configs.recommended,
   ...tseslint.configs.recommendedTypeChecked,
   {
