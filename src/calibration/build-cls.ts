@@ -20,7 +20,7 @@ import { BandwrightError } from '../errors.js';
 import { densityPathFactor, resolveConditions, type CellConditions } from '../gas/conditions.js';
 import { cautionsFor } from '../gas/safety.js';
 import { fromPpm, toPpm } from '../gas/units.js';
-import { fitCls, predictCls } from '../models/cls.js';
+import { fitCls, predictCls } from '../models/cls/spectral.js';
 import { interpolateAt, lowerBound, resample, toAbsorbance, type Spectrum } from '../spectrum/spectrum.js';
 import { provenanceHeader, referenceConditions, type BuildContext, type StandardScan } from './build.js';
 import { sealCalibration, type Calibration, type CalibrationStandard } from './calibration.js';

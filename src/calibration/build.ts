@@ -18,7 +18,7 @@ import {
 } from '../gas/conditions.js';
 import { cautionsFor } from '../gas/safety.js';
 import { fromPpm, toPpm, type ConcentrationUnit } from '../gas/units.js';
-import { fitUnivariate } from '../models/univariate.js';
+import { fitUnivariate } from '../models/univariate/fit.js';
 import { toAbsorbance, type Spectrum } from '../spectrum/spectrum.js';
 import { TOOL } from '../version.js';
 import {

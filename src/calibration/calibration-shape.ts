@@ -6,7 +6,7 @@
  * (which would give a concentration of the wrong sign that looks like a result). Pure.
  */
 import { BandwrightError } from '../errors.js';
-import { predictCls, type ClsModel } from '../models/cls.js';
+import { predictCls, type ClsModel } from '../models/cls/spectral.js';
 
 type Json = unknown;
 
@@ -18,7 +18,7 @@ class ShapeChecker {
   constructor(readonly source: string) {}
 
   fail(path: string, value: Json, rule: string): never {
-    let shown = value === undefined ? 'missing' : (JSON.stringify(value) ?? String(value));
+    let shown = value === undefined ? 'missing' : (JSON.stringify(value) ?? typeof value);
     if (shown.length > 60) shown = `${shown.slice(0, 60)}…`;
     throw new BandwrightError(
       'SCHEMA',

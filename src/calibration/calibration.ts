@@ -9,10 +9,10 @@ import { BandwrightError } from '../errors.js';
 import { checkCalibrationShape } from './calibration-shape.js';
 import type { CellConditions } from '../gas/conditions.js';
 import type { ConcentrationUnit } from '../gas/units.js';
-import type { ClsModel } from '../models/cls.js';
-import type { UnivariateModel } from '../models/univariate.js';
+import type { ClsModel } from '../models/cls/spectral.js';
+import type { CurveForm, UnivariateModel, WeightScheme } from '../models/univariate/model.js';
 import type { Window } from '../bands/windows.js';
-import type { CurveForm, Method, ResponseKind, WeightScheme } from './method.js';
+import type { Method, ResponseKind } from './method.js';
 
 /** Current calibration schema, `major.minor`. A newer major is refused; a newer minor is read. */
 export const SCHEMA_VERSION = '1.0';
@@ -145,7 +145,8 @@ export function canonicalJson(value: unknown): string {
  * @returns hex SHA-256
  */
 export function calibrationHash(body: CalibrationBody | Calibration): string {
-  const { sha256: _ignored, ...rest } = body as Calibration;
+  const rest: Record<string, unknown> = { ...body };
+  delete rest.sha256;
   return createHash('sha256').update(canonicalJson(rest)).digest('hex');
 }
 

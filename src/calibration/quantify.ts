@@ -18,8 +18,8 @@ import {
 } from '../gas/conditions.js';
 import { cautionsFor } from '../gas/safety.js';
 import { toPpm, unitLabel, type ConcentrationUnit } from '../gas/units.js';
-import { predictCls } from '../models/cls.js';
-import { predictConcentration } from '../models/univariate.js';
+import { predictCls } from '../models/cls/spectral.js';
+import { predictUnivariate } from '../models/univariate/predict.js';
 import { toAbsorbance, type Spectrum } from '../spectrum/spectrum.js';
 import { onChannels } from './build-cls.js';
 import type { Calibration, GasCalibration } from './calibration.js';
@@ -60,7 +60,7 @@ function checkLevel(level: number): number {
  * @param level - interval level
  */
 function estimate(gas: GasCalibration, responses: readonly number[], level: number): GasResult {
-  const prediction = predictConcentration(gas.model, responses, { level });
+  const prediction = predictUnivariate(gas.model, responses, { level });
   const flags: ResultFlag[] = [];
   const notes: string[] = [];
   // The standard interval is always bounded; only Fieller's can be unbounded (null ends).

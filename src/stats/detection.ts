@@ -49,7 +49,7 @@ export interface CalibrationLimits {
   /** Replicate measurements m of each sample the limits assume. */
   replicates: number;
   /** Degrees of freedom of the t quantiles. */
-  df: number;
+  degreesOfFreedom: number;
 }
 
 /** Straight-line limits add the method SD of DIN 32645. */
@@ -204,7 +204,7 @@ export function straightLineLimits(input: StraightLineInput, options: LimitOptio
     beta,
     k,
     replicates,
-    df,
+    degreesOfFreedom: df,
     methodSD,
     relativeMethodSD: methodSD / meanX,
   };
@@ -216,7 +216,7 @@ export function straightLineLimits(input: StraightLineInput, options: LimitOptio
  */
 export interface CurveForLimits {
   /** Residual degrees of freedom of the fit. */
-  df: number;
+  degreesOfFreedom: number;
   /** Residual SD s of the fit (for weighted fits, in weighted units: the variance of a new observation at x is s²/w(x)). */
   residualSD: number;
   /** Local slope dŷ/dx at concentration x. */
@@ -241,13 +241,15 @@ export interface CurveForLimits {
  * @param curve - the fit's degrees of freedom, residual SD, slope, fitted variance and weight functions
  * @param options - α (default 0.05), β (default α), k (default 3), replicates m (default 1)
  * @returns the limits with definitions; a limit is null (and says why) when the slope at zero is 0 or the iteration does not converge
- * @throws BandwrightError `INVALID_VALUE` for df < 1, non-positive residual SD, or options out of range
+ * @throws BandwrightError `INVALID_VALUE` for degrees of freedom < 1, non-positive residual SD, or options out of range
  */
 export function curveLimits(curve: CurveForLimits, options: LimitOptions = {}): CalibrationLimits {
   const { alpha, beta, k, replicates } = resolve(options);
-  const { df, residualSD } = curve;
+  const { degreesOfFreedom: df, residualSD } = curve;
   if (!(Number.isFinite(df) && df >= 1))
-    throw new BandwrightError('INVALID_VALUE', `df = ${df}, must be >= 1`, { parameter: 'df' });
+    throw new BandwrightError('INVALID_VALUE', `degreesOfFreedom = ${df}, must be >= 1`, {
+      parameter: 'degreesOfFreedom',
+    });
   if (!(Number.isFinite(residualSD) && residualSD > 0))
     throw new BandwrightError('INVALID_VALUE', `residualSD = ${residualSD}, must be a finite number > 0`, {
       parameter: 'residualSD',
@@ -313,6 +315,6 @@ export function curveLimits(curve: CurveForLimits, options: LimitOptions = {}): 
     beta,
     k,
     replicates,
-    df,
+    degreesOfFreedom: df,
   };
 }

@@ -30,7 +30,7 @@ export interface MandelResult {
   /** Confidence level of the critical value (default 0.99). */
   confidence: number;
   /** Degrees of freedom of the F distribution, [1, n − 3]. */
-  df: [number, number];
+  degreesOfFreedom: [number, number];
   /** P(F(1, n−3) ≥ PW): small means the second-order term is real. */
   pValue: number;
   /** True when PW > F critical: the second-order curve fits significantly better. */
@@ -103,7 +103,7 @@ export function mandelTest(input: MandelInput, options: { confidence?: number } 
     testValue: Number.isFinite(testValue) ? testValue : Number.MAX_VALUE,
     fCritical,
     confidence,
-    df: [1, n - 3],
+    degreesOfFreedom: [1, n - 3],
     pValue,
     significant,
     recommendation,

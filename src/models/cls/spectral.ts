@@ -2,37 +2,20 @@
  * Spectral classical least squares (K-matrix) for gas mixtures (DESIGN §3): fit pure-component
  * spectra from standards over the method's regions, with a polynomial baseline per region and an
  * optional background spectrum, and predict a sample's concentrations with prediction intervals
- * calibrated for correlated channels. The mathematics is in `cls-core.ts` (shared with band-area
- * CLS); this module handles channels, regions and baseline.
+ * calibrated for correlated channels. The mathematics is shared with band-area CLS (`fit-core.ts`,
+ * `predict.ts`); this module handles channels, regions and baseline.
  *
  * Units: spectra in decadic absorbance on the model's channels; concentrations in each
  * component's unit at the standard's own conditions; φ = (L/L_ref)(P/P_ref)(T_ref/T) per
  * standard and per sample (dimensionless), so the model works in φ-scaled concentrations.
  */
-import { BandwrightError } from '../errors.js';
-import { channelSegments, MAX_BASELINE_ORDER, nuisanceBasis } from './cls-basis.js';
-import type { ClsComponent, ClsCoreModel, ClsPrediction, ClsState } from './cls-core.js';
-import { DEFAULT_POOR_FIT_RATIO, fitClsCore, prepareClsState, predictClsState } from './cls-core.js';
-import { validateClsInputs } from './cls-validate.js';
-
-export type {
-  ClsComponent,
-  ClsEstimate,
-  ClsFlag,
-  ClsPrediction,
-  ClsCalibrationStatistics,
-  ClsCrossValidation,
-  ClsLackOfFit,
-  ClsRange,
-  ClsSecondOrderGain,
-  ClsTerm,
-} from './cls-core.js';
-export {
-  DEFAULT_CLS_CONDITION_LIMIT,
-  DEFAULT_POOR_FIT_RATIO,
-  MINIMUM_SEPARATION_RATIO,
-  SUBSTANTIAL_REDUCTION,
-} from './cls-core.js';
+import { BandwrightError } from '../../errors.js';
+import { channelSegments, MAX_BASELINE_ORDER, nuisanceBasis } from './basis.js';
+import { fitClsCore } from './fit-core.js';
+import { DEFAULT_POOR_FIT_RATIO, type ClsComponent, type ClsCoreModel, type ClsPrediction } from './model.js';
+import { predictClsState } from './predict.js';
+import { prepareClsState, type ClsState } from './prediction-state.js';
+import { validateClsInputs } from './validate.js';
 
 /** Standards for a spectral CLS fit. Nothing here is modified. */
 export interface ClsData {
@@ -56,7 +39,7 @@ export interface ClsData {
 }
 
 /** Options of {@link fitCls}. */
-export interface ClsFitOptions {
+export interface SpectralClsFitOptions {
   /** Polynomial baseline order per region, 0…3 (default 1: offset and slope). */
   readonly baselineOrder?: number;
   /** A constant background spectrum (absorbance on the channels) with a free coefficient in every spectrum. */
@@ -69,12 +52,13 @@ export interface ClsFitOptions {
   readonly conditionLimit?: number;
 }
 
-/** A fitted spectral CLS model: plain JSON-safe data. */
+/**
+ * A fitted spectral CLS model: plain JSON-safe data, what was fitted and the channel layout it was
+ * fitted on; its prediction operators are rebuilt from them when it is first used.
+ */
 export interface ClsModel extends ClsCoreModel {
   /** Model kind. */
   readonly kind: 'cls';
-  /** Layout version of this object. */
-  readonly formatVersion: 1;
   /** Channel grid (cm⁻¹) when one was given, else null (channel indices were used). */
   readonly grid: readonly number[] | null;
   /** Baseline polynomial order per region. */
@@ -108,8 +92,8 @@ function positionsOf(channels: number | Float64Array): ArrayLike<number> {
  *   certified concentrations (component units), φ per standard, components
  * @param options - baseline order (0…3, default 1), background spectrum, second-order
  *   components, level (default 0.95), condition limit (default 1000)
- * @returns the model (plain object: pure spectra, prediction matrix, noise model, statistics,
- *   leave-one-out cross-validation)
+ * @returns the model (plain object: pure spectra, noise model, statistics, leave-one-out
+ *   cross-validation)
  * @throws BandwrightError `INVALID_VALUE` naming the standard, channel or component for shapes,
  *   non-finite values, negative concentrations or φ ≤ 0; `INSUFFICIENT_DATA` for too few
  *   standards or channels; `SINGULAR` naming the gases when collinear standards or coinciding
@@ -121,7 +105,7 @@ function positionsOf(channels: number | Float64Array): ArrayLike<number> {
  *   { baselineOrder: 1 },
  * );
  */
-export function fitCls(data: ClsData, options: ClsFitOptions = {}): ClsModel {
+export function fitCls(data: ClsData, options: SpectralClsFitOptions = {}): ClsModel {
   const channelCount = typeof data.channels === 'number' ? data.channels : data.channels.length;
   const validated = validateClsInputs(
     {
@@ -215,7 +199,6 @@ export function fitCls(data: ClsData, options: ClsFitOptions = {}): ClsModel {
   );
   return {
     kind: 'cls',
-    formatVersion: 1,
     ...core,
     grid: typeof data.channels === 'number' ? null : Array.from(data.channels),
     baselineOrder,
@@ -237,7 +220,7 @@ function stateOf(model: ClsModel): ClsState {
       order: model.baselineOrder,
       ...(model.background ? { background: model.background } : {}),
     });
-    state = prepareClsState(model, nuisance);
+    state = prepareClsState(model, nuisance, 'channel');
     prepared.set(model, state);
   }
   return state;
@@ -246,8 +229,9 @@ function stateOf(model: ClsModel): ClsState {
 /**
  * Predicts a sample's concentrations from its absorbance spectrum.
  *
- * The first call for a model builds its numeric state (baseline basis, typed arrays) and caches
- * it; later calls cost a few matrix–vector products over the channels.
+ * The first call for a model builds its numeric state (baseline basis, the prediction matrix and
+ * the factors its intervals need) and caches it; later calls cost a few matrix–vector products
+ * over the channels.
  *
  * @param model - a model from {@link fitCls} (or the same object read back from JSON)
  * @param spectrum - decadic absorbance on the model's channels; not modified

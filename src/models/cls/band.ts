@@ -1,7 +1,7 @@
 /**
  * Band-area classical least squares: the small version of spectral CLS (DESIGN §3) for
  * mixtures measured by several baseline-corrected band areas (or peak heights), with more bands
- * than gases. A band plays the part of a channel: the same core (`cls-core.ts`) fits the
+ * than gases. A band plays the part of a channel: the same core (`fit-core.ts`, `predict.ts`) fits the
  * K-matrix of band responses per unit concentration, refuses gases that cannot be separated,
  * predicts with intervals and cross-validates. Differences from spectral CLS: no baseline terms
  * (areas are already baseline-corrected) and bands are taken as independent measurements with a
@@ -10,12 +10,12 @@
  * Units: band areas in AU·cm⁻¹ (or peak heights in AU); concentrations in each component's unit
  * at the standard's conditions; φ = (L/L_ref)(P/P_ref)(T_ref/T) per standard and sample.
  */
-import { BandwrightError } from '../errors.js';
-import type { ClsComponent, ClsCoreModel, ClsPrediction, ClsState } from './cls-core.js';
-import { DEFAULT_POOR_FIT_RATIO, fitClsCore, predictClsState, prepareClsState } from './cls-core.js';
-import { validateClsInputs } from './cls-validate.js';
-
-export type { ClsComponent, ClsEstimate, ClsPrediction } from './cls-core.js';
+import { BandwrightError } from '../../errors.js';
+import { fitClsCore } from './fit-core.js';
+import { DEFAULT_POOR_FIT_RATIO, type ClsComponent, type ClsCoreModel, type ClsPrediction } from './model.js';
+import { predictClsState } from './predict.js';
+import { prepareClsState, type ClsState } from './prediction-state.js';
+import { validateClsInputs } from './validate.js';
 
 /** Standards for a band-area CLS fit. Nothing here is modified. */
 export interface BandClsData {
@@ -43,12 +43,10 @@ export interface BandClsFitOptions {
   readonly conditionLimit?: number;
 }
 
-/** A fitted band-area CLS model: plain JSON-safe data. */
+/** A fitted band-area CLS model: plain JSON-safe data (what was fitted; no derived operators). */
 export interface BandClsModel extends ClsCoreModel {
   /** Model kind. */
   readonly kind: 'band-cls';
-  /** Layout version of this object. */
-  readonly formatVersion: 1;
   /** Band names, in the order a sample's areas must follow. */
   readonly bands: readonly string[];
 }
@@ -132,7 +130,7 @@ export function fitBandCls(data: BandClsData, options: BandClsFitOptions = {}): 
       channelWord: 'band',
     },
   );
-  return { kind: 'band-cls', formatVersion: 1, ...core, bands: [...data.bands] };
+  return { kind: 'band-cls', ...core, bands: [...data.bands] };
 }
 
 const prepared = new WeakMap<BandClsModel, ClsState>();
@@ -153,7 +151,7 @@ export function predictBandCls(
 ): ClsPrediction {
   let state = prepared.get(model);
   if (state === undefined) {
-    state = prepareClsState(model, []);
+    state = prepareClsState(model, [], 'band');
     prepared.set(model, state);
   }
   return predictClsState(model, state, areas, {

@@ -3,9 +3,8 @@
  * names and options. Messages name the standard (index and label), the channel or component, the
  * value and the rule.
  */
-import { BandwrightError } from '../errors.js';
-import type { ClsComponent } from './cls-core.js';
-import { DEFAULT_CLS_CONDITION_LIMIT } from './cls-core.js';
+import { BandwrightError } from '../../errors.js';
+import { DEFAULT_CLS_CONDITION_LIMIT, type ClsComponent } from './model.js';
 
 /** Options checked here. */
 export interface ClsValidatedOptions {

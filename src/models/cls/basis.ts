@@ -8,7 +8,7 @@
  * no grid gap), along which channel-to-channel noise correlation is estimated and applied.
  */
 import { QrDecomposition, Matrix } from 'ml-matrix';
-import { BandwrightError } from '../errors.js';
+import { BandwrightError } from '../../errors.js';
 
 /** Highest polynomial baseline order accepted. */
 export const MAX_BASELINE_ORDER = 3;
