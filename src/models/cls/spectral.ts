@@ -206,9 +206,21 @@ export function fitCls(data: ClsData, options: SpectralClsFitOptions = {}): ClsM
   };
 }
 
+/** Prediction states of the models seen, built once per model object. */
 const prepared = new WeakMap<ClsModel, ClsState>();
 
-function stateOf(model: ClsModel): ClsState {
+/**
+ * The numeric prediction state of a model: its baseline basis rebuilt from the grid, regions and
+ * order, and the prediction operators derived from its pure spectra and noise model. Built on the
+ * first call for a model object (when a calibration is loaded or first used) and kept while the
+ * object lives, so a batch pays for it once, not per scan.
+ *
+ * @param model - a model from {@link fitCls}, or the same object read back from JSON
+ * @returns the state (shared: do not modify)
+ * @throws BandwrightError `INSUFFICIENT_DATA` or `INVALID_VALUE` from the baseline basis, or
+ *   `SINGULAR`, when the model is damaged (a fit never returns such a model)
+ */
+export function clsPredictionState(model: ClsModel): ClsState {
   let state = prepared.get(model);
   if (state === undefined) {
     const regionOf = new Float64Array(model.channelCount);
@@ -250,7 +262,7 @@ export function predictCls(
   spectrum: ArrayLike<number>,
   options: ClsPredictOptions,
 ): ClsPrediction {
-  const prediction = predictClsState(model, stateOf(model), spectrum, {
+  const prediction = predictClsState(model, clsPredictionState(model), spectrum, {
     phi: options.phi,
     level: options.level ?? model.level,
     poorFitRatio: options.poorFitRatio ?? DEFAULT_POOR_FIT_RATIO,
