@@ -252,7 +252,9 @@ function checkCls(check: ShapeChecker, value: Json): void {
       (e) => !Number.isFinite(e.value) || !(Number.isFinite(e.se) && e.se >= 0) || !(e.low <= e.high),
     );
     if (bad !== undefined)
-      problem = `a blank gives ${bad.name} = ${bad.value} ± ${bad.se} (${bad.low} to ${bad.high}), not a finite estimate with a standard error >= 0`;
+      problem =
+        `a blank gives ${bad.name} = ${bad.value} ± ${bad.se} (${bad.low} to ${bad.high}), not a ` +
+        `finite estimate with a standard error >= 0`;
   } catch (error) {
     problem = error instanceof Error ? error.message : String(error);
   }

@@ -236,7 +236,8 @@ export function verifyCalibration(value: unknown, source: string): Calibration {
   if (actual !== record.sha256) {
     throw new BandwrightError(
       'INTEGRITY',
-      `${source}: content does not match its recorded sha256 (recorded ${record.sha256}, content ${actual}): the file was changed after it was built; rebuild it rather than edit it`,
+      `${source}: content does not match its recorded sha256 (recorded ${record.sha256}, content ${actual}): ` +
+        `the file was changed after it was built; rebuild it rather than edit it`,
       { file: source, parameter: 'sha256' },
     );
   }

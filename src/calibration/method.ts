@@ -357,7 +357,8 @@ export function parseMethod(value: Json, source: string): Method {
       if (windowsOverlap(region, regions[j] as Window)) {
         throw new BandwrightError(
           'WINDOW',
-          `${source}: regions[${j}] = ${formatWindow(regions[j] as Window)} and regions[${i}] = ${formatWindow(region)} overlap; merge them or separate them`,
+          `${source}: regions[${j}] = ${formatWindow(regions[j] as Window)} and regions[${i}] = ` +
+            `${formatWindow(region)} overlap; merge them or separate them`,
           { file: source, parameter: 'regions' },
         );
       }

@@ -151,7 +151,8 @@ function prepare(design: Design, n: number, options: LeastSquaresOptions): Prepa
   if (n < columns) {
     throw new BandwrightError(
       'INSUFFICIENT_DATA',
-      `design has ${n} observations for ${columns} coefficients (${listNames(names)}): least squares needs at least as many observations as coefficients`,
+      `design has ${n} observations for ${columns} coefficients (${listNames(names)}): least squares needs at ` +
+        `least as many observations as coefficients`,
       { parameter: 'design' },
     );
   }
@@ -259,7 +260,8 @@ function prepare(design: Design, n: number, options: LeastSquaresOptions): Prepa
         : `condition number ${formatCondition(conditionNumber)} exceeds the limit ${formatCondition(limit)}`;
     throw new BandwrightError(
       'SINGULAR',
-      `design columns ${listNames(involved.map((j) => names[j] as string))} are collinear (${detail}): their effects cannot be separated; drop one of them or add observations that vary them independently`,
+      `design columns ${listNames(involved.map((j) => names[j] as string))} are collinear (${detail}): their ` +
+        `effects cannot be separated; drop one of them or add observations that vary them independently`,
       { parameter: 'design' },
     );
   }
@@ -376,7 +378,8 @@ function findInterceptColumn(rows: readonly (readonly number[])[], columns: numb
  * @param design - n × p design matrix (rows = observations); not modified
  * @param responses - n × k response matrix (rows = observations, columns = responses); not modified
  * @param options - column names for messages and the condition-number limit
- * @returns coefficients (p × k), residual sum of squares per response column, (XᵀX)⁻¹, degrees of freedom, condition number, rank
+ * @returns coefficients (p × k), residual sum of squares per response column, (XᵀX)⁻¹, degrees of
+ *   freedom, condition number, rank
  * @throws BandwrightError as {@link leastSquares}; `INVALID_VALUE` for a ragged or non-finite response matrix
  * @example
  * const { coefficients } = solveLeastSquaresMany([[1], [2]], [[2, 3], [4, 6]]);

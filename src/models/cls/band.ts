@@ -108,7 +108,8 @@ export function fitBandCls(data: BandClsData, options: BandClsFitOptions = {}): 
   if (bandCount <= terms) {
     throw new BandwrightError(
       'INSUFFICIENT_DATA',
-      `${bandCount} band(s) for ${terms} model term(s): band-area CLS needs more bands than gases (and second-order terms)`,
+      `${bandCount} band(s) for ${terms} model term(s): band-area CLS needs more bands than gases (and ` +
+        `second-order terms)`,
       { parameter: 'bands' },
     );
   }

@@ -72,14 +72,16 @@ export function fitClsCore(data: ClsCoreData, options: ClsCoreOptions): ClsCoreM
   if (n < q + 1) {
     throw new BandwrightError(
       'INSUFFICIENT_DATA',
-      `${n} standard(s) for ${q} model term(s) (${listNames(terms.map((term) => termName(components, term)))}): CLS needs at least ${q + 1} standards`,
+      `${n} standard(s) for ${q} model term(s) ` +
+        `(${listNames(terms.map((term) => termName(components, term)))}): CLS needs at least ${q + 1} standards`,
       { parameter: 'spectra' },
     );
   }
   if (channels - options.nuisance.length - q < 1) {
     throw new BandwrightError(
       'INSUFFICIENT_DATA',
-      `${channels} ${options.channelWord}(s) for ${q} term(s) and ${options.nuisance.length} baseline/background term(s): needs more ${options.channelWord}s than terms`,
+      `${channels} ${options.channelWord}(s) for ${q} term(s) and ${options.nuisance.length} ` +
+        `baseline/background term(s): needs more ${options.channelWord}s than terms`,
       { parameter: 'spectra' },
     );
   }
@@ -110,7 +112,9 @@ export function fitClsCore(data: ClsCoreData, options: ClsCoreOptions): ClsCoreM
   if (!(fitted.state.sampleResidualCount >= 1)) {
     throw new BandwrightError(
       'INSUFFICIENT_DATA',
-      `${channels} ${options.channelWord}s leave ${formatNumber(fitted.state.sampleResidualCount)} independent residual value(s) after the baseline and ${q} term(s), given the channel-noise correlation (${correlation.length - 1} lags): widen the regions`,
+      `${channels} ${options.channelWord}s leave ${formatNumber(fitted.state.sampleResidualCount)} independent ` +
+        `residual value(s) after the baseline and ${q} term(s), given the channel-noise correlation ` +
+        `(${correlation.length - 1} lags): widen the regions`,
       { parameter: 'spectra' },
     );
   }

@@ -36,7 +36,10 @@ export function describeLackOfFit(lackOfFit: ClsLackOfFit, state: ClsState): str
   const parts: string[] = [];
   if (lackOfFit.residualOverBlank !== null && lackOfFit.blankVariance !== null) {
     parts.push(
-      `the calibration residual (SD ${formatNumber(sd)} a channel) is ${formatNumber(Math.sqrt(lackOfFit.residualOverBlank))} times the noise of the ${lackOfFit.blanks} zero-gas standard(s) (SD ${formatNumber(Math.sqrt(lackOfFit.blankVariance))}), so it is mostly lack of fit rather than noise`,
+      `the calibration residual (SD ${formatNumber(sd)} a channel) is ` +
+        `${formatNumber(Math.sqrt(lackOfFit.residualOverBlank))} times the noise of the ${lackOfFit.blanks} ` +
+        `zero-gas standard(s) (SD ${formatNumber(Math.sqrt(lackOfFit.blankVariance))}), so it is mostly lack ` +
+        `of fit rather than noise`,
     );
   } else {
     parts.push(
@@ -45,9 +48,10 @@ export function describeLackOfFit(lackOfFit: ClsLackOfFit, state: ClsState): str
   }
   const helpful = helpfulGains(lackOfFit);
   if (helpful.length > 0) {
-    parts.push(
-      `a second-order term would remove ${listNames(helpful.map((gain) => `${Math.round(100 * gain.residualReduction)} % of it for ${gain.component}`))} (significant at 99 %)`,
+    const shares = helpful.map(
+      (gain) => `${Math.round(100 * gain.residualReduction)} % of it for ${gain.component}`,
     );
+    parts.push(`a second-order term would remove ${listNames(shares)} (significant at 99 %)`);
   }
   return parts.join('; ');
 }
@@ -72,8 +76,16 @@ export function helpfulGains(lackOfFit: ClsLackOfFit): ClsSecondOrderGain[] {
 export function lackOfFitAdvice(lackOfFit: ClsLackOfFit): string {
   const helpful = helpfulGains(lackOfFit);
   if (helpful.length > 0)
-    return `give ${listNames(helpful.map((gain) => gain.component))} a second-order term (secondOrder), or choose regions with weaker lines`;
-  return 'no second-order term of a gas that lacks one removes it: look for curvature beyond second order (saturated lines: choose regions with weaker lines or a narrower calibrated range), lines of different gases that overlap (they multiply in transmittance), an absorber in the standards the method does not model, or a baseline the polynomial order does not follow';
+    return (
+      `give ${listNames(helpful.map((gain) => gain.component))} a second-order term (secondOrder), or ` +
+      `choose regions with weaker lines`
+    );
+  return (
+    'no second-order term of a gas that lacks one removes it: look for curvature beyond second order ' +
+    '(saturated lines: choose regions with weaker lines or a narrower calibrated range), lines of different ' +
+    'gases that overlap (they multiply in transmittance), an absorber in the standards the method does not ' +
+    'model, or a baseline the polynomial order does not follow'
+  );
 }
 
 /**
@@ -187,8 +199,10 @@ export function lackOfFitWarnings(
     .filter((entry) => entry.factor > 1);
   const consequence =
     widened.length > 0
-      ? `cross-validation widens the intervals (${widened.map((entry) => `${entry.name} ×${entry.factor.toFixed(2)}`).join(', ')}) to cover it`
-      : 'cross-validation does not show it in the estimates, but results near the ends of the calibrated range may be biased';
+      ? `cross-validation widens the intervals ` +
+        `(${widened.map((entry) => `${entry.name} ×${entry.factor.toFixed(2)}`).join(', ')}) to cover it`
+      : 'cross-validation does not show it in the estimates, but results near the ends of the calibrated range ' +
+        'may be biased';
   return [
     `lack of fit: ${describeLackOfFit(lackOfFit, state)}; ${consequence}; ${lackOfFitAdvice(lackOfFit)}`,
   ];

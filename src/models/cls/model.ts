@@ -121,7 +121,10 @@ export interface ClsLackOfFit {
   readonly blankVariance: number | null;
   /** Calibration residual variance over the blanks' noise variance, or null without blanks. */
   readonly residualOverBlank: number | null;
-  /** F(0.99; ν_residual, ν_blanks): the ratio above which the residual is significantly above noise; null without blanks. */
+  /**
+   * F(0.99; ν_residual, ν_blanks): the ratio above which the residual is significantly above
+   * noise; null without blanks.
+   */
   readonly residualOverBlankLimit: number | null;
   /** For each component without a second-order term whose standards allow one (at least three levels). */
   readonly secondOrderGains: readonly ClsSecondOrderGain[];

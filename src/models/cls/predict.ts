@@ -160,7 +160,8 @@ export function predictClsState(
   if (sample.length !== model.channelCount) {
     throw new BandwrightError(
       'INVALID_VALUE',
-      `sample has ${sample.length} ${options.channelWord}s, the model was fitted on ${model.channelCount}, must be equal`,
+      `sample has ${sample.length} ${options.channelWord}s, the model was fitted on ${model.channelCount}, ` +
+        `must be equal`,
       { parameter: 'spectrum' },
     );
   }

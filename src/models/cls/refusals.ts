@@ -62,8 +62,11 @@ function withHelpfulSecondOrder(
 export function signalRefusal(input: SeparationInput, component: number, ratio: number): BandwrightError {
   const { components, terms, channelWord, lackOfFit } = input;
   const name = components[component]!.name;
-  const subject = `pure spectrum of ${name}${termsOf(terms, component).length > 1 ? ' (first and second order together)' : ''}`;
-  const measured = `signal ${formatNumber(ratio)} times the energy the calibration residual leaves in it where it absorbs, must be >= ${MINIMUM_SEPARATION_RATIO}`;
+  const jointly = termsOf(terms, component).length > 1 ? ' (first and second order together)' : '';
+  const subject = `pure spectrum of ${name}${jointly}`;
+  const measured =
+    `signal ${formatNumber(ratio)} times the energy the calibration residual leaves in it where ` +
+    `it absorbs, must be >= ${MINIMUM_SEPARATION_RATIO}`;
   const absent = `it does not absorb measurably in the method's ${channelWord}s, or its standards are too weak`;
   if (!lackOfFit.detected) {
     return new BandwrightError(
@@ -79,19 +82,25 @@ export function signalRefusal(input: SeparationInput, component: number, ratio: 
     if (after !== null && after >= MINIMUM_SEPARATION_RATIO) {
       return new BandwrightError(
         'SINGULAR',
-        `${subject} cannot be told from the calibration's lack of fit (${measured}): ${diagnosis}; with a second-order term for ${listNames(remedy.names)} its signal ratio would be ${formatNumber(after)}: give ${listNames(remedy.names)} a second-order term (secondOrder)`,
+        `${subject} cannot be told from the calibration's lack of fit (${measured}): ${diagnosis}; with a ` +
+          `second-order term for ${listNames(remedy.names)} its signal ratio would be ${formatNumber(after)}: ` +
+          `give ${listNames(remedy.names)} a second-order term (secondOrder)`,
         { parameter: 'spectra' },
       );
     }
     return new BandwrightError(
       'SINGULAR',
-      `${subject} is not distinguishable from the calibration residual (${measured}), not even after a second-order term for ${listNames(remedy.names)} removes the lack of fit (ratio ${after === null ? 'not available' : formatNumber(after)} then): ${absent}`,
+      `${subject} is not distinguishable from the calibration residual (${measured}), not even after a ` +
+        `second-order term for ${listNames(remedy.names)} removes the lack of fit (ratio ` +
+        `${after === null ? 'not available' : formatNumber(after)} then): ${absent}`,
       { parameter: 'spectra' },
     );
   }
   return new BandwrightError(
     'SINGULAR',
-    `${subject} is not distinguishable from the calibration residual (${measured}), and that residual is lack of fit: ${diagnosis}; ${lackOfFitAdvice(lackOfFit)}; then see whether ${name} absorbs measurably in the method's ${channelWord}s`,
+    `${subject} is not distinguishable from the calibration residual (${measured}), and that residual is lack ` +
+      `of fit: ${diagnosis}; ${lackOfFitAdvice(lackOfFit)}; then see whether ${name} absorbs measurably in the ` +
+      `method's ${channelWord}s`,
     { parameter: 'spectra' },
   );
 }
@@ -112,8 +121,12 @@ export function shapeRefusal(
 ): BandwrightError {
   const { components, channelWord, lackOfFit } = input;
   const pair = `${components[component]!.name} and ${components[other]!.name}`;
-  const measured = `their difference carries ${formatNumber(ratio)} times the energy the calibration residual leaves in it, must be >= ${MINIMUM_SEPARATION_RATIO}`;
-  const coincide = `their bands coincide and cannot be separated; extend the regions to where their bands differ, or drop one of them`;
+  const measured =
+    `their difference carries ${formatNumber(ratio)} times the energy the calibration residual ` +
+    `leaves in it, must be >= ${MINIMUM_SEPARATION_RATIO}`;
+  const coincide =
+    `their bands coincide and cannot be separated; extend the regions to where their bands ` +
+    `differ, or drop one of them`;
   if (!lackOfFit.detected) {
     return new BandwrightError(
       'SINGULAR',
@@ -130,19 +143,25 @@ export function shapeRefusal(
     if (after !== undefined && after >= MINIMUM_SEPARATION_RATIO) {
       return new BandwrightError(
         'SINGULAR',
-        `pure spectra of ${pair} cannot be told apart through the calibration's lack of fit (${measured}): ${diagnosis}; with a second-order term for ${listNames(remedy.names)} their separation ratio would be ${formatNumber(after)}: give ${listNames(remedy.names)} a second-order term (secondOrder)`,
+        `pure spectra of ${pair} cannot be told apart through the calibration's lack of fit (${measured}): ` +
+          `${diagnosis}; with a second-order term for ${listNames(remedy.names)} their separation ratio would ` +
+          `be ${formatNumber(after)}: give ${listNames(remedy.names)} a second-order term (secondOrder)`,
         { parameter: 'spectra' },
       );
     }
     return new BandwrightError(
       'SINGULAR',
-      `pure spectra of ${pair} have the same shape within the calibration residual (${measured}), even after a second-order term for ${listNames(remedy.names)} removes the lack of fit (ratio ${after === undefined ? 'not available' : formatNumber(after)} then): ${coincide}`,
+      `pure spectra of ${pair} have the same shape within the calibration residual (${measured}), even after a ` +
+        `second-order term for ${listNames(remedy.names)} removes the lack of fit (ratio ` +
+        `${after === undefined ? 'not available' : formatNumber(after)} then): ${coincide}`,
       { parameter: 'spectra' },
     );
   }
   return new BandwrightError(
     'SINGULAR',
-    `pure spectra of ${pair} have the same shape within the calibration residual (${measured}), and that residual is lack of fit: ${diagnosis}; ${lackOfFitAdvice(lackOfFit)}; then see whether their bands differ over the method's ${channelWord}s`,
+    `pure spectra of ${pair} have the same shape within the calibration residual (${measured}), and that ` +
+      `residual is lack of fit: ${diagnosis}; ${lackOfFitAdvice(lackOfFit)}; then see whether their bands ` +
+      `differ over the method's ${channelWord}s`,
     { parameter: 'spectra' },
   );
 }
@@ -157,7 +176,9 @@ export function rephraseDesignError(error: unknown): unknown {
   if (isBandwrightError(error, 'SINGULAR')) {
     return new BandwrightError(
       'SINGULAR',
-      `standards' concentrations cannot separate the gases: ${error.message.replace(/^design columns /, '').replace(/^design column /, '')} (in every standard they keep the same ratio, or one is a combination of the others)`,
+      `standards' concentrations cannot separate the gases: ` +
+        `${error.message.replace(/^design columns /, '').replace(/^design column /, '')} (in every standard ` +
+        `they keep the same ratio, or one is a combination of the others)`,
       { parameter: 'concentrations' },
       { cause: error },
     );

@@ -42,7 +42,8 @@ export function checkPureSpectra(input: SeparationInput): PureSpectrumChecks {
   if (zero >= 0) {
     throw new BandwrightError(
       'SINGULAR',
-      `pure spectrum of ${names[zero]!} is zero on every ${channelWord}: it has no absorption in the method's ${channelWord}s`,
+      `pure spectrum of ${names[zero]!} is zero on every ${channelWord}: it has no absorption in the method's ` +
+        `${channelWord}s`,
       { parameter: 'spectra' },
     );
   }
@@ -70,7 +71,10 @@ export function checkPureSpectra(input: SeparationInput): PureSpectrumChecks {
           .sort((a, b) => a - b);
       throw new BandwrightError(
         'SINGULAR',
-        `pure spectra of ${listNames(involved.map((t) => names[t]!))} nearly coincide over the method's ${channelWord}s (condition number ${formatNumber(condition)} of the column-scaled pure-spectrum matrix, limit ${formatNumber(conditionLimit)}): their bands cannot be separated; extend the regions to where their bands differ, or drop one of them`,
+        `pure spectra of ${listNames(involved.map((t) => names[t]!))} nearly coincide over the method's ` +
+          `${channelWord}s (condition number ${formatNumber(condition)} of the column-scaled pure-spectrum ` +
+          `matrix, limit ${formatNumber(conditionLimit)}): their bands cannot be separated; extend the regions ` +
+          `to where their bands differ, or drop one of them`,
         { parameter: 'spectra' },
       );
     }

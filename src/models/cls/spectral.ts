@@ -252,7 +252,8 @@ export function clsPredictionState(model: ClsModel): ClsState {
  *   conditions, the interferents likewise, the residual spectrum and its RMS (absorbance), and
  *   the `poor-fit` flag
  * @throws BandwrightError `INVALID_VALUE` for a spectrum of the wrong length or with non-finite
- *   values, φ ≤ 0, or a level outside (0, 1); `NO_SOLUTION` when the estimates overflow (absorbances far beyond any calibration)
+ *   values, φ ≤ 0, or a level outside (0, 1); `NO_SOLUTION` when the estimates overflow
+ *   (absorbances far beyond any calibration)
  * @example
  * const result = predictCls(model, sampleAbsorbance, { phi: 1 });
  * result.estimates[0]; // { name: 'CO', value: 71.3, se: 0.4, low: 70.5, high: 72.1, ... }
@@ -276,9 +277,14 @@ export function predictCls(
   if (broken !== undefined || !Number.isFinite(prediction.residualRms)) {
     let largest = 0;
     for (let j = 0; j < spectrum.length; j++) largest = Math.max(largest, Math.abs(spectrum[j] as number));
+    const gives =
+      broken === undefined
+        ? `a residual RMS of ${prediction.residualRms}`
+        : `${broken.name} = ${broken.value} ± ${broken.se}`;
     throw new BandwrightError(
       'NO_SOLUTION',
-      `the sample spectrum gives ${broken === undefined ? `a residual RMS of ${prediction.residualRms}` : `${broken.name} = ${broken.value} ± ${broken.se}`}, not a finite estimate; its absorbance reaches ${largest}, far beyond any calibration`,
+      `the sample spectrum gives ${gives}, not a finite estimate; its absorbance reaches ${largest}, ` +
+        `far beyond any calibration`,
       { parameter: 'spectrum' },
     );
   }

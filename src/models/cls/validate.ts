@@ -140,7 +140,8 @@ export function validateClsInputs(
     if (c.length !== components.length) {
       throw new BandwrightError(
         'INVALID_VALUE',
-        `concentrations[${i}] (${standard(i)}) has ${c.length} values for ${components.length} components, must be equal`,
+        `concentrations[${i}] (${standard(i)}) has ${c.length} values for ${components.length} components, ` +
+          `must be equal`,
         { parameter: 'concentrations' },
       );
     }
@@ -149,7 +150,8 @@ export function validateClsInputs(
       if (!(Number.isFinite(value) && (value as number) >= 0)) {
         throw new BandwrightError(
           'INVALID_VALUE',
-          `concentrations[${i}][${j}] (${standard(i)}, ${component.name}) = ${value}, must be a finite number >= 0 ${component.unit}`,
+          `concentrations[${i}][${j}] (${standard(i)}, ${component.name}) = ${value}, must be a finite number ` +
+            `>= 0 ${component.unit}`,
           { parameter: 'concentrations' },
         );
       }

@@ -47,7 +47,8 @@ function checkSeries(values: unknown, name: string): number[] {
     if (Math.abs(value) > MAX_MAGNITUDE) {
       throw new BandwrightError(
         'INVALID_VALUE',
-        `${name}[${i}] = ${String(value)}, must be within ±${MAX_MAGNITUDE} (sums of squares must stay finite in double precision)`,
+        `${name}[${i}] = ${String(value)}, must be within ±${MAX_MAGNITUDE} (sums of squares must stay finite ` +
+          `in double precision)`,
         { parameter: `${name}[${i}]` },
       );
     }
@@ -97,21 +98,24 @@ function checkLevels(form: CurveForm, levels: readonly number[], n: number, y: r
   if (levels.length === 1) {
     throw new BandwrightError(
       'INSUFFICIENT_DATA',
-      `all ${n} standards are at one concentration (${levels[0] as number}): a calibration needs standards at different concentrations (at least ${p + 1} levels for a ${FORM_NAMES[form]} fit)`,
+      `all ${n} standards are at one concentration (${levels[0] as number}): a calibration needs standards at ` +
+        `different concentrations (at least ${p + 1} levels for a ${FORM_NAMES[form]} fit)`,
       { parameter: 'concentration' },
     );
   }
   if (levels.length < p + 1) {
     throw new BandwrightError(
       'INSUFFICIENT_DATA',
-      `a ${FORM_NAMES[form]} calibration needs at least ${p + 1} distinct concentration levels (${p} parameters + 1), found ${levels.length} (${levels.join(', ')})`,
+      `a ${FORM_NAMES[form]} calibration needs at least ${p + 1} distinct concentration levels (${p} ` +
+        `parameters + 1), found ${levels.length} (${levels.join(', ')})`,
       { parameter: 'concentration' },
     );
   }
   if (y.every((value) => value === y[0])) {
     throw new BandwrightError(
       'INVALID_VALUE',
-      `every response is ${y[0] as number}: the response does not change with concentration, so no calibration can be made`,
+      `every response is ${y[0] as number}: the response does not change with concentration, so no calibration ` +
+        `can be made`,
       { parameter: 'response' },
     );
   }
@@ -131,7 +135,10 @@ function checkLevels(form: CurveForm, levels: readonly number[], n: number, y: r
  *   levels than parameters + 1, or `replicates` weighting finds a level with one standard;
  *   `SINGULAR` when the design is too ill-conditioned to fit
  * @example
- * const model = fitUnivariate({ concentration: [0, 50, 100, 150], response: [0.02, 4.1, 8.05, 12.2] }, { form: 'linear' });
+ * const model = fitUnivariate(
+ *   { concentration: [0, 50, 100, 150], response: [0.02, 4.1, 8.05, 12.2] },
+ *   { form: 'linear' },
+ * );
  * predictUnivariate(model, [6.1]).value; // ≈ 75
  */
 export function fitUnivariate(data: UnivariateData, options: UnivariateFitOptions): UnivariateModel {
@@ -193,7 +200,8 @@ export function fitUnivariate(data: UnivariateData, options: UnivariateFitOption
     }
   } else {
     warnings.push(
-      `Mandel test not run: it needs at least 4 standards at 3 or more concentration levels (found ${n} at ${levels.length})`,
+      `Mandel test not run: it needs at least 4 standards at 3 or more concentration levels (found ${n} at ` +
+        `${levels.length})`,
     );
   }
   if (mandel !== null) {
@@ -207,7 +215,9 @@ export function fitUnivariate(data: UnivariateData, options: UnivariateFitOption
     const tIntercept = criticalT(0.95, straight.fit.degreesOfFreedom);
     if (Math.abs(straight.coefficients.a) > tIntercept * interceptSE) {
       warnings.push(
-        `a straight line with intercept gives a = ${short(straight.coefficients.a)} ± ${short(interceptSE)} (standard error), significantly different from 0 at 95 %: a through-origin calibration is biased on these standards`,
+        `a straight line with intercept gives a = ${short(straight.coefficients.a)} ± ${short(interceptSE)} ` +
+          `(standard error), significantly different from 0 at 95 %: a through-origin calibration is biased on ` +
+          `these standards`,
       );
     }
   }
@@ -216,7 +226,8 @@ export function fitUnivariate(data: UnivariateData, options: UnivariateFitOption
   const tSlope = criticalT(0.95, degreesOfFreedom);
   if (Math.abs(coefficients.b) < tSlope * standardErrors.b && form !== 'quadratic') {
     warnings.push(
-      `the slope b = ${short(coefficients.b)} is not significantly different from zero (standard error ${short(standardErrors.b)}, 95 %): concentrations inferred from this calibration are unreliable`,
+      `the slope b = ${short(coefficients.b)} is not significantly different from zero (standard error ` +
+        `${short(standardErrors.b)}, 95 %): concentrations inferred from this calibration are unreliable`,
     );
   }
   const range: [number, number] = [levels[0] as number, levels[levels.length - 1] as number];
@@ -224,7 +235,8 @@ export function fitUnivariate(data: UnivariateData, options: UnivariateFitOption
     const vertex = -coefficients.b / (2 * coefficients.c);
     if (vertex > range[0] && vertex < range[1]) {
       warnings.push(
-        `the second-order curve turns at concentration ${short(vertex)}, inside the calibrated range ${range[0]}–${range[1]}: responses near the turn do not determine one concentration`,
+        `the second-order curve turns at concentration ${short(vertex)}, inside the calibrated range ` +
+          `${range[0]}–${range[1]}: responses near the turn do not determine one concentration`,
       );
     }
   }

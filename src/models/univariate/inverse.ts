@@ -43,7 +43,9 @@ export function invertCurve(model: UnivariateModel, target: number): number {
     const vertexResponse = a + b * vertex + c * vertex * vertex;
     throw new BandwrightError(
       'NO_SOLUTION',
-      `response ${short(target)} is beyond the vertex of the second-order calibration (its ${c < 0 ? 'highest' : 'lowest'} response is ${short(vertexResponse)}, at concentration ${short(vertex)}): no concentration gives this response`,
+      `response ${short(target)} is beyond the vertex of the second-order calibration (its ` +
+        `${c < 0 ? 'highest' : 'lowest'} response is ${short(vertexResponse)}, at concentration ` +
+        `${short(vertex)}): no concentration gives this response`,
       { parameter: 'responses' },
     );
   }
@@ -54,7 +56,9 @@ export function invertCurve(model: UnivariateModel, target: number): number {
   else if (inside.length === 2) {
     throw new BandwrightError(
       'NO_SOLUTION',
-      `response ${short(target)} is reached twice inside the calibrated range (at concentrations ${short(inside[0] as number)} and ${short(inside[1] as number)}), because the second-order curve turns at ${short(vertex)}: the calibration is not monotonic there`,
+      `response ${short(target)} is reached twice inside the calibrated range (at concentrations ` +
+        `${short(inside[0] as number)} and ${short(inside[1] as number)}), because the second-order curve ` +
+        `turns at ${short(vertex)}: the calibration is not monotonic there`,
       { parameter: 'responses' },
     );
   } else {

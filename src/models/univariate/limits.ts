@@ -77,7 +77,8 @@ export function limitsFor(model: Omit<UnivariateModel, 'limits'>): CalibrationLi
     );
   if (model.weights !== 'none')
     parts.push(
-      `weighted (${model.weighting.rule}): a new observation at x has variance s²/w(x), at zero concentration w(0) = w(${model.weighting.floor ?? 0})`,
+      `weighted (${model.weighting.rule}): a new observation at x has variance s²/w(x), at zero concentration ` +
+        `w(0) = w(${model.weighting.floor ?? 0})`,
     );
   return curveLimits(
     {

@@ -116,7 +116,8 @@ function checkOptions(
  * interval at the given level (see the module comment for the formulas).
  *
  * @param model - a model from `fitUnivariate`
- * @param responses - the sample's responses at reference conditions (same quantity as the calibration's response); not modified
+ * @param responses - the sample's responses at reference conditions (same quantity as the
+ *   calibration's response); not modified
  * @param options - interval level (default 0.95) and method (`standard` or `fieller`)
  * @returns value, standard error, interval (null ends when a Fieller interval is unbounded),
  *   degrees of freedom, and flags
@@ -153,7 +154,9 @@ export function predictUnivariate(
     const slope = b + 2 * model.coefficients.c * value;
     newObservationTerm = (s * s) / (m * w0);
     variance = (newObservationTerm + fittedVarianceAt(model.covariance, value)) / (slope * slope);
-    description = `second-order inverse prediction: root of a + b·x + c·x² = ȳ0 on the calibrated branch, delta-method interval x̂0 ± ${quantile}·s_x0 with var = (s²/(m·w0) + gᵀCov g)/(b + 2c·x̂0)²`;
+    description =
+      `second-order inverse prediction: root of a + b·x + c·x² = ȳ0 on the calibrated branch, ` +
+      `delta-method interval x̂0 ± ${quantile}·s_x0 with var = (s²/(m·w0) + gᵀCov g)/(b + 2c·x̂0)²`;
   } else if (model.form === 'linear') {
     value = (mean - a) / b;
     const w0 = weightAt(model, value);
@@ -162,14 +165,18 @@ export function predictUnivariate(
       ((s * s) / (b * b)) *
       (newObservationTerm + 1 / model.sumWeights + (mean - model.meanResponse) ** 2 / (b * b * model.sxx));
     g = (t * t * s * s) / (b * b * model.sxx);
-    description = `straight-line inverse prediction: x̂0 = (ȳ0 − a)/b ± ${quantile}·s_x0, s_x0 = (s/|b|)·√(1/(m·w0) + 1/n + (ȳ0 − ȳ)²/(b²·Sxx))`;
+    description =
+      `straight-line inverse prediction: x̂0 = (ȳ0 − a)/b ± ${quantile}·s_x0, s_x0 = ` +
+      `(s/|b|)·√(1/(m·w0) + 1/n + (ȳ0 − ȳ)²/(b²·Sxx))`;
   } else {
     value = mean / b;
     const w0 = weightAt(model, value);
     newObservationTerm = 1 / (m * w0);
     variance = ((s * s) / (b * b)) * (newObservationTerm + (value * value) / model.sumXSquared);
     g = (t * t * s * s) / (b * b * model.sumXSquared);
-    description = `through-origin inverse prediction: x̂0 = ȳ0/b ± ${quantile}·s_x0, s_x0 = (s/|b|)·√(1/(m·w0) + x̂0²/Σx²)`;
+    description =
+      `through-origin inverse prediction: x̂0 = ȳ0/b ± ${quantile}·s_x0, s_x0 = (s/|b|)·√(1/(m·w0) ` +
+      `+ x̂0²/Σx²)`;
   }
   if (model.weights !== 'none')
     description += `; w0 = w(x̂0) = ${short(weightAt(model, value))} from the calibration's weighting`;
@@ -179,7 +186,9 @@ export function predictUnivariate(
   if (!Number.isFinite(value) || !Number.isFinite(se)) {
     throw new BandwrightError(
       'NO_SOLUTION',
-      `response ${short(mean)} gives concentration ${short(value)} with standard error ${short(se)}: not a finite estimate; the response is too far outside the calibrated responses (${short(model.meanResponse)} on average) or the model is damaged`,
+      `response ${short(mean)} gives concentration ${short(value)} with standard error ${short(se)}: not a ` +
+        `finite estimate; the response is too far outside the calibrated responses ` +
+        `(${short(model.meanResponse)} on average) or the model is damaged`,
       { parameter: 'responses' },
     );
   }
@@ -203,7 +212,9 @@ export function predictUnivariate(
       } else {
         quadratic = [b * b * (1 - gValue), -2 * b * mean, mean * mean - t * t * s * s * newObservationTerm];
       }
-      description = `Fieller interval: the concentrations x with (ȳ0 − ŷ(x))² ≤ t²·Var(ȳ0 − ŷ(x)), t = ${quantile}, solved in closed form; g = t²s²/(b²·S) = ${short(gValue)}`;
+      description =
+        `Fieller interval: the concentrations x with (ȳ0 − ŷ(x))² ≤ t²·Var(ȳ0 − ŷ(x)), t = ` +
+        `${quantile}, solved in closed form; g = t²s²/(b²·S) = ${short(gValue)}`;
       if (gValue >= 1) {
         unbounded = true;
         low = null;
@@ -221,17 +232,22 @@ export function predictUnivariate(
       low = ends.low;
       high = ends.high;
       unbounded = low === null || high === null;
-      description = `Fieller interval: the concentrations x with (ȳ0 − ŷ(x))² ≤ t²·(s²/(m·w(x)) + Var ŷ(x)), t = ${quantile}, with the weight w(x) taken at each x (${model.weighting.rule}), solved numerically; g = t²s²/(b²·S) = ${short(gValue)}`;
+      description =
+        `Fieller interval: the concentrations x with (ȳ0 − ŷ(x))² ≤ t²·(s²/(m·w(x)) + Var ŷ(x)), t ` +
+        `= ${quantile}, with the weight w(x) taken at each x (${model.weighting.rule}), solved numerically; g ` +
+        `= t²s²/(b²·S) = ${short(gValue)}`;
     }
     if (unbounded) {
       description += '; the slope is too poorly determined at this level, so the interval is unbounded';
       warnings.push(
-        `the Fieller interval is unbounded (g = ${short(gValue)}): the calibration's slope is too poorly determined to bound this concentration at level ${level}`,
+        `the Fieller interval is unbounded (g = ${short(gValue)}): the calibration's slope is too poorly ` +
+          `determined to bound this concentration at level ${level}`,
       );
     }
   } else if (g !== null && g > 0.1) {
     warnings.push(
-      `the slope is poorly determined (g = ${short(g)} > 0.1): the standard interval is only approximate; use the Fieller method`,
+      `the slope is poorly determined (g = ${short(g)} > 0.1): the standard interval is only approximate; use ` +
+        `the Fieller method`,
     );
   }
   const [rangeLow, rangeHigh] = model.range;

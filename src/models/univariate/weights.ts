@@ -114,7 +114,8 @@ export function weightStandards(
       if (!(Number.isFinite(weightFloor) && weightFloor > 0)) {
         throw new BandwrightError(
           'INVALID_VALUE',
-          `weightFloor = ${weightFloor}, must be a finite concentration > 0 (it stands in for x in 1/x weights at and below it)`,
+          `weightFloor = ${weightFloor}, must be a finite concentration > 0 (it stands in for x in 1/x weights ` +
+            `at and below it)`,
           { parameter: 'weightFloor' },
         );
       }
@@ -123,11 +124,15 @@ export function weightStandards(
       floor = groups.map((group) => group.level).find((level) => level > 0) as number;
     }
     const power = scheme === '1/x' ? 'max(x, floor)' : 'max(x, floor)²';
-    rule = `w = 1/${power} with floor ${floor}${weightFloor === undefined ? ' (the lowest non-zero concentration)' : ''}, normalised so Σw = n`;
+    rule =
+      `w = 1/${power} with floor ` +
+      `${floor}${weightFloor === undefined ? ' (the lowest non-zero concentration)' : ''}, normalised so Σw = n`;
     const blanks = x.filter((value) => value < (floor as number)).length;
     if (blanks > 0) {
       warnings.push(
-        `weights ${scheme}: ${blanks} standard${blanks === 1 ? '' : 's'} below the floor ${floor} (e.g. zero-concentration blanks) weighted as if at ${floor}${weightFloor === undefined ? '; set weightFloor to choose another floor' : ''}`,
+        `weights ${scheme}: ${blanks} standard${blanks === 1 ? '' : 's'} below the floor ${floor} (e.g. ` +
+          `zero-concentration blanks) weighted as if at ` +
+          `${floor}${weightFloor === undefined ? '; set weightFloor to choose another floor' : ''}`,
       );
     }
   } else if (scheme === 'replicates') {
@@ -135,7 +140,8 @@ export function weightStandards(
       if (group.responses.length < 2) {
         throw new BandwrightError(
           'INSUFFICIENT_DATA',
-          `weights replicates: concentration ${group.level} has ${group.responses.length} standard, needs at least 2 replicates at every level to estimate its SD`,
+          `weights replicates: concentration ${group.level} has ${group.responses.length} standard, needs at ` +
+            `least 2 replicates at every level to estimate its SD`,
           { parameter: 'weights' },
         );
       }
@@ -143,14 +149,16 @@ export function weightStandards(
       if (!(sd > 0)) {
         throw new BandwrightError(
           'INVALID_VALUE',
-          `weights replicates: the ${group.responses.length} replicates at concentration ${group.level} have identical responses (SD 0), so 1/s² is undefined`,
+          `weights replicates: the ${group.responses.length} replicates at concentration ${group.level} have ` +
+            `identical responses (SD 0), so 1/s² is undefined`,
           { parameter: 'weights' },
         );
       }
       return { concentration: group.level, count: group.responses.length, sd };
     });
     rule =
-      'w = 1/s(x)² with s the replicate SD at each level, linearly interpolated between levels and constant beyond them, normalised so Σw = n';
+      'w = 1/s(x)² with s the replicate SD at each level, linearly interpolated between levels and constant ' +
+      'beyond them, normalised so Σw = n';
   }
   const provisional = { scheme, floor, levels: replicateLevels };
   const raw = x.map((value) => rawWeight(provisional, value));
