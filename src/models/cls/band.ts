@@ -12,36 +12,27 @@
  */
 import { BandwrightError } from '../../errors.js';
 import { fitClsCore } from './fit-core.js';
-import { DEFAULT_POOR_FIT_RATIO, type ClsComponent, type ClsCoreModel, type ClsPrediction } from './model.js';
+import {
+  type ClsCommonFitOptions,
+  type ClsCoreModel,
+  type ClsPredictOptions,
+  type ClsPrediction,
+  type ClsStandards,
+} from './model.js';
 import { predictClsState } from './predict.js';
 import { prepareClsState, type ClsState } from './prediction-state.js';
 import { validateClsInputs } from './validate.js';
 
 /** Standards for a band-area CLS fit. Nothing here is modified. */
-export interface BandClsData {
+export interface BandClsData extends ClsStandards {
   /** Band names in column order of `areas` (e.g. `2040-2245`), used in messages and results. */
   readonly bands: readonly string[];
   /** Baseline-corrected band areas (AU·cm⁻¹) or peak heights (AU), standards × bands. */
   readonly areas: readonly ArrayLike<number>[];
-  /** Certified concentrations, standards × components (≥ 0). */
-  readonly concentrations: readonly ArrayLike<number>[];
-  /** φ of each standard (> 0). */
-  readonly phi: ArrayLike<number>;
-  /** Components: reported gases and interferents. */
-  readonly components: readonly ClsComponent[];
-  /** Optional label of each standard for messages. */
-  readonly standardLabels?: readonly string[];
 }
 
-/** Options of {@link fitBandCls}. */
-export interface BandClsFitOptions {
-  /** Names of components given a second-order term. */
-  readonly secondOrder?: readonly string[];
-  /** Default confidence level of prediction intervals (default 0.95). */
-  readonly level?: number;
-  /** Largest condition number of the column-scaled concentration and band-response matrices (default 1000). */
-  readonly conditionLimit?: number;
-}
+/** Options of {@link fitBandCls}: those of every CLS fit (band areas have no baseline terms). */
+export type BandClsFitOptions = ClsCommonFitOptions;
 
 /** A fitted band-area CLS model: plain JSON-safe data (what was fitted; no derived operators). */
 export interface BandClsModel extends ClsCoreModel {
@@ -49,16 +40,6 @@ export interface BandClsModel extends ClsCoreModel {
   readonly kind: 'band-cls';
   /** Band names, in the order a sample's areas must follow. */
   readonly bands: readonly string[];
-}
-
-/** Options of {@link predictBandCls}. */
-export interface BandClsPredictOptions {
-  /** φ of the sample (> 0). */
-  readonly phi: number;
-  /** Confidence level (default: the model's). */
-  readonly level?: number;
-  /** Residual-RMS ratio that a poor fit must also exceed (default 1.5). */
-  readonly poorFitRatio?: number;
 }
 
 /**
@@ -93,17 +74,12 @@ export function fitBandCls(data: BandClsData, options: BandClsFitOptions = {}): 
       );
     names.add(band);
   });
-  const validated = validateClsInputs(
-    {
-      responses: data.areas,
-      concentrations: data.concentrations,
-      phi: data.phi,
-      components: data.components,
-      standardLabels: data.standardLabels,
-    },
-    options,
-    { channelCount: bandCount, channelWord: 'band', responsesName: 'areas' },
-  );
+  const standards = { ...data, responses: data.areas };
+  const validated = validateClsInputs(standards, options, {
+    channelCount: bandCount,
+    channelWord: 'band',
+    responsesName: 'areas',
+  });
   const terms = data.components.length + validated.secondOrder.length;
   if (bandCount <= terms) {
     throw new BandwrightError(
@@ -113,24 +89,14 @@ export function fitBandCls(data: BandClsData, options: BandClsFitOptions = {}): 
       { parameter: 'bands' },
     );
   }
-  const core = fitClsCore(
-    {
-      responses: data.areas,
-      concentrations: data.concentrations,
-      phi: data.phi,
-      components: data.components,
-    },
-    {
-      level: validated.level,
-      conditionLimit: validated.conditionLimit,
-      secondOrder: validated.secondOrder,
-      nuisance: [],
-      segments: data.bands.map((_, k) => ({ start: k, end: k + 1, region: k })),
-      estimateCorrelation: false,
-      localResidualWeights: false,
-      channelWord: 'band',
-    },
-  );
+  const core = fitClsCore(standards, {
+    ...validated,
+    nuisance: [],
+    segments: data.bands.map((_, k) => ({ start: k, end: k + 1, region: k })),
+    estimateCorrelation: false,
+    localResidualWeights: false,
+    channelWord: 'band',
+  });
   return { kind: 'band-cls', ...core, bands: [...data.bands] };
 }
 
@@ -148,17 +114,12 @@ const prepared = new WeakMap<BandClsModel, ClsState>();
 export function predictBandCls(
   model: BandClsModel,
   areas: ArrayLike<number>,
-  options: BandClsPredictOptions,
+  options: ClsPredictOptions,
 ): ClsPrediction {
   let state = prepared.get(model);
   if (state === undefined) {
     state = prepareClsState(model, [], 'band');
     prepared.set(model, state);
   }
-  return predictClsState(model, state, areas, {
-    phi: options.phi,
-    level: options.level ?? model.level,
-    poorFitRatio: options.poorFitRatio ?? DEFAULT_POOR_FIT_RATIO,
-    channelWord: 'band',
-  });
+  return predictClsState(model, state, areas, { ...options, channelWord: 'band' });
 }

@@ -10,7 +10,7 @@ import { removeSpan, type ChannelSegment } from './basis.js';
 import { crossValidate } from './cross-validation.js';
 import { fitState, type FittedState } from './fit-state.js';
 import { diagnoseLackOfFit, lackOfFitWarnings } from './lack-of-fit.js';
-import type { ClsComponent, ClsCoreModel } from './model.js';
+import type { ClsCoreModel, ClsStandards } from './model.js';
 import { rephraseDesignError } from './refusals.js';
 import { checkPureSpectra } from './separation.js';
 import { designTerms, termName, termValues } from './terms.js';
@@ -18,9 +18,9 @@ import { formatNumber, listNames } from './words.js';
 
 /** Options of {@link fitClsCore}. */
 export interface ClsCoreOptions {
-  /** Confidence level stored as the model's default. */
+  /** Confidence level stored as the model's default, strictly between 0 and 1. */
   readonly level: number;
-  /** Largest condition number accepted for the column-scaled X and Kᵀ. */
+  /** Largest condition number accepted for the column-scaled X and Kᵀ, ≥ 1. */
   readonly conditionLimit: number;
   /** Indices of components that get a second-order term. */
   readonly secondOrder: readonly number[];
@@ -40,15 +40,9 @@ export interface ClsCoreOptions {
 }
 
 /** Validated input of {@link fitClsCore}; arrays are not modified. */
-export interface ClsCoreData {
-  /** Responses, standards × channels. */
+export interface ClsCoreData extends ClsStandards {
+  /** Responses, standards × channels (spectra or band areas). */
   readonly responses: readonly ArrayLike<number>[];
-  /** Certified concentrations, standards × components (at the standards' own conditions). */
-  readonly concentrations: readonly ArrayLike<number>[];
-  /** φ of each standard. */
-  readonly phi: ArrayLike<number>;
-  /** Components. */
-  readonly components: readonly ClsComponent[];
 }
 
 /**

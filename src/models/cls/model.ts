@@ -34,7 +34,7 @@ export const DEFAULT_POOR_FIT_RATIO = 1.5;
  */
 export const SUBSTANTIAL_REDUCTION = 0.1;
 
-/** Probability of the F tests (poor fit, cross-validation inflation). */
+/** Probability of the F tests (poor fit, lack of fit, cross-validation inflation). */
 export const TEST_PROBABILITY = 0.99;
 
 /** A component of the model: a reported gas or an interferent (modelled, not reported). */
@@ -45,6 +45,47 @@ export interface ClsComponent {
   readonly reported: boolean;
   /** Concentration unit of the standards' values, e.g. `ppm`. */
   readonly unit: string;
+}
+
+/** The standards of every CLS fit, besides their responses. Nothing here is modified. */
+export interface ClsStandards {
+  /**
+   * Certified concentrations, standards × components, each in its component's unit at the
+   * standard's own conditions (≥ 0).
+   */
+  readonly concentrations: readonly ArrayLike<number>[];
+  /** φ = (L/L_ref)(P/P_ref)(T_ref/T) of each standard (> 0). */
+  readonly phi: ArrayLike<number>;
+  /** Components in column order of `concentrations`: reported gases and interferents. */
+  readonly components: readonly ClsComponent[];
+  /** Optional label of each standard (e.g. its scan file) for messages. */
+  readonly standardLabels?: readonly string[];
+}
+
+/** Options of every CLS fit. */
+export interface ClsCommonFitOptions {
+  /** Names of components given a second-order (quadratic) term, for saturating bands. */
+  readonly secondOrder?: readonly string[];
+  /** Default confidence level of prediction intervals (default 0.95). */
+  readonly level?: number;
+  /**
+   * Largest condition number of the column-scaled concentration and pure-spectrum (or
+   * band-response) matrices (default 1000).
+   */
+  readonly conditionLimit?: number;
+}
+
+/** Options of a CLS prediction, spectral or band-area. */
+export interface ClsPredictOptions {
+  /** φ = (L/L_ref)(P/P_ref)(T_ref/T) of the sample (> 0). */
+  readonly phi: number;
+  /** Confidence level of the intervals (default: the model's, usually 0.95). */
+  readonly level?: number;
+  /**
+   * Residual-RMS ratio over the calibration's that a sample must exceed, besides the F test at
+   * 99 %, to be flagged `poor-fit` (default 1.5).
+   */
+  readonly poorFitRatio?: number;
 }
 
 /** A term of the design: a component to the first or second power. */

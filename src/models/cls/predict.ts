@@ -22,7 +22,14 @@ import { criticalT, fQuantile } from '../../stats/distributions.js';
 import { dot, quadraticForm } from '../../stats/linear-algebra.js';
 import { removeSpan } from './basis.js';
 import { solveSecondOrder } from './gauss-newton.js';
-import { TEST_PROBABILITY, type ClsCoreModel, type ClsEstimate, type ClsPrediction } from './model.js';
+import {
+  DEFAULT_POOR_FIT_RATIO,
+  TEST_PROBABILITY,
+  type ClsCoreModel,
+  type ClsEstimate,
+  type ClsPredictOptions,
+  type ClsPrediction,
+} from './model.js';
 import type { ClsState } from './prediction-state.js';
 import { termValues } from './terms.js';
 
@@ -146,7 +153,8 @@ export function predictRaw(
  * @param model - the model the state was built from (names, units, ranges)
  * @param state - prepared numeric state ({@link prepareClsState})
  * @param sample - responses on the model's channels (absorbance or band areas); not modified
- * @param options - the sample's φ (> 0), confidence level, poor-fit ratio
+ * @param options - the sample's φ (> 0), confidence level (default the model's), poor-fit ratio
+ *   (default {@link DEFAULT_POOR_FIT_RATIO}), and what to call a channel in messages
  * @returns estimates of reported components and of interferents, residual and flags
  * @throws BandwrightError `INVALID_VALUE` for a wrong length, a non-finite value, φ ≤ 0 or a
  *   level outside (0, 1)
@@ -155,8 +163,10 @@ export function predictClsState(
   model: ClsCoreModel,
   state: ClsState,
   sample: ArrayLike<number>,
-  options: { phi: number; level: number; poorFitRatio: number; channelWord: string },
+  options: ClsPredictOptions & { readonly channelWord: string },
 ): ClsPrediction {
+  const level = options.level ?? model.level;
+  const poorFitRatio = options.poorFitRatio ?? DEFAULT_POOR_FIT_RATIO;
   if (sample.length !== model.channelCount) {
     throw new BandwrightError(
       'INVALID_VALUE',
@@ -179,13 +189,13 @@ export function predictClsState(
       parameter: 'phi',
     });
   }
-  if (!(options.poorFitRatio >= 1)) {
-    throw new BandwrightError('INVALID_VALUE', `poorFitRatio = ${options.poorFitRatio}, must be >= 1`, {
+  if (!(poorFitRatio >= 1)) {
+    throw new BandwrightError('INVALID_VALUE', `poorFitRatio = ${poorFitRatio}, must be >= 1`, {
       parameter: 'poorFitRatio',
     });
   }
-  const raw = predictRaw(state, sample, { poorFitRatio: options.poorFitRatio, inflate: true });
-  const t = criticalT(options.level, raw.degreesOfFreedom);
+  const raw = predictRaw(state, sample, { poorFitRatio, inflate: true });
+  const t = criticalT(level, raw.degreesOfFreedom);
   const estimates: ClsEstimate[] = [];
   const interferents: ClsEstimate[] = [];
   model.components.forEach((component, j) => {
@@ -216,7 +226,7 @@ export function predictClsState(
     fitRatio: raw.fitRatio,
     fitRatioLimit: raw.fitRatioLimit,
     degreesOfFreedom: raw.degreesOfFreedom,
-    level: options.level,
+    level,
     iterations: raw.iterations,
     warnings: raw.warnings,
   };

@@ -12,13 +12,19 @@
 import { BandwrightError } from '../../errors.js';
 import { channelSegments, MAX_BASELINE_ORDER, nuisanceBasis } from './basis.js';
 import { fitClsCore } from './fit-core.js';
-import { DEFAULT_POOR_FIT_RATIO, type ClsComponent, type ClsCoreModel, type ClsPrediction } from './model.js';
+import {
+  type ClsCommonFitOptions,
+  type ClsCoreModel,
+  type ClsPredictOptions,
+  type ClsPrediction,
+  type ClsStandards,
+} from './model.js';
 import { predictClsState } from './predict.js';
 import { prepareClsState, type ClsState } from './prediction-state.js';
 import { validateClsInputs } from './validate.js';
 
 /** Standards for a spectral CLS fit. Nothing here is modified. */
-export interface ClsData {
+export interface ClsData extends ClsStandards {
   /** Number of channels, or the grid itself (cm⁻¹; used to centre and scale the baseline polynomials). */
   readonly channels: number | Float64Array;
   /**
@@ -28,28 +34,14 @@ export interface ClsData {
   readonly regionOf?: ArrayLike<number>;
   /** Absorbance spectra of the standards, standards × channels. */
   readonly spectra: readonly ArrayLike<number>[];
-  /** Certified concentrations, standards × components, each in its component's unit (≥ 0). */
-  readonly concentrations: readonly ArrayLike<number>[];
-  /** φ = (L/L_ref)(P/P_ref)(T_ref/T) of each standard (> 0). */
-  readonly phi: ArrayLike<number>;
-  /** Components in column order of `concentrations`: reported gases and interferents. */
-  readonly components: readonly ClsComponent[];
-  /** Optional label of each standard (e.g. its scan file) for messages. */
-  readonly standardLabels?: readonly string[];
 }
 
 /** Options of {@link fitCls}. */
-export interface SpectralClsFitOptions {
+export interface SpectralClsFitOptions extends ClsCommonFitOptions {
   /** Polynomial baseline order per region, 0…3 (default 1: offset and slope). */
   readonly baselineOrder?: number;
   /** A constant background spectrum (absorbance on the channels) with a free coefficient in every spectrum. */
   readonly background?: ArrayLike<number>;
-  /** Names of components given a second-order (quadratic) term, for saturating bands. */
-  readonly secondOrder?: readonly string[];
-  /** Default confidence level of prediction intervals (default 0.95). */
-  readonly level?: number;
-  /** Largest condition number of the column-scaled concentration and pure-spectrum matrices (default 1000). */
-  readonly conditionLimit?: number;
 }
 
 /**
@@ -65,19 +57,6 @@ export interface ClsModel extends ClsCoreModel {
   readonly baselineOrder: number;
   /** Background spectrum, or null. */
   readonly background: readonly number[] | null;
-}
-
-/** Options of {@link predictCls}. */
-export interface ClsPredictOptions {
-  /** φ = (L/L_ref)(P/P_ref)(T_ref/T) of the sample (> 0). */
-  readonly phi: number;
-  /** Confidence level of the intervals (default: the model's, usually 0.95). */
-  readonly level?: number;
-  /**
-   * Residual-RMS ratio over the calibration's that a sample must exceed, besides the F test at
-   * 99 %, to be flagged `poor-fit` (default 1.5).
-   */
-  readonly poorFitRatio?: number;
 }
 
 function positionsOf(channels: number | Float64Array): ArrayLike<number> {
@@ -107,17 +86,12 @@ function positionsOf(channels: number | Float64Array): ArrayLike<number> {
  */
 export function fitCls(data: ClsData, options: SpectralClsFitOptions = {}): ClsModel {
   const channelCount = typeof data.channels === 'number' ? data.channels : data.channels.length;
-  const validated = validateClsInputs(
-    {
-      responses: data.spectra,
-      concentrations: data.concentrations,
-      phi: data.phi,
-      components: data.components,
-      standardLabels: data.standardLabels,
-    },
-    options,
-    { channelCount, channelWord: 'channel', responsesName: 'spectra' },
-  );
+  const standards = { ...data, responses: data.spectra };
+  const validated = validateClsInputs(standards, options, {
+    channelCount,
+    channelWord: 'channel',
+    responsesName: 'spectra',
+  });
   const baselineOrder = options.baselineOrder ?? 1;
   if (!(Number.isInteger(baselineOrder) && baselineOrder >= 0 && baselineOrder <= MAX_BASELINE_ORDER)) {
     throw new BandwrightError(
@@ -179,24 +153,14 @@ export function fitCls(data: ClsData, options: SpectralClsFitOptions = {}): ClsM
     ...(background ? { background } : {}),
   });
   const segments = channelSegments(regionOf, positions);
-  const core = fitClsCore(
-    {
-      responses: data.spectra,
-      concentrations: data.concentrations,
-      phi: data.phi,
-      components: data.components,
-    },
-    {
-      level: validated.level,
-      conditionLimit: validated.conditionLimit,
-      secondOrder: validated.secondOrder,
-      nuisance,
-      segments,
-      estimateCorrelation: true,
-      localResidualWeights: true,
-      channelWord: 'channel',
-    },
-  );
+  const core = fitClsCore(standards, {
+    ...validated,
+    nuisance,
+    segments,
+    estimateCorrelation: true,
+    localResidualWeights: true,
+    channelWord: 'channel',
+  });
   return {
     kind: 'cls',
     ...core,
@@ -264,9 +228,7 @@ export function predictCls(
   options: ClsPredictOptions,
 ): ClsPrediction {
   const prediction = predictClsState(model, clsPredictionState(model), spectrum, {
-    phi: options.phi,
-    level: options.level ?? model.level,
-    poorFitRatio: options.poorFitRatio ?? DEFAULT_POOR_FIT_RATIO,
+    ...options,
     channelWord: 'channel',
   });
   // Finite but huge absorbances (a corrupt or mis-scaled file) overflow the least squares; such an

@@ -4,7 +4,8 @@
  * value and the rule.
  */
 import { BandwrightError } from '../../errors.js';
-import { DEFAULT_CLS_CONDITION_LIMIT, type ClsComponent } from './model.js';
+import type { ClsCoreData } from './fit-core.js';
+import { DEFAULT_CLS_CONDITION_LIMIT, type ClsCommonFitOptions } from './model.js';
 
 /** Options checked here. */
 export interface ClsValidatedOptions {
@@ -28,14 +29,8 @@ export interface ClsValidatedOptions {
  * @throws BandwrightError `INVALID_VALUE` for any violated rule; `INSUFFICIENT_DATA` for no standards
  */
 export function validateClsInputs(
-  data: {
-    responses: readonly ArrayLike<number>[];
-    concentrations: readonly ArrayLike<number>[];
-    phi: ArrayLike<number>;
-    components: readonly ClsComponent[];
-    standardLabels?: readonly string[] | undefined;
-  },
-  options: { secondOrder?: readonly string[]; level?: number; conditionLimit?: number },
+  data: ClsCoreData,
+  options: ClsCommonFitOptions,
   context: { channelCount: number; channelWord: string; responsesName: string },
 ): ClsValidatedOptions {
   const { responses, concentrations, phi, components } = data;
