@@ -38,7 +38,7 @@ import { main } from '../src/cli/main.js';
 import { readCalibration } from '../src/store/calibration-file.js';
 import { formatJcamp } from '../src/formats/jcamp/write.js';
 import { parseScan } from '../src/formats/scan.js';
-import { predictCls } from '../src/models/cls.js';
+import { predictCls } from '../src/models/cls/spectral.js';
 import { createGaussian, createRandom } from '../src/simulate/random.js';
 import { simulateSpectrum } from '../src/simulate/simulate.js';
 

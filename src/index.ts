@@ -72,14 +72,13 @@ export {
 // Statistics and models
 export { leastSquares, solveLeastSquaresMany, type LeastSquaresFit } from './stats/least-squares.js';
 export { tQuantile, fQuantile, tCdf, fCdf } from './stats/distributions.js';
-export {
-  fitUnivariate,
-  predictConcentration,
-  responseBand,
-  type UnivariateModel,
-} from './models/univariate.js';
-export { fitCls, predictCls, type ClsModel, type ClsPrediction } from './models/cls.js';
-export { fitBandCls, predictBandCls, type BandClsModel } from './models/band-cls.js';
+export { fitUnivariate } from './models/univariate/fit.js';
+export { predictUnivariate } from './models/univariate/predict.js';
+export { responseBand } from './models/univariate/response-band.js';
+export type { CurveForm, UnivariateModel, WeightScheme } from './models/univariate/model.js';
+export { fitCls, predictCls, type ClsModel } from './models/cls/spectral.js';
+export type { ClsPrediction } from './models/cls/model.js';
+export { fitBandCls, predictBandCls, type BandClsModel } from './models/cls/band.js';
 
 // Calibrations
 export {
@@ -90,8 +89,6 @@ export {
   type BandMethod,
   type ResponseMethod,
   type ClsMethod,
-  type CurveForm,
-  type WeightScheme,
 } from './calibration/method.js';
 export {
   SCHEMA_VERSION,

@@ -20,7 +20,7 @@ import { BandwrightError } from '../errors.js';
 import { densityPathFactor, resolveConditions, type CellConditions } from '../gas/conditions.js';
 import { cautionsFor } from '../gas/safety.js';
 import { fromPpm, toPpm } from '../gas/units.js';
-import { fitCls, predictCls } from '../models/cls.js';
+import { fitCls, predictCls } from '../models/cls/spectral.js';
 import { interpolateAt, lowerBound, resample, toAbsorbance, type Spectrum } from '../spectrum/spectrum.js';
 import { provenanceHeader, referenceConditions, type BuildContext, type StandardScan } from './build.js';
 import { sealCalibration, type Calibration, type CalibrationStandard } from './calibration.js';
@@ -56,7 +56,8 @@ export function channelsFromScan(spectrum: Spectrum, regions: readonly Window[])
     if (count < 3) {
       throw new BandwrightError(
         'WINDOW',
-        `${spectrum.metadata.source ?? 'scan'}: region ${formatWindow(region)} holds ${count} grid point(s), needs at least 3`,
+        `${spectrum.metadata.source ?? 'scan'}: region ${formatWindow(region)} holds ${count} grid point(s), ` +
+          `needs at least 3`,
         { file: spectrum.metadata.source },
       );
     }
@@ -70,7 +71,8 @@ function assertCovers(spectrum: Spectrum, region: Window): void {
   if (region[0] < first || region[1] > last) {
     throw new BandwrightError(
       'WINDOW',
-      `${spectrum.metadata.source ?? 'scan'}: covers ${first}–${last} cm⁻¹, which does not contain the calibration's region ${formatWindow(region)}`,
+      `${spectrum.metadata.source ?? 'scan'}: covers ${first}–${last} cm⁻¹, which does not contain the ` +
+        `calibration's region ${formatWindow(region)}`,
       { file: spectrum.metadata.source },
     );
   }
@@ -103,7 +105,8 @@ export function onChannels(
   if (channels.length > 0 && (!(lowChannel >= (x[0] as number)) || !(highChannel <= (x[n - 1] as number)))) {
     throw new BandwrightError(
       'WINDOW',
-      `${spectrum.metadata.source ?? 'scan'}: covers ${x[0]}–${x[n - 1]} cm⁻¹, which does not contain the calibration's channels ${lowChannel}–${highChannel} cm⁻¹`,
+      `${spectrum.metadata.source ?? 'scan'}: covers ${x[0]}–${x[n - 1]} cm⁻¹, which does not contain the ` +
+        `calibration's channels ${lowChannel}–${highChannel} cm⁻¹`,
       { file: spectrum.metadata.source },
     );
   }
@@ -213,7 +216,8 @@ export function buildClsCalibration(
   });
   if (peak > method.saturationAbsorbance) {
     warnings.push(
-      `the standards reach absorbance ${peak.toFixed(2)} in the regions, above ${method.saturationAbsorbance}: lines saturate; consider second-order terms for the strong absorbers or a shorter path`,
+      `the standards reach absorbance ${peak.toFixed(2)} in the regions, above ${method.saturationAbsorbance}: ` +
+        `lines saturate; consider second-order terms for the strong absorbers or a shorter path`,
     );
   }
   const concentrations = standards.map((standard) =>
@@ -222,7 +226,8 @@ export function buildClsCalibration(
       if (certified === undefined) {
         throw new BandwrightError(
           'INVALID_VALUE',
-          `${standard.scan} (manifest line ${standard.line}): the manifest has no ${component.name} column, but the method models ${component.name}; give its concentration (0 when absent)`,
+          `${standard.scan} (manifest line ${standard.line}): the manifest has no ${component.name} column, ` +
+            `but the method models ${component.name}; give its concentration (0 when absent)`,
           { parameter: component.name },
         );
       }

@@ -18,7 +18,7 @@ import {
 } from '../gas/conditions.js';
 import { cautionsFor } from '../gas/safety.js';
 import { fromPpm, toPpm, type ConcentrationUnit } from '../gas/units.js';
-import { fitUnivariate } from '../models/univariate.js';
+import { fitUnivariate } from '../models/univariate/fit.js';
 import { toAbsorbance, type Spectrum } from '../spectrum/spectrum.js';
 import { TOOL } from '../version.js';
 import {
@@ -115,7 +115,9 @@ function zeroGasLimit(
   return {
     value: (3 * sd) / Math.abs(slope),
     scans: zeros.length,
-    definition: `3 × SD of the responses of ${zeros.length} zero-gas standards ÷ slope (noise-based limit from blanks; common practice)`,
+    definition:
+      `3 × SD of the responses of ${zeros.length} zero-gas standards ÷ slope (noise-based limit from ` +
+      `blanks; common practice)`,
   };
 }
 
@@ -172,7 +174,9 @@ export function buildBandCalibration(
       if (!Number.isFinite(scaled)) {
         throw new BandwrightError(
           'INVALID_VALUE',
-          `${where}: ${gasMethod.name} band ${gasMethod.band[0]}–${gasMethod.band[1]} cm⁻¹ gives ${gasMethod.response === 'area' ? 'an area' : 'a height'} of ${scaled}, must be finite: the absorbance values are too large to integrate`,
+          `${where}: ${gasMethod.name} band ${gasMethod.band[0]}–${gasMethod.band[1]} cm⁻¹ gives ` +
+            `${gasMethod.response === 'area' ? 'an area' : 'a height'} of ${scaled}, must be finite: the ` +
+            `absorbance values are too large to integrate`,
           { file: standard.scan, parameter: gasMethod.name },
         );
       }
@@ -181,7 +185,9 @@ export function buildBandCalibration(
       record.responses[gasMethod.name] = { raw, scaled, peakAbsorbance: features.peakAbsorbance };
       if (features.peakAbsorbance > method.saturationAbsorbance) {
         warnings.push(
-          `${where}: ${gasMethod.name} peak absorbance ${features.peakAbsorbance.toFixed(3)} is above ${method.saturationAbsorbance}: lines saturate, the response is not proportional to concentration (consider a shorter path or a second-order curve)`,
+          `${where}: ${gasMethod.name} peak absorbance ${features.peakAbsorbance.toFixed(3)} is above ` +
+            `${method.saturationAbsorbance}: lines saturate, the response is not proportional to concentration ` +
+            `(consider a shorter path or a second-order curve)`,
         );
       }
       concentration.push(value);

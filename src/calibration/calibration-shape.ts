@@ -6,7 +6,7 @@
  * (which would give a concentration of the wrong sign that looks like a result). Pure.
  */
 import { BandwrightError } from '../errors.js';
-import { predictCls, type ClsModel } from '../models/cls.js';
+import { predictCls, type ClsModel } from '../models/cls/spectral.js';
 
 type Json = unknown;
 
@@ -18,7 +18,7 @@ class ShapeChecker {
   constructor(readonly source: string) {}
 
   fail(path: string, value: Json, rule: string): never {
-    let shown = value === undefined ? 'missing' : (JSON.stringify(value) ?? String(value));
+    let shown = value === undefined ? 'missing' : (JSON.stringify(value) ?? typeof value);
     if (shown.length > 60) shown = `${shown.slice(0, 60)}…`;
     throw new BandwrightError(
       'SCHEMA',
@@ -111,8 +111,18 @@ function checkUnivariateModel(check: ShapeChecker, value: Json, path: string): v
       check.fail(`${path}.covariance[${i}]`, row, 'must hold 3 numbers');
   });
   check.finite(model.residualSD, `${path}.residualSD`, (n) => n >= 0, 'must be a number >= 0');
-  check.finite(model.df, `${path}.df`, (n) => Number.isInteger(n) && n >= 1, 'must be a whole number >= 1');
-  check.finite(model.n, `${path}.n`, (n) => Number.isInteger(n) && n >= 2, 'must be a whole number >= 2');
+  check.finite(
+    model.degreesOfFreedom,
+    `${path}.degreesOfFreedom`,
+    (n) => Number.isInteger(n) && n >= 1,
+    'must be a whole number >= 1',
+  );
+  check.finite(
+    model.standards,
+    `${path}.standards`,
+    (n) => Number.isInteger(n) && n >= 2,
+    'must be a whole number >= 2',
+  );
   check.finite(model.sumWeights, `${path}.sumWeights`, (n) => n > 0, 'must be a number > 0');
   check.finite(model.sxx, `${path}.sxx`, (n) => n >= 0, 'must be a number >= 0');
   check.finite(model.sumXSquared, `${path}.sumXSquared`, (n) => n >= 0, 'must be a number >= 0');
@@ -157,6 +167,56 @@ function checkGas(check: ShapeChecker, value: Json, path: string, needsBand: boo
     );
 }
 
+/**
+ * The parts of a CLS model its prediction operators are rebuilt from: one pure spectrum over the
+ * grid per term, and channel segments that cover the grid in order.
+ */
+function checkClsLayout(check: ShapeChecker, model: Record<string, Json>, channels: number): void {
+  const components = check.array(model.components, 'cls.model.components').length;
+  const terms = check.array(model.terms, 'cls.model.terms');
+  terms.forEach((raw, t) => {
+    const term = check.object(raw, `cls.model.terms[${t}]`);
+    check.finite(
+      term.component,
+      `cls.model.terms[${t}].component`,
+      (n) => Number.isInteger(n) && n >= 0 && n < components,
+      `must be the index of one of the ${components} components`,
+    );
+    check.finite(term.power, `cls.model.terms[${t}].power`, (n) => n === 1 || n === 2, 'must be 1 or 2');
+  });
+  const spectra = check.array(model.pureSpectra, 'cls.model.pureSpectra');
+  if (spectra.length !== terms.length)
+    check.fail('cls.model.pureSpectra', `${spectra.length} rows`, `must hold one per term (${terms.length})`);
+  spectra.forEach((row, t) => {
+    if (check.numbers(row, `cls.model.pureSpectra[${t}]`).length !== channels)
+      check.fail(`cls.model.pureSpectra[${t}]`, '[…]', `must hold one value per channel (${channels})`);
+  });
+  let next = 0;
+  check.array(model.segments, 'cls.model.segments').forEach((raw, i) => {
+    const path = `cls.model.segments[${i}]`;
+    const segment = check.object(raw, path);
+    check.finite(
+      segment.start,
+      `${path}.start`,
+      (n) => n === next,
+      `must be ${next}, where the previous ends`,
+    );
+    next = check.finite(
+      segment.end,
+      `${path}.end`,
+      (n) => Number.isInteger(n) && n > next && n <= channels,
+      `must be a channel index above start and at most ${channels}`,
+    );
+    check.finite(
+      segment.region,
+      `${path}.region`,
+      (n) => Number.isInteger(n) && n >= 0,
+      'must be a whole number >= 0',
+    );
+  });
+  if (next !== channels) check.fail('cls.model.segments', `${next} channels`, `must cover all ${channels}`);
+}
+
 function checkCls(check: ShapeChecker, value: Json): void {
   const cls = check.object(value, 'cls');
   const model = check.object(cls.model, 'cls.model');
@@ -179,6 +239,7 @@ function checkCls(check: ShapeChecker, value: Json): void {
     if (!regions.some((region) => channel >= region[0] && channel <= region[1]))
       check.fail(`cls.model.grid[${i}]`, channel, 'must lie inside one of cls.regions');
   });
+  checkClsLayout(check, model, grid.length);
   const limits = check.object(cls.detectionLimits, 'cls.detectionLimits');
   for (const [name, limit] of Object.entries(limits))
     check.finite(limit, `cls.detectionLimits.${name}`, (n) => n >= 0, 'must be a number >= 0');
@@ -191,7 +252,9 @@ function checkCls(check: ShapeChecker, value: Json): void {
       (e) => !Number.isFinite(e.value) || !(Number.isFinite(e.se) && e.se >= 0) || !(e.low <= e.high),
     );
     if (bad !== undefined)
-      problem = `a blank gives ${bad.name} = ${bad.value} ± ${bad.se} (${bad.low} to ${bad.high}), not a finite estimate with a standard error >= 0`;
+      problem =
+        `a blank gives ${bad.name} = ${bad.value} ± ${bad.se} (${bad.low} to ${bad.high}), not a ` +
+        `finite estimate with a standard error >= 0`;
   } catch (error) {
     problem = error instanceof Error ? error.message : String(error);
   }

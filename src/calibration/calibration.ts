@@ -7,15 +7,21 @@
 import { createHash } from 'node:crypto';
 import { BandwrightError } from '../errors.js';
 import { checkCalibrationShape } from './calibration-shape.js';
+import { upgradeLayout1 } from './layout-1.js';
 import type { CellConditions } from '../gas/conditions.js';
 import type { ConcentrationUnit } from '../gas/units.js';
-import type { ClsModel } from '../models/cls.js';
-import type { UnivariateModel } from '../models/univariate.js';
+import type { ClsModel } from '../models/cls/spectral.js';
+import type { CurveForm, UnivariateModel, WeightScheme } from '../models/univariate/model.js';
 import type { Window } from '../bands/windows.js';
-import type { CurveForm, Method, ResponseKind, WeightScheme } from './method.js';
+import type { Method, ResponseKind } from './method.js';
 
-/** Current calibration schema, `major.minor`. A newer major is refused; a newer minor is read. */
-export const SCHEMA_VERSION = '1.0';
+/**
+ * Current calibration schema, `major.minor`. A newer major is refused; a newer minor is read; an
+ * older major is read and converted to the current layout in memory (`layout-1.ts` says what
+ * changed in 2.0: models hold what was fitted, without derived prediction operators, and name
+ * degrees of freedom and standards as every model does).
+ */
+export const SCHEMA_VERSION = '2.0';
 
 /** An input file the calibration was built from. */
 export interface CalibrationInput {
@@ -91,7 +97,11 @@ export interface ClsCalibration {
 
 /** Everything in a calibration file except its own hash. */
 export interface CalibrationBody {
-  /** Schema version, `major.minor`. */
+  /**
+   * Schema version, `major.minor`, as written in the file. A calibration read from a file of an
+   * older schema keeps the version it was written with; its content is converted to the current
+   * layout when it is read.
+   */
   schemaVersion: string;
   /** Tool that built it. */
   tool: { name: string; version: string };
@@ -119,7 +129,10 @@ export interface CalibrationBody {
 
 /** A calibration with its own hash. */
 export interface Calibration extends CalibrationBody {
-  /** SHA-256 of the canonical JSON of the body, hex. */
+  /**
+   * SHA-256 of the canonical JSON of the body, hex, as recorded in the file (for a file of an older
+   * schema, the hash of its content as written, before conversion to the current layout).
+   */
   sha256: string;
 }
 
@@ -145,7 +158,8 @@ export function canonicalJson(value: unknown): string {
  * @returns hex SHA-256
  */
 export function calibrationHash(body: CalibrationBody | Calibration): string {
-  const { sha256: _ignored, ...rest } = body as Calibration;
+  const rest: Record<string, unknown> = { ...body };
+  delete rest.sha256;
   return createHash('sha256').update(canonicalJson(rest)).digest('hex');
 }
 
@@ -161,11 +175,12 @@ export function sealCalibration(body: CalibrationBody): Calibration {
 
 /**
  * Checks a parsed calibration: required fields, schema version, and that the recorded hash
- * matches the content.
+ * matches the content as written; converts a file of an older schema to the current layout; then
+ * checks the shape of every part quantification uses.
  *
  * @param value - parsed JSON
  * @param source - file name for messages
- * @returns the calibration, typed
+ * @returns the calibration, typed, in the current layout
  * @throws BandwrightError `SCHEMA` (missing fields, newer major schema, a field of the wrong type
  *   or out of range: see {@link checkCalibrationShape}), `INTEGRITY` (hash mismatch)
  */
@@ -221,12 +236,14 @@ export function verifyCalibration(value: unknown, source: string): Calibration {
   if (actual !== record.sha256) {
     throw new BandwrightError(
       'INTEGRITY',
-      `${source}: content does not match its recorded sha256 (recorded ${record.sha256}, content ${actual}): the file was changed after it was built; rebuild it rather than edit it`,
+      `${source}: content does not match its recorded sha256 (recorded ${record.sha256}, content ${actual}): ` +
+        `the file was changed after it was built; rebuild it rather than edit it`,
       { file: source, parameter: 'sha256' },
     );
   }
-  checkCalibrationShape(record, source);
-  return record as unknown as Calibration;
+  const current = major < ourMajor ? upgradeLayout1(record) : record;
+  checkCalibrationShape(current, source);
+  return current as unknown as Calibration;
 }
 
 /**

@@ -13,11 +13,13 @@ import { BandwrightError } from '../errors.js';
 import type { PartialConditions } from '../gas/conditions.js';
 import { requireInfraredSpecies } from '../gas/species.js';
 import { parseConcentrationUnit, type ConcentrationUnit } from '../gas/units.js';
+import {
+  CURVE_FORMS,
+  WEIGHT_SCHEMES,
+  type CurveForm,
+  type WeightScheme,
+} from '../models/univariate/model.js';
 
-/** Curve forms for univariate calibrations. */
-export type CurveForm = 'linear' | 'origin' | 'quadratic';
-/** Weighting schemes for univariate calibrations. */
-export type WeightScheme = 'none' | '1/x' | '1/x2' | 'replicates';
 /** Which band feature is the response. */
 export type ResponseKind = 'area' | 'height';
 
@@ -318,13 +320,8 @@ export function parseMethod(value: Json, source: string): Method {
         baseline,
         baselineOrder: check.integer(gas.baselineOrder, `${path}.baselineOrder`, 0, 3, 1),
         response: check.choice(gas.response, `${path}.response`, ['area', 'height'] as const, 'area'),
-        curve: check.choice(gas.model, `${path}.model`, ['linear', 'origin', 'quadratic'] as const, 'linear'),
-        weights: check.choice(
-          gas.weights,
-          `${path}.weights`,
-          ['none', '1/x', '1/x2', 'replicates'] as const,
-          'none',
-        ),
+        curve: check.choice(gas.model, `${path}.model`, CURVE_FORMS, 'linear'),
+        weights: check.choice(gas.weights, `${path}.weights`, WEIGHT_SCHEMES, 'none'),
       };
     });
     return { model: 'band', gases, ...common };
@@ -360,7 +357,8 @@ export function parseMethod(value: Json, source: string): Method {
       if (windowsOverlap(region, regions[j] as Window)) {
         throw new BandwrightError(
           'WINDOW',
-          `${source}: regions[${j}] = ${formatWindow(regions[j] as Window)} and regions[${i}] = ${formatWindow(region)} overlap; merge them or separate them`,
+          `${source}: regions[${j}] = ${formatWindow(regions[j] as Window)} and regions[${i}] = ` +
+            `${formatWindow(region)} overlap; merge them or separate them`,
           { file: source, parameter: 'regions' },
         );
       }
@@ -414,13 +412,8 @@ export function parseResponseMethod(value: Json, source: string): ResponseMethod
       {
         name: check.gasName(root.name, 'gas'),
         unit: check.unit(root.unit, 'unit'),
-        curve: check.choice(root.model, 'model', ['linear', 'origin', 'quadratic'] as const, 'linear'),
-        weights: check.choice(
-          root.weights,
-          'weights',
-          ['none', '1/x', '1/x2', 'replicates'] as const,
-          'none',
-        ),
+        curve: check.choice(root.model, 'model', CURVE_FORMS, 'linear'),
+        weights: check.choice(root.weights, 'weights', WEIGHT_SCHEMES, 'none'),
       },
     ],
     ...parseCommon(check, root),

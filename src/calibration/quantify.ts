@@ -18,8 +18,8 @@ import {
 } from '../gas/conditions.js';
 import { cautionsFor } from '../gas/safety.js';
 import { toPpm, unitLabel, type ConcentrationUnit } from '../gas/units.js';
-import { predictCls } from '../models/cls.js';
-import { predictConcentration } from '../models/univariate.js';
+import { predictCls } from '../models/cls/spectral.js';
+import { predictUnivariate } from '../models/univariate/predict.js';
 import { toAbsorbance, type Spectrum } from '../spectrum/spectrum.js';
 import { onChannels } from './build-cls.js';
 import type { Calibration, GasCalibration } from './calibration.js';
@@ -60,7 +60,7 @@ function checkLevel(level: number): number {
  * @param level - interval level
  */
 function estimate(gas: GasCalibration, responses: readonly number[], level: number): GasResult {
-  const prediction = predictConcentration(gas.model, responses, { level });
+  const prediction = predictUnivariate(gas.model, responses, { level });
   const flags: ResultFlag[] = [];
   const notes: string[] = [];
   // The standard interval is always bounded; only Fieller's can be unbounded (null ends).
@@ -80,7 +80,8 @@ function estimate(gas: GasCalibration, responses: readonly number[], level: numb
     if (prediction.value < detection.value) {
       flags.push('below-lod');
       notes.push(
-        `below the detection limit ${detection.value.toPrecision(3)} ${gas.unit} (${detection.definition}): report as "< LOD"`,
+        `below the detection limit ${detection.value.toPrecision(3)} ${gas.unit} (${detection.definition}): ` +
+          `report as "< LOD"`,
       );
     }
   }
@@ -89,7 +90,8 @@ function estimate(gas: GasCalibration, responses: readonly number[], level: numb
     if (!flags.includes('below-lod') && prediction.value < determination.value) {
       flags.push('below-loq');
       notes.push(
-        `below the determination limit ${determination.value.toPrecision(3)} ${gas.unit}: detected, but not quantified to the stated precision`,
+        `below the determination limit ${determination.value.toPrecision(3)} ${gas.unit}: detected, but not ` +
+          `quantified to the stated precision`,
       );
     }
   }
@@ -145,7 +147,9 @@ export function quantifyBandScan(
     if (!Number.isFinite(raw / phi)) {
       throw new BandwrightError(
         'INVALID_VALUE',
-        `${scan}: ${gas.gas} band ${feature.band[0]}–${feature.band[1]} cm⁻¹ gives ${feature.response === 'area' ? 'an area' : 'a height'} of ${raw / phi}, must be finite: the absorbance values are too large to integrate`,
+        `${scan}: ${gas.gas} band ${feature.band[0]}–${feature.band[1]} cm⁻¹ gives ` +
+          `${feature.response === 'area' ? 'an area' : 'a height'} of ${raw / phi}, must be finite: the ` +
+          `absorbance values are too large to integrate`,
         { file: scan, parameter: gas.gas },
       );
     }
@@ -153,7 +157,8 @@ export function quantifyBandScan(
     if (measured.peakAbsorbance > calibration.method.saturationAbsorbance) {
       result.flags.push('saturated');
       result.notes.push(
-        `peak absorbance ${measured.peakAbsorbance.toFixed(3)} in the band is above ${calibration.method.saturationAbsorbance}: lines saturate, the result may be biased low`,
+        `peak absorbance ${measured.peakAbsorbance.toFixed(3)} in the band is above ` +
+          `${calibration.method.saturationAbsorbance}: lines saturate, the result may be biased low`,
       );
     }
     if (far.length > 0) {
@@ -218,7 +223,8 @@ export function quantifyClsScan(
   if (calibration.method.model !== 'cls' || cls === undefined) {
     throw new BandwrightError(
       'INVALID_VALUE',
-      `the calibration is a ${calibration.method.model} calibration; quantifyClsScan needs a classical-least-squares calibration`,
+      `the calibration is a ${calibration.method.model} calibration; quantifyClsScan needs a ` +
+        `classical-least-squares calibration`,
     );
   }
   const level = checkLevel(options.level ?? 0.95);
@@ -250,7 +256,8 @@ export function quantifyClsScan(
   };
   const poorFitCause =
     outside.length > 0
-      ? `${listWords(outside.map((e) => e.name))} outside the standards' range (the model was not fitted there), or an absorber the method does not model`
+      ? `${listWords(outside.map((e) => e.name))} outside the standards' range (the model was not fitted ` +
+        `there), or an absorber the method does not model`
       : 'an absorber the method does not model may be present, or the instrument is not as it was at calibration';
   const gases = prediction.estimates.map((estimate): GasResult => {
     const flags: ResultFlag[] = [...estimate.flags];
@@ -282,13 +289,15 @@ export function quantifyClsScan(
     if (prediction.flags.includes('poor-fit')) {
       flags.push('poor-fit');
       notes.push(
-        `the fit leaves a residual ${prediction.fitRatio.toFixed(2)}× the calibration's (limit ${prediction.fitRatioLimit.toFixed(2)}): ${poorFitCause}`,
+        `the fit leaves a residual ${prediction.fitRatio.toFixed(2)}× the calibration's (limit ` +
+          `${prediction.fitRatioLimit.toFixed(2)}): ${poorFitCause}`,
       );
     }
     if (peak > calibration.method.saturationAbsorbance) {
       flags.push('saturated');
       notes.push(
-        `peak absorbance ${peak.toFixed(3)} in the regions is above ${calibration.method.saturationAbsorbance}: lines saturate`,
+        `peak absorbance ${peak.toFixed(3)} in the regions is above ` +
+          `${calibration.method.saturationAbsorbance}: lines saturate`,
       );
     }
     if (far.length > 0) {
@@ -304,7 +313,9 @@ export function quantifyClsScan(
     const label = unitLabel(interferent.unit as ConcentrationUnit);
     warnings.push(
       outside.includes(interferent)
-        ? `interferent ${interferent.name} modelled at ${interferent.value.toPrecision(4)} ${label} (not reported), outside the standards' ${rangeOf(interferent.name)} at this scan's conditions: the reported gases may be biased`
+        ? `interferent ${interferent.name} modelled at ${interferent.value.toPrecision(4)} ${label} (not ` +
+            `reported), outside the standards' ${rangeOf(interferent.name)} at this scan's conditions: the ` +
+            `reported gases may be biased`
         : `interferent ${interferent.name} modelled at ${interferent.value.toPrecision(4)} ${label} (not reported)`,
     );
   }

@@ -117,13 +117,15 @@ export function decorateGases(
   let waterNote =
     waterFraction === undefined
       ? ''
-      : `water vapour ${(waterFraction * 100).toFixed(2)} % ${options.dryBasis?.measuredInScan ? 'measured in the same scan' : 'as given'}`;
+      : `water vapour ${(waterFraction * 100).toFixed(2)} % ` +
+        `${options.dryBasis?.measuredInScan ? 'measured in the same scan' : 'as given'}`;
   if (options.dryBasis !== undefined && waterFraction === undefined) {
     const water = gases.find((g) => g.gas === 'H2O');
     if (water === undefined) {
       throw new BandwrightError(
         'CONVERSION',
-        'dry basis asked for, but the calibration does not measure H2O in the scan; give the water vapour fraction (--h2o <%>)',
+        'dry basis asked for, but the calibration does not measure H2O in the scan; give the water vapour ' +
+          'fraction (--h2o <%>)',
         { parameter: '--dry' },
       );
     }
@@ -176,7 +178,10 @@ export function decorateGases(
         kind: 'O2-corrected',
         ...ppm,
         unit: 'ppm',
-        assumption: `corrected to ${oxygen.reference_pct} % O2: c × (${air} − ${oxygen.reference_pct}) / (${air} − ${oxygen.measured_pct}), O2 measured ${oxygen.measured_pct} %, O2 of air ${air} %${waterFraction !== undefined ? ', on the dry basis above' : ''}`,
+        assumption:
+          `corrected to ${oxygen.reference_pct} % O2: c × (${air} − ${oxygen.reference_pct}) / ` +
+          `(${air} − ${oxygen.measured_pct}), O2 measured ${oxygen.measured_pct} %, O2 of air ${air} ` +
+          `%${waterFraction !== undefined ? ', on the dry basis above' : ''}`,
       });
     }
     if (options.massConcentration !== undefined) {
@@ -188,7 +193,10 @@ export function decorateGases(
           kind: 'mg/m3',
           ...mass,
           unit: 'mg/m3',
-          assumption: `mass concentration at ${state.temperature_K} K and ${state.pressure_kPa} kPa (ideal gas, M = ${species.molarMass_g_mol.toFixed(3)} g/mol)${conversions.length > 0 ? `, of the ${conversions.map((c) => c.kind).join(' and ')} value` : ''}`,
+          assumption:
+            `mass concentration at ${state.temperature_K} K and ${state.pressure_kPa} kPa (ideal ` +
+            `gas, M = ${species.molarMass_g_mol.toFixed(3)} ` +
+            `g/mol)${conversions.length > 0 ? `, of the ${conversions.map((c) => c.kind).join(' and ')} value` : ''}`,
         });
       }
     }

@@ -172,7 +172,7 @@ export function fitDriftTrend(points: readonly TrendPoint[], options: TrendOptio
   const a = fit.coefficients[0] as number;
   const b = fit.coefficients[1] as number;
   const s = fit.residualSD;
-  const df = fit.df;
+  const df = fit.degreesOfFreedom;
   const seSlope = s / Math.sqrt(sxx);
   const tStatistic =
     seSlope > 0 ? b / seSlope : b === 0 ? 0 : b > 0 ? Number.POSITIVE_INFINITY : Number.NEGATIVE_INFINITY;

@@ -24,7 +24,7 @@ function gasSummary(gas: GasCalibration): string[] {
       : `${feature.response === 'area' ? 'band area' : 'peak height'} over ${formatWindow(feature.band)}${feature.baseline.length > 0 ? `, baseline order ${feature.baselineOrder} through ${feature.baseline.map(formatWindow).join(', ')}` : ', no baseline correction'}`;
   lines.push(`${gas.gas}: ${where}`);
   lines.push(
-    `  curve: ${CURVE_WORDS[model.form]}, ${model.weights === 'none' ? 'unweighted' : `weighted ${model.weights}`}; ${model.n} standards at ${model.levels.length} levels, ${formatNumber(model.range[0])}–${formatNumber(model.range[1])} ${unit}`,
+    `  curve: ${CURVE_WORDS[model.form]}, ${model.weights === 'none' ? 'unweighted' : `weighted ${model.weights}`}; ${model.standards} standards at ${model.levels.length} levels, ${formatNumber(model.range[0])}–${formatNumber(model.range[1])} ${unit}`,
   );
   const coefficient = (name: 'a' | 'b' | 'c', label: string): string =>
     `${label} = ${formatNumber(model.coefficients[name], 6)} ± ${formatNumber(model.standardErrors[name], 2)}`;
@@ -32,7 +32,7 @@ function gasSummary(gas: GasCalibration): string[] {
     `  coefficients: ${model.parameters.map((p) => coefficient(p, p === 'c' ? 'c2' : p)).join(', ')}`,
   );
   lines.push(
-    `  residual SD ${formatNumber(model.residualSD, 4)} (df ${model.df}), R² ${model.rSquared.toFixed(6)} (${model.rSquaredKind}), condition number ${formatNumber(model.conditionNumber, 3)}`,
+    `  residual SD ${formatNumber(model.residualSD, 4)} (df ${model.degreesOfFreedom}), R² ${model.rSquared.toFixed(6)} (${model.rSquaredKind}), condition number ${formatNumber(model.conditionNumber, 3)}`,
   );
   if (model.mandel !== null) lines.push(`  linearity (Mandel test): ${model.mandel.recommendation}`);
   const limit = (name: string, value: number | null): string =>

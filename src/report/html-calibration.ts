@@ -44,14 +44,14 @@ export function statisticsTable(gas: GasCalibration): string {
     caption: `${gas.gas}: fit statistics`,
     header: ['statistic', numberCell('value')],
     rows: [
-      ['standards (n)', numberCell(String(model.n))],
+      ['standards (n)', numberCell(String(model.standards))],
       ['concentration levels', numberCell(String(model.levels.length))],
       [
         'calibrated range',
         numberCell(`${formatNumber(model.range[0])} – ${formatNumber(model.range[1])} ${unit}`),
       ],
       ['residual SD s', numberCell(formatNumber(model.residualSD, 4))],
-      ['degrees of freedom', numberCell(String(model.df))],
+      ['degrees of freedom', numberCell(String(model.degreesOfFreedom))],
       [`R² (${model.rSquaredKind})`, numberCell(model.rSquared.toFixed(6))],
       ['condition number (scaled design)', numberCell(formatNumber(model.conditionNumber, 3))],
       ['weighting', model.weighting.rule],
@@ -77,7 +77,7 @@ export function linearityText(gas: GasCalibration): string {
         ['DS² = (n−2)s²(linear) − (n−3)s²(second order)', numberCell(formatNumber(mandel.ds2, 4))],
         ['test value PW = DS²/s²(second order)', numberCell(formatNumber(mandel.testValue, 4))],
         [
-          `F(${mandel.confidence}; ${mandel.df[0]}, ${mandel.df[1]})`,
+          `F(${mandel.confidence}; ${mandel.degreesOfFreedom[0]}, ${mandel.degreesOfFreedom[1]})`,
           numberCell(formatNumber(mandel.fCritical, 4)),
         ],
         ['p value', numberCell(formatNumber(mandel.pValue, 3))],

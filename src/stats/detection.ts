@@ -49,7 +49,7 @@ export interface CalibrationLimits {
   /** Replicate measurements m of each sample the limits assume. */
   replicates: number;
   /** Degrees of freedom of the t quantiles. */
-  df: number;
+  degreesOfFreedom: number;
 }
 
 /** Straight-line limits add the method SD of DIN 32645. */
@@ -138,7 +138,10 @@ export interface StraightLineInput {
  * @throws BandwrightError `INVALID_VALUE` for n < 3, zero slope, non-positive s_y or Sxx, or options out of range
  * @example
  * // DIN 32645 worked example: x_C = 0.0698 at α = 0.01
- * straightLineLimits({ n: 10, slope: 9661.939, residualSD: 192.294, meanX: 0.275, sxx: 0.20625 }, { alpha: 0.01 }).decision.value;
+ * straightLineLimits(
+ *   { n: 10, slope: 9661.939, residualSD: 192.294, meanX: 0.275, sxx: 0.20625 },
+ *   { alpha: 0.01 },
+ * ).decision.value;
  */
 export function straightLineLimits(input: StraightLineInput, options: LimitOptions = {}): StraightLineLimits {
   const { alpha, beta, k, replicates } = resolve(options);
@@ -179,18 +182,23 @@ export function straightLineLimits(input: StraightLineInput, options: LimitOptio
   return {
     decision: {
       value: decision,
-      definition: `decision limit, DIN 32645 / ISO 11843-2 calibration method: x_C = s_x0·t(1−α, f)·√(1/m + 1/n + x̄²/Sxx), ${common}`,
+      definition:
+        `decision limit, DIN 32645 / ISO 11843-2 calibration method: x_C = s_x0·t(1−α, f)·√(1/m + ` +
+        `1/n + x̄²/Sxx), ${common}`,
     },
     detection: {
       value: detection,
-      definition: `detection limit, DIN 32645 calibration method: x_D = s_x0·(t(1−α, f) + t(1−β, f))·√(1/m + 1/n + x̄²/Sxx), ${common}, β = ${beta}${alpha === beta ? ' (α = β, so x_D = 2·x_C exactly)' : ''}`,
+      definition:
+        `detection limit, DIN 32645 calibration method: x_D = s_x0·(t(1−α, f) + t(1−β, f))·√(1/m + ` +
+        `1/n + x̄²/Sxx), ${common}, β = ${beta}${alpha === beta ? ' (α = β, so x_D = 2·x_C exactly)' : ''}`,
     },
     determination: {
       value: determination,
       definition:
         determination === null
           ? `determination limit, DIN 32645: the iteration for x_Q did not converge (k = ${k}, ${common})`
-          : `determination limit, DIN 32645 calibration method: x_Q = k·s_x0·t(1−α/2, f)·√(1/m + 1/n + (x_Q − x̄)²/Sxx), solved iteratively, k = ${k}, ${common}`,
+          : `determination limit, DIN 32645 calibration method: x_Q = k·s_x0·t(1−α/2, f)·√(1/m + 1/n + (x_Q − ` +
+            `x̄)²/Sxx), solved iteratively, k = ${k}, ${common}`,
     },
     ichDetection: {
       value: (3.3 * residualSD) / Math.abs(slope),
@@ -204,7 +212,7 @@ export function straightLineLimits(input: StraightLineInput, options: LimitOptio
     beta,
     k,
     replicates,
-    df,
+    degreesOfFreedom: df,
     methodSD,
     relativeMethodSD: methodSD / meanX,
   };
@@ -216,8 +224,11 @@ export function straightLineLimits(input: StraightLineInput, options: LimitOptio
  */
 export interface CurveForLimits {
   /** Residual degrees of freedom of the fit. */
-  df: number;
-  /** Residual SD s of the fit (for weighted fits, in weighted units: the variance of a new observation at x is s²/w(x)). */
+  degreesOfFreedom: number;
+  /**
+   * Residual SD s of the fit (for weighted fits, in weighted units: the variance of a new
+   * observation at x is s²/w(x)).
+   */
   residualSD: number;
   /** Local slope dŷ/dx at concentration x. */
   slopeAt: (x: number) => number;
@@ -225,7 +236,10 @@ export interface CurveForLimits {
   fittedVarianceAt: (x: number) => number;
   /** Weight w(x) of a new observation at x (1 for unweighted fits). */
   weightAt: (x: number) => number;
-  /** The curve and any approximation, in words, appended to every definition (e.g. "second-order curve, linearised at zero concentration"). */
+  /**
+   * The curve and any approximation, in words, appended to every definition (e.g. "second-order
+   * curve, linearised at zero concentration").
+   */
   description: string;
 }
 
@@ -240,14 +254,17 @@ export interface CurveForLimits {
  *
  * @param curve - the fit's degrees of freedom, residual SD, slope, fitted variance and weight functions
  * @param options - α (default 0.05), β (default α), k (default 3), replicates m (default 1)
- * @returns the limits with definitions; a limit is null (and says why) when the slope at zero is 0 or the iteration does not converge
- * @throws BandwrightError `INVALID_VALUE` for df < 1, non-positive residual SD, or options out of range
+ * @returns the limits with definitions; a limit is null (and says why) when the slope at zero is 0
+ *   or the iteration does not converge
+ * @throws BandwrightError `INVALID_VALUE` for degrees of freedom < 1, non-positive residual SD, or options out of range
  */
 export function curveLimits(curve: CurveForLimits, options: LimitOptions = {}): CalibrationLimits {
   const { alpha, beta, k, replicates } = resolve(options);
-  const { df, residualSD } = curve;
+  const { degreesOfFreedom: df, residualSD } = curve;
   if (!(Number.isFinite(df) && df >= 1))
-    throw new BandwrightError('INVALID_VALUE', `df = ${df}, must be >= 1`, { parameter: 'df' });
+    throw new BandwrightError('INVALID_VALUE', `degreesOfFreedom = ${df}, must be >= 1`, {
+      parameter: 'degreesOfFreedom',
+    });
   if (!(Number.isFinite(residualSD) && residualSD > 0))
     throw new BandwrightError('INVALID_VALUE', `residualSD = ${residualSD}, must be a finite number > 0`, {
       parameter: 'residualSD',
@@ -279,13 +296,16 @@ export function curveLimits(curve: CurveForLimits, options: LimitOptions = {}): 
     decision: {
       value: decision,
       definition: why(
-        `decision limit, DIN 32645 calibration method by the delta method: x_C = t(1−α, df)·√(s²/(m·w(0)) + Var ŷ(0))/|ŷ′(0)|, ${common}`,
+        `decision limit, DIN 32645 calibration method by the delta method: x_C = t(1−α, df)·√(s²/(m·w(0)) + ` +
+          `Var ŷ(0))/|ŷ′(0)|, ${common}`,
       ),
     },
     detection: {
       value: detection,
       definition: why(
-        `detection limit, DIN 32645 calibration method by the delta method: x_D = (t(1−α, df) + t(1−β, df))·√(s²/(m·w(0)) + Var ŷ(0))/|ŷ′(0)|, β = ${beta}${alpha === beta ? ' (α = β, so x_D = 2·x_C)' : ''}, ${common}`,
+        `detection limit, DIN 32645 calibration method by the delta method: x_D = (t(1−α, df) + t(1−β, ` +
+          `df))·√(s²/(m·w(0)) + Var ŷ(0))/|ŷ′(0)|, β = ` +
+          `${beta}${alpha === beta ? ' (α = β, so x_D = 2·x_C)' : ''}, ${common}`,
       ),
     },
     determination: {
@@ -294,25 +314,28 @@ export function curveLimits(curve: CurveForLimits, options: LimitOptions = {}): 
         determination === null && noSlope === null
           ? `determination limit: the iteration for x_Q did not converge (k = ${k}, ${common})`
           : why(
-              `determination limit, DIN 32645 calibration method by the delta method: x_Q = k·t(1−α/2, df)·√(s²/(m·w(x_Q)) + Var ŷ(x_Q))/|ŷ′(x_Q)|, solved iteratively, k = ${k}, ${common}`,
+              `determination limit, DIN 32645 calibration method by the delta method: x_Q = k·t(1−α/2, ` +
+                `df)·√(s²/(m·w(x_Q)) + Var ŷ(x_Q))/|ŷ′(x_Q)|, solved iteratively, k = ${k}, ${common}`,
             ),
     },
     ichDetection: {
       value: noSlope === null ? (3.3 * sigmaBlank) / slopeAtZero : null,
       definition: why(
-        `detection limit, ICH Q2: 3.3·σ/|ŷ′(0)| with σ = s/√w(0) the residual SD at zero concentration; ${curve.description}`,
+        `detection limit, ICH Q2: 3.3·σ/|ŷ′(0)| with σ = s/√w(0) the residual SD at zero concentration; ` +
+          `${curve.description}`,
       ),
     },
     ichQuantitation: {
       value: noSlope === null ? (10 * sigmaBlank) / slopeAtZero : null,
       definition: why(
-        `quantitation limit, ICH Q2: 10·σ/|ŷ′(0)| with σ = s/√w(0) the residual SD at zero concentration; ${curve.description}`,
+        `quantitation limit, ICH Q2: 10·σ/|ŷ′(0)| with σ = s/√w(0) the residual SD at zero concentration; ` +
+          `${curve.description}`,
       ),
     },
     alpha,
     beta,
     k,
     replicates,
-    df,
+    degreesOfFreedom: df,
   };
 }

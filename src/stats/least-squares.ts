@@ -20,6 +20,7 @@
  */
 import { AbstractMatrix, Matrix, QrDecomposition, SingularValueDecomposition } from 'ml-matrix';
 import { BandwrightError } from '../errors.js';
+import { dot, invertUpperTriangular, multiply, transpose } from './linear-algebra.js';
 
 /** A design matrix: rows are observations, columns are regressors. */
 export type Design = readonly (readonly number[])[] | AbstractMatrix;
@@ -58,7 +59,7 @@ export interface LeastSquaresFit {
   /** Residual standard deviation s = √(RSS/df) (NaN when df = 0); for weighted fits, in units of y·√w. */
   residualSD: number;
   /** Residual degrees of freedom, n − p. */
-  df: number;
+  degreesOfFreedom: number;
   /** Residual sum of squares, Σ wᵢ rᵢ². */
   rss: number;
   /** Coefficient of determination; see {@link LeastSquaresFit.rSquaredKind}. */
@@ -86,7 +87,7 @@ export interface LeastSquaresManyFit {
   /** (XᵀX)⁻¹ of the design, p × p, shared by every response column. */
   unscaledCovariance: number[][];
   /** Residual degrees of freedom, n − p. */
-  df: number;
+  degreesOfFreedom: number;
   /** Condition number of the column-scaled design. */
   conditionNumber: number;
   /** Numerical rank of the design. */
@@ -125,22 +126,6 @@ function listNames(names: readonly string[]): string {
   return `${names.slice(0, -1).join(', ')} and ${names[names.length - 1] as string}`;
 }
 
-/** Upper-triangular inverse by back-substitution. */
-function invertUpperTriangular(r: Matrix): number[][] {
-  const p = r.rows;
-  const inverse: number[][] = Array.from({ length: p }, () => new Array<number>(p).fill(0));
-  for (let j = p - 1; j >= 0; j--) {
-    const rowJ = inverse[j] as number[];
-    rowJ[j] = 1 / r.get(j, j);
-    for (let i = j - 1; i >= 0; i--) {
-      let sum = 0;
-      for (let k = i + 1; k <= j; k++) sum += r.get(i, k) * (inverse[k] as number[])[j]!;
-      (inverse[i] as number[])[j] = -sum / r.get(i, i);
-    }
-  }
-  return inverse;
-}
-
 function prepare(design: Design, n: number, options: LeastSquaresOptions): PreparedDesign {
   const rows = toRows(design);
   if (rows.length !== n) {
@@ -166,7 +151,8 @@ function prepare(design: Design, n: number, options: LeastSquaresOptions): Prepa
   if (n < columns) {
     throw new BandwrightError(
       'INSUFFICIENT_DATA',
-      `design has ${n} observations for ${columns} coefficients (${listNames(names)}): least squares needs at least as many observations as coefficients`,
+      `design has ${n} observations for ${columns} coefficients (${listNames(names)}): least squares needs at ` +
+        `least as many observations as coefficients`,
       { parameter: 'design' },
     );
   }
@@ -274,30 +260,22 @@ function prepare(design: Design, n: number, options: LeastSquaresOptions): Prepa
         : `condition number ${formatCondition(conditionNumber)} exceeds the limit ${formatCondition(limit)}`;
     throw new BandwrightError(
       'SINGULAR',
-      `design columns ${listNames(involved.map((j) => names[j] as string))} are collinear (${detail}): their effects cannot be separated; drop one of them or add observations that vary them independently`,
+      `design columns ${listNames(involved.map((j) => names[j] as string))} are collinear (${detail}): their ` +
+        `effects cannot be separated; drop one of them or add observations that vary them independently`,
       { parameter: 'design' },
     );
   }
   const qr = new QrDecomposition(scaled);
-  const rInverse = invertUpperTriangular(qr.upperTriangularMatrix);
+  const rInverse = invertUpperTriangular(qr.upperTriangularMatrix.to2DArray());
   return { rows: n, columns, weighted, norms, rootWeights, names, qr, rInverse, conditionNumber, rank };
 }
 
+/** (XᵀX)⁻¹ = D⁻¹ R⁻¹ R⁻ᵀ D⁻¹ of the column-scaled design, D the column norms. */
 function unscaledCovarianceOf(prepared: PreparedDesign): number[][] {
-  const { columns, rInverse, norms } = prepared;
-  const out: number[][] = [];
-  for (let i = 0; i < columns; i++) {
-    const row = new Array<number>(columns).fill(0);
-    for (let j = 0; j < columns; j++) {
-      let sum = 0;
-      // (R⁻¹ R⁻ᵀ)_ij = Σ_k R⁻¹_ik R⁻¹_jk, R⁻¹ upper triangular so k ≥ max(i, j).
-      for (let k = Math.max(i, j); k < columns; k++)
-        sum += (rInverse[i] as number[])[k]! * (rInverse[j] as number[])[k]!;
-      row[j] = sum / (norms[i]! * norms[j]!);
-    }
-    out.push(row);
-  }
-  return out;
+  const { rInverse, norms } = prepared;
+  return multiply(rInverse, transpose(rInverse)).map((row, i) =>
+    row.map((value, j) => value / (norms[i]! * norms[j]!)),
+  );
 }
 
 function checkResponse(y: ArrayLike<number>, label: string): number[] {
@@ -340,7 +318,7 @@ export function leastSquares(
   const coefficients = Array.from({ length: columns }, (_, j) => scaledSolution.get(j, 0) / norms[j]!);
 
   const rows = toRows(design);
-  const fitted = rows.map((row) => row.reduce((sum, value, j) => sum + value * coefficients[j]!, 0));
+  const fitted = rows.map((row) => dot(row, coefficients));
   const residuals = response.map((value, i) => value - fitted[i]!);
   const weights = rootWeights.map((rw) => rw * rw);
   const rss = residuals.reduce((sum, r, i) => sum + weights[i]! * r * r, 0);
@@ -351,7 +329,7 @@ export function leastSquares(
   const standardErrors = covariance.map((row, j) => Math.sqrt(row[j]!));
 
   const interceptColumn = findInterceptColumn(rows, columns);
-  let total = 0;
+  let total: number;
   if (interceptColumn >= 0) {
     const weightSum = weights.reduce((a, b) => a + b, 0);
     const mean = response.reduce((sum, value, i) => sum + weights[i]! * value, 0) / weightSum;
@@ -369,7 +347,7 @@ export function leastSquares(
     residuals,
     fitted,
     residualSD: Math.sqrt(variance),
-    df,
+    degreesOfFreedom: df,
     rss,
     rSquared,
     rSquaredKind: interceptColumn >= 0 ? 'centred' : 'uncentred',
@@ -400,7 +378,8 @@ function findInterceptColumn(rows: readonly (readonly number[])[], columns: numb
  * @param design - n × p design matrix (rows = observations); not modified
  * @param responses - n × k response matrix (rows = observations, columns = responses); not modified
  * @param options - column names for messages and the condition-number limit
- * @returns coefficients (p × k), residual sum of squares per response column, (XᵀX)⁻¹, df, condition number, rank
+ * @returns coefficients (p × k), residual sum of squares per response column, (XᵀX)⁻¹, degrees of
+ *   freedom, condition number, rank
  * @throws BandwrightError as {@link leastSquares}; `INVALID_VALUE` for a ragged or non-finite response matrix
  * @example
  * const { coefficients } = solveLeastSquaresMany([[1], [2]], [[2, 3], [4, 6]]);
@@ -464,7 +443,7 @@ export function solveLeastSquaresMany(
     coefficients,
     residualSumOfSquares,
     unscaledCovariance: unscaledCovarianceOf(prepared),
-    df: n - columns,
+    degreesOfFreedom: n - columns,
     conditionNumber: prepared.conditionNumber,
     rank: prepared.rank,
   };

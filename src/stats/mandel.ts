@@ -15,22 +15,31 @@ export interface MandelInput {
   n: number;
   /** Residual variance s²_lin of the straight line y = a + b·x (n − 2 degrees of freedom), response units². */
   linearResidualVariance: number;
-  /** Residual variance s²_quad of the second-order fit y = a + b·x + c·x² (n − 3 degrees of freedom), response units². */
+  /**
+   * Residual variance s²_quad of the second-order fit y = a + b·x + c·x² (n − 3 degrees of
+   * freedom), response units².
+   */
   quadraticResidualVariance: number;
 }
 
 /** Outcome of {@link mandelTest}; plain JSON-safe numbers and strings. */
 export interface MandelResult {
-  /** DS² = (n−2)s²_lin − (n−3)s²_quad, response units². Rounding can make it slightly negative; it is then taken as 0. */
+  /**
+   * DS² = (n−2)s²_lin − (n−3)s²_quad, response units². Rounding can make it slightly negative; it
+   * is then taken as 0.
+   */
   ds2: number;
-  /** PW = DS²/s²_quad. An infinite PW (s²_quad = 0 with DS² > 0, which only noise-free data give) is stored as Number.MAX_VALUE so the result stays JSON-safe. */
+  /**
+   * PW = DS²/s²_quad. An infinite PW (s²_quad = 0 with DS² > 0, which only noise-free data give)
+   * is stored as Number.MAX_VALUE so the result stays JSON-safe.
+   */
   testValue: number;
   /** F(confidence; 1, n − 3). */
   fCritical: number;
   /** Confidence level of the critical value (default 0.99). */
   confidence: number;
   /** Degrees of freedom of the F distribution, [1, n − 3]. */
-  df: [number, number];
+  degreesOfFreedom: [number, number];
   /** P(F(1, n−3) ≥ PW): small means the second-order term is real. */
   pValue: number;
   /** True when PW > F critical: the second-order curve fits significantly better. */
@@ -71,7 +80,8 @@ export function mandelTest(input: MandelInput, options: { confidence?: number } 
   if (!Number.isInteger(n) || n < 4) {
     throw new BandwrightError(
       'INSUFFICIENT_DATA',
-      `Mandel test: n = ${n} standards, needs at least 4 (the second-order fit must keep one residual degree of freedom)`,
+      `Mandel test: n = ${n} standards, needs at least 4 (the second-order fit must keep one residual degree ` +
+        `of freedom)`,
       { parameter: 'n' },
     );
   }
@@ -94,7 +104,9 @@ export function mandelTest(input: MandelInput, options: { confidence?: number } 
   else testValue = ds2 > 0 ? Number.POSITIVE_INFINITY : 0;
   const pValue = Number.isFinite(testValue) ? 1 - fCdf(testValue, 1, n - 3) : 0;
   const significant = testValue > fCritical;
-  const numbers = `PW = ${short(testValue)} ${significant ? '>' : '≤'} F(${confidence}; 1, ${n - 3}) = ${short(fCritical)}`;
+  const numbers =
+    `PW = ${short(testValue)} ${significant ? '>' : '≤'} F(${confidence}; 1, ${n - 3}) = ` +
+    `${short(fCritical)}`;
   const recommendation = significant
     ? `the second-order curve fits significantly better (${numbers}): use a second-order calibration`
     : `the second-order curve does not fit significantly better (${numbers}): a straight line is adequate`;
@@ -103,11 +115,12 @@ export function mandelTest(input: MandelInput, options: { confidence?: number } 
     testValue: Number.isFinite(testValue) ? testValue : Number.MAX_VALUE,
     fCritical,
     confidence,
-    df: [1, n - 3],
+    degreesOfFreedom: [1, n - 3],
     pValue,
     significant,
     recommendation,
     definition:
-      'Mandel fitting test (ISO 8466-1, DIN 38402-51): DS² = (n−2)s²_lin − (n−3)s²_quad, PW = DS²/s²_quad against F(1, n−3)',
+      'Mandel fitting test (ISO 8466-1, DIN 38402-51): DS² = (n−2)s²_lin − (n−3)s²_quad, PW = DS²/s²_quad ' +
+      'against F(1, n−3)',
   };
 }

@@ -21,7 +21,9 @@ import { parseJcamp } from '../../src/formats/jcamp/read.js';
 import { parseManifest, readManifest } from '../../src/store/manifest.js';
 import { parseSpectrumTable } from '../../src/formats/spectrum-table.js';
 import { loadStandards } from '../../src/store/standards.js';
-import { fitUnivariate, predictConcentration, type UnivariateModel } from '../../src/models/univariate.js';
+import { fitUnivariate } from '../../src/models/univariate/fit.js';
+import type { UnivariateModel } from '../../src/models/univariate/model.js';
+import { predictUnivariate } from '../../src/models/univariate/predict.js';
 import { makeSpectrum } from '../../src/spectrum/spectrum.js';
 import { bandScan } from '../helpers/band-scans.js';
 import { temporaryFolder } from '../helpers/cli.js';
@@ -48,14 +50,14 @@ const line: UnivariateModel = fitUnivariate(
 describe('univariate model', () => {
   it('a response so far outside the calibration that its standard error overflows is NO_SOLUTION, not an interval of ±Infinity', () => {
     // Before: value -3.9e303 with se = Infinity, written as "se": null in JSON and exit status 0.
-    const error = thrown(() => predictConcentration(line, [-1e301]));
+    const error = thrown(() => predictUnivariate(line, [-1e301]));
     expect(error.code).toBe('NO_SOLUTION');
     expect(error.message).toMatch(/not a finite estimate/);
   });
 
   it('a damaged model with slope 0 gives NO_SOLUTION, not a concentration of Infinity', () => {
     const damaged: UnivariateModel = { ...line, coefficients: { ...line.coefficients, b: 0 } };
-    expect(thrown(() => predictConcentration(damaged, [2])).code).toBe('NO_SOLUTION');
+    expect(thrown(() => predictUnivariate(damaged, [2])).code).toBe('NO_SOLUTION');
   });
 
   it('concentrations or responses whose squares overflow are refused by name before the fit', () => {
@@ -300,7 +302,7 @@ describe('interval ends that were NaN or infinite', () => {
       },
       { form: 'linear' },
     );
-    const estimate = predictConcentration(model, [-1, -0], {
+    const estimate = predictUnivariate(model, [-1, -0], {
       level: 8.890919915373989e-104,
       method: 'fieller',
     });
@@ -311,7 +313,7 @@ describe('interval ends that were NaN or infinite', () => {
   });
 
   it('a CLS sample with absorbances of 1e200 is NO_SOLUTION (before: an infinite concentration)', async () => {
-    const { fitCls, predictCls } = await import('../../src/models/cls.js');
+    const { fitCls, predictCls } = await import('../../src/models/cls/spectral.js');
     // Invented pure spectrum: a Gaussian on 11 channels; standards at 2 and 5 ppm.
     const pure = Array.from({ length: 11 }, (_, j) => Math.exp(-0.5 * (j / 10 / 0.2) ** 2));
     const model = fitCls(

@@ -13,7 +13,7 @@ import { buildClsCalibration, channelsFromScan, onChannels } from '../../src/cal
 import { parseMethod, type ClsMethod } from '../../src/calibration/method.js';
 import { quantifyClsScan } from '../../src/calibration/quantify.js';
 import { isBandwrightError } from '../../src/errors.js';
-import { predictCls } from '../../src/models/cls.js';
+import { predictCls } from '../../src/models/cls/spectral.js';
 import { simulateSpectrum } from '../../src/simulate/index.js';
 import { resample, type Spectrum } from '../../src/spectrum/spectrum.js';
 

@@ -3,6 +3,7 @@ import {
   canonicalJson,
   calibrationHash,
   sealCalibration,
+  SCHEMA_VERSION,
   verifyCalibration,
   type CalibrationBody,
 } from '../../src/calibration/calibration.js';
@@ -10,7 +11,7 @@ import { parseMethod } from '../../src/calibration/method.js';
 
 function body(): CalibrationBody {
   return {
-    schemaVersion: '1.0',
+    schemaVersion: SCHEMA_VERSION,
     tool: { name: 'bandwright', version: '0.1.0' },
     createdAt: '2026-12-01T00:00:00.000Z',
     method: parseMethod({ gases: [{ name: 'CO', band: [2040, 2245] }] }, 'm'),
@@ -49,15 +50,17 @@ describe('calibration integrity', () => {
   });
 
   it('refuses a newer major schema and reads a newer minor one', () => {
-    expect(() => verifyCalibration({ ...sealCalibration(body()), schemaVersion: '2.0' }, 'c.json')).toThrow(
-      /schemaVersion 2.0 is newer than this tool reads/,
+    expect(SCHEMA_VERSION).toBe('2.0');
+    expect(() => verifyCalibration({ ...sealCalibration(body()), schemaVersion: '3.0' }, 'c.json')).toThrow(
+      /schemaVersion 3.0 is newer than this tool reads \(2.0\)/,
     );
-    const minor = sealCalibration({ ...body(), schemaVersion: '1.7' });
-    expect(verifyCalibration(minor, 'c.json').schemaVersion).toBe('1.7');
+    const minor = sealCalibration({ ...body(), schemaVersion: '2.7' });
+    expect(verifyCalibration(minor, 'c.json').schemaVersion).toBe('2.7');
   });
 
   it('refuses a file with missing fields, naming the field', () => {
-    const { standards: _dropped, ...rest } = sealCalibration(body());
+    const rest: Record<string, unknown> = { ...sealCalibration(body()) };
+    delete rest.standards;
     expect(() => verifyCalibration(rest, 'c.json')).toThrow(/field "standards" is missing/);
     expect(() => verifyCalibration([], 'c.json')).toThrow(/not a calibration/);
   });

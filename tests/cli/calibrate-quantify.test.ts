@@ -46,7 +46,7 @@ describe('calibrate then quantify', () => {
     expect(run.stdout).toMatch(/linearity \(Mandel test\)/);
     expect(run.stdout).toMatch(/not a life-safety monitor/);
     const calibration = JSON.parse(readFileSync(at('co.json'), 'utf8'));
-    expect(calibration.schemaVersion).toBe('1.0');
+    expect(calibration.schemaVersion).toBe('2.0');
     expect(calibration.inputs.filter((i: { role: string }) => i.role === 'standard')).toHaveLength(10);
     // Slope = area per ppm at reference conditions (analytic band area).
     expect(calibration.gases[0].model.coefficients.b).toBeCloseTo(0.02, 4);

@@ -8,8 +8,11 @@
  */
 import fc from 'fast-check';
 import { afterAll, describe, expect, it } from 'vitest';
-import { fitCls, predictCls, type ClsModel, type ClsPrediction } from '../../src/models/cls.js';
-import { fitUnivariate, predictConcentration, type UnivariateModel } from '../../src/models/univariate.js';
+import type { ClsPrediction } from '../../src/models/cls/model.js';
+import { fitCls, predictCls, type ClsModel } from '../../src/models/cls/spectral.js';
+import { fitUnivariate } from '../../src/models/univariate/fit.js';
+import type { UnivariateModel } from '../../src/models/univariate/model.js';
+import { predictUnivariate } from '../../src/models/univariate/predict.js';
 import { FUZZ_PARAMETERS, FUZZ_RUNS, FUZZ_SEED, FuzzTally, allFinite, invariant } from './harness.js';
 
 const summaries: string[] = [];
@@ -64,7 +67,7 @@ const univariateData = fc
     return { concentration, response };
   });
 
-function checkPrediction(prediction: ReturnType<typeof predictConcentration>): void {
+function checkPrediction(prediction: ReturnType<typeof predictUnivariate>): void {
   invariant(
     Number.isFinite(prediction.value) && Number.isFinite(prediction.se) && prediction.se >= 0,
     'finite value and standard error',
@@ -110,10 +113,10 @@ describe(`univariate model fuzz (seed ${FUZZ_SEED}, ${FUZZ_RUNS} cases)`, () => 
                 model.coefficients.b,
                 model.coefficients.c,
                 model.residualSD,
-              ]) && model.df >= 1,
+              ]) && model.degreesOfFreedom >= 1,
               'fitted numbers finite',
             );
-            return predictConcentration(model, responses, {
+            return predictUnivariate(model, responses, {
               level: chosenLevel,
               method: method,
             });

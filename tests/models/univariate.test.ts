@@ -3,15 +3,11 @@ import fc from 'fast-check';
 import { PolynomialRegression } from 'ml-regression-polynomial';
 import { SimpleLinearRegression } from 'ml-regression-simple-linear';
 import { describe, expect, it } from 'vitest';
-import {
-  fitUnivariate,
-  predictConcentration,
-  responseBand,
-  weightAt,
-  type CurveForm,
-  type UnivariateModel,
-  type WeightScheme,
-} from '../../src/models/univariate.js';
+import { fitUnivariate } from '../../src/models/univariate/fit.js';
+import type { CurveForm, UnivariateModel, WeightScheme } from '../../src/models/univariate/model.js';
+import { predictUnivariate } from '../../src/models/univariate/predict.js';
+import { responseBand } from '../../src/models/univariate/response-band.js';
+import { weightAt } from '../../src/models/univariate/weights.js';
 import { createRandom } from '../../src/simulate/random.js';
 import { leastSquares } from '../../src/stats/least-squares.js';
 import { expectAbsolute, expectRelative, loadDataset } from '../fixtures/nist-strd/nist.js';
@@ -75,7 +71,7 @@ describe('fitUnivariate against NIST StRD', () => {
     expectRelative(model.standardErrors.b, certified.SE[1] as number, 1e-9, 'Norris SE(b)');
     expectRelative(model.residualSD, certified.residualSD, 1e-9, 'Norris s');
     expectRelative(model.rSquared, certified.R2, 1e-9, 'Norris R²');
-    expect(model.df).toBe(certified.dfResidual);
+    expect(model.degreesOfFreedom).toBe(certified.dfResidual);
     expect(model.coefficients.c).toBe(0);
   });
 
@@ -89,7 +85,7 @@ describe('fitUnivariate against NIST StRD', () => {
       expectRelative(model.residualSD, certified.residualSD, 1e-9, `${name} s`);
       expectRelative(model.rSquared, certified.R2, 1e-9, `${name} R²`);
       expect(model.rSquaredKind).toBe('uncentred');
-      expect(model.df).toBe(certified.dfResidual);
+      expect(model.degreesOfFreedom).toBe(certified.dfResidual);
       expect(model.coefficients.a).toBe(0);
     });
   }
@@ -105,7 +101,7 @@ describe('fitUnivariate against NIST StRD', () => {
     });
     expectRelative(model.residualSD, certified.residualSD, 1e-7, 'Pontius s');
     expectRelative(model.rSquared, certified.R2, 1e-7, 'Pontius R²');
-    expect(model.df).toBe(certified.dfResidual);
+    expect(model.degreesOfFreedom).toBe(certified.dfResidual);
     // Covariance in original units: its diagonal gives the certified standard errors.
     names.forEach((_, j) =>
       expectRelative(
@@ -129,7 +125,7 @@ describe('DIN 32645 worked example', () => {
   });
 
   it('x̂ = 0.10548 at y0 = 3500 (m = 1), 99 % prediction half-width 0.07434', () => {
-    const estimate = predictConcentration(model, [din.printed.inverseAt3500.response], { level: 0.99 });
+    const estimate = predictUnivariate(model, [din.printed.inverseAt3500.response], { level: 0.99 });
     expectAbsolute(estimate.value, din.printed.inverseAt3500.concentration, 5e-6, 'x̂');
     expectAbsolute(
       (estimate.high as number) - estimate.value,
@@ -143,7 +139,7 @@ describe('DIN 32645 worked example', () => {
       5e-6,
       'half-width below',
     );
-    expect(estimate.df).toBe(8);
+    expect(estimate.degreesOfFreedom).toBe(8);
     expect(estimate.m).toBe(1);
     expect(estimate.extrapolated).toBe(false);
     expect(estimate.method).toMatch(/straight-line inverse prediction/);
@@ -178,7 +174,7 @@ describe('cross-checks with independent regression libraries (well-conditioned d
     expectRelative(model.coefficients.b, reference.slope, 1e-10, 'slope');
     expectRelative(model.coefficients.a, reference.intercept, 1e-10, 'intercept');
     expectRelative(
-      predictConcentration(model, [5000]).value,
+      predictUnivariate(model, [5000]).value,
       reference.computeX(5000),
       1e-10,
       'inverse at 5000',
@@ -230,7 +226,7 @@ describe('inverse prediction on noise-free data returns the truth (property, fix
             { form, weights },
           );
           const x0 = bottom + where * (top - bottom);
-          const estimate = predictConcentration(model, [truth(x0), truth(x0)]);
+          const estimate = predictUnivariate(model, [truth(x0), truth(x0)]);
           return Math.abs(estimate.value - x0) <= 1e-8 * top && !estimate.extrapolated;
         },
       ),
@@ -392,24 +388,20 @@ describe('input validation', () => {
 
   it('refuses bad prediction requests', () => {
     const model = fitUnivariate(din.data, { form: 'linear' });
+    expectError(() => predictUnivariate(model, []), 'INVALID_VALUE', /responses must be a non-empty array/);
     expectError(
-      () => predictConcentration(model, []),
-      'INVALID_VALUE',
-      /responses must be a non-empty array/,
-    );
-    expectError(
-      () => predictConcentration(model, [3500, Number.NaN]),
+      () => predictUnivariate(model, [3500, Number.NaN]),
       'INVALID_VALUE',
       /responses\[1\] = NaN, must be a finite number/,
     );
     expectError(
-      () => predictConcentration(model, [3500], { level: 95 }),
+      () => predictUnivariate(model, [3500], { level: 95 }),
       'INVALID_VALUE',
       /level = 95, must be strictly between 0 and 1/,
     );
     const quadratic = fitUnivariate(din.data, { form: 'quadratic' });
     expectError(
-      () => predictConcentration(quadratic, [3500], { method: 'fieller' }),
+      () => predictUnivariate(quadratic, [3500], { method: 'fieller' }),
       'INVALID_VALUE',
       /fieller" applies to straight-line calibrations/,
     );
@@ -426,8 +418,8 @@ describe('input validation', () => {
         const model = deepFreeze(fitUnivariate(data, { form, weights }));
         const snapshot = JSON.stringify(model);
         const responses = deepFreeze([2.5, 2.6]);
-        predictConcentration(model, responses);
-        if (form !== 'quadratic') predictConcentration(model, responses, { method: 'fieller' });
+        predictUnivariate(model, responses);
+        if (form !== 'quadratic') predictUnivariate(model, responses, { method: 'fieller' });
         responseBand(model, deepFreeze([0, 25, 40]));
         expect(JSON.stringify(model)).toBe(snapshot);
         expect(responses).toEqual([2.5, 2.6]);
@@ -448,7 +440,7 @@ describe('the model is plain JSON-safe data', () => {
         const model = fitUnivariate(data, { form, weights });
         const copy = JSON.parse(JSON.stringify(model)) as UnivariateModel;
         expect(copy).toEqual(model);
-        expect(predictConcentration(copy, [2])).toEqual(predictConcentration(model, [2]));
+        expect(predictUnivariate(copy, [2])).toEqual(predictUnivariate(model, [2]));
         for (const limit of [model.limits.decision, model.limits.detection, model.limits.determination]) {
           expect(limit.definition.length).toBeGreaterThan(20);
         }
@@ -515,24 +507,24 @@ describe('second-order inversion, extrapolation and Fieller', () => {
     const vertex = -b / (2 * c);
     const top = a + b * vertex + c * vertex * vertex;
     expectError(
-      () => predictConcentration(model, [top + 1]),
+      () => predictUnivariate(model, [top + 1]),
       'NO_SOLUTION',
       /beyond the vertex of the second-order calibration \(its highest response is [0-9.]+, at concentration [0-9.]+\)/,
     );
   });
 
   it('flags extrapolation on the calibrated branch', () => {
-    const above = predictConcentration(model, [curve(600)]);
+    const above = predictUnivariate(model, [curve(600)]);
     expect(above.extrapolated).toBe(true);
     expect(Math.abs(above.value - 600)).toBeLessThan(10);
     expect(above.warnings.join('\n')).toMatch(/outside the calibrated range 0–500 \(extrapolated\)/);
-    expect(predictConcentration(model, [curve(250)]).extrapolated).toBe(false);
-    expect(predictConcentration(model, [curve(250)]).df).toBe(3);
+    expect(predictUnivariate(model, [curve(250)]).extrapolated).toBe(false);
+    expect(predictUnivariate(model, [curve(250)]).degreesOfFreedom).toBe(3);
   });
 
   it('through-origin inversion uses n − 1 degrees of freedom and warns of a real intercept', () => {
     const origin = fitUnivariate(din.data, { form: 'origin' });
-    expect(predictConcentration(origin, [4000]).df).toBe(9);
+    expect(predictUnivariate(origin, [4000]).degreesOfFreedom).toBe(9);
     expect(origin.warnings.join('\n')).toMatch(/through-origin calibration is biased/);
   });
 
@@ -542,7 +534,7 @@ describe('second-order inversion, extrapolation and Fieller', () => {
       { form: 'linear' },
     );
     expect(weak.warnings.join('\n')).toMatch(/not significantly different from zero/);
-    const estimate = predictConcentration(weak, [1.1], { method: 'fieller' });
+    const estimate = predictUnivariate(weak, [1.1], { method: 'fieller' });
     expect(estimate.unbounded).toBe(true);
     expect(estimate.low).toBeNull();
     expect(estimate.high).toBeNull();
@@ -554,8 +546,8 @@ describe('second-order inversion, extrapolation and Fieller', () => {
   // the standard one (common practice); here g ≈ 0.02.
   it('Fieller and standard intervals nearly agree when g is small (DIN 32645 data)', () => {
     const dinModel = fitUnivariate(din.data, { form: 'linear' });
-    const standard = predictConcentration(dinModel, [5000]);
-    const fieller = predictConcentration(dinModel, [5000], { method: 'fieller' });
+    const standard = predictUnivariate(dinModel, [5000]);
+    const fieller = predictUnivariate(dinModel, [5000], { method: 'fieller' });
     expect(fieller.g as number).toBeLessThan(0.05);
     expectRelative(
       (fieller.high as number) - (fieller.low as number),
@@ -596,7 +588,7 @@ describe('interval coverage by simulation (seeded)', () => {
         { form: options.form, weights: options.weights },
       );
       const x0 = 10 + 80 * uniform();
-      const estimate = predictConcentration(model, [options.truth(x0) + options.sd(x0) * normal()], {
+      const estimate = predictUnivariate(model, [options.truth(x0) + options.sd(x0) * normal()], {
         level: 0.95,
         method: options.method,
       });

@@ -4,7 +4,7 @@
  */
 import { readFileSync } from 'node:fs';
 import type { GasCalibration } from '../../src/calibration/calibration.js';
-import { fitUnivariate } from '../../src/models/univariate.js';
+import { fitUnivariate } from '../../src/models/univariate/fit.js';
 
 /** The fixture: standards and the printed results. */
 export const din = JSON.parse(

@@ -116,7 +116,7 @@ describe('curveLimits', () => {
     const s = input.residualSD;
     const generic = curveLimits(
       {
-        df: n - 2,
+        degreesOfFreedom: n - 2,
         residualSD: s,
         slopeAt: () => input.slope,
         fittedVarianceAt: (c) => s * s * (1 / n + (c - meanX) ** 2 / sxx),
@@ -140,7 +140,7 @@ describe('curveLimits', () => {
 
   it('returns null limits with the reason when the slope at zero is 0', () => {
     const limits = curveLimits({
-      df: 5,
+      degreesOfFreedom: 5,
       residualSD: 1,
       slopeAt: (c) => 2 * c,
       fittedVarianceAt: () => 0.1,

@@ -22,7 +22,7 @@ describe('leastSquares against NIST StRD certified values', () => {
     );
     expectRelative(fit.residualSD, certified.residualSD, 1e-9, 'Norris residual SD');
     expectRelative(fit.rSquared, certified.R2, 1e-9, 'Norris R²');
-    expect(fit.df).toBe(certified.dfResidual);
+    expect(fit.degreesOfFreedom).toBe(certified.dfResidual);
     expect(fit.rSquaredKind).toBe('centred');
     expect(fit.interceptColumn).toBe(0);
   });
@@ -37,7 +37,7 @@ describe('leastSquares against NIST StRD certified values', () => {
       expectRelative(fit.residualSD, certified.residualSD, 1e-9, `${name} residual SD`);
       expectRelative(fit.rSquared, certified.R2, 1e-9, `${name} R²`);
       expect(fit.rSquaredKind).toBe('uncentred');
-      expect(fit.df).toBe(certified.dfResidual);
+      expect(fit.degreesOfFreedom).toBe(certified.dfResidual);
     });
   }
 
@@ -128,11 +128,11 @@ describe('solveLeastSquaresMany', () => {
     certified.SE.forEach((value, j) => {
       const se = Math.sqrt(
         (((many.unscaledCovariance[j] as number[])[j] as number) * (many.residualSumOfSquares[0] as number)) /
-          many.df,
+          many.degreesOfFreedom,
       );
       expectRelative(se, value, 1e-7, `Longley SE(B${j}) from unscaledCovariance`);
     });
-    expect(many.df).toBe(9);
+    expect(many.degreesOfFreedom).toBe(9);
   });
 
   it('refuses collinear designs like leastSquares, naming the columns', () => {

@@ -41,7 +41,7 @@ describe('mandelTest', () => {
     expectAbsolute(result.testValue, din.printed.mandel.testValue, 0.00005, 'PW (printed 0.0768)');
     expectAbsolute(result.fCritical, din.printed.mandel.fCritical, 0.0005, 'F(0.99; 1, 7) (printed 12.246)');
     expect(result.significant).toBe(false);
-    expect(result.df).toEqual([1, 7]);
+    expect(result.degreesOfFreedom).toEqual([1, 7]);
     expect(result.recommendation).toMatch(
       /does not fit significantly better \(PW = 0\.07681 ≤ F\(0\.99; 1, 7\) = 12\.25\): a straight line is adequate/,
     );

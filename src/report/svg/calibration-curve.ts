@@ -11,7 +11,7 @@
 import { area, line, symbolCircle } from 'd3-shape';
 import type { GasCalibration } from '../../calibration/calibration.js';
 import { unitLabel } from '../../gas/units.js';
-import { responseBand } from '../../models/univariate.js';
+import { responseBand } from '../../models/univariate/response-band.js';
 import { formatNumber } from '../table.js';
 import {
   clipPath,

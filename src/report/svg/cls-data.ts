@@ -13,7 +13,7 @@ import { onChannels } from '../../calibration/build-cls.js';
 import type { Calibration } from '../../calibration/calibration.js';
 import { BandwrightError } from '../../errors.js';
 import { densityPathFactor, type CellConditions } from '../../gas/conditions.js';
-import { predictCls } from '../../models/cls.js';
+import { predictCls } from '../../models/cls/spectral.js';
 import type { Spectrum } from '../../spectrum/spectrum.js';
 import type { ClsFitPlotInput } from './cls-fit.js';
 

@@ -7,8 +7,8 @@
  */
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
-import { fitCls, predictCls, type ClsData, type ClsModel } from '../../src/models/cls.js';
-import { isBandwrightError } from '../../src/errors.js';
+import { fitCls, predictCls, type ClsData, type ClsModel } from '../../../src/models/cls/spectral.js';
+import { isBandwrightError } from '../../../src/errors.js';
 import {
   correlatedNoise,
   cosine,
@@ -18,7 +18,7 @@ import {
   overlappingMixture,
   plus,
   withLinearBaseline,
-} from '../helpers/synthetic-bands.js';
+} from '../../helpers/synthetic-bands.js';
 
 const scenario = overlappingMixture();
 const { grid } = scenario;
@@ -35,7 +35,7 @@ function noisyStandards(options: {
   const phi = options.phi ?? concentrations.map(() => 1);
   const spectra = concentrations.map((c, i) => {
     const clean = withLinearBaseline(
-      scenario.spectrumOf(c, phi[i % phi.length]!),
+      scenario.spectrumOf(c, phi[i % phi.length]),
       grid,
       0.02 * normal(),
       2e-5 * normal(),

@@ -13,9 +13,9 @@
  * 453.15 K and 0.5 cm⁻¹ (synthetic, known truth). Zero-gas standards give the noise alone.
  */
 import { describe, expect, it } from 'vitest';
-import { fitCls, predictCls, type ClsData, type ClsModel } from '../../src/models/cls.js';
-import { isBandwrightError } from '../../src/errors.js';
-import { simulateSpectrum } from '../../src/simulate/index.js';
+import { fitCls, predictCls, type ClsData, type ClsModel } from '../../../src/models/cls/spectral.js';
+import { isBandwrightError } from '../../../src/errors.js';
+import { simulateSpectrum } from '../../../src/simulate/index.js';
 
 const NOISE_AU = 3e-4;
 

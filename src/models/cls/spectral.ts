@@ -2,40 +2,29 @@
  * Spectral classical least squares (K-matrix) for gas mixtures (DESIGN §3): fit pure-component
  * spectra from standards over the method's regions, with a polynomial baseline per region and an
  * optional background spectrum, and predict a sample's concentrations with prediction intervals
- * calibrated for correlated channels. The mathematics is in `cls-core.ts` (shared with band-area
- * CLS); this module handles channels, regions and baseline.
+ * calibrated for correlated channels. The mathematics is shared with band-area CLS (`fit-core.ts`,
+ * `predict.ts`); this module handles channels, regions and baseline.
  *
  * Units: spectra in decadic absorbance on the model's channels; concentrations in each
  * component's unit at the standard's own conditions; φ = (L/L_ref)(P/P_ref)(T_ref/T) per
  * standard and per sample (dimensionless), so the model works in φ-scaled concentrations.
  */
-import { BandwrightError } from '../errors.js';
-import { channelSegments, MAX_BASELINE_ORDER, nuisanceBasis } from './cls-basis.js';
-import type { ClsComponent, ClsCoreModel, ClsPrediction, ClsState } from './cls-core.js';
-import { DEFAULT_POOR_FIT_RATIO, fitClsCore, prepareClsState, predictClsState } from './cls-core.js';
-import { validateClsInputs } from './cls-validate.js';
-
-export type {
-  ClsComponent,
-  ClsEstimate,
-  ClsFlag,
-  ClsPrediction,
-  ClsCalibrationStatistics,
-  ClsCrossValidation,
-  ClsLackOfFit,
-  ClsRange,
-  ClsSecondOrderGain,
-  ClsTerm,
-} from './cls-core.js';
-export {
-  DEFAULT_CLS_CONDITION_LIMIT,
-  DEFAULT_POOR_FIT_RATIO,
-  MINIMUM_SEPARATION_RATIO,
-  SUBSTANTIAL_REDUCTION,
-} from './cls-core.js';
+import { BandwrightError } from '../../errors.js';
+import { channelSegments, MAX_BASELINE_ORDER, nuisanceBasis } from './basis.js';
+import { fitClsCore } from './fit-core.js';
+import {
+  type ClsCommonFitOptions,
+  type ClsCoreModel,
+  type ClsPredictOptions,
+  type ClsPrediction,
+  type ClsStandards,
+} from './model.js';
+import { predictClsState } from './predict.js';
+import { prepareClsState, type ClsState } from './prediction-state.js';
+import { validateClsInputs } from './validate.js';
 
 /** Standards for a spectral CLS fit. Nothing here is modified. */
-export interface ClsData {
+export interface ClsData extends ClsStandards {
   /** Number of channels, or the grid itself (cm⁻¹; used to centre and scale the baseline polynomials). */
   readonly channels: number | Float64Array;
   /**
@@ -45,55 +34,29 @@ export interface ClsData {
   readonly regionOf?: ArrayLike<number>;
   /** Absorbance spectra of the standards, standards × channels. */
   readonly spectra: readonly ArrayLike<number>[];
-  /** Certified concentrations, standards × components, each in its component's unit (≥ 0). */
-  readonly concentrations: readonly ArrayLike<number>[];
-  /** φ = (L/L_ref)(P/P_ref)(T_ref/T) of each standard (> 0). */
-  readonly phi: ArrayLike<number>;
-  /** Components in column order of `concentrations`: reported gases and interferents. */
-  readonly components: readonly ClsComponent[];
-  /** Optional label of each standard (e.g. its scan file) for messages. */
-  readonly standardLabels?: readonly string[];
 }
 
 /** Options of {@link fitCls}. */
-export interface ClsFitOptions {
+export interface SpectralClsFitOptions extends ClsCommonFitOptions {
   /** Polynomial baseline order per region, 0…3 (default 1: offset and slope). */
   readonly baselineOrder?: number;
   /** A constant background spectrum (absorbance on the channels) with a free coefficient in every spectrum. */
   readonly background?: ArrayLike<number>;
-  /** Names of components given a second-order (quadratic) term, for saturating bands. */
-  readonly secondOrder?: readonly string[];
-  /** Default confidence level of prediction intervals (default 0.95). */
-  readonly level?: number;
-  /** Largest condition number of the column-scaled concentration and pure-spectrum matrices (default 1000). */
-  readonly conditionLimit?: number;
 }
 
-/** A fitted spectral CLS model: plain JSON-safe data. */
+/**
+ * A fitted spectral CLS model: plain JSON-safe data, what was fitted and the channel layout it was
+ * fitted on; its prediction operators are rebuilt from them when it is first used.
+ */
 export interface ClsModel extends ClsCoreModel {
   /** Model kind. */
   readonly kind: 'cls';
-  /** Layout version of this object. */
-  readonly formatVersion: 1;
   /** Channel grid (cm⁻¹) when one was given, else null (channel indices were used). */
   readonly grid: readonly number[] | null;
   /** Baseline polynomial order per region. */
   readonly baselineOrder: number;
   /** Background spectrum, or null. */
   readonly background: readonly number[] | null;
-}
-
-/** Options of {@link predictCls}. */
-export interface ClsPredictOptions {
-  /** φ = (L/L_ref)(P/P_ref)(T_ref/T) of the sample (> 0). */
-  readonly phi: number;
-  /** Confidence level of the intervals (default: the model's, usually 0.95). */
-  readonly level?: number;
-  /**
-   * Residual-RMS ratio over the calibration's that a sample must exceed, besides the F test at
-   * 99 %, to be flagged `poor-fit` (default 1.5).
-   */
-  readonly poorFitRatio?: number;
 }
 
 function positionsOf(channels: number | Float64Array): ArrayLike<number> {
@@ -108,8 +71,8 @@ function positionsOf(channels: number | Float64Array): ArrayLike<number> {
  *   certified concentrations (component units), φ per standard, components
  * @param options - baseline order (0…3, default 1), background spectrum, second-order
  *   components, level (default 0.95), condition limit (default 1000)
- * @returns the model (plain object: pure spectra, prediction matrix, noise model, statistics,
- *   leave-one-out cross-validation)
+ * @returns the model (plain object: pure spectra, noise model, statistics, leave-one-out
+ *   cross-validation)
  * @throws BandwrightError `INVALID_VALUE` naming the standard, channel or component for shapes,
  *   non-finite values, negative concentrations or φ ≤ 0; `INSUFFICIENT_DATA` for too few
  *   standards or channels; `SINGULAR` naming the gases when collinear standards or coinciding
@@ -121,19 +84,14 @@ function positionsOf(channels: number | Float64Array): ArrayLike<number> {
  *   { baselineOrder: 1 },
  * );
  */
-export function fitCls(data: ClsData, options: ClsFitOptions = {}): ClsModel {
+export function fitCls(data: ClsData, options: SpectralClsFitOptions = {}): ClsModel {
   const channelCount = typeof data.channels === 'number' ? data.channels : data.channels.length;
-  const validated = validateClsInputs(
-    {
-      responses: data.spectra,
-      concentrations: data.concentrations,
-      phi: data.phi,
-      components: data.components,
-      standardLabels: data.standardLabels,
-    },
-    options,
-    { channelCount, channelWord: 'channel', responsesName: 'spectra' },
-  );
+  const standards = { ...data, responses: data.spectra };
+  const validated = validateClsInputs(standards, options, {
+    channelCount,
+    channelWord: 'channel',
+    responsesName: 'spectra',
+  });
   const baselineOrder = options.baselineOrder ?? 1;
   if (!(Number.isInteger(baselineOrder) && baselineOrder >= 0 && baselineOrder <= MAX_BASELINE_ORDER)) {
     throw new BandwrightError(
@@ -195,27 +153,16 @@ export function fitCls(data: ClsData, options: ClsFitOptions = {}): ClsModel {
     ...(background ? { background } : {}),
   });
   const segments = channelSegments(regionOf, positions);
-  const core = fitClsCore(
-    {
-      responses: data.spectra,
-      concentrations: data.concentrations,
-      phi: data.phi,
-      components: data.components,
-    },
-    {
-      level: validated.level,
-      conditionLimit: validated.conditionLimit,
-      secondOrder: validated.secondOrder,
-      nuisance,
-      segments,
-      estimateCorrelation: true,
-      localResidualWeights: true,
-      channelWord: 'channel',
-    },
-  );
+  const core = fitClsCore(standards, {
+    ...validated,
+    nuisance,
+    segments,
+    estimateCorrelation: true,
+    localResidualWeights: true,
+    channelWord: 'channel',
+  });
   return {
     kind: 'cls',
-    formatVersion: 1,
     ...core,
     grid: typeof data.channels === 'number' ? null : Array.from(data.channels),
     baselineOrder,
@@ -223,9 +170,21 @@ export function fitCls(data: ClsData, options: ClsFitOptions = {}): ClsModel {
   };
 }
 
+/** Prediction states of the models seen, built once per model object. */
 const prepared = new WeakMap<ClsModel, ClsState>();
 
-function stateOf(model: ClsModel): ClsState {
+/**
+ * The numeric prediction state of a model: its baseline basis rebuilt from the grid, regions and
+ * order, and the prediction operators derived from its pure spectra and noise model. Built on the
+ * first call for a model object (when a calibration is loaded or first used) and kept while the
+ * object lives, so a batch pays for it once, not per scan.
+ *
+ * @param model - a model from {@link fitCls}, or the same object read back from JSON
+ * @returns the state (shared: do not modify)
+ * @throws BandwrightError `INSUFFICIENT_DATA` or `INVALID_VALUE` from the baseline basis, or
+ *   `SINGULAR`, when the model is damaged (a fit never returns such a model)
+ */
+export function clsPredictionState(model: ClsModel): ClsState {
   let state = prepared.get(model);
   if (state === undefined) {
     const regionOf = new Float64Array(model.channelCount);
@@ -237,7 +196,7 @@ function stateOf(model: ClsModel): ClsState {
       order: model.baselineOrder,
       ...(model.background ? { background: model.background } : {}),
     });
-    state = prepareClsState(model, nuisance);
+    state = prepareClsState(model, nuisance, 'channel');
     prepared.set(model, state);
   }
   return state;
@@ -246,8 +205,9 @@ function stateOf(model: ClsModel): ClsState {
 /**
  * Predicts a sample's concentrations from its absorbance spectrum.
  *
- * The first call for a model builds its numeric state (baseline basis, typed arrays) and caches
- * it; later calls cost a few matrix–vector products over the channels.
+ * The first call for a model builds its numeric state (baseline basis, the prediction matrix and
+ * the factors its intervals need) and caches it; later calls cost a few matrix–vector products
+ * over the channels.
  *
  * @param model - a model from {@link fitCls} (or the same object read back from JSON)
  * @param spectrum - decadic absorbance on the model's channels; not modified
@@ -256,7 +216,8 @@ function stateOf(model: ClsModel): ClsState {
  *   conditions, the interferents likewise, the residual spectrum and its RMS (absorbance), and
  *   the `poor-fit` flag
  * @throws BandwrightError `INVALID_VALUE` for a spectrum of the wrong length or with non-finite
- *   values, φ ≤ 0, or a level outside (0, 1); `NO_SOLUTION` when the estimates overflow (absorbances far beyond any calibration)
+ *   values, φ ≤ 0, or a level outside (0, 1); `NO_SOLUTION` when the estimates overflow
+ *   (absorbances far beyond any calibration)
  * @example
  * const result = predictCls(model, sampleAbsorbance, { phi: 1 });
  * result.estimates[0]; // { name: 'CO', value: 71.3, se: 0.4, low: 70.5, high: 72.1, ... }
@@ -266,10 +227,8 @@ export function predictCls(
   spectrum: ArrayLike<number>,
   options: ClsPredictOptions,
 ): ClsPrediction {
-  const prediction = predictClsState(model, stateOf(model), spectrum, {
-    phi: options.phi,
-    level: options.level ?? model.level,
-    poorFitRatio: options.poorFitRatio ?? DEFAULT_POOR_FIT_RATIO,
+  const prediction = predictClsState(model, clsPredictionState(model), spectrum, {
+    ...options,
     channelWord: 'channel',
   });
   // Finite but huge absorbances (a corrupt or mis-scaled file) overflow the least squares; such an
@@ -280,9 +239,14 @@ export function predictCls(
   if (broken !== undefined || !Number.isFinite(prediction.residualRms)) {
     let largest = 0;
     for (let j = 0; j < spectrum.length; j++) largest = Math.max(largest, Math.abs(spectrum[j] as number));
+    const gives =
+      broken === undefined
+        ? `a residual RMS of ${prediction.residualRms}`
+        : `${broken.name} = ${broken.value} ± ${broken.se}`;
     throw new BandwrightError(
       'NO_SOLUTION',
-      `the sample spectrum gives ${broken === undefined ? `a residual RMS of ${prediction.residualRms}` : `${broken.name} = ${broken.value} ± ${broken.se}`}, not a finite estimate; its absorbance reaches ${largest}, far beyond any calibration`,
+      `the sample spectrum gives ${gives}, not a finite estimate; its absorbance reaches ${largest}, ` +
+        `far beyond any calibration`,
       { parameter: 'spectrum' },
     );
   }

@@ -13,7 +13,7 @@
  * R (banded, Toeplitz within each segment) then enters the CLS variance as J⁺ R J⁺ᵀ and the
  * residual's expected sum of squares as σ² tr(P R).
  */
-import type { ChannelSegment } from './cls-basis.js';
+import type { ChannelSegment } from './basis.js';
 
 /** Longest lag (channels) of noise correlation that is estimated. */
 export const MAX_CORRELATION_LAG = 32;

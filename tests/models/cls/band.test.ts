@@ -9,9 +9,9 @@ import {
   predictBandCls,
   type BandClsData,
   type BandClsModel,
-} from '../../src/models/band-cls.js';
-import { isBandwrightError } from '../../src/errors.js';
-import { mixtureDesign, normalGenerator } from '../helpers/synthetic-bands.js';
+} from '../../../src/models/cls/band.js';
+import { isBandwrightError } from '../../../src/errors.js';
+import { mixtureDesign, normalGenerator } from '../../helpers/synthetic-bands.js';
 
 const bands = ['1850-1950', '1580-1640', '2880-2930', '1340-1380', '2190-2240'];
 // AU·cm⁻¹ per ppm; rows NO, NO2, H2O.

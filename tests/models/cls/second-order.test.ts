@@ -13,8 +13,8 @@
  * triangular apodisation) for real saturation (synthetic, known truth).
  */
 import { describe, expect, it } from 'vitest';
-import { fitCls, predictCls, type ClsData } from '../../src/models/cls.js';
-import { simulateSpectrum } from '../../src/simulate/index.js';
+import { fitCls, predictCls, type ClsData } from '../../../src/models/cls/spectral.js';
+import { simulateSpectrum } from '../../../src/simulate/index.js';
 import {
   correlatedNoise,
   gaussianBand,
@@ -22,7 +22,7 @@ import {
   normalGenerator,
   plus,
   uniformGrid,
-} from '../helpers/synthetic-bands.js';
+} from '../../helpers/synthetic-bands.js';
 
 describe('second-order terms on an exactly quadratic response (synthetic, known truth)', () => {
   const grid = uniformGrid(1000, 1100, 0.5);

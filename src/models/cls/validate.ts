@@ -3,9 +3,9 @@
  * names and options. Messages name the standard (index and label), the channel or component, the
  * value and the rule.
  */
-import { BandwrightError } from '../errors.js';
-import type { ClsComponent } from './cls-core.js';
-import { DEFAULT_CLS_CONDITION_LIMIT } from './cls-core.js';
+import { BandwrightError } from '../../errors.js';
+import type { ClsCoreData } from './fit-core.js';
+import { DEFAULT_CLS_CONDITION_LIMIT, type ClsCommonFitOptions } from './model.js';
 
 /** Options checked here. */
 export interface ClsValidatedOptions {
@@ -29,14 +29,8 @@ export interface ClsValidatedOptions {
  * @throws BandwrightError `INVALID_VALUE` for any violated rule; `INSUFFICIENT_DATA` for no standards
  */
 export function validateClsInputs(
-  data: {
-    responses: readonly ArrayLike<number>[];
-    concentrations: readonly ArrayLike<number>[];
-    phi: ArrayLike<number>;
-    components: readonly ClsComponent[];
-    standardLabels?: readonly string[] | undefined;
-  },
-  options: { secondOrder?: readonly string[]; level?: number; conditionLimit?: number },
+  data: ClsCoreData,
+  options: ClsCommonFitOptions,
   context: { channelCount: number; channelWord: string; responsesName: string },
 ): ClsValidatedOptions {
   const { responses, concentrations, phi, components } = data;
@@ -141,7 +135,8 @@ export function validateClsInputs(
     if (c.length !== components.length) {
       throw new BandwrightError(
         'INVALID_VALUE',
-        `concentrations[${i}] (${standard(i)}) has ${c.length} values for ${components.length} components, must be equal`,
+        `concentrations[${i}] (${standard(i)}) has ${c.length} values for ${components.length} components, ` +
+          `must be equal`,
         { parameter: 'concentrations' },
       );
     }
@@ -150,7 +145,8 @@ export function validateClsInputs(
       if (!(Number.isFinite(value) && (value as number) >= 0)) {
         throw new BandwrightError(
           'INVALID_VALUE',
-          `concentrations[${i}][${j}] (${standard(i)}, ${component.name}) = ${value}, must be a finite number >= 0 ${component.unit}`,
+          `concentrations[${i}][${j}] (${standard(i)}, ${component.name}) = ${value}, must be a finite number ` +
+            `>= 0 ${component.unit}`,
           { parameter: 'concentrations' },
         );
       }

@@ -8,9 +8,11 @@
  * at R = 400, so 92–98 % is about ±2.7 SD.
  */
 import { describe, expect, it } from 'vitest';
-import { fitCls, predictCls } from '../../src/models/cls.js';
-import { fitClsCore, prepareClsState, predictClsState } from '../../src/models/cls-core.js';
-import { channelSegments, nuisanceBasis } from '../../src/models/cls-basis.js';
+import { fitCls, predictCls } from '../../../src/models/cls/spectral.js';
+import { fitClsCore } from '../../../src/models/cls/fit-core.js';
+import { predictClsState } from '../../../src/models/cls/predict.js';
+import { prepareClsState } from '../../../src/models/cls/prediction-state.js';
+import { channelSegments, nuisanceBasis } from '../../../src/models/cls/basis.js';
 import {
   correlatedNoise,
   mixtureDesign,
@@ -18,7 +20,7 @@ import {
   overlappingMixture,
   plus,
   withLinearBaseline,
-} from '../helpers/synthetic-bands.js';
+} from '../../helpers/synthetic-bands.js';
 
 const scenario = overlappingMixture();
 const { grid } = scenario;

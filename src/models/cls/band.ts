@@ -1,7 +1,7 @@
 /**
  * Band-area classical least squares: the small version of spectral CLS (DESIGN §3) for
  * mixtures measured by several baseline-corrected band areas (or peak heights), with more bands
- * than gases. A band plays the part of a channel: the same core (`cls-core.ts`) fits the
+ * than gases. A band plays the part of a channel: the same core (`fit-core.ts`, `predict.ts`) fits the
  * K-matrix of band responses per unit concentration, refuses gases that cannot be separated,
  * predicts with intervals and cross-validates. Differences from spectral CLS: no baseline terms
  * (areas are already baseline-corrected) and bands are taken as independent measurements with a
@@ -10,57 +10,36 @@
  * Units: band areas in AU·cm⁻¹ (or peak heights in AU); concentrations in each component's unit
  * at the standard's conditions; φ = (L/L_ref)(P/P_ref)(T_ref/T) per standard and sample.
  */
-import { BandwrightError } from '../errors.js';
-import type { ClsComponent, ClsCoreModel, ClsPrediction, ClsState } from './cls-core.js';
-import { DEFAULT_POOR_FIT_RATIO, fitClsCore, predictClsState, prepareClsState } from './cls-core.js';
-import { validateClsInputs } from './cls-validate.js';
-
-export type { ClsComponent, ClsEstimate, ClsPrediction } from './cls-core.js';
+import { BandwrightError } from '../../errors.js';
+import { fitClsCore } from './fit-core.js';
+import {
+  type ClsCommonFitOptions,
+  type ClsCoreModel,
+  type ClsPredictOptions,
+  type ClsPrediction,
+  type ClsStandards,
+} from './model.js';
+import { predictClsState } from './predict.js';
+import { prepareClsState, type ClsState } from './prediction-state.js';
+import { validateClsInputs } from './validate.js';
 
 /** Standards for a band-area CLS fit. Nothing here is modified. */
-export interface BandClsData {
+export interface BandClsData extends ClsStandards {
   /** Band names in column order of `areas` (e.g. `2040-2245`), used in messages and results. */
   readonly bands: readonly string[];
   /** Baseline-corrected band areas (AU·cm⁻¹) or peak heights (AU), standards × bands. */
   readonly areas: readonly ArrayLike<number>[];
-  /** Certified concentrations, standards × components (≥ 0). */
-  readonly concentrations: readonly ArrayLike<number>[];
-  /** φ of each standard (> 0). */
-  readonly phi: ArrayLike<number>;
-  /** Components: reported gases and interferents. */
-  readonly components: readonly ClsComponent[];
-  /** Optional label of each standard for messages. */
-  readonly standardLabels?: readonly string[];
 }
 
-/** Options of {@link fitBandCls}. */
-export interface BandClsFitOptions {
-  /** Names of components given a second-order term. */
-  readonly secondOrder?: readonly string[];
-  /** Default confidence level of prediction intervals (default 0.95). */
-  readonly level?: number;
-  /** Largest condition number of the column-scaled concentration and band-response matrices (default 1000). */
-  readonly conditionLimit?: number;
-}
+/** Options of {@link fitBandCls}: those of every CLS fit (band areas have no baseline terms). */
+export type BandClsFitOptions = ClsCommonFitOptions;
 
-/** A fitted band-area CLS model: plain JSON-safe data. */
+/** A fitted band-area CLS model: plain JSON-safe data (what was fitted; no derived operators). */
 export interface BandClsModel extends ClsCoreModel {
   /** Model kind. */
   readonly kind: 'band-cls';
-  /** Layout version of this object. */
-  readonly formatVersion: 1;
   /** Band names, in the order a sample's areas must follow. */
   readonly bands: readonly string[];
-}
-
-/** Options of {@link predictBandCls}. */
-export interface BandClsPredictOptions {
-  /** φ of the sample (> 0). */
-  readonly phi: number;
-  /** Confidence level (default: the model's). */
-  readonly level?: number;
-  /** Residual-RMS ratio that a poor fit must also exceed (default 1.5). */
-  readonly poorFitRatio?: number;
 }
 
 /**
@@ -95,44 +74,30 @@ export function fitBandCls(data: BandClsData, options: BandClsFitOptions = {}): 
       );
     names.add(band);
   });
-  const validated = validateClsInputs(
-    {
-      responses: data.areas,
-      concentrations: data.concentrations,
-      phi: data.phi,
-      components: data.components,
-      standardLabels: data.standardLabels,
-    },
-    options,
-    { channelCount: bandCount, channelWord: 'band', responsesName: 'areas' },
-  );
+  const standards = { ...data, responses: data.areas };
+  const validated = validateClsInputs(standards, options, {
+    channelCount: bandCount,
+    channelWord: 'band',
+    responsesName: 'areas',
+  });
   const terms = data.components.length + validated.secondOrder.length;
   if (bandCount <= terms) {
     throw new BandwrightError(
       'INSUFFICIENT_DATA',
-      `${bandCount} band(s) for ${terms} model term(s): band-area CLS needs more bands than gases (and second-order terms)`,
+      `${bandCount} band(s) for ${terms} model term(s): band-area CLS needs more bands than gases (and ` +
+        `second-order terms)`,
       { parameter: 'bands' },
     );
   }
-  const core = fitClsCore(
-    {
-      responses: data.areas,
-      concentrations: data.concentrations,
-      phi: data.phi,
-      components: data.components,
-    },
-    {
-      level: validated.level,
-      conditionLimit: validated.conditionLimit,
-      secondOrder: validated.secondOrder,
-      nuisance: [],
-      segments: data.bands.map((_, k) => ({ start: k, end: k + 1, region: k })),
-      estimateCorrelation: false,
-      localResidualWeights: false,
-      channelWord: 'band',
-    },
-  );
-  return { kind: 'band-cls', formatVersion: 1, ...core, bands: [...data.bands] };
+  const core = fitClsCore(standards, {
+    ...validated,
+    nuisance: [],
+    segments: data.bands.map((_, k) => ({ start: k, end: k + 1, region: k })),
+    estimateCorrelation: false,
+    localResidualWeights: false,
+    channelWord: 'band',
+  });
+  return { kind: 'band-cls', ...core, bands: [...data.bands] };
 }
 
 const prepared = new WeakMap<BandClsModel, ClsState>();
@@ -149,17 +114,12 @@ const prepared = new WeakMap<BandClsModel, ClsState>();
 export function predictBandCls(
   model: BandClsModel,
   areas: ArrayLike<number>,
-  options: BandClsPredictOptions,
+  options: ClsPredictOptions,
 ): ClsPrediction {
   let state = prepared.get(model);
   if (state === undefined) {
-    state = prepareClsState(model, []);
+    state = prepareClsState(model, [], 'band');
     prepared.set(model, state);
   }
-  return predictClsState(model, state, areas, {
-    phi: options.phi,
-    level: options.level ?? model.level,
-    poorFitRatio: options.poorFitRatio ?? DEFAULT_POOR_FIT_RATIO,
-    channelWord: 'band',
-  });
+  return predictClsState(model, state, areas, { ...options, channelWord: 'band' });
 }

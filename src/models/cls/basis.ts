@@ -8,7 +8,7 @@
  * no grid gap), along which channel-to-channel noise correlation is estimated and applied.
  */
 import { QrDecomposition, Matrix } from 'ml-matrix';
-import { BandwrightError } from '../errors.js';
+import { BandwrightError } from '../../errors.js';
 
 /** Highest polynomial baseline order accepted. */
 export const MAX_BASELINE_ORDER = 3;
@@ -104,7 +104,8 @@ export function nuisanceBasis(options: {
       if (members < order + 3) {
         throw new BandwrightError(
           'INSUFFICIENT_DATA',
-          `region ${region}: ${members} channel(s), baseline order ${order} needs at least ${order + 3} (terms plus room for the gases)`,
+          `region ${region}: ${members} channel(s), baseline order ${order} needs at least ${order + 3} (terms ` +
+            `plus room for the gases)`,
           { parameter: 'baselineOrder' },
         );
       }
@@ -141,7 +142,8 @@ export function nuisanceBasis(options: {
           'INVALID_VALUE',
           norm === 0
             ? 'background spectrum is zero on every channel, must have some absorbance'
-            : `background spectrum is a polynomial of order <= ${order} on every region, so the baseline terms already remove it; drop the background or lower baselineOrder`,
+            : `background spectrum is a polynomial of order <= ${order} on every region, so the baseline terms ` +
+                `already remove it; drop the background or lower baselineOrder`,
           { parameter: 'background' },
         );
       }
