@@ -17,7 +17,7 @@ import { jsonDocumentSink, textTableSink } from '../../src/batch/sinks.js';
 import { resultsCsvRow, type BatchItem, type BatchSetup } from '../../src/batch/scan-quantifier.js';
 import { runBatch, type WorkerHeapLimits } from '../../src/batch/engine.js';
 import { readCalibration } from '../../src/store/calibration-file.js';
-import { formatResultsText, resultsCsv, resultsDocument, type BatchEntry } from '../../src/index.js';
+import { formatResultsText, resultsCsv, resultsDocument, type BatchEntry } from '../../src/report/results.js';
 import { BAND_OPTIONS, bandScan, writeScan, writeStandardSeries } from '../helpers/band-scans.js';
 import { runCli, temporaryFolder } from '../helpers/cli.js';
 

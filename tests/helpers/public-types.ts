@@ -78,7 +78,8 @@ function surfaceOf(program: ts.Program, checker: ts.TypeChecker, file: string): 
       if (isNamedType) {
         const known = mentioned.get(symbol);
         if (known === undefined) mentioned.set(symbol, { type: symbol.name, mentionedBy: from, direct });
-        else if (direct && !known.direct) mentioned.set(symbol, { type: symbol.name, mentionedBy: from, direct });
+        else if (direct && !known.direct)
+          mentioned.set(symbol, { type: symbol.name, mentionedBy: from, direct });
         insideNamed = false;
       }
       if (expanded.has(symbol)) return;
@@ -92,13 +93,18 @@ function surfaceOf(program: ts.Program, checker: ts.TypeChecker, file: string): 
     for (const signature of [...type.getCallSignatures(), ...type.getConstructSignatures()])
       visitSignature(signature, from, insideNamed);
     if (symbol !== undefined && inSource(symbol) && type.isClassOrInterface()) visitMembers(type, from);
-    else if (type.flags & ts.TypeFlags.Object && symbol !== undefined && symbol.flags & ts.SymbolFlags.TypeLiteral)
+    else if (
+      type.flags & ts.TypeFlags.Object &&
+      symbol !== undefined &&
+      symbol.flags & ts.SymbolFlags.TypeLiteral
+    )
       visitMembers(type, from);
   };
   const visitMembers = (type: ts.Type, from: string): void => {
     for (const property of checker.getPropertiesOfType(type)) {
       const declaration = property.valueDeclaration ?? property.declarations?.[0];
-      if (declaration === undefined || !declaration.getSourceFile().fileName.startsWith(sourceFolder)) continue;
+      if (declaration === undefined || !declaration.getSourceFile().fileName.startsWith(sourceFolder))
+        continue;
       visitType(checker.getTypeOfSymbolAtLocation(property, declaration), from, false);
     }
   };

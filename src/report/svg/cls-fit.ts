@@ -74,7 +74,7 @@ export interface ClsFitPlotInput {
 }
 
 /** Size and axis options of {@link renderClsFit} (default id `cls-fit`). */
-export interface ClsFitOptions extends PlotOptions {
+export interface ClsFitPlotOptions extends PlotOptions {
   /** Fit panel height, px (default 260). */
   fitHeight?: number;
   /** Residual panel height, px (default 110). */
@@ -131,7 +131,7 @@ function checkLengths(input: ClsFitPlotInput): void {
  * @returns SVG markup
  * @throws BandwrightError `INVALID_VALUE` when an array's length differs from the grid's; `NOT_MONOTONIC` for a grid that does not ascend
  */
-export function renderClsFit(input: ClsFitPlotInput, options: ClsFitOptions = {}): string {
+export function renderClsFit(input: ClsFitPlotInput, options: ClsFitPlotOptions = {}): string {
   checkLengths(input);
   const id = options.id ?? 'cls-fit';
   const width = options.width ?? 720;
