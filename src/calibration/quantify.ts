@@ -30,6 +30,7 @@ import {
   type ResultFlag,
   type ScanResult,
 } from './result.js';
+import { listNames } from '../words.js';
 
 /** Options for quantification. */
 export interface QuantifyOptions extends ReportingOptions {
@@ -256,7 +257,7 @@ export function quantifyClsScan(
   };
   const poorFitCause =
     outside.length > 0
-      ? `${listWords(outside.map((e) => e.name))} outside the standards' range (the model was not fitted ` +
+      ? `${listNames(outside.map((e) => e.name))} outside the standards' range (the model was not fitted ` +
         `there), or an absorber the method does not model`
       : 'an absorber the method does not model may be present, or the instrument is not as it was at calibration';
   const gases = prediction.estimates.map((estimate): GasResult => {
@@ -337,13 +338,6 @@ export function quantifyClsScan(
     cautions: cautionsFor(cls.model.components.map((c) => c.name)),
     warnings,
   };
-}
-
-/** "H2O", "CO2 and H2O" */
-function listWords(words: readonly string[]): string {
-  return words.length <= 1
-    ? words.join('')
-    : `${words.slice(0, -1).join(', ')} and ${words[words.length - 1]!}`;
 }
 
 /**

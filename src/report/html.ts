@@ -29,7 +29,7 @@ import {
   paragraph,
   type Cell,
 } from './html-page.js';
-import { element, escapeText, fileName, shortNumber, slug } from './svg/markup.js';
+import { element, escapeText, fileName, slug } from './svg/markup.js';
 import { calibrationPlots, controlChartPlot, type NamedPlot, type StandardSpectrum } from './svg/plot-set.js';
 import type { ControlChartInput } from './svg/control-chart.js';
 import {
@@ -44,6 +44,7 @@ import {
 } from './html-calibration.js';
 import type { WavenumberAxis } from './svg/spectra.js';
 import { formatNumber } from './table.js';
+import { significantDigits } from '../words.js';
 
 /** What was found for one recorded input file. */
 export type InputFileStatus = 'unchanged' | 'changed' | 'missing' | 'unreadable';
@@ -209,7 +210,7 @@ function historySection(
       (views.length > 1 ? element('h3', {}, escapeText(history.gas)) : '') +
       figure(
         plot.svg,
-        `Control chart of ${history.gas}: recovery of the check standard against time, tolerance ±${shortNumber(history.chart.tolerancePct)} %, warning (±2σ) and action (±3σ) limits with the σ in force for the next check (σ = ${shortNumber(history.chart.sigmaPct)} %, why: below the chart); checks where a control rule fired are ringed and labelled above the chart.`,
+        `Control chart of ${history.gas}: recovery of the check standard against time, tolerance ±${significantDigits(history.chart.tolerancePct, 3)} %, warning (±2σ) and action (±3σ) limits with the σ in force for the next check (σ = ${significantDigits(history.chart.sigmaPct, 3)} %, why: below the chart); checks where a control rule fired are ringed and labelled above the chart.`,
       ) +
       (history.notes === undefined || history.notes.length === 0 ? '' : bulletList(history.notes)) +
       htmlTable({

@@ -12,13 +12,18 @@
  * {@link adoptQuantiles}), so a worker loads the kernels only if it meets a new one.
  */
 import { createRequire } from 'node:module';
+import type fCdfKernel from '@stdlib/stats-base-dists-f-cdf';
+import type fQuantileKernel from '@stdlib/stats-base-dists-f-quantile';
+import type tCdfKernel from '@stdlib/stats-base-dists-t-cdf';
+import type tQuantileKernel from '@stdlib/stats-base-dists-t-quantile';
 import { BandwrightError } from '../errors.js';
 
+// Types only: the kernels themselves are required on first use (see loadKernels).
 interface Kernels {
-  tCdf: typeof import('@stdlib/stats-base-dists-t-cdf');
-  tQuantile: typeof import('@stdlib/stats-base-dists-t-quantile');
-  fCdf: typeof import('@stdlib/stats-base-dists-f-cdf');
-  fQuantile: typeof import('@stdlib/stats-base-dists-f-quantile');
+  tCdf: typeof tCdfKernel;
+  tQuantile: typeof tQuantileKernel;
+  fCdf: typeof fCdfKernel;
+  fQuantile: typeof fQuantileKernel;
 }
 
 let kernels: Kernels | undefined;

@@ -21,6 +21,7 @@
 import { AbstractMatrix, Matrix, QrDecomposition, SingularValueDecomposition } from 'ml-matrix';
 import { BandwrightError } from '../errors.js';
 import { dot, invertUpperTriangular, multiply, transpose } from './linear-algebra.js';
+import { exponentText, listNames } from '../words.js';
 
 /** A design matrix: rows are observations, columns are regressors. */
 export type Design = readonly (readonly number[])[] | AbstractMatrix;
@@ -114,16 +115,6 @@ interface PreparedDesign {
 function toRows(design: Design): number[][] {
   if (AbstractMatrix.isMatrix(design)) return design.to2DArray();
   return design.map((row) => Array.from(row));
-}
-
-function formatCondition(value: number): string {
-  if (!Number.isFinite(value)) return 'infinite';
-  return value.toExponential(1).replace('e+', 'e');
-}
-
-function listNames(names: readonly string[]): string {
-  if (names.length <= 1) return names.join('');
-  return `${names.slice(0, -1).join(', ')} and ${names[names.length - 1] as string}`;
 }
 
 function prepare(design: Design, n: number, options: LeastSquaresOptions): PreparedDesign {
@@ -256,8 +247,8 @@ function prepare(design: Design, n: number, options: LeastSquaresOptions): Prepa
     }
     const detail =
       rank < columns
-        ? `rank ${rank} of ${columns}, condition number ${formatCondition(conditionNumber)}`
-        : `condition number ${formatCondition(conditionNumber)} exceeds the limit ${formatCondition(limit)}`;
+        ? `rank ${rank} of ${columns}, condition number ${exponentText(conditionNumber)}`
+        : `condition number ${exponentText(conditionNumber)} exceeds the limit ${exponentText(limit)}`;
     throw new BandwrightError(
       'SINGULAR',
       `design columns ${listNames(involved.map((j) => names[j] as string))} are collinear (${detail}): their ` +

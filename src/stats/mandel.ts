@@ -8,6 +8,7 @@
  */
 import { BandwrightError } from '../errors.js';
 import { fCdf, fQuantile } from './distributions.js';
+import { significantDigits } from '../words.js';
 
 /** Inputs of {@link mandelTest}: the residual variances of both fits to the same n standards. */
 export interface MandelInput {
@@ -48,12 +49,6 @@ export interface MandelResult {
   recommendation: string;
   /** Name of the test and its standards. */
   definition: string;
-}
-
-/** Four significant digits without trailing zeros, as people write test values. */
-function short(value: number): string {
-  if (!Number.isFinite(value)) return String(value);
-  return String(Number(value.toPrecision(4)));
 }
 
 /**
@@ -105,8 +100,8 @@ export function mandelTest(input: MandelInput, options: { confidence?: number } 
   const pValue = Number.isFinite(testValue) ? 1 - fCdf(testValue, 1, n - 3) : 0;
   const significant = testValue > fCritical;
   const numbers =
-    `PW = ${short(testValue)} ${significant ? '>' : '≤'} F(${confidence}; 1, ${n - 3}) = ` +
-    `${short(fCritical)}`;
+    `PW = ${significantDigits(testValue)} ${significant ? '>' : '≤'} F(${confidence}; 1, ${n - 3}) = ` +
+    `${significantDigits(fCritical)}`;
   const recommendation = significant
     ? `the second-order curve fits significantly better (${numbers}): use a second-order calibration`
     : `the second-order curve does not fit significantly better (${numbers}): a straight line is adequate`;

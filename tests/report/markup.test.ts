@@ -8,14 +8,8 @@
  */
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import {
-  coordinate,
-  element,
-  escapeText,
-  plainMinus,
-  shortNumber,
-  slug,
-} from '../../src/report/svg/markup.js';
+import { significantDigits } from '../../src/words.js';
+import { coordinate, element, escapeText, plainMinus, slug } from '../../src/report/svg/markup.js';
 import { parseMarkup } from './markup-tree.js';
 
 const decode = (text: string): string =>
@@ -80,8 +74,8 @@ describe('numbers and names', () => {
 
   it('one minus sign: U+2212 from d3 becomes ASCII hyphen-minus', () => {
     expect(plainMinus('\u22120.5')).toBe('-0.5');
-    expect(shortNumber(-0.031234)).toBe('-0.0312');
-    expect(shortNumber(5)).toBe('5');
+    expect(significantDigits(-0.031234, 3)).toBe('-0.0312');
+    expect(significantDigits(5, 3)).toBe('5');
   });
 
   it('slugs keep safe characters only and are never empty', () => {

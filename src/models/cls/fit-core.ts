@@ -14,7 +14,7 @@ import type { ClsCoreModel, ClsStandards } from './model.js';
 import { rephraseDesignError } from './refusals.js';
 import { checkPureSpectra } from './separation.js';
 import { designTerms, termName, termValues } from './terms.js';
-import { formatNumber, listNames } from './words.js';
+import { compactNumber, listNames } from '../../words.js';
 
 /** Options of {@link fitClsCore}. */
 export interface ClsCoreOptions {
@@ -106,7 +106,7 @@ export function fitClsCore(data: ClsCoreData, options: ClsCoreOptions): ClsCoreM
   if (!(fitted.state.sampleResidualCount >= 1)) {
     throw new BandwrightError(
       'INSUFFICIENT_DATA',
-      `${channels} ${options.channelWord}s leave ${formatNumber(fitted.state.sampleResidualCount)} independent ` +
+      `${channels} ${options.channelWord}s leave ${compactNumber(fitted.state.sampleResidualCount)} independent ` +
         `residual value(s) after the baseline and ${q} term(s), given the channel-noise correlation ` +
         `(${correlation.length - 1} lags): widen the regions`,
       { parameter: 'spectra' },

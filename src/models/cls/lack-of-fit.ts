@@ -22,7 +22,7 @@ import {
 } from './model.js';
 import { correlationSquareSum } from './noise.js';
 import type { ClsState } from './prediction-state.js';
-import { formatNumber, listNames } from './words.js';
+import { compactNumber, listNames } from '../../words.js';
 
 /**
  * The lack of fit in words: the residual against the blanks' noise, and the second-order terms
@@ -36,14 +36,14 @@ export function describeLackOfFit(lackOfFit: ClsLackOfFit, state: ClsState): str
   const parts: string[] = [];
   if (lackOfFit.residualOverBlank !== null && lackOfFit.blankVariance !== null) {
     parts.push(
-      `the calibration residual (SD ${formatNumber(sd)} a channel) is ` +
-        `${formatNumber(Math.sqrt(lackOfFit.residualOverBlank))} times the noise of the ${lackOfFit.blanks} ` +
-        `zero-gas standard(s) (SD ${formatNumber(Math.sqrt(lackOfFit.blankVariance))}), so it is mostly lack ` +
+      `the calibration residual (SD ${compactNumber(sd)} a channel) is ` +
+        `${compactNumber(Math.sqrt(lackOfFit.residualOverBlank))} times the noise of the ${lackOfFit.blanks} ` +
+        `zero-gas standard(s) (SD ${compactNumber(Math.sqrt(lackOfFit.blankVariance))}), so it is mostly lack ` +
         `of fit rather than noise`,
     );
   } else {
     parts.push(
-      `the calibration residual (SD ${formatNumber(sd)} a channel) is lack of fit rather than noise`,
+      `the calibration residual (SD ${compactNumber(sd)} a channel) is lack of fit rather than noise`,
     );
   }
   const helpful = helpfulGains(lackOfFit);

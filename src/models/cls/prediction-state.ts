@@ -17,7 +17,7 @@ import type { ChannelSegment } from './basis.js';
 import type { ClsCoreModel, ClsTerm } from './model.js';
 import { correlationSquareSum, multiplyCorrelation } from './noise.js';
 import { termName } from './terms.js';
-import { listNames } from './words.js';
+import { listNames } from '../../words.js';
 
 /**
  * Numeric state used for prediction (typed arrays and derived factors), built once from a model

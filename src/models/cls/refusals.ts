@@ -11,7 +11,7 @@ import { describeLackOfFit, helpfulGains, lackOfFitAdvice } from './lack-of-fit.
 import { MINIMUM_SEPARATION_RATIO, type ClsTerm } from './model.js';
 import { separationRatios, type SeparationInput, type SeparationRatios } from './separation-ratios.js';
 import { termsOf } from './terms.js';
-import { formatNumber, listNames } from './words.js';
+import { compactNumber, listNames } from '../../words.js';
 
 /**
  * The same fit with second-order terms for the components whose curvature makes the lack of fit,
@@ -65,7 +65,7 @@ export function signalRefusal(input: SeparationInput, component: number, ratio: 
   const jointly = termsOf(terms, component).length > 1 ? ' (first and second order together)' : '';
   const subject = `pure spectrum of ${name}${jointly}`;
   const measured =
-    `signal ${formatNumber(ratio)} times the energy the calibration residual leaves in it where ` +
+    `signal ${compactNumber(ratio)} times the energy the calibration residual leaves in it where ` +
     `it absorbs, must be >= ${MINIMUM_SEPARATION_RATIO}`;
   const absent = `it does not absorb measurably in the method's ${channelWord}s, or its standards are too weak`;
   if (!lackOfFit.detected) {
@@ -83,7 +83,7 @@ export function signalRefusal(input: SeparationInput, component: number, ratio: 
       return new BandwrightError(
         'SINGULAR',
         `${subject} cannot be told from the calibration's lack of fit (${measured}): ${diagnosis}; with a ` +
-          `second-order term for ${listNames(remedy.names)} its signal ratio would be ${formatNumber(after)}: ` +
+          `second-order term for ${listNames(remedy.names)} its signal ratio would be ${compactNumber(after)}: ` +
           `give ${listNames(remedy.names)} a second-order term (secondOrder)`,
         { parameter: 'spectra' },
       );
@@ -92,7 +92,7 @@ export function signalRefusal(input: SeparationInput, component: number, ratio: 
       'SINGULAR',
       `${subject} is not distinguishable from the calibration residual (${measured}), not even after a ` +
         `second-order term for ${listNames(remedy.names)} removes the lack of fit (ratio ` +
-        `${after === null ? 'not available' : formatNumber(after)} then): ${absent}`,
+        `${after === null ? 'not available' : compactNumber(after)} then): ${absent}`,
       { parameter: 'spectra' },
     );
   }
@@ -122,7 +122,7 @@ export function shapeRefusal(
   const { components, channelWord, lackOfFit } = input;
   const pair = `${components[component]!.name} and ${components[other]!.name}`;
   const measured =
-    `their difference carries ${formatNumber(ratio)} times the energy the calibration residual ` +
+    `their difference carries ${compactNumber(ratio)} times the energy the calibration residual ` +
     `leaves in it, must be >= ${MINIMUM_SEPARATION_RATIO}`;
   const coincide =
     `their bands coincide and cannot be separated; extend the regions to where their bands ` +
@@ -145,7 +145,7 @@ export function shapeRefusal(
         'SINGULAR',
         `pure spectra of ${pair} cannot be told apart through the calibration's lack of fit (${measured}): ` +
           `${diagnosis}; with a second-order term for ${listNames(remedy.names)} their separation ratio would ` +
-          `be ${formatNumber(after)}: give ${listNames(remedy.names)} a second-order term (secondOrder)`,
+          `be ${compactNumber(after)}: give ${listNames(remedy.names)} a second-order term (secondOrder)`,
         { parameter: 'spectra' },
       );
     }
@@ -153,7 +153,7 @@ export function shapeRefusal(
       'SINGULAR',
       `pure spectra of ${pair} have the same shape within the calibration residual (${measured}), even after a ` +
         `second-order term for ${listNames(remedy.names)} removes the lack of fit (ratio ` +
-        `${after === undefined ? 'not available' : formatNumber(after)} then): ${coincide}`,
+        `${after === undefined ? 'not available' : compactNumber(after)} then): ${coincide}`,
       { parameter: 'spectra' },
     );
   }

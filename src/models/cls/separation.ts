@@ -10,7 +10,7 @@ import { MINIMUM_SEPARATION_RATIO } from './model.js';
 import { shapeRefusal, signalRefusal } from './refusals.js';
 import { separationRatios, type SeparationInput } from './separation-ratios.js';
 import { termName, termsOf } from './terms.js';
-import { formatNumber, listNames } from './words.js';
+import { compactNumber, listNames } from '../../words.js';
 
 /** What the checks found: the condition number of Kᵀ and the ratios per term. */
 export interface PureSpectrumChecks {
@@ -72,8 +72,8 @@ export function checkPureSpectra(input: SeparationInput): PureSpectrumChecks {
       throw new BandwrightError(
         'SINGULAR',
         `pure spectra of ${listNames(involved.map((t) => names[t]!))} nearly coincide over the method's ` +
-          `${channelWord}s (condition number ${formatNumber(condition)} of the column-scaled pure-spectrum ` +
-          `matrix, limit ${formatNumber(conditionLimit)}): their bands cannot be separated; extend the regions ` +
+          `${channelWord}s (condition number ${compactNumber(condition)} of the column-scaled pure-spectrum ` +
+          `matrix, limit ${compactNumber(conditionLimit)}): their bands cannot be separated; extend the regions ` +
           `to where their bands differ, or drop one of them`,
         { parameter: 'spectra' },
       );

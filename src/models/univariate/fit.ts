@@ -12,7 +12,6 @@ import { limitsFor } from './limits.js';
 import {
   CURVE_FORMS,
   MAX_MAGNITUDE,
-  short,
   WEIGHT_SCHEMES,
   type Coefficients,
   type CurveForm,
@@ -21,6 +20,7 @@ import {
   type UnivariateModel,
 } from './model.js';
 import { groupLevels, weightStandards } from './weights.js';
+import { significantDigits } from '../../words.js';
 
 const FORM_PARAMETERS: Record<CurveForm, ('a' | 'b' | 'c')[]> = {
   linear: ['a', 'b'],
@@ -215,7 +215,7 @@ export function fitUnivariate(data: UnivariateData, options: UnivariateFitOption
     const tIntercept = criticalT(0.95, straight.fit.degreesOfFreedom);
     if (Math.abs(straight.coefficients.a) > tIntercept * interceptSE) {
       warnings.push(
-        `a straight line with intercept gives a = ${short(straight.coefficients.a)} ± ${short(interceptSE)} ` +
+        `a straight line with intercept gives a = ${significantDigits(straight.coefficients.a)} ± ${significantDigits(interceptSE)} ` +
           `(standard error), significantly different from 0 at 95 %: a through-origin calibration is biased on ` +
           `these standards`,
       );
@@ -226,8 +226,8 @@ export function fitUnivariate(data: UnivariateData, options: UnivariateFitOption
   const tSlope = criticalT(0.95, degreesOfFreedom);
   if (Math.abs(coefficients.b) < tSlope * standardErrors.b && form !== 'quadratic') {
     warnings.push(
-      `the slope b = ${short(coefficients.b)} is not significantly different from zero (standard error ` +
-        `${short(standardErrors.b)}, 95 %): concentrations inferred from this calibration are unreliable`,
+      `the slope b = ${significantDigits(coefficients.b)} is not significantly different from zero (standard error ` +
+        `${significantDigits(standardErrors.b)}, 95 %): concentrations inferred from this calibration are unreliable`,
     );
   }
   const range: [number, number] = [levels[0] as number, levels[levels.length - 1] as number];
@@ -235,7 +235,7 @@ export function fitUnivariate(data: UnivariateData, options: UnivariateFitOption
     const vertex = -coefficients.b / (2 * coefficients.c);
     if (vertex > range[0] && vertex < range[1]) {
       warnings.push(
-        `the second-order curve turns at concentration ${short(vertex)}, inside the calibrated range ` +
+        `the second-order curve turns at concentration ${significantDigits(vertex)}, inside the calibrated range ` +
           `${range[0]}–${range[1]}: responses near the turn do not determine one concentration`,
       );
     }

@@ -4,8 +4,9 @@
  * (ȳ0 − ŷ(x))² ≤ t²·(s²/(m·w(x)) + Var ŷ(x)), w(x) taken at each candidate x).
  */
 import { BandwrightError } from '../../errors.js';
-import { fittedVarianceAt, short, type UnivariateModel } from './model.js';
+import { fittedVarianceAt, type UnivariateModel } from './model.js';
 import { weightAt } from './weights.js';
+import { significantDigits } from '../../words.js';
 
 /**
  * Roots of A·z² + B·z + C = 0 by the cancellation-free formula, ascending.
@@ -43,9 +44,9 @@ export function invertCurve(model: UnivariateModel, target: number): number {
     const vertexResponse = a + b * vertex + c * vertex * vertex;
     throw new BandwrightError(
       'NO_SOLUTION',
-      `response ${short(target)} is beyond the vertex of the second-order calibration (its ` +
-        `${c < 0 ? 'highest' : 'lowest'} response is ${short(vertexResponse)}, at concentration ` +
-        `${short(vertex)}): no concentration gives this response`,
+      `response ${significantDigits(target)} is beyond the vertex of the second-order calibration (its ` +
+        `${c < 0 ? 'highest' : 'lowest'} response is ${significantDigits(vertexResponse)}, at concentration ` +
+        `${significantDigits(vertex)}): no concentration gives this response`,
       { parameter: 'responses' },
     );
   }
@@ -56,9 +57,9 @@ export function invertCurve(model: UnivariateModel, target: number): number {
   else if (inside.length === 2) {
     throw new BandwrightError(
       'NO_SOLUTION',
-      `response ${short(target)} is reached twice inside the calibrated range (at concentrations ` +
-        `${short(inside[0] as number)} and ${short(inside[1] as number)}), because the second-order curve ` +
-        `turns at ${short(vertex)}: the calibration is not monotonic there`,
+      `response ${significantDigits(target)} is reached twice inside the calibrated range (at concentrations ` +
+        `${significantDigits(inside[0] as number)} and ${significantDigits(inside[1] as number)}), because the second-order curve ` +
+        `turns at ${significantDigits(vertex)}: the calibration is not monotonic there`,
       { parameter: 'responses' },
     );
   } else {

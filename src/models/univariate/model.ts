@@ -141,11 +141,6 @@ export interface UnivariateModel {
   warnings: string[];
 }
 
-/** Four significant digits without trailing zeros, as numbers are quoted in messages. */
-export function short(value: number): string {
-  return String(Number(value.toPrecision(4)));
-}
-
 /**
  * Variance of the fitted response at x, gᵀ·Cov·g with g = (1, x, x²), never below 0.
  *

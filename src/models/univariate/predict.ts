@@ -16,8 +16,9 @@
 import { BandwrightError } from '../../errors.js';
 import { criticalT } from '../../stats/distributions.js';
 import { fiellerByBracketing, invertCurve, quadraticRoots } from './inverse.js';
-import { fittedVarianceAt, short, type UnivariateModel } from './model.js';
+import { fittedVarianceAt, type UnivariateModel } from './model.js';
 import { weightAt } from './weights.js';
+import { significantDigits } from '../../words.js';
 
 /** Options of {@link predictUnivariate}. */
 export interface UnivariatePredictOptions {
@@ -179,16 +180,16 @@ export function predictUnivariate(
       `+ x̂0²/Σx²)`;
   }
   if (model.weights !== 'none')
-    description += `; w0 = w(x̂0) = ${short(weightAt(model, value))} from the calibration's weighting`;
+    description += `; w0 = w(x̂0) = ${significantDigits(weightAt(model, value))} from the calibration's weighting`;
   const se = Math.sqrt(variance);
   // A response far outside the calibration (or a damaged model) can overflow the arithmetic; a
   // NaN or infinite estimate must never leave here looking like a result.
   if (!Number.isFinite(value) || !Number.isFinite(se)) {
     throw new BandwrightError(
       'NO_SOLUTION',
-      `response ${short(mean)} gives concentration ${short(value)} with standard error ${short(se)}: not a ` +
+      `response ${significantDigits(mean)} gives concentration ${significantDigits(value)} with standard error ${significantDigits(se)}: not a ` +
         `finite estimate; the response is too far outside the calibrated responses ` +
-        `(${short(model.meanResponse)} on average) or the model is damaged`,
+        `(${significantDigits(model.meanResponse)} on average) or the model is damaged`,
       { parameter: 'responses' },
     );
   }
@@ -214,7 +215,7 @@ export function predictUnivariate(
       }
       description =
         `Fieller interval: the concentrations x with (ȳ0 − ŷ(x))² ≤ t²·Var(ȳ0 − ŷ(x)), t = ` +
-        `${quantile}, solved in closed form; g = t²s²/(b²·S) = ${short(gValue)}`;
+        `${quantile}, solved in closed form; g = t²s²/(b²·S) = ${significantDigits(gValue)}`;
       if (gValue >= 1) {
         unbounded = true;
         low = null;
@@ -235,18 +236,18 @@ export function predictUnivariate(
       description =
         `Fieller interval: the concentrations x with (ȳ0 − ŷ(x))² ≤ t²·(s²/(m·w(x)) + Var ŷ(x)), t ` +
         `= ${quantile}, with the weight w(x) taken at each x (${model.weighting.rule}), solved numerically; g ` +
-        `= t²s²/(b²·S) = ${short(gValue)}`;
+        `= t²s²/(b²·S) = ${significantDigits(gValue)}`;
     }
     if (unbounded) {
       description += '; the slope is too poorly determined at this level, so the interval is unbounded';
       warnings.push(
-        `the Fieller interval is unbounded (g = ${short(gValue)}): the calibration's slope is too poorly ` +
+        `the Fieller interval is unbounded (g = ${significantDigits(gValue)}): the calibration's slope is too poorly ` +
           `determined to bound this concentration at level ${level}`,
       );
     }
   } else if (g !== null && g > 0.1) {
     warnings.push(
-      `the slope is poorly determined (g = ${short(g)} > 0.1): the standard interval is only approximate; use ` +
+      `the slope is poorly determined (g = ${significantDigits(g)} > 0.1): the standard interval is only approximate; use ` +
         `the Fieller method`,
     );
   }
@@ -255,7 +256,7 @@ export function predictUnivariate(
   const extrapolated = value < rangeLow - tolerance || value > rangeHigh + tolerance;
   if (extrapolated)
     warnings.push(
-      `concentration ${short(value)} is outside the calibrated range ${rangeLow}–${rangeHigh} (extrapolated)`,
+      `concentration ${significantDigits(value)} is outside the calibrated range ${rangeLow}–${rangeHigh} (extrapolated)`,
     );
   return {
     value,

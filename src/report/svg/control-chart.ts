@@ -23,7 +23,7 @@ import {
   type LegendEntry,
   type PlotOptions,
 } from './chart.js';
-import { element, escapeText, shortNumber, translate } from './markup.js';
+import { element, escapeText, translate } from './markup.js';
 import { ALERT, INK, MUTED, seriesStyle } from './palette.js';
 import {
   horizontalRule,
@@ -33,6 +33,7 @@ import {
   verticalRule,
   type RuleStyle,
 } from './panel.js';
+import { significantDigits } from '../../words.js';
 
 /** Verdict of one check. */
 export type CheckVerdict = 'pass' | 'warning' | 'fail';
@@ -177,9 +178,14 @@ export function renderControlChart(input: ControlChartInput, options: ControlCha
     { label: 'pass', colour: INK, marker: symbolCircle },
     { label: 'warning', colour: seriesStyle(1).colour, marker: symbolTriangle },
     { label: 'fail', colour: ALERT, marker: symbolCross },
-    { label: `tolerance ±${shortNumber(input.tolerancePct)} %`, colour: ALERT, line: true, lineWidth: 2 },
     {
-      label: `±2σ warning (σ = ${shortNumber(input.sigmaPct)} %)`,
+      label: `tolerance ±${significantDigits(input.tolerancePct, 3)} %`,
+      colour: ALERT,
+      line: true,
+      lineWidth: 2,
+    },
+    {
+      label: `±2σ warning (σ = ${significantDigits(input.sigmaPct, 3)} %)`,
       colour: warningStyle.colour,
       dash: warningStyle.dash,
       line: true,
@@ -281,7 +287,7 @@ export function renderControlChart(input: ControlChartInput, options: ControlCha
     ...bothSides(
       input.tolerancePct,
       toleranceStyle,
-      (sign) => `tolerance ${sign}${shortNumber(input.tolerancePct)} %`,
+      (sign) => `tolerance ${sign}${significantDigits(input.tolerancePct, 3)} %`,
     ),
     ...bothSides(
       2 * input.sigmaPct,
@@ -446,7 +452,7 @@ export function renderControlChart(input: ControlChartInput, options: ControlCha
     width,
     height,
     title: input.title ?? 'Check-standard recoveries',
-    description: `${records.length} checks against tolerance ±${shortNumber(input.tolerancePct)} % and ±2σ/±3σ limits with σ = ${shortNumber(input.sigmaPct)} %; ${fired} with a control rule fired${input.trend === undefined ? '' : `; trend ${formatNumber(input.trend.slopePctPerDay * 7, 3)} % per week`}.`,
+    description: `${records.length} checks against tolerance ±${significantDigits(input.tolerancePct, 3)} % and ±2σ/±3σ limits with σ = ${significantDigits(input.sigmaPct, 3)} %; ${fired} with a control rule fired${input.trend === undefined ? '' : `; trend ${formatNumber(input.trend.slopePctPerDay * 7, 3)} % per week`}.`,
     defs,
     body: body.join(''),
   });

@@ -115,15 +115,3 @@ export function slug(text: string): string {
 export function fileName(path: string): string {
   return path.replace(/^.*[\\/]/, '');
 }
-
-/**
- * A number for labels and legends: at most `digits` significant digits, trailing zeros dropped,
- * ASCII minus (e.g. `5`, `1.2`, `-0.031`).
- *
- * @param value - the number
- * @param digits - significant digits (default 3)
- */
-export function shortNumber(value: number, digits = 3): string {
-  if (!Number.isFinite(value)) return String(value);
-  return String(Number(value.toPrecision(digits)));
-}
