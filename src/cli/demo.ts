@@ -10,7 +10,7 @@ import { fileURLToPath } from 'node:url';
 import type { Command } from 'commander';
 import { BandwrightError } from '../errors.js';
 import { writeFileAtomic } from '../store/atomic-write.js';
-import { isNonEmptyFolder } from '../store/folders.js';
+import { isOccupied } from '../store/folders.js';
 import { readCheckList } from '../store/check-list.js';
 import { historyPathFor, moveHistoryAside } from '../store/history.js';
 import { note, raiseStatus, type CommandContext } from './context.js';
@@ -88,7 +88,7 @@ export function registerDemo(
     .option('--force', 'use the folder even if it is not empty (files the demo writes are replaced)')
     .action(async (flags: { out: string; force?: boolean }) => {
       const out = flags.out;
-      if (isNonEmptyFolder(out) && !flags.force) {
+      if (isOccupied(out) && !flags.force) {
         throw new BandwrightError(
           'FILE_EXISTS',
           `${out} exists and is not empty; choose another --out or add --force`,

@@ -13,7 +13,7 @@ import { svgFile } from '../report/svg/chart.js';
 import type { NamedPlot } from '../report/svg/plot-set.js';
 import type { WavenumberAxis } from '../report/svg/spectra.js';
 import { writeFileAtomic } from '../store/atomic-write.js';
-import { isNonEmptyFolder } from '../store/folders.js';
+import { isOccupied } from '../store/folders.js';
 import { TOOL } from '../version.js';
 import { note, type CommandContext } from './context.js';
 import { creationTime } from './parse.js';
@@ -27,7 +27,7 @@ import { creationTime } from './parse.js';
  * @throws BandwrightError `FILE_EXISTS` naming the file
  */
 export function refuseExisting(path: string, force: boolean, option: string): void {
-  if (!force && isNonEmptyFolder(path))
+  if (!force && isOccupied(path))
     throw new BandwrightError('FILE_EXISTS', `${path} exists; use --force to replace it`, {
       file: path,
       parameter: option,
@@ -44,7 +44,7 @@ export function refuseExisting(path: string, force: boolean, option: string): vo
  */
 export function refuseExistingPlots(folder: string, plots: readonly NamedPlot[], force: boolean): void {
   if (force) return;
-  const existing = plots.map((plot) => join(folder, plot.file)).find((path) => isNonEmptyFolder(path));
+  const existing = plots.map((plot) => join(folder, plot.file)).find((path) => isOccupied(path));
   if (existing !== undefined)
     throw new BandwrightError(
       'FILE_EXISTS',

@@ -10,7 +10,7 @@ export {
   type UnivariatePrediction,
   type UnivariatePredictOptions,
 } from '../models/univariate/predict.js';
-export { responseBand, type ResponseBandPoint } from '../models/univariate/response-band.js';
+export { fittedCurveWithBands, type FittedCurvePoint } from '../models/univariate/curve-bands.js';
 export type {
   CurveForm,
   UnivariateModel,

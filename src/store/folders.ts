@@ -4,11 +4,12 @@
 import { existsSync, readdirSync, statSync } from 'node:fs';
 
 /**
- * True when `path` is an existing folder with at least one entry (or an existing file).
+ * True when writing into `path` would disturb something: it is an existing file, or a folder
+ * with at least one entry. An empty folder or a missing path is free.
  *
- * @param path - folder path
+ * @param path - where a command would write (a folder, or a file)
  */
-export function isNonEmptyFolder(path: string): boolean {
+export function isOccupied(path: string): boolean {
   if (!existsSync(path)) return false;
   return !statSync(path).isDirectory() || readdirSync(path).length > 0;
 }

@@ -6,7 +6,7 @@ import { describe, expect, it } from 'vitest';
 import { fitUnivariate } from '../../src/models/univariate/fit.js';
 import type { CurveForm, UnivariateModel, WeightScheme } from '../../src/models/univariate/model.js';
 import { predictUnivariate } from '../../src/models/univariate/predict.js';
-import { responseBand } from '../../src/models/univariate/response-band.js';
+import { fittedCurveWithBands } from '../../src/models/univariate/curve-bands.js';
 import { weightAt } from '../../src/models/univariate/weights.js';
 import { createRandom } from '../../src/simulate/random.js';
 import { leastSquares } from '../../src/stats/least-squares.js';
@@ -420,7 +420,7 @@ describe('input validation', () => {
         const responses = deepFreeze([2.5, 2.6]);
         predictUnivariate(model, responses);
         if (form !== 'quadratic') predictUnivariate(model, responses, { method: 'fieller' });
-        responseBand(model, deepFreeze([0, 25, 40]));
+        fittedCurveWithBands(model, deepFreeze([0, 25, 40]));
         expect(JSON.stringify(model)).toBe(snapshot);
         expect(responses).toEqual([2.5, 2.6]);
       }
@@ -558,7 +558,7 @@ describe('second-order inversion, extrapolation and Fieller', () => {
   });
 
   it('the response band brackets the standards at the prediction level', () => {
-    const band = responseBand(model, [0, 250, 500]);
+    const band = fittedCurveWithBands(model, [0, 250, 500]);
     expect(band).toHaveLength(3);
     for (const point of band) {
       expect(point.prediction[0]).toBeLessThan(point.confidence[0]);

@@ -11,7 +11,7 @@
 import { area, line, symbolCircle } from 'd3-shape';
 import type { GasCalibration } from '../../calibration/calibration.js';
 import { unitLabel } from '../../gas/units.js';
-import { responseBand } from '../../models/univariate/response-band.js';
+import { fittedCurveWithBands } from '../../models/univariate/curve-bands.js';
 import { formatNumber } from '../table.js';
 import {
   clipPath,
@@ -132,7 +132,7 @@ export function calibrationCurveData(
   const [low, high] = model.range;
   const start = Math.min(0, low);
   const concentrations = Array.from({ length: count }, (_, i) => start + ((high - start) * i) / (count - 1));
-  const band = responseBand(model, concentrations, { level });
+  const band = fittedCurveWithBands(model, concentrations, { level });
   const limits: CurveLimitLine[] = [];
   const { detection, determination } = model.limits;
   if (detection.value !== null)

@@ -9,7 +9,7 @@ import { fittedVarianceAt, type UnivariateModel } from './model.js';
 import { weightAt } from './weights.js';
 
 /** Fitted response at a concentration with its confidence and prediction bands. */
-export interface ResponseBandPoint {
+export interface FittedCurvePoint {
   /** Concentration, calibration units. */
   concentration: number;
   /** Fitted response ŷ(x). */
@@ -31,11 +31,11 @@ export interface ResponseBandPoint {
  * @returns one point per concentration
  * @throws BandwrightError `INVALID_VALUE` for a non-finite concentration or a level outside (0, 1)
  */
-export function responseBand(
+export function fittedCurveWithBands(
   model: UnivariateModel,
   concentrations: readonly number[],
   options: { level?: number } = {},
-): ResponseBandPoint[] {
+): FittedCurvePoint[] {
   const level = options.level ?? 0.95;
   const t = criticalT(level, model.degreesOfFreedom);
   const { a, b, c } = model.coefficients;
