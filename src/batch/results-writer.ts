@@ -26,6 +26,7 @@ import {
 } from 'node:fs';
 import { basename, dirname, join } from 'node:path';
 import { BandwrightError } from '../errors.js';
+import { fileSystemError } from '../store/file-errors.js';
 import { writeFileAtomic } from '../store/atomic-write.js';
 
 /** Options of {@link openResultsWriter}. */
@@ -144,13 +145,7 @@ export function assertAppendable(path: string, header: string | undefined): void
       throw new BandwrightError('FILE_READ', `${path} is a folder, expected a results file`, { file: path });
     ends = fileEnds(path, Math.max(header?.length ?? 0, 64 * 1024) + 4);
   } catch (error) {
-    if (error instanceof BandwrightError) throw error;
-    throw new BandwrightError(
-      'FILE_READ',
-      `${path}: cannot read: ${(error as Error).message}`,
-      { file: path },
-      { cause: error },
-    );
+    throw fileSystemError(error, path);
   }
   if (ends.size === 0) return;
   if (ends.lastByte !== 0x0a) {

@@ -19,6 +19,7 @@
 import { readdirSync, statSync, type Dirent } from 'node:fs';
 import { resolve } from 'node:path';
 import { BandwrightError } from '../errors.js';
+import { fileSystemError } from '../store/file-errors.js';
 
 /** Extensions a folder is searched for by default. */
 export const SCAN_EXTENSIONS: readonly string[] = ['.csv', '.tsv', '.txt', '.jdx', '.dx', '.jcamp'];
@@ -102,15 +103,7 @@ function listFolder(folder: string): Dirent[] {
   try {
     return readdirSync(folder, { withFileTypes: true });
   } catch (error) {
-    const code = (error as NodeJS.ErrnoException).code;
-    if (code === 'ENOENT')
-      throw new BandwrightError('FILE_NOT_FOUND', `${folder}: no such folder`, { file: folder });
-    throw new BandwrightError(
-      'FILE_READ',
-      `${folder}: cannot list: ${(error as Error).message}`,
-      { file: folder },
-      { cause: error },
-    );
+    throw fileSystemError(error, folder, { kind: 'folder', action: 'list' });
   }
 }
 

@@ -8,6 +8,7 @@
  */
 import { closeSync, openSync, readSync, statSync } from 'node:fs';
 import { BandwrightError } from '../errors.js';
+import { fileSystemError } from '../store/file-errors.js';
 import type { Spectrum } from '../spectrum/spectrum.js';
 import { parseJcamp } from '../formats/jcamp/read.js';
 import { resourceLimits } from '../resource-limits.js';
@@ -68,15 +69,7 @@ export function createScanReader(options: ScanReaderOptions = {}): ScanReader {
       size = stats.size;
       descriptor = openSync(path, 'r');
     } catch (error) {
-      if (error instanceof BandwrightError) throw error;
-      if ((error as NodeJS.ErrnoException).code === 'ENOENT')
-        throw new BandwrightError('FILE_NOT_FOUND', `${path}: no such file`, { file: path });
-      throw new BandwrightError(
-        'FILE_READ',
-        `${path}: cannot read: ${(error as Error).message}`,
-        { file: path },
-        { cause: error },
-      );
+      throw fileSystemError(error, path);
     }
     let length = 0;
     try {
@@ -99,13 +92,7 @@ export function createScanReader(options: ScanReaderOptions = {}): ScanReader {
           );
       }
     } catch (error) {
-      if (error instanceof BandwrightError) throw error;
-      throw new BandwrightError(
-        'FILE_READ',
-        `${path}: cannot read: ${(error as Error).message}`,
-        { file: path },
-        { cause: error },
-      );
+      throw fileSystemError(error, path);
     } finally {
       closeSync(descriptor);
     }

@@ -26,6 +26,7 @@ import {
 } from 'node:fs';
 import { resolve } from 'node:path';
 import { BandwrightError } from '../errors.js';
+import { fileSystemError } from '../store/file-errors.js';
 import { SCAN_EXTENSIONS } from './scan-paths.js';
 
 /** What identifies one version of a file. */
@@ -131,15 +132,7 @@ export function createFolderWatcher(folder: string, options: FolderWatcherOption
         { file: folder },
       );
   } catch (error) {
-    if (error instanceof BandwrightError) throw error;
-    if ((error as NodeJS.ErrnoException).code === 'ENOENT')
-      throw new BandwrightError('FILE_NOT_FOUND', `${folder}: no such folder`, { file: folder });
-    throw new BandwrightError(
-      'FILE_READ',
-      `${folder}: cannot read: ${(error as Error).message}`,
-      { file: folder },
-      { cause: error },
-    );
+    throw fileSystemError(error, folder, { kind: 'folder', action: 'read' });
   }
   const isScanName = (name: string): boolean => {
     if (name.startsWith('.')) return false;
@@ -256,12 +249,7 @@ export function readProcessedRecord(path: string): Map<string, FileStamp> {
   try {
     text = readFileSync(path, 'utf8');
   } catch (error) {
-    throw new BandwrightError(
-      'FILE_READ',
-      `${path}: cannot read: ${(error as Error).message}`,
-      { file: path },
-      { cause: error },
-    );
+    throw fileSystemError(error, path);
   }
   const lines = text.split('\n');
   // What follows the last line break is empty, or a line cut short: either way not a record.
@@ -319,12 +307,7 @@ export function openProcessedRecord(path: string): ProcessedRecordFile {
     }
     descriptor = openSync(path, 'a');
   } catch (error) {
-    throw new BandwrightError(
-      'FILE_READ',
-      `${path}: cannot write: ${(error as Error).message}`,
-      { file: path },
-      { cause: error },
-    );
+    throw fileSystemError(error, path, { kind: 'file', action: 'write' });
   }
   let open = true;
   return {

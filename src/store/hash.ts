@@ -46,12 +46,7 @@ export function sha256OfFile(path: string): string {
       hash.update(buffer.subarray(0, count));
     }
   } catch (error) {
-    throw new BandwrightError(
-      'FILE_READ',
-      `${path}: cannot read: ${(error as Error).message}`,
-      { file: path },
-      { cause: error },
-    );
+    throw fileSystemError(error, path);
   } finally {
     closeSync(descriptor);
   }

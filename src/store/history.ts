@@ -10,6 +10,7 @@
 import { closeSync, existsSync, fsyncSync, openSync, renameSync, writeSync } from 'node:fs';
 import { extname } from 'node:path';
 import { BandwrightError } from '../errors.js';
+import { fileSystemError } from './file-errors.js';
 import type { CheckRecord } from '../drift/record.js';
 import { writeFileAtomic } from './atomic-write.js';
 import {
@@ -102,12 +103,7 @@ function appendLine(path: string, line: string): void {
     while (offset < bytes.length) offset += writeSync(descriptor, bytes, offset, bytes.length - offset);
     fsyncSync(descriptor);
   } catch (error) {
-    throw new BandwrightError(
-      'FILE_READ',
-      `${path}: cannot append: ${(error as Error).message}`,
-      { file: path },
-      { cause: error },
-    );
+    throw fileSystemError(error, path, { kind: 'file', action: 'append' });
   } finally {
     if (descriptor !== undefined) closeSync(descriptor);
   }

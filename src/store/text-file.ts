@@ -43,12 +43,7 @@ export function readBytes(
   try {
     return readFileSync(path);
   } catch (error) {
-    throw new BandwrightError(
-      'FILE_READ',
-      `${path}: cannot read: ${(error as Error).message}`,
-      { file: path },
-      { cause: error },
-    );
+    throw fileSystemError(error, path);
   }
 }
 
