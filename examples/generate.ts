@@ -163,13 +163,11 @@ const STACK = {
   noiseRms_AU: 3e-4,
 };
 
-/** A stack gas composition, every gas in ppm (CO2 and H2O too: 1 % = 10,000 ppm). */
-interface StackGases {
-  CO: number;
-  N2O: number;
-  CO2: number;
-  H2O: number;
-}
+/**
+ * A stack gas composition, every gas in ppm (CO2 and H2O too: 1 % = 10,000 ppm). A type rather than an
+ * interface, so that Object.entries knows its values are numbers.
+ */
+type StackGases = Record<'CO' | 'N2O' | 'CO2' | 'H2O', number>;
 
 const NONE: StackGases = { CO: 0, N2O: 0, CO2: 0, H2O: 0 };
 

@@ -11,6 +11,7 @@ import {
   sealCalibration,
   verifyCalibration,
   type Calibration,
+  type CalibrationBody,
 } from '../../src/calibration/calibration.js';
 import { buildBandCalibration } from '../../src/calibration/build.js';
 import { parseMethod, type BandMethod } from '../../src/calibration/method.js';
@@ -27,16 +28,23 @@ import { predictUnivariate } from '../../src/models/univariate/predict.js';
 import { makeSpectrum } from '../../src/spectrum/spectrum.js';
 import { bandScan } from '../helpers/band-scans.js';
 import { temporaryFolder } from '../helpers/cli.js';
+import { deleteJsonAt, parseJsonAs, setJsonAt } from '../helpers/json.js';
 
 const bytes = (text: string): Uint8Array => new TextEncoder().encode(text);
 const conditions = { pathLength_m: 1, temperature_K: 296.15, pressure_kPa: 101.325 };
+
+/** A copy of a calibration's content without its hash, as the file holds it, to edit and re-seal. */
+function bodyOf(calibration: Calibration): CalibrationBody {
+  const { sha256: _sha256, ...body } = parseJsonAs<Calibration>(JSON.stringify(calibration));
+  return body;
+}
 
 function thrown(run: () => unknown): BandwrightError {
   try {
     run();
   } catch (error) {
     if (error instanceof BandwrightError) return error;
-    throw new Error(`expected a BandwrightError, got ${String(error)}`);
+    throw new Error(`expected a BandwrightError, got ${String(error)}`, { cause: error });
   }
   throw new Error('expected a BandwrightError, nothing was thrown');
 }
@@ -208,47 +216,46 @@ describe('a calibration whose hash matches but whose content is malformed', () =
   }));
   const good = buildBandCalibration(method, standards, { inputs: [], createdAt: '2026-01-01T00:00:00.000Z' });
   /** The calibration with one edit, re-sealed so the hash matches the edited content. */
-  const resealed = (edit: (c: Record<string, any>) => void): Calibration => {
-    const copy = JSON.parse(JSON.stringify(good)) as Record<string, any>;
-    delete copy.sha256;
-    edit(copy);
-    return sealCalibration(copy as unknown as Calibration);
+  const resealed = (edit: (c: CalibrationBody) => void): Calibration => {
+    const body = bodyOf(good);
+    edit(body);
+    return sealCalibration(body);
   };
 
   it.each([
     // Before: TypeError "Cannot read properties of undefined (reading 'coefficients')".
     [
       'a missing model',
-      (c: Record<string, any>) => delete c.gases[0].model,
+      (c: CalibrationBody) => deleteJsonAt(c, ['gases', 0, 'model']),
       /gases\[0\]\.model = missing, must be an object/,
     ],
     // Before: TypeError "calibration.gases is not iterable".
-    ['gases not a list', (c: Record<string, any>) => (c.gases = {}), /gases = \{\}, must be a list/],
+    ['gases not a list', (c: CalibrationBody) => setJsonAt(c, ['gases'], {}), /gases = \{\}, must be a list/],
     // Before: a concentration of null (NaN) with exit status 0.
     [
       'a text coefficient',
-      (c: Record<string, any>) => (c.gases[0].model.coefficients.b = 'x'),
+      (c: CalibrationBody) => setJsonAt(c, ['gases', 0, 'model', 'coefficients', 'b'], 'x'),
       /gases\[0\]\.model\.coefficients\.b = "x", must be a finite number/,
     ],
     // Before: -100 ppm for a 100 ppm sample, exit status 0.
     [
       'a negative reference path length',
-      (c: Record<string, any>) => (c.reference.pathLength_m = -1),
+      (c: CalibrationBody) => (c.reference.pathLength_m = -1),
       /reference\.pathLength_m = -1, must be a number > 0/,
     ],
     [
       'an inverted band',
-      (c: Record<string, any>) => (c.gases[0].feature.band = [2245, 2040]),
+      (c: CalibrationBody) => setJsonAt(c, ['gases', 0, 'feature', 'band'], [2245, 2040]),
       /gases\[0\]\.feature\.band = \[2245,2040\], must be \[low, high\]/,
     ],
     [
       'an unknown method kind',
-      (c: Record<string, any>) => (c.method.model = 'neural'),
+      (c: CalibrationBody) => setJsonAt(c, ['method', 'model'], 'neural'),
       /method\.model = "neural", must be one of band, responses, cls/,
     ],
     [
       'an input without a proper hash',
-      (c: Record<string, any>) => (c.inputs = [{ role: 'standard', path: 'a.csv', sha256: 'xyz' }]),
+      (c: CalibrationBody) => (c.inputs = [{ role: 'standard', path: 'a.csv', sha256: 'xyz' }]),
       /inputs\[0\]\.sha256 = "xyz", must be 64 lower-case hexadecimal digits/,
     ],
   ])('%s is a SCHEMA error naming the field', (_name, edit, message) => {
@@ -352,14 +359,10 @@ describe('a CLS calibration whose model is damaged but re-sealed', () => {
       inputs: [],
       createdAt: '2026-01-01T00:00:00.000Z',
     });
-    const copy = JSON.parse(JSON.stringify(good)) as Record<string, any>;
-    delete copy.sha256;
-    copy.cls.model.crossValidation.inflation[0] = -2.8e165;
+    const body = bodyOf(good);
+    setJsonAt(body, ['cls', 'model', 'crossValidation', 'inflation', 0], -2.8e165);
     const error = thrown(() =>
-      verifyCalibration(
-        JSON.parse(JSON.stringify(sealCalibration(copy as unknown as Calibration))),
-        'c.json',
-      ),
+      verifyCalibration(JSON.parse(JSON.stringify(sealCalibration(body))), 'c.json'),
     );
     expect(error.code).toBe('SCHEMA');
     expect(error.message).toMatch(
@@ -384,15 +387,12 @@ describe('a CLS calibration whose model is damaged but re-sealed', () => {
       inputs: [],
       createdAt: '2026-01-01T00:00:00.000Z',
     });
-    const copy = JSON.parse(JSON.stringify(good)) as Record<string, any>;
-    delete copy.sha256;
-    const grid = copy.cls.model.grid as number[];
-    grid[grid.length - 1] = 2.2278701032325086e74;
+    const body = bodyOf(good);
+    const grid = body.cls?.model.grid;
+    if (grid === undefined || grid === null) expect.fail('the model has no channel grid');
+    setJsonAt(body, ['cls', 'model', 'grid', grid.length - 1], 2.2278701032325086e74);
     const error = thrown(() =>
-      verifyCalibration(
-        JSON.parse(JSON.stringify(sealCalibration(copy as unknown as Calibration))),
-        'c.json',
-      ),
+      verifyCalibration(JSON.parse(JSON.stringify(sealCalibration(body))), 'c.json'),
     );
     expect(error.code).toBe('SCHEMA');
     expect(error.message).toMatch(

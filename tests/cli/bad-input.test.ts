@@ -7,6 +7,9 @@ import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { bandScan, writeScan } from '../helpers/band-scans.js';
 import { runCli, temporaryFolder } from '../helpers/cli.js';
+import { gasAt, scanFailure, type QuantifyDocument } from '../helpers/documents.js';
+import { parseJsonAs, readJsonAs } from '../helpers/json.js';
+import type { Calibration } from '../../src/calibration/calibration.js';
 
 const folder = temporaryFolder();
 const at = (name: string) => join(folder.path, name);
@@ -197,8 +200,8 @@ describe('quantify refuses bad input', () => {
   });
 
   it('refuses a tampered calibration, saying so, and writes no results', async () => {
-    const calibration = JSON.parse(readFileSync(at('co.json'), 'utf8'));
-    calibration.gases[0].model.coefficients.b *= 1.1;
+    const calibration = readJsonAs<Calibration>(at('co.json'));
+    calibration.gases[0]!.model.coefficients.b *= 1.1;
     writeFileSync(at('tampered.json'), JSON.stringify(calibration, null, 2));
     await expectFailure(
       ['quantify', at('tampered.json'), at('s100.csv'), '--csv', at('r.csv')],
@@ -208,7 +211,7 @@ describe('quantify refuses bad input', () => {
   });
 
   it('refuses a calibration of a newer schema', async () => {
-    const calibration = JSON.parse(readFileSync(at('co.json'), 'utf8'));
+    const calibration = readJsonAs<Calibration>(at('co.json'));
     writeFileSync(at('future.json'), JSON.stringify({ ...calibration, schemaVersion: '9.0' }));
     await expectFailure(
       ['quantify', at('future.json'), at('s100.csv')],
@@ -219,9 +222,9 @@ describe('quantify refuses bad input', () => {
   it('reports a scan without conditions in its row and exits 1, keeping the good scans', async () => {
     const run = await runCli('quantify', at('co.json'), at('s100.csv'), at('bare.csv'), '--json');
     expect(run.status).toBe(1);
-    const results = JSON.parse(run.stdout).results;
-    expect(results[0].gases[0].value).toBeCloseTo(100, 0);
-    expect(results[1].error).toMatch(/bare.csv: no path length .*option --path-length\)/);
+    const results = parseJsonAs<QuantifyDocument>(run.stdout).results;
+    expect(gasAt(results[0]).value).toBeCloseTo(100, 0);
+    expect(scanFailure(results[1]).error).toMatch(/bare.csv: no path length .*option --path-length\)/);
   });
 
   it('takes missing conditions from options', async () => {
@@ -238,7 +241,7 @@ describe('quantify refuses bad input', () => {
       '101.325',
     );
     expect(run.status).toBe(0);
-    expect(JSON.parse(run.stdout).results[0].gases[0].value).toBeCloseTo(100, 0);
+    expect(gasAt(parseJsonAs<QuantifyDocument>(run.stdout).results[0]).value).toBeCloseTo(100, 0);
   });
 
   it('refuses an O2 correction too near air, naming the values', async () => {

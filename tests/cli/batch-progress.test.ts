@@ -40,6 +40,7 @@ describe('createProgress', () => {
     }
     // First drawing at once, then every 100 ms (at 105, 205, 305, 405 ms), and the last at 500 ms.
     expect(drawings).toBe(6);
+    // eslint-disable-next-line no-control-regex -- the line is redrawn after the terminal's erase-line code, ESC [K
     expect(ctx.text()).toMatch(/\r\x1b\[K\[##########\] 100\/100 scans, 1 failed, 200 scans\/s$/);
     progress.note('a message');
     expect(ctx.text().endsWith('\r\x1b[Ka message\n')).toBe(true);

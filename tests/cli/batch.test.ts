@@ -20,6 +20,9 @@ import { readCalibration } from '../../src/store/calibration-file.js';
 import { formatResultsText, resultsCsv, resultsDocument, type BatchEntry } from '../../src/report/results.js';
 import { BAND_OPTIONS, bandScan, writeScan, writeStandardSeries } from '../helpers/band-scans.js';
 import { runCli, temporaryFolder } from '../helpers/cli.js';
+import { gasAt, scanFailure, type ResultLine } from '../helpers/documents.js';
+import { parseJsonAs, parseJsonLinesAs, readJsonAs } from '../helpers/json.js';
+import type { Calibration } from '../../src/calibration/calibration.js';
 
 const folder = temporaryFolder('bandwright-batch-');
 const at = (name: string) => join(folder.path, name);
@@ -148,15 +151,12 @@ describe('a 2,000-scan batch with 3 corrupt files', () => {
   }, 60_000);
 
   it('writes one results element per JSON line, each with the calibration hash', () => {
-    const calibrationSha256 = JSON.parse(readFileSync(at('co.json'), 'utf8')).sha256;
-    const lines = readFileSync(at('thread.jsonl'), 'utf8')
-      .trimEnd()
-      .split('\n')
-      .map((line) => JSON.parse(line));
+    const calibrationSha256 = readJsonAs<Calibration>(at('co.json')).sha256;
+    const lines = parseJsonLinesAs<ResultLine>(readFileSync(at('thread.jsonl'), 'utf8'));
     expect(lines).toHaveLength(SCANS);
     for (const line of lines) expect(line.calibrationSha256).toBe(calibrationSha256);
-    expect(lines[0].gases[0]).toMatchObject({ gas: 'CO', unit: 'ppm' });
-    expect(lines[17].error).toMatch(/s0017\.jdx/);
+    expect(gasAt(lines[0])).toMatchObject({ gas: 'CO', unit: 'ppm' });
+    expect(scanFailure(lines[17]).error).toMatch(/s0017\.jdx/);
   });
 });
 
@@ -283,7 +283,7 @@ describe('--from lists and output files', () => {
       '--force',
     );
     expect(forced.status).toBe(0);
-    expect(JSON.parse(readFileSync(at('kept.jsonl'), 'utf8')).scan).toBe(at(names[0] as string));
+    expect(parseJsonAs<ResultLine>(readFileSync(at('kept.jsonl'), 'utf8')).scan).toBe(at(names[0] as string));
   });
 
   it('treats --json with --quiet, and a bad --workers value, as usage errors', async () => {

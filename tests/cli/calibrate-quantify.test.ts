@@ -10,6 +10,9 @@ import Papa from 'papaparse';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { bandScan, writeScan } from '../helpers/band-scans.js';
 import { runCli, temporaryFolder } from '../helpers/cli.js';
+import { gasAt, scanResult, type QuantifyDocument } from '../helpers/documents.js';
+import { parseJsonAs, readJsonAs } from '../helpers/json.js';
+import type { Calibration } from '../../src/calibration/calibration.js';
 
 const folder = temporaryFolder();
 const at = (name: string) => join(folder.path, name);
@@ -45,11 +48,11 @@ describe('calibrate then quantify', () => {
     expect(run.stdout).toMatch(/CO: band area over 2040–2245 cm⁻¹/);
     expect(run.stdout).toMatch(/linearity \(Mandel test\)/);
     expect(run.stdout).toMatch(/not a life-safety monitor/);
-    const calibration = JSON.parse(readFileSync(at('co.json'), 'utf8'));
+    const calibration = readJsonAs<Calibration>(at('co.json'));
     expect(calibration.schemaVersion).toBe('2.0');
-    expect(calibration.inputs.filter((i: { role: string }) => i.role === 'standard')).toHaveLength(10);
+    expect(calibration.inputs.filter((i) => i.role === 'standard')).toHaveLength(10);
     // Slope = area per ppm at reference conditions (analytic band area).
-    expect(calibration.gases[0].model.coefficients.b).toBeCloseTo(0.02, 4);
+    expect(calibration.gases[0]?.model.coefficients.b).toBeCloseTo(0.02, 4);
   });
 
   it('quantifies a sample at other conditions within its interval (terminal table)', async () => {
@@ -63,20 +66,20 @@ describe('calibrate then quantify', () => {
   it('gives the JSON of DESIGN §4 with the truth inside the interval', async () => {
     const run = await runCli('quantify', at('co.json'), at('sample.jdx'), at('zero.csv'), '--json');
     expect(run.status).toBe(0);
-    const document = JSON.parse(run.stdout);
+    const document = parseJsonAs<QuantifyDocument>(run.stdout);
     expect(document.tool.name).toBe('bandwright');
     expect(document.calibration.sha256).toMatch(/^[0-9a-f]{64}$/);
     expect(document.level).toBe(0.95);
-    const [sample, zero] = document.results;
-    expect(sample.conditions).toEqual({ pathLength_m: 2, temperature_K: 310, pressure_kPa: 101.325 });
-    const co = sample.gases[0];
+    const [sample, zero] = document.results.map(scanResult);
+    expect(sample?.conditions).toEqual({ pathLength_m: 2, temperature_K: 310, pressure_kPa: 101.325 });
+    const co = gasAt(sample);
     expect(co).toMatchObject({ gas: 'CO', unit: 'ppm' });
     expect(co.low).toBeLessThan(150);
     expect(co.high).toBeGreaterThan(150);
     expect(Math.abs(co.value - 150)).toBeLessThan(1.5);
     expect(co.flags).toContain('conditions-far');
-    expect(sample.cautions.length).toBeGreaterThan(0);
-    expect(zero.gases[0].flags).toContain('below-lod');
+    expect(sample?.cautions.length).toBeGreaterThan(0);
+    expect(gasAt(zero).flags).toContain('below-lod');
   });
 
   it('writes one CSV row per scan with the DESIGN §4 columns', async () => {
@@ -113,12 +116,14 @@ describe('calibrate then quantify', () => {
       '--json',
     );
     expect(run.status).toBe(0);
-    const gas = JSON.parse(run.stdout).results[0].gases[0];
+    const gas = gasAt(parseJsonAs<QuantifyDocument>(run.stdout).results[0]);
     expect(gas.value).toBeCloseTo(100.5, 0);
-    expect(gas.conversions[0].unit).toBe('mg/m3');
-    expect(gas.conversions[0].assumption).toMatch(/273.15 K and 101.325 kPa/);
+    const conversion = gas.conversions?.[0];
+    if (conversion === undefined) expect.fail(`no conversion in ${JSON.stringify(gas)}`);
+    expect(conversion.unit).toBe('mg/m3');
+    expect(conversion.assumption).toMatch(/273.15 K and 101.325 kPa/);
     // 1 ppm CO = 1.2497 mg/m³ at 0 °C (facts.md, computed).
-    expect(gas.conversions[0].value / gas.value).toBeCloseTo(1.2497, 3);
+    expect(conversion.value / gas.value).toBeCloseTo(1.2497, 3);
   });
 
   it('calibrates from a responses table', async () => {
@@ -137,7 +142,7 @@ describe('calibrate then quantify', () => {
     );
     expect(run.status).toBe(0);
     const quantified = await runCli('quantify', at('responses.cal.json'), '--response', '3.0', '--json');
-    expect(JSON.parse(quantified.stdout).results[0].gases[0].value).toBeCloseTo(30, 0);
+    expect(gasAt(parseJsonAs<QuantifyDocument>(quantified.stdout).results[0]).value).toBeCloseTo(30, 0);
   });
 });
 
@@ -145,10 +150,10 @@ describe('result flags', () => {
   it('flags a sample above the calibrated range as extrapolated', async () => {
     writeScan(at('high.csv'), bandScan(600, { metadata: reference }));
     const run = await runCli('quantify', at('co.json'), at('high.csv'), '--json');
-    const gas = JSON.parse(run.stdout).results[0].gases[0];
+    const gas = gasAt(parseJsonAs<QuantifyDocument>(run.stdout).results[0]);
     expect(gas.flags).toContain('extrapolated');
     expect(gas.notes.join(' ')).toMatch(/outside the calibrated range/);
-    expect(gas.notes.filter((n: string) => /outside the calibrated range/.test(n))).toHaveLength(1);
+    expect(gas.notes.filter((n) => /outside the calibrated range/.test(n))).toHaveLength(1);
   });
 
   it('flags saturation against the method threshold', async () => {
@@ -181,14 +186,14 @@ describe('result flags', () => {
       ).status,
     ).toBe(0);
     const run = await runCli('quantify', at('low-threshold.cal.json'), at('sample.jdx'), '--json');
-    expect(JSON.parse(run.stdout).results[0].gases[0].flags).toContain('saturated');
+    expect(gasAt(parseJsonAs<QuantifyDocument>(run.stdout).results[0]).flags).toContain('saturated');
   });
 
   it('flags over-limit on the interval upper end with the example limits file (NIOSH REL 35 ppm TWA for CO, facts.md)', async () => {
     writeScan(at('near-limit.csv'), bandScan(34.8, { metadata: reference }));
     const limits = join(import.meta.dirname, '..', '..', 'examples', 'limits.csv');
     const run = await runCli('quantify', at('co.json'), at('near-limit.csv'), '--limits', limits, '--json');
-    const gas = JSON.parse(run.stdout).results[0].gases[0];
+    const gas = gasAt(parseJsonAs<QuantifyDocument>(run.stdout).results[0]);
     // The central value is below 35 ppm but the interval reaches over it.
     expect(gas.value).toBeLessThan(35);
     expect(gas.high).toBeGreaterThan(35);

@@ -15,16 +15,16 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { simulateSpectrum } from '../../src/simulate/index.js';
 import { writeScan } from '../helpers/band-scans.js';
 import { runCli, temporaryFolder } from '../helpers/cli.js';
+import { scanResult, type QuantifyDocument } from '../helpers/documents.js';
+import { parseJsonAs, readJsonAs } from '../helpers/json.js';
+import type { Calibration } from '../../src/calibration/calibration.js';
+import type { ScanResult } from '../../src/calibration/result.js';
 
 const folder = temporaryFolder('bandwright-cls-');
 const at = (name: string) => join(folder.path, name);
 
-interface Gases {
-  CO: number;
-  N2O: number;
-  CO2: number;
-  H2O: number;
-}
+/** Concentrations, ppm (a type rather than an interface, so that Object.entries knows its values are numbers). */
+type Gases = Record<'CO' | 'N2O' | 'CO2' | 'H2O', number>;
 const NONE: Gases = { CO: 0, N2O: 0, CO2: 0, H2O: 0 };
 
 function simulate(gases: Gases, seed: number, range: readonly [number, number] = [1985, 2255]) {
@@ -126,38 +126,14 @@ beforeAll(() => {
 });
 afterAll(() => folder.cleanup());
 
-interface JsonGas {
-  gas: string;
-  value: number;
-  unit: string;
-  low: number;
-  high: number;
-  flags: string[];
-  notes: string[];
-  conversions?: {
-    kind: string;
-    value: number;
-    low: number;
-    high: number;
-    unit: string;
-    assumption: string;
-  }[];
-}
-interface JsonResult {
-  scan: string;
-  gases: JsonGas[];
-  warnings: string[];
-  residualRms: number;
-}
-
-async function quantifyJson(...args: string[]): Promise<JsonResult[]> {
+async function quantifyJson(...args: string[]): Promise<ScanResult[]> {
   const run = await runCli('quantify', at('stack.json'), ...args, '--json');
   expect(run.status, run.stderr).toBe(0);
-  return JSON.parse(run.stdout).results as JsonResult[];
+  return parseJsonAs<QuantifyDocument>(run.stdout).results.map(scanResult);
 }
 
 /** x_H2O of a result, from its interferent warning (printed to 4 significant digits). */
-function waterFraction(result: JsonResult): number {
+function waterFraction(result: ScanResult): number {
   const match = /interferent H2O modelled at ([\d.]+) % \(not reported\)/.exec(result.warnings.join('\n'));
   expect(match, result.warnings.join('\n')).not.toBeNull();
   return Number(match![1]) / 100;
@@ -180,11 +156,9 @@ describe('calibrate a cls method from files', () => {
     expect(run.stdout).toMatch(/CO: first and second order, standards 0–\d+(\.\d+)? ppm/);
     expect(run.stdout).toMatch(/CO2 \(interferent, not reported\): first order/);
     expect(run.stdout).toMatch(/H2O \(interferent, not reported\): first and second order/);
-    const calibration = JSON.parse(readFileSync(at('stack.json'), 'utf8'));
+    const calibration = readJsonAs<Calibration>(at('stack.json'));
     expect(calibration.method.model).toBe('cls');
-    expect(calibration.inputs.filter((input: { role: string }) => input.role === 'standard')).toHaveLength(
-      STANDARDS.length,
-    );
+    expect(calibration.inputs.filter((input) => input.role === 'standard')).toHaveLength(STANDARDS.length);
   });
 });
 
@@ -389,13 +363,13 @@ describe('poor fit', () => {
       '--json',
     );
     expect(run.status, run.stderr).toBe(0);
-    const [withN2o, withoutN2o] = JSON.parse(run.stdout).results as JsonResult[];
+    const [withN2o, withoutN2o] = parseJsonAs<QuantifyDocument>(run.stdout).results.map(scanResult);
     const co = withN2o!.gases[0]!;
     expect(co.flags).toContain('poor-fit');
     expect(co.notes.join('\n')).toMatch(
       /the fit leaves a residual [\d.]+× the calibration's \(limit [\d.]+\): an absorber the method does not model may be present/,
     );
     expect(withoutN2o!.gases[0]!.flags).not.toContain('poor-fit');
-    expect(withN2o!.residualRms).toBeGreaterThan(3 * withoutN2o!.residualRms);
+    expect(withN2o!.residualRms).toBeGreaterThan(3 * withoutN2o!.residualRms!);
   });
 });

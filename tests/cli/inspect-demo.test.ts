@@ -2,10 +2,12 @@
  * inspect on the bundled example scans, and the demo end to end. The example scans are simulated
  * with known truth (examples/generate.ts): the samples' certified values are checked here.
  */
-import { existsSync, readFileSync, writeFileSync } from 'node:fs';
+import { existsSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { runCli, temporaryFolder } from '../helpers/cli.js';
+import { gasAt, type InspectDocument, type QuantifyDocument } from '../helpers/documents.js';
+import { parseJsonAs, readJsonAs } from '../helpers/json.js';
 
 const examples = join(import.meta.dirname, '..', '..', 'examples');
 const folder = temporaryFolder();
@@ -20,7 +22,7 @@ describe('inspect', () => {
       '--json',
     );
     expect(run.status).toBe(0);
-    const [jcamp, csv] = JSON.parse(run.stdout).scans;
+    const [jcamp, csv] = parseJsonAs<InspectDocument>(run.stdout).scans;
     expect(jcamp).toMatchObject({
       format: 'jcamp',
       points: 1601,
@@ -28,10 +30,10 @@ describe('inspect', () => {
       spacing_cm: 0.25,
       yKind: 'absorbance',
     });
-    expect(jcamp.conditions.pathLength_m).toBe(1);
+    expect(jcamp?.conditions.pathLength_m).toBe(1);
     expect(csv).toMatchObject({ format: 'csv', points: 1601 });
     // The CSV standards leave their conditions to the manifest (as many instrument exports do).
-    expect(csv.conditions).toEqual({});
+    expect(csv?.conditions).toEqual({});
   });
 
   it('names a path that does not exist before reading anything, and exits 1', async () => {
@@ -62,22 +64,17 @@ describe('demo', () => {
     expect(run.status).toBe(0);
     for (const file of ['lab-co.calibration.json', 'lab-co.results.csv', 'lab-co.results.json'])
       expect(existsSync(join(out, file))).toBe(true);
-    const results = JSON.parse(readFileSync(join(out, 'lab-co.results.json'), 'utf8')).results;
+    const results = readJsonAs<QuantifyDocument>(join(out, 'lab-co.results.json')).results;
     // The simulated truth of the cylinders (examples/generate.ts): 75, 180 and 460 ppm.
-    const byName = new Map(
-      results.map((r: { scan: string; gases: { value: number; low: number; high: number }[] }) => [
-        r.scan.replace(/.*\//, ''),
-        r.gases[0],
-      ]),
-    );
+    const byName = new Map(results.map((r) => [r.scan.replace(/.*\//, ''), gasAt(r)]));
     for (const [name, truth] of [
       ['cylinder-4471.jdx', 75],
       ['cylinder-4472.jdx', 180],
       ['cylinder-4475.jdx', 460],
     ] as const) {
-      const gas = byName.get(name) as { value: number; low: number; high: number };
-      expect(gas.low).toBeLessThan(truth);
-      expect(gas.high).toBeGreaterThan(truth);
+      const gas = byName.get(name);
+      expect(gas?.low).toBeLessThan(truth);
+      expect(gas?.high).toBeGreaterThan(truth);
     }
     const again = await runCli('demo', '--out', out);
     expect(again.status).toBe(1);

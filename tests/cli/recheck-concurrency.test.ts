@@ -14,6 +14,9 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { readHistory } from '../../src/store/history.js';
 import { BAND_OPTIONS, bandScan, writeScan, writeStandardSeries } from '../helpers/band-scans.js';
 import { runCli, temporaryFolder } from '../helpers/cli.js';
+import type { RecheckDocument } from '../helpers/documents.js';
+import { parseJsonAs, readJsonAs } from '../helpers/json.js';
+import type { Calibration } from '../../src/calibration/calibration.js';
 
 const folder = temporaryFolder('bandwright-concurrency-');
 const at = (name: string) => join(folder.path, name);
@@ -72,15 +75,13 @@ describe('parallel rechecks on one calibration', () => {
     expect(text.endsWith('\n')).toBe(true);
     // Every line is a whole record (the reader refuses torn, merged or damaged lines).
     const history = readHistory(at('co.history.csv'), {
-      calibrationSha256: JSON.parse(readFileSync(at('co.json'), 'utf8')).sha256,
+      calibrationSha256: readJsonAs<Calibration>(at('co.json')).sha256,
     });
     expect(history.records).toHaveLength(PROCESSES);
     expect(history.records.map((r) => r.time).sort()).toEqual(times);
     expect(history.records.map((r) => r.line)).toEqual(Array.from({ length: PROCESSES }, (_, k) => k + 3));
     // Each process saw the records appended before its own: the line it reports is where its record is.
-    const reported = runs.map(
-      (run) => JSON.parse(run.stdout) as { time: string; history: { line: number; checks: number } },
-    );
+    const reported = runs.map((run) => parseJsonAs<RecheckDocument>(run.stdout));
     for (const result of reported) {
       const onLine = history.records.find((r) => r.line === result.history.line);
       expect(onLine?.time).toBe(result.time);
@@ -89,9 +90,7 @@ describe('parallel rechecks on one calibration', () => {
       Array.from({ length: PROCESSES }, (_, k) => k + 1),
     );
     // Exactly one process created the history.
-    expect(
-      runs.filter((run) => (JSON.parse(run.stdout) as { history: { created: boolean } }).history.created),
-    ).toHaveLength(1);
+    expect(runs.filter((run) => parseJsonAs<RecheckDocument>(run.stdout).history.created)).toHaveLength(1);
     expect(
       readdirSync(folder.path).filter((name) => name.includes('.lock') || name.includes('.tmp-')),
     ).toEqual([]);

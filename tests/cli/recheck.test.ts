@@ -14,6 +14,9 @@ import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { BAND_OPTIONS, bandScan, writeScan, writeStandardSeries } from '../helpers/band-scans.js';
 import { runCli, temporaryFolder } from '../helpers/cli.js';
+import type { RecheckDocument } from '../helpers/documents.js';
+import { parseJsonAs, readJsonAs } from '../helpers/json.js';
+import type { Calibration } from '../../src/calibration/calibration.js';
 
 const folder = temporaryFolder('bandwright-recheck-');
 const at = (name: string) => join(folder.path, name);
@@ -26,7 +29,7 @@ async function calibrate(name: string): Promise<string> {
   return at(name);
 }
 
-beforeAll(async () => {
+beforeAll(() => {
   writeStandardSeries(at, reference);
   for (const ppm of [0, 93, 96.5, 99.6, 100, 100.4])
     writeScan(at(`check-${ppm}.csv`), bandScan(ppm, { metadata: reference }));
@@ -34,8 +37,8 @@ beforeAll(async () => {
 });
 afterAll(() => folder.cleanup());
 
-function recheckJson(run: { stdout: string }): Record<string, any> {
-  return JSON.parse(run.stdout) as Record<string, any>;
+function recheckJson(run: { stdout: string }): RecheckDocument {
+  return parseJsonAs<RecheckDocument>(run.stdout);
 }
 
 describe('a recheck', () => {
@@ -69,20 +72,20 @@ describe('a recheck', () => {
     );
     expect(result.certified).toBe(100);
     expect(Math.abs(result.measured - 100.4)).toBeLessThan(0.3);
-    expect(Math.abs(result.recoveryPct - 100.4)).toBeLessThan(0.3);
+    expect(Math.abs(result.recoveryPct! - 100.4)).toBeLessThan(0.3);
     expect(result.low).toBeLessThan(result.measured);
     expect(result.high).toBeGreaterThan(result.measured);
     expect(result.verdict).toBe('pass');
     expect(result.rules).toEqual([]);
     expect(result.nextDue).toBe('2026-09-08T09:30:00.000Z');
     expect(result.trend.status).toBe('insufficient');
-    expect(result.sigma.basis).toBe('tolerance');
-    expect(result.sigma.valuePct).toBeCloseTo(5 / 3, 12);
+    expect(result.sigma?.basis).toBe('tolerance');
+    expect(result.sigma?.valuePct).toBeCloseTo(5 / 3, 12);
     expect(result.z).toBeCloseTo((result.measured - 100) / result.se, 10);
     expect(result.cautions.join(' ')).toMatch(/not a life-safety monitor/);
 
     const history = readFileSync(at('pass.history.csv'), 'utf8').split('\n');
-    const sha = JSON.parse(readFileSync(calibration, 'utf8')).sha256 as string;
+    const sha = readJsonAs<Calibration>(calibration).sha256;
     expect(history[0]).toBe(
       `# bandwright check history; format 1; calibration sha256 ${sha}; file pass.json`,
     );
@@ -140,7 +143,7 @@ describe('a recheck', () => {
     expect(run.status).toBe(4);
     const result = recheckJson(run);
     expect(result.verdict).toBe('fail');
-    expect(result.rules.map((r: { rule: string }) => r.rule)).toEqual(['1-2s', '1-3s']);
+    expect(result.rules.map((r) => r.rule)).toEqual(['1-2s', '1-3s']);
     expect(result.reasons[0]).toMatch(/recovery 93\.\d\d % is outside the tolerance 95\.00–105\.00 %/);
     expect(result.nextDue).toBeNull();
   });
@@ -169,7 +172,7 @@ describe('a recheck', () => {
     );
     expect(second.status).toBe(4);
     const result = recheckJson(second);
-    expect(result.rules.map((r: { rule: string }) => r.rule)).toEqual(['1-2s', '2-2s']);
+    expect(result.rules.map((r) => r.rule)).toEqual(['1-2s', '2-2s']);
     expect(result.reasons[0]).toMatch(
       /within the tolerance, but the check is out of statistical control: 2-2s fired/,
     );
@@ -231,7 +234,7 @@ describe('a recheck', () => {
     );
     expect(result.certified).toBeCloseTo(100, 10);
     expect(result.unit).toBe('ppm');
-    expect(Math.abs(result.recoveryPct - 99.6)).toBeLessThan(0.3);
+    expect(Math.abs(result.recoveryPct! - 99.6)).toBeLessThan(0.3);
   });
 
   it('judges a zero-gas check against the detection limit instead of a percentage', async () => {
@@ -289,7 +292,7 @@ describe('a recheck', () => {
       '--json',
     );
     expect(run.status, run.stderr).toBe(0);
-    expect(Math.abs(recheckJson(run).recoveryPct - 100)).toBeLessThan(0.3);
+    expect(Math.abs(recheckJson(run).recoveryPct! - 100)).toBeLessThan(0.3);
   });
 });
 
@@ -396,7 +399,7 @@ describe('recheck refuses bad input, writing nothing', () => {
   });
 
   it('refuses a tampered calibration', async () => {
-    const content = JSON.parse(readFileSync(calibration, 'utf8'));
+    const content = readJsonAs<Calibration>(calibration);
     content.method.recheck.tolerancePct = 50;
     writeFileSync(at('tampered.json'), JSON.stringify(content));
     await expectFailure(

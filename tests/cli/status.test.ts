@@ -6,11 +6,14 @@
  * recheck failed; 1 unreadable input); next due = last passing check + interval (DESIGN §1.4,
  * common practice for check-standard schedules). Histories are made with `recheck --at`.
  */
-import { mkdirSync, readFileSync, writeFileSync } from 'node:fs';
+import { mkdirSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { bandScan, writeScan } from '../helpers/band-scans.js';
 import { runCli, temporaryFolder } from '../helpers/cli.js';
+import type { StatusDocument } from '../helpers/documents.js';
+import { parseJsonAs, readJsonAs } from '../helpers/json.js';
+import type { Calibration } from '../../src/calibration/calibration.js';
 
 const folder = temporaryFolder('bandwright-status-');
 const at = (...parts: string[]) => join(folder.path, ...parts);
@@ -72,7 +75,7 @@ beforeAll(async () => {
       '2026-09-03T09:30Z',
     ),
   ).toBe(0);
-  const tampered = JSON.parse(readFileSync(at('mixed', 'good.calibration.json'), 'utf8'));
+  const tampered = readJsonAs<Calibration>(at('mixed', 'good.calibration.json'));
   tampered.title = 'edited by hand';
   writeFileSync(at('mixed', 'edited.calibration.json'), JSON.stringify(tampered));
   // never/: no check yet.
@@ -168,9 +171,8 @@ describe('targets, options and output', () => {
   });
 
   it('looks in ./calibrations when given nothing (the bundled calibrations, never checked)', async () => {
-    type Bundled = { createdAt: string; method: { recheck: { everyDays: number } } };
-    const lab = JSON.parse(readFileSync('calibrations/lab-co.calibration.json', 'utf8')) as Bundled;
-    const stack = JSON.parse(readFileSync('calibrations/stack-k2.calibration.json', 'utf8')) as Bundled;
+    const lab = readJsonAs<Calibration>('calibrations/lab-co.calibration.json');
+    const stack = readJsonAs<Calibration>('calibrations/stack-k2.calibration.json');
     const soon = new Date(Date.parse(lab.createdAt) + 86_400_000).toISOString();
     const run = await runCli('status', '--now', soon);
     expect(run.stdout).toMatch(/calibrations\/lab-co\.calibration\.json\s+CO\s+—\s+never checked/);
@@ -194,12 +196,12 @@ describe('targets, options and output', () => {
       '--json',
     );
     expect(run.status).toBe(4);
-    const document = JSON.parse(run.stdout);
-    expect(document.calibrations.map((c: { nextDue: string }) => c.nextDue)).toEqual([
+    const document = parseJsonAs<StatusDocument>(run.stdout);
+    expect(document.calibrations.map((c) => c.nextDue)).toEqual([
       '2026-09-04T09:30:00.000Z',
       '2026-09-06T09:30:00.000Z',
     ]);
-    const strict = JSON.parse(
+    const strict = parseJsonAs<StatusDocument>(
       (
         await runCli(
           'status',
@@ -212,8 +214,8 @@ describe('targets, options and output', () => {
         )
       ).stdout,
     );
-    expect(strict.calibrations[0].lastCheck.verdict).toBe('fail');
-    expect(strict.calibrations[0].notes[0]).toMatch(
+    expect(strict.calibrations[0]?.lastCheck?.verdict).toBe('fail');
+    expect(strict.calibrations[0]?.notes[0]).toMatch(
       /was recorded as pass \(tolerance ±5 %\) and is judged fail now \(tolerance ±0\.1 %\)/,
     );
   });
@@ -221,7 +223,7 @@ describe('targets, options and output', () => {
   it('gives JSON for schedulers with the state, next due, days overdue and trend of each gas', async () => {
     const run = await runCli('status', at('current'), at('failed'), '--now', '2026-09-09T21:30Z', '--json');
     expect(run.status).toBe(4);
-    const document = JSON.parse(run.stdout);
+    const document = parseJsonAs<StatusDocument>(run.stdout);
     expect(document.now).toBe('2026-09-09T21:30:00.000Z');
     expect(document.exitStatus).toBe(4);
     expect(document.calibrations).toHaveLength(3);
@@ -235,15 +237,15 @@ describe('targets, options and output', () => {
       state: 'overdue',
       nextDue: '2026-09-08T09:30:00.000Z',
     });
-    expect(a.daysOverdue).toBeCloseTo(1.5, 10);
-    expect(a.lastCheck).toMatchObject({
+    expect(a?.daysOverdue).toBeCloseTo(1.5, 10);
+    expect(a?.lastCheck).toMatchObject({
       time: '2026-09-01T09:30:00.000Z',
       verdict: 'pass',
       certified: 100,
       line: 3,
     });
-    expect(a.trend.status).toBe('insufficient');
-    expect(b.state).toBe('due');
+    expect(a?.trend.status).toBe('insufficient');
+    expect(b?.state).toBe('due');
     expect(c).toMatchObject({ state: 'failed', nextDue: null, checks: 2 });
     expect(document.skipped).toEqual([
       { file: at('current', 'method.json'), message: 'not a calibration (no schemaVersion)' },

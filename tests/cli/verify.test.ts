@@ -8,9 +8,12 @@ import { createHash } from 'node:crypto';
 import { appendFileSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { verifyInputs } from '../../src/store/verify.js';
+import { verifyInputs, type IntegrityReport } from '../../src/store/verify.js';
+import type { Calibration } from '../../src/calibration/calibration.js';
 import { bandScan, writeScan } from '../helpers/band-scans.js';
 import { runCli, temporaryFolder } from '../helpers/cli.js';
+import type { QuantifyDocument, ResultLine } from '../helpers/documents.js';
+import { parseJsonAs, parseJsonLinesAs, readJsonAs } from '../helpers/json.js';
 
 const folder = temporaryFolder();
 const at = (name: string): string => join(folder.path, name);
@@ -54,18 +57,14 @@ describe('verify', () => {
     try {
       const run = await runCli('verify', at('cal/co.json'), '--json');
       expect(run.status).toBe(1);
-      const report = JSON.parse(run.stdout);
-      const states = Object.fromEntries(
-        report.inputs.map((i: { path: string; status: string }) => [i.path, i.status]),
-      );
+      const report = parseJsonAs<IntegrityReport>(run.stdout);
+      const states = Object.fromEntries(report.inputs.map((i) => [i.path, i.status]));
       expect(states).toMatchObject({
         '../s100.csv': 'changed',
         '../s400.csv': 'missing',
         '../s0.csv': 'unchanged',
       });
-      expect(report.inputs.find((i: { path: string }) => i.path === '../s100.csv').currentSha256).toBe(
-        sha256(at('s100.csv')),
-      );
+      expect(report.inputs.find((i) => i.path === '../s100.csv')?.currentSha256).toBe(sha256(at('s100.csv')));
       expect(run.stderr).toMatch(
         /2 of 6 input file\(s\) of .*co.json changed or missing since it was built: \.\.\/s100.csv \(changed\), \.\.\/s400.csv \(missing\)/,
       );
@@ -82,8 +81,8 @@ describe('verify', () => {
   });
 
   it('refuses a calibration whose own content does not match its hash (INTEGRITY), before looking at inputs', async () => {
-    const calibration = JSON.parse(readFileSync(at('cal/co.json'), 'utf8'));
-    calibration.gases[0].model.coefficients.b *= 1.01;
+    const calibration = readJsonAs<Calibration>(at('cal/co.json'));
+    calibration.gases[0]!.model.coefficients.b *= 1.01;
     writeFileSync(at('cal/tampered.json'), JSON.stringify(calibration, null, 2));
     const run = await runCli('verify', at('cal/tampered.json'));
     expect(run.status).toBe(1);
@@ -94,10 +93,10 @@ describe('verify', () => {
 
 describe('results carry the calibration hash', () => {
   it('quantify --json gives it once for the document, --csv and --jsonl on every row, failed scans included', async () => {
-    const recorded = JSON.parse(readFileSync(at('cal/co.json'), 'utf8')).sha256 as string;
+    const recorded = readJsonAs<Calibration>(at('cal/co.json')).sha256;
     const json = await runCli('quantify', at('cal/co.json'), at('s50.csv'), at('s200.csv'), '--json');
     expect(json.status).toBe(0);
-    expect(JSON.parse(json.stdout).calibration.sha256).toBe(recorded);
+    expect(parseJsonAs<QuantifyDocument>(json.stdout).calibration.sha256).toBe(recorded);
     writeFileSync(at('broken.csv'), 'wavenumber_cm-1,absorbance\n2000,0.1\n2001,abc\n');
     const csv = await runCli(
       'quantify',
@@ -122,10 +121,7 @@ describe('results carry the calibration hash', () => {
       at('r.jsonl'),
     );
     expect(jsonl.status).toBe(1);
-    const lines = readFileSync(at('r.jsonl'), 'utf8')
-      .trimEnd()
-      .split('\n')
-      .map((line) => JSON.parse(line) as { calibrationSha256: string });
+    const lines = parseJsonLinesAs<ResultLine>(readFileSync(at('r.jsonl'), 'utf8'));
     expect(lines).toHaveLength(2);
     for (const line of lines) expect(line.calibrationSha256).toBe(recorded);
   });

@@ -14,6 +14,8 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { formatSpectrumCsv } from '../../src/formats/spectrum-csv-write.js';
 import { BAND_OPTIONS, bandScan, writeScan, writeStandardSeries } from '../helpers/band-scans.js';
 import { runCli, temporaryFolder } from '../helpers/cli.js';
+import { gasAt, scanFailure, type ResultLine, type WatchStateLine } from '../helpers/documents.js';
+import { parseJsonLinesAs } from '../helpers/json.js';
 
 const folder = temporaryFolder('bandwright-watch-');
 const at = (name: string) => join(folder.path, name);
@@ -94,12 +96,9 @@ describe('watch in a separate process', () => {
     expect(Number(rows.find((row) => row.scan === at('incoming/renamed.csv'))?.CO_ppm)).toBeCloseTo(42, 0);
     expect(stderr).toMatch(/2 scan\(s\) quantified, 0 failed, .*stopped by SIGTERM/);
     // The record of processed files names both, with their sizes.
-    const record = readFileSync(at('.watched.csv.watch-state'), 'utf8')
-      .trim()
-      .split('\n')
-      .map((line) => JSON.parse(line));
-    expect(record.map((r: { name: string }) => r.name).sort()).toEqual(['pieces.csv', 'renamed.csv']);
-    expect(record.find((r: { name: string }) => r.name === 'pieces.csv').size).toBe(Buffer.byteLength(text));
+    const record = parseJsonLinesAs<WatchStateLine>(readFileSync(at('.watched.csv.watch-state'), 'utf8'));
+    expect(record.map((r) => r.name).sort()).toEqual(['pieces.csv', 'renamed.csv']);
+    expect(record.find((r) => r.name === 'pieces.csv')?.size).toBe(Buffer.byteLength(text));
   });
 });
 
@@ -121,13 +120,10 @@ describe('watch --once', () => {
     );
     expect(first.status).toBe(1);
     expect(first.stderr).toMatch(/bad\.csv line 1: .*no delimiter/);
-    const lines = readFileSync(at('cron.jsonl'), 'utf8')
-      .trim()
-      .split('\n')
-      .map((line) => JSON.parse(line));
+    const lines = parseJsonLinesAs<ResultLine>(readFileSync(at('cron.jsonl'), 'utf8'));
     expect(lines.map((line) => line.scan)).toEqual([at('cron/a.csv'), at('cron/b.jdx'), at('cron/bad.csv')]);
-    expect(lines[0].gases[0].value).toBeCloseTo(60, 0);
-    expect(lines[2].error).toMatch(/bad\.csv/);
+    expect(gasAt(lines[0]).value).toBeCloseTo(60, 0);
+    expect(scanFailure(lines[2]).error).toMatch(/bad\.csv/);
     writeScan(at('cron/c.csv'), bandScan(90, { metadata: reference }));
     const second = await runCli(
       'watch',
@@ -140,17 +136,14 @@ describe('watch --once', () => {
       '50',
     );
     expect(second.status).toBe(0);
-    const after = readFileSync(at('cron.jsonl'), 'utf8')
-      .trim()
-      .split('\n')
-      .map((line) => JSON.parse(line));
+    const after = parseJsonLinesAs<ResultLine>(readFileSync(at('cron.jsonl'), 'utf8'));
     expect(after.map((line) => line.scan)).toEqual([
       at('cron/a.csv'),
       at('cron/b.jdx'),
       at('cron/bad.csv'),
       at('cron/c.csv'),
     ]);
-    expect(after[3].gases[0].value).toBeCloseTo(90, 0);
+    expect(gasAt(after[3]).value).toBeCloseTo(90, 0);
   });
 
   it('prints a line per result on stdout when no results file is given', async () => {

@@ -63,7 +63,7 @@ export function parseMarkup(markup: string): Node {
     const node: Node = { name: tag[1] as string, attributes, children: [], text: '' };
     (stack[stack.length - 1] as Node).children.push(node);
     if (tag[3] !== '/') stack.push(node);
-    i = open + (tag[0] as string).length;
+    i = open + tag[0].length;
   }
   if (stack.length !== 1) throw new Error(`unclosed <${stack[stack.length - 1]?.name}>`);
   const [first] = root.children;

@@ -47,6 +47,4 @@ async function render(): Promise<number> {
   return 0;
 }
 
-render().then((status) => {
-  process.exitCode = status;
-});
+process.exitCode = await render();
