@@ -391,7 +391,7 @@ function buildProgram(log: (line: string) => void): void {
   );
   if (
     !existsSync(join(DATA, 'dist', 'cli', 'main.js')) ||
-    !existsSync(join(DATA, 'dist', 'cli', 'batch-worker.js'))
+    !existsSync(join(DATA, 'dist', 'batch', 'worker.js'))
   )
     throw new Error('tsc did not produce bench/data/dist');
   writeFileSync(
