@@ -3,17 +3,15 @@
  * every file is read into one buffer that is reused (grown when a larger file comes), so a batch of
  * tens of thousands of scans allocates no file-sized buffers and copies each file's bytes once.
  * The parsed spectrum never refers to that buffer (the readers copy what they keep); with
- * `reuseOutput` its x and y are views on the readers' own buffers, valid until the next read in
- * the same thread, which saves an allocation and a copy per column of every scan.
+ * `reuseOutput` its x and y are views on the buffers of this reader's own {@link ScanParser},
+ * valid until its next read, which saves an allocation and a copy per column of every scan.
  */
 import { closeSync, openSync, readSync, statSync } from 'node:fs';
 import { BandwrightError } from '../errors.js';
 import type { Spectrum } from '../spectrum/spectrum.js';
-import { parseJcamp } from '../formats/jcamp/read.js';
 import { resourceLimits } from '../resource-limits.js';
-import { detectScanFormat } from '../formats/scan.js';
+import { ScanParser } from '../formats/scan.js';
 import { readScan, type ReadScanOptions } from '../store/scan-file.js';
-import { parseSpectrumTable } from '../formats/spectrum-table.js';
 
 /** Reads one scan; see {@link createScanReader}. */
 export type ScanReader = (path: string) => Spectrum;
@@ -21,7 +19,7 @@ export type ScanReader = (path: string) => Spectrum;
 /** Options of {@link createScanReader}. */
 export interface ScanReaderOptions extends Omit<ReadScanOptions, 'source'> {
   /**
-   * Return spectra whose x and y are views on buffers the next read in this thread overwrites
+   * Return spectra whose x and y are views on buffers the next read by this reader overwrites
    * (default false). For a caller that is done with each spectrum before reading the next.
    */
   reuseOutput?: boolean;
@@ -49,7 +47,7 @@ export function createScanReader(options: ScanReaderOptions = {}): ScanReader {
     });
   const { maxBytes: _maxBytes, reuseOutput: _reuse, ...rest } = options;
   const parseOptions = { ...rest, maxPoints: options.maxPoints ?? limits.maxPoints };
-  const reuseOutput = options.reuseOutput === true;
+  const parser = new ScanParser({ reuseOutput: options.reuseOutput === true });
   let buffer = Buffer.allocUnsafe(1 << 20);
   return (path: string): Spectrum => {
     if (path === '-') return readScan(path, { ...parseOptions, maxBytes });
@@ -109,37 +107,6 @@ export function createScanReader(options: ScanReaderOptions = {}): ScanReader {
     } finally {
       closeSync(descriptor);
     }
-    return parse(buffer.subarray(0, length), path, parseOptions, reuseOutput);
+    return parser.parse(buffer.subarray(0, length), { ...parseOptions, source: path });
   };
-}
-
-/**
- * `parseScan` of `scan.ts` with the readers' `reuseOutput` passed on: the same format detection,
- * options and y-kind check (tests/batch/scan-reader.test.ts compares the two).
- */
-function parse(
-  bytes: Uint8Array,
-  source: string,
-  options: Omit<ReadScanOptions, 'source' | 'maxBytes'> & { maxPoints: number },
-  reuseOutput: boolean,
-): Spectrum {
-  const format = options.format ?? detectScanFormat(bytes, source);
-  if (format === 'jcamp') {
-    const spectrum = parseJcamp(bytes, { source, maxPoints: options.maxPoints, reuseOutput });
-    if (options.yKind !== undefined && options.yKind !== spectrum.yKind) {
-      throw new BandwrightError(
-        'PARSE',
-        `${source}: the JCAMP-DX file declares ${spectrum.yKind} (##YUNITS) but the y-kind option says ${options.yKind}; remove the option or fix the file`,
-        { file: source, parameter: 'yKind' },
-      );
-    }
-    return spectrum;
-  }
-  return parseSpectrumTable(bytes, {
-    source,
-    ...(options.yKind === undefined ? {} : { yKind: options.yKind }),
-    ...(options.defaultYKind === undefined ? {} : { defaultYKind: options.defaultYKind }),
-    maxPoints: options.maxPoints,
-    reuseOutput,
-  });
 }
