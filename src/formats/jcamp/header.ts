@@ -37,7 +37,7 @@ export interface JcampHeader {
 }
 
 /** Labels this reader uses; each may appear once. */
-const USED_KEYS = new Set([
+const USED_KEYS: ReadonlySet<string> = new Set([
   'TITLE',
   'JCAMPDX',
   'XUNITS',

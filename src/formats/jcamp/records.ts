@@ -27,7 +27,14 @@ export interface JcampRecord {
 }
 
 /** Records whose continuation lines are data, not more of the value. */
-const DATA_KEYS = new Set(['XYDATA', 'XYPOINTS', 'PEAKTABLE', 'PEAKASSIGNMENTS', 'DATATABLE', 'RADATA']);
+const DATA_KEYS: ReadonlySet<string> = new Set([
+  'XYDATA',
+  'XYPOINTS',
+  'PEAKTABLE',
+  'PEAKASSIGNMENTS',
+  'DATATABLE',
+  'RADATA',
+]);
 
 /**
  * Normalises a label name by the JCAMP-DX rule.

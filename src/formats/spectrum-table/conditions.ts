@@ -25,7 +25,7 @@ export interface Preamble {
   contentLine: number;
 }
 
-const METADATA_KEYS = new Set([
+const METADATA_KEYS: ReadonlySet<string> = new Set([
   'title',
   'path_length_m',
   'temperature_k',
