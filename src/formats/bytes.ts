@@ -59,7 +59,7 @@ export function byteOrderMarkLength(bytes: Uint8Array): number {
  *
  * @param bytes - file content
  */
-export function asBuffer(bytes: Uint8Array): Buffer {
+function asBuffer(bytes: Uint8Array): Buffer {
   return Buffer.isBuffer(bytes) ? bytes : Buffer.from(bytes.buffer, bytes.byteOffset, bytes.byteLength);
 }
 
@@ -72,7 +72,7 @@ export function asBuffer(bytes: Uint8Array): Buffer {
  * @throws BandwrightError `PARSE` when the content starts with a UTF-16 byte-order mark or its
  *   first bytes alternate with NUL
  */
-export function assertNotUtf16(bytes: Uint8Array, source: string): void {
+function assertNotUtf16(bytes: Uint8Array, source: string): void {
   const bom =
     bytes.length >= 2 &&
     ((bytes[0] === 0xff && bytes[1] === 0xfe) || (bytes[0] === 0xfe && bytes[1] === 0xff));
@@ -95,7 +95,7 @@ export function assertNotUtf16(bytes: Uint8Array, source: string): void {
  * @param source - label for the message
  * @throws BandwrightError `PARSE` when the content holds CR but no LF
  */
-export function assertLineEnds(bytes: Uint8Array, source: string): void {
+function assertLineEnds(bytes: Uint8Array, source: string): void {
   if (bytes.indexOf(CR) >= 0 && bytes.indexOf(LF) < 0) {
     throw new BandwrightError(
       'PARSE',
@@ -103,6 +103,21 @@ export function assertLineEnds(bytes: Uint8Array, source: string): void {
       { file: source },
     );
   }
+}
+
+/**
+ * The content of a text file, checked as every reader checks it before reading.
+ *
+ * @param bytes - file content
+ * @param source - label for messages
+ * @returns the same bytes as a Buffer (see {@link asBuffer})
+ * @throws BandwrightError `PARSE` for UTF-16 text and for lines that end with CR alone
+ */
+export function checkedText(bytes: Uint8Array, source: string): Buffer {
+  const buffer = asBuffer(bytes);
+  assertNotUtf16(buffer, source);
+  assertLineEnds(buffer, source);
+  return buffer;
 }
 
 /**

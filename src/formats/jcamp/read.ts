@@ -18,7 +18,7 @@
  */
 import { BandwrightError } from '../../errors.js';
 import { makeSpectrum, spectrumFromCheckedArrays, type Spectrum } from '../../spectrum/spectrum.js';
-import { asBuffer, assertLineEnds, assertNotUtf16 } from '../bytes.js';
+import { checkedText } from '../bytes.js';
 import { pointLimit, wavelengthsToWavenumbers } from '../reader-checks.js';
 import { readHeader } from './header.js';
 import { assertOrdinatesFitKind } from './ordinates.js';
@@ -102,9 +102,7 @@ function readJcamp(
 ): Spectrum {
   const source = options.source;
   const maxPoints = pointLimit(options.maxPoints);
-  const bytes = asBuffer(typeof input === 'string' ? new TextEncoder().encode(input) : input);
-  assertNotUtf16(bytes, source);
-  assertLineEnds(bytes, source);
+  const bytes = checkedText(typeof input === 'string' ? new TextEncoder().encode(input) : input, source);
   const { records } = splitRecords(bytes, source);
   const header = readHeader(records, source);
   const xyData = records.find((r) => r.key === 'XYDATA');

@@ -113,6 +113,44 @@ function readQuantity(
   return (units.get(unit) as (value: number) => number)(number);
 }
 
+/** The sample conditions: label, metadata field, unit tables, the convention and the unit of the result. */
+const CONDITIONS: readonly {
+  key: string;
+  field: 'pathLength_m' | 'temperature_K' | 'pressure_kPa';
+  units: UnitTable;
+  /** Unit assumed when neither the value nor a comment names one. */
+  conventional: string;
+  /** The units accepted, for messages. */
+  accepted: string;
+  /** Unit of the converted value, for messages. */
+  unit: string;
+}[] = [
+  {
+    key: 'PATHLENGTH',
+    field: 'pathLength_m',
+    units: LENGTH_UNITS,
+    conventional: 'cm',
+    accepted: 'm, cm, mm; cm when none is named',
+    unit: 'm',
+  },
+  {
+    key: 'TEMPERATURE',
+    field: 'temperature_K',
+    units: TEMPERATURE_UNITS,
+    conventional: 'c',
+    accepted: 'K, C or °C; °C when none is named',
+    unit: 'K',
+  },
+  {
+    key: 'PRESSURE',
+    field: 'pressure_kPa',
+    units: PRESSURE_UNITS,
+    conventional: 'atm',
+    accepted: 'atm, bar, mbar, hPa, kPa, Pa, Torr, mmHg, psi; atm when none is named',
+    unit: 'kPa',
+  },
+];
+
 function positive(record: JcampRecord, value: number, unit: string, source: string): number {
   if (!(value > 0) || !Number.isFinite(value)) {
     throw new BandwrightError(
@@ -143,37 +181,11 @@ export function readSampleConditions(
   source: string,
   metadata: ScanMetadata,
 ): void {
-  const path = byKey.get('PATHLENGTH');
-  if (path !== undefined)
-    metadata.pathLength_m = positive(
-      path,
-      readQuantity(path, source, LENGTH_UNITS, 'cm', 'm, cm, mm; cm when none is named'),
-      'm',
-      source,
-    );
-  const temperature = byKey.get('TEMPERATURE');
-  if (temperature !== undefined) {
-    metadata.temperature_K = positive(
-      temperature,
-      readQuantity(temperature, source, TEMPERATURE_UNITS, 'c', 'K, C or °C; °C when none is named'),
-      'K',
-      source,
-    );
-  }
-  const pressure = byKey.get('PRESSURE');
-  if (pressure !== undefined) {
-    metadata.pressure_kPa = positive(
-      pressure,
-      readQuantity(
-        pressure,
-        source,
-        PRESSURE_UNITS,
-        'atm',
-        'atm, bar, mbar, hPa, kPa, Pa, Torr, mmHg, psi; atm when none is named',
-      ),
-      'kPa',
-      source,
-    );
+  for (const condition of CONDITIONS) {
+    const record = byKey.get(condition.key);
+    if (record === undefined) continue;
+    const value = readQuantity(record, source, condition.units, condition.conventional, condition.accepted);
+    metadata[condition.field] = positive(record, value, condition.unit, source);
   }
   const resolution = byKey.get('RESOLUTION');
   if (resolution !== undefined) {

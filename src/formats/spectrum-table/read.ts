@@ -17,7 +17,7 @@
  */
 import { BandwrightError } from '../../errors.js';
 import { makeSpectrum, type Spectrum } from '../../spectrum/spectrum.js';
-import { BYTE, asBuffer, assertLineEnds, assertNotUtf16 } from '../bytes.js';
+import { BYTE, checkedText } from '../bytes.js';
 import { DECIMAL_COMMA, DECIMAL_POINT } from '../number-parse.js';
 import { assertTransmittanceFraction, pointLimit, wavelengthsToWavenumbers } from '../reader-checks.js';
 import { readPreamble } from './conditions.js';
@@ -107,10 +107,8 @@ function readSpectrumTable(
 ): Spectrum {
   const source = options.source;
   const maxPoints = pointLimit(options.maxPoints);
-  const bytes = asBuffer(input);
+  const bytes = checkedText(input, source);
   const length = bytes.length;
-  assertNotUtf16(bytes, source);
-  assertLineEnds(bytes, source);
   const preamble = readPreamble(bytes, source);
   const metadata = preamble.metadata;
   const layout = readLayout(bytes, preamble, options);
