@@ -107,6 +107,7 @@ export function createScanReader(options: ScanReaderOptions = {}): ScanReader {
     } finally {
       closeSync(descriptor);
     }
-    return parser.parse(buffer.subarray(0, length), { ...parseOptions, source: path });
+    const { yKind, defaultYKind, format, maxPoints } = parseOptions;
+    return parser.parse(buffer.subarray(0, length), { source: path, yKind, defaultYKind, format, maxPoints });
   };
 }

@@ -361,8 +361,13 @@ export function readLayout(bytes: Uint8Array, preamble: Preamble, options: Table
     options.decimal !== undefined
       ? options.decimal.charCodeAt(0)
       : detectDecimal(bytes, dataStart, delimiter);
+  // Written out rather than spread from `layout`: an object spread followed by more properties
+  // costs microseconds a call on Node 20, as much as reading a 200-point table.
   return {
-    ...layout,
+    roles: layout.roles,
+    names: layout.names,
+    yKind: layout.yKind,
+    xUnit: layout.xUnit,
     delimiter,
     decimal,
     decimalDetected: options.decimal === undefined,
