@@ -3,18 +3,16 @@
  * every file is read into one buffer that is reused (grown when a larger file comes), so a batch of
  * tens of thousands of scans allocates no file-sized buffers and copies each file's bytes once.
  * The parsed spectrum never refers to that buffer (the readers copy what they keep); with
- * `reuseOutput` its x and y are views on the readers' own buffers, valid until the next read in
- * the same thread, which saves an allocation and a copy per column of every scan.
+ * `reuseOutput` its x and y are views on the buffers of this reader's own {@link ScanParser},
+ * valid until its next read, which saves an allocation and a copy per column of every scan.
  */
 import { closeSync, openSync, readSync, statSync } from 'node:fs';
 import { BandwrightError } from '../errors.js';
 import { fileSystemError } from '../store/file-errors.js';
 import type { Spectrum } from '../spectrum/spectrum.js';
-import { parseJcamp } from '../formats/jcamp/read.js';
 import { resourceLimits } from '../resource-limits.js';
-import { detectScanFormat } from '../formats/scan.js';
+import { ScanParser } from '../formats/scan.js';
 import { readScan, type ReadScanOptions } from '../store/scan-file.js';
-import { parseSpectrumTable } from '../formats/spectrum-table.js';
 
 /** Reads one scan; see {@link createScanReader}. */
 export type ScanReader = (path: string) => Spectrum;
@@ -22,7 +20,7 @@ export type ScanReader = (path: string) => Spectrum;
 /** Options of {@link createScanReader}. */
 export interface ScanReaderOptions extends Omit<ReadScanOptions, 'source'> {
   /**
-   * Return spectra whose x and y are views on buffers the next read in this thread overwrites
+   * Return spectra whose x and y are views on buffers the next read by this reader overwrites
    * (default false). For a caller that is done with each spectrum before reading the next.
    */
   reuseOutput?: boolean;
@@ -50,7 +48,7 @@ export function createScanReader(options: ScanReaderOptions = {}): ScanReader {
       parameter: 'maxBytes',
     });
   const parseOptions = { ...rest, maxPoints: options.maxPoints ?? limits.maxPoints };
-  const reuseOutput = givenReuseOutput === true;
+  const parser = new ScanParser({ reuseOutput: givenReuseOutput === true });
   let buffer = Buffer.allocUnsafe(1 << 20);
   return (path: string): Spectrum => {
     if (path === '-') return readScan(path, { ...parseOptions, maxBytes });
@@ -96,38 +94,7 @@ export function createScanReader(options: ScanReaderOptions = {}): ScanReader {
     } finally {
       closeSync(descriptor);
     }
-    return parse(buffer.subarray(0, length), path, parseOptions, reuseOutput);
+    const { yKind, defaultYKind, format, maxPoints } = parseOptions;
+    return parser.parse(buffer.subarray(0, length), { source: path, yKind, defaultYKind, format, maxPoints });
   };
-}
-
-/**
- * `parseScan` of `scan.ts` with the readers' `reuseOutput` passed on: the same format detection,
- * options and y-kind check (tests/batch/scan-reader.test.ts compares the two).
- */
-function parse(
-  bytes: Uint8Array,
-  source: string,
-  options: Omit<ReadScanOptions, 'source' | 'maxBytes'> & { maxPoints: number },
-  reuseOutput: boolean,
-): Spectrum {
-  const format = options.format ?? detectScanFormat(bytes, source);
-  if (format === 'jcamp') {
-    const spectrum = parseJcamp(bytes, { source, maxPoints: options.maxPoints, reuseOutput });
-    if (options.yKind !== undefined && options.yKind !== spectrum.yKind) {
-      throw new BandwrightError(
-        'PARSE',
-        `${source}: the JCAMP-DX file declares ${spectrum.yKind} (##YUNITS) ` +
-          `but the y-kind option says ${options.yKind}; remove the option or fix the file`,
-        { file: source, parameter: 'yKind' },
-      );
-    }
-    return spectrum;
-  }
-  return parseSpectrumTable(bytes, {
-    source,
-    ...(options.yKind === undefined ? {} : { yKind: options.yKind }),
-    ...(options.defaultYKind === undefined ? {} : { defaultYKind: options.defaultYKind }),
-    maxPoints: options.maxPoints,
-    reuseOutput,
-  });
 }

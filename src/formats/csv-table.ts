@@ -5,6 +5,9 @@
 import Papa from 'papaparse';
 import { BandwrightError } from '../errors.js';
 import { resourceLimits } from '../resource-limits.js';
+import { BYTE } from './bytes.js';
+
+const { CR, LF, QUOTE } = BYTE;
 
 /** One data row: cells by lower-cased, trimmed header name, and its 1-based line in the file. */
 export interface TableRow {
@@ -108,7 +111,8 @@ export function parseTable(input: string, source: string, options: { maxRows?: n
     if (earlier !== i)
       throw new BandwrightError(
         'PARSE',
-        `${source} line ${headerLine}: column ${JSON.stringify(columns[i])} appears twice (columns ${earlier + 1} and ${i + 1})`,
+        `${source} line ${headerLine}: column ${JSON.stringify(columns[i])} appears twice (columns ` +
+          `${earlier + 1} and ${i + 1})`,
         { file: source, line: headerLine },
       );
   });
@@ -156,10 +160,10 @@ function unifyLineEnds(text: string): string {
   let from = 0;
   for (let i = 0; i < text.length; i++) {
     const c = text.charCodeAt(i);
-    if (c === 0x22) quoted = !quoted;
-    else if (c === 0x0d && !quoted) {
+    if (c === QUOTE) quoted = !quoted;
+    else if (c === CR && !quoted) {
       out += `${text.slice(from, i)}\n`;
-      if (text.charCodeAt(i + 1) === 0x0a) i++;
+      if (text.charCodeAt(i + 1) === LF) i++;
       from = i + 1;
     }
   }

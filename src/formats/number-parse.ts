@@ -112,7 +112,10 @@ export function scanNumber(
   return slowValue(bytes, start, i, syntax);
 }
 
-/** Reads `[eE][+-]?digits` at `marker`; returns the exponent and sets `cursor.end` past it (or at the marker when no digits follow). */
+/**
+ * Reads `[eE][+-]?digits` at `marker`; returns the exponent and sets `cursor.end` past it (or at
+ * the marker when no digits follow).
+ */
 function scanExponent(bytes: Uint8Array, marker: number, limit: number, cursor: ScanCursor): number {
   let j = marker + 1;
   let negative = false;

@@ -6,10 +6,13 @@
  * anything else is a table. `format` overrides both.
  */
 import { BandwrightError } from '../errors.js';
-import type { Spectrum, YKind } from '../spectrum/spectrum.js';
-import { parseJcamp } from './jcamp/read.js';
 import { resourceLimits } from '../resource-limits.js';
-import { parseSpectrumTable } from './spectrum-table.js';
+import type { Spectrum, YKind } from '../spectrum/spectrum.js';
+import { BYTE, byteOrderMarkLength } from './bytes.js';
+import { JcampReader } from './jcamp/read.js';
+import { SpectrumTableReader } from './spectrum-table/read.js';
+
+const { CR, HASH, LF, SPACE, TAB } = BYTE;
 
 /** Options of {@link parseScan}. */
 export interface ParseScanOptions {
@@ -38,14 +41,73 @@ const JCAMP_EXTENSION = /\.(jdx|dx|jcamp)$/i;
  * @param source - file name (for the extension)
  */
 export function detectScanFormat(bytes: Uint8Array, source: string): 'csv' | 'jcamp' {
-  let p = bytes.length >= 3 && bytes[0] === 0xef && bytes[1] === 0xbb && bytes[2] === 0xbf ? 3 : 0;
-  while (
-    p < bytes.length &&
-    (bytes[p] === 0x20 || bytes[p] === 0x09 || bytes[p] === 0x0a || bytes[p] === 0x0d)
-  )
+  let p = byteOrderMarkLength(bytes);
+  while (p < bytes.length && (bytes[p] === SPACE || bytes[p] === TAB || bytes[p] === LF || bytes[p] === CR))
     p++;
-  if (bytes[p] === 0x23 && bytes[p + 1] === 0x23) return 'jcamp';
+  if (bytes[p] === HASH && bytes[p + 1] === HASH) return 'jcamp';
   return JCAMP_EXTENSION.test(source) ? 'jcamp' : 'csv';
+}
+
+/** Options of a {@link ScanParser}. */
+export interface ScanParserOptions {
+  /**
+   * Return spectra whose x and y are views on this parser's buffers, which its next parse
+   * overwrites (default false: arrays of their own). For a caller that is done with each spectrum
+   * before parsing the next, such as a batch.
+   */
+  reuseOutput?: boolean;
+}
+
+/**
+ * A scan parser that keeps the readers' buffers from one scan to the next (see
+ * {@link JcampReader} and {@link SpectrumTableReader}); it belongs to the caller that made it,
+ * and two parsers never share state.
+ *
+ * @example
+ * const parser = new ScanParser({ reuseOutput: true });
+ * for (const [source, bytes] of scans) quantify(parser.parse(bytes, { source }));
+ */
+export class ScanParser {
+  readonly #jcamp: JcampReader;
+  readonly #table: SpectrumTableReader;
+
+  /** @param options - whether spectra may be views on the parser's buffers */
+  constructor(options: ScanParserOptions = {}) {
+    this.#jcamp = new JcampReader(options);
+    this.#table = new SpectrumTableReader(options);
+  }
+
+  /**
+   * Parses a scan from bytes, as {@link parseScan} does, with this parser's buffers.
+   *
+   * @param bytes - the content of a JCAMP-DX file or a spectrum table
+   * @param options - source label, y-kind, format, point limit
+   * @returns the spectrum on ascending wavenumbers, cm⁻¹; with `reuseOutput`, its arrays are
+   *   valid until this parser's next parse
+   * @throws BandwrightError as {@link parseScan}
+   */
+  parse(bytes: Uint8Array, options: ParseScanOptions): Spectrum {
+    const format = options.format ?? detectScanFormat(bytes, options.source);
+    const maxPoints = options.maxPoints ?? resourceLimits().maxPoints;
+    if (format === 'jcamp') {
+      const spectrum = this.#jcamp.read(bytes, { source: options.source, maxPoints });
+      if (options.yKind !== undefined && options.yKind !== spectrum.yKind) {
+        throw new BandwrightError(
+          'PARSE',
+          `${options.source}: the JCAMP-DX file declares ${spectrum.yKind} (##YUNITS) but the y-kind ` +
+            `option says ${options.yKind}; remove the option or fix the file`,
+          { file: options.source, parameter: 'yKind' },
+        );
+      }
+      return spectrum;
+    }
+    return this.#table.read(bytes, {
+      source: options.source,
+      ...(options.yKind === undefined ? {} : { yKind: options.yKind }),
+      ...(options.defaultYKind === undefined ? {} : { defaultYKind: options.defaultYKind }),
+      maxPoints,
+    });
+  }
 }
 
 /**
@@ -54,34 +116,11 @@ export function detectScanFormat(bytes: Uint8Array, source: string): 'csv' | 'jc
  * @param bytes - the content of a JCAMP-DX file or a spectrum table
  * @param options - source label, y-kind, format, point limit
  * @returns the spectrum on ascending wavenumbers, cm⁻¹
- * @throws BandwrightError from {@link parseJcamp} or {@link parseSpectrumTable}; `PARSE` when a
- *   JCAMP-DX file's y-kind contradicts `yKind`
+ * @throws BandwrightError from {@link JcampReader.read} or {@link SpectrumTableReader.read};
+ *   `PARSE` when a JCAMP-DX file's y-kind contradicts `yKind`
  * @example
  * const spectrum = parseScan(bytes, { source: 'std-100ppm.jdx' });
  */
 export function parseScan(bytes: Uint8Array, options: ParseScanOptions): Spectrum {
-  const format = options.format ?? detectScanFormat(bytes, options.source);
-  if (options.maxPoints === undefined) options = { ...options, maxPoints: resourceLimits().maxPoints };
-  if (format === 'jcamp') {
-    const spectrum = parseJcamp(
-      bytes,
-      options.maxPoints === undefined
-        ? { source: options.source }
-        : { source: options.source, maxPoints: options.maxPoints },
-    );
-    if (options.yKind !== undefined && options.yKind !== spectrum.yKind) {
-      throw new BandwrightError(
-        'PARSE',
-        `${options.source}: the JCAMP-DX file declares ${spectrum.yKind} (##YUNITS) but the y-kind option says ${options.yKind}; remove the option or fix the file`,
-        { file: options.source, parameter: 'yKind' },
-      );
-    }
-    return spectrum;
-  }
-  return parseSpectrumTable(bytes, {
-    source: options.source,
-    ...(options.yKind === undefined ? {} : { yKind: options.yKind }),
-    ...(options.defaultYKind === undefined ? {} : { defaultYKind: options.defaultYKind }),
-    ...(options.maxPoints === undefined ? {} : { maxPoints: options.maxPoints }),
-  });
+  return new ScanParser().parse(bytes, options);
 }

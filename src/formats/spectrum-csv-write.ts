@@ -81,10 +81,10 @@ export function formatSpectrumCsv(spectrum: Spectrum, options: SpectrumCsvOption
       );
     }
     lines.push(['wavenumber_cm-1', 'single_beam_sample', 'single_beam_background'].join(delimiter));
-    for (let i = 0; i < x.length; i++)
-      lines.push(
-        `${numberText(x[i] as number)}${delimiter}${numberText(y[i] as number)}${delimiter}${numberText(background[i] as number)}`,
-      );
+    for (let i = 0; i < x.length; i++) {
+      const xy = `${numberText(x[i] as number)}${delimiter}${numberText(y[i] as number)}`;
+      lines.push(`${xy}${delimiter}${numberText(background[i] as number)}`);
+    }
   } else {
     lines.push(`wavenumber_cm-1${delimiter}${Y_COLUMN_NAMES[spectrum.yKind]}`);
     for (let i = 0; i < x.length; i++)

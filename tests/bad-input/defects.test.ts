@@ -20,7 +20,7 @@ import { BandwrightError } from '../../src/errors.js';
 import { parseTable } from '../../src/formats/csv-table.js';
 import { parseJcamp } from '../../src/formats/jcamp/read.js';
 import { parseManifest, readManifest } from '../../src/store/manifest.js';
-import { parseSpectrumTable } from '../../src/formats/spectrum-table.js';
+import { parseSpectrumTable } from '../../src/formats/spectrum-table/read.js';
 import { loadStandards } from '../../src/store/standards.js';
 import { fitUnivariate } from '../../src/models/univariate/fit.js';
 import type { UnivariateModel } from '../../src/models/univariate/model.js';

@@ -100,8 +100,8 @@ describe('JCAMP-DX fixtures', () => {
       parseJcamp(readFileSync(fixturePath(name)), { source: name }),
     );
     for (const other of others) {
-      expectSameDoubles((other as Spectrum).x, (affn as Spectrum).x, 'x');
-      expectSameDoubles((other as Spectrum).y, (affn as Spectrum).y, 'y');
+      expectSameDoubles(other.x, (affn as Spectrum).x, 'x');
+      expectSameDoubles(other.y, (affn as Spectrum).y, 'y');
     }
     // Ordinates Y/1000 with Y from the fixture README; YFACTOR = 0.001, so y = Y·0.001.
     const Y = [100, 120, 150, 190, 240, 240, 240, 200, 150, 110, 100, 100, 100, 100, 95, 90, 80, 70, 60, 50];

@@ -5,7 +5,7 @@ import { describe, expect, it } from 'vitest';
 import { isBandwrightError } from '../../src/errors.js';
 import { DECIMAL_COMMA, DECIMAL_POINT, parseNumberText, scanNumber } from '../../src/formats/number-parse.js';
 import { formatSpectrumCsv } from '../../src/formats/spectrum-csv-write.js';
-import { parseSpectrumTable, type SpectrumTableOptions } from '../../src/formats/spectrum-table.js';
+import { parseSpectrumTable, type SpectrumTableOptions } from '../../src/formats/spectrum-table/read.js';
 import { makeSpectrum, type Spectrum, type YKind } from '../../src/spectrum/spectrum.js';
 import { expectError, expectSameDoubles } from '../helpers/expect.js';
 

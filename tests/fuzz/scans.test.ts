@@ -10,7 +10,7 @@ import { afterAll, describe, expect, it } from 'vitest';
 import { parseJcamp } from '../../src/formats/jcamp/read.js';
 import { formatJcamp } from '../../src/formats/jcamp/write.js';
 import { formatSpectrumCsv } from '../../src/formats/spectrum-csv-write.js';
-import { parseSpectrumTable } from '../../src/formats/spectrum-table.js';
+import { parseSpectrumTable } from '../../src/formats/spectrum-table/read.js';
 import { Y_KINDS, makeSpectrum, type Spectrum } from '../../src/spectrum/spectrum.js';
 import {
   FUZZ_PARAMETERS,

@@ -89,7 +89,8 @@ export function formatJcamp(spectrum: Spectrum, options: JcampWriteOptions): str
   if (spectrum.yKind === 'single-beam') {
     throw new BandwrightError(
       'INVALID_VALUE',
-      `${where}: a single-beam spectrum is not written as JCAMP-DX here; convert it to absorbance or transmittance first`,
+      `${where}: a single-beam spectrum is not written as JCAMP-DX here; convert it to absorbance or ` +
+        `transmittance first`,
       {
         parameter: 'yKind',
       },
@@ -177,7 +178,8 @@ export function formatJcamp(spectrum: Spectrum, options: JcampWriteOptions): str
   if (maxAbs / yFactor > 2 ** 52) {
     throw new BandwrightError(
       'INVALID_VALUE',
-      `yFactor = ${yFactorText}: the largest |y| = ${maxAbs} would need ${Math.round(maxAbs / yFactor)} as an integer, beyond exact integers; use a larger yFactor`,
+      `yFactor = ${yFactorText}: the largest |y| = ${maxAbs} would need ` +
+        `${Math.round(maxAbs / yFactor)} as an integer, beyond exact integers; use a larger yFactor`,
       {
         parameter: 'yFactor',
       },
