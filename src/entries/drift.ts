@@ -66,5 +66,8 @@ export {
   type RecheckOutcome,
   type StatusReport,
   type StatusProblem,
+  type RecheckDocument,
+  type StatusDocument,
+  type StatusEntry,
 } from '../report/drift-text.js';
 export type { LockOptions } from '../store/lock.js';

@@ -12,6 +12,8 @@ export {
   isFailure,
   type BatchEntry,
   type ScanFailure,
+  type QuantifyDocument,
+  type ToolStamp,
 } from '../report/results.js';
 export { formatCalibrationSummary } from '../report/calibration-summary.js';
 export { formatTextTable, formatNumber, type TextColumn } from '../report/table.js';

@@ -3,12 +3,15 @@
  * `recheck --json`: measured, certified, recoveryPct, low, high, verdict, rules, nextDue, trend).
  */
 import type { CheckMeasurement } from '../drift/recheck.js';
-import type { JudgedCheck } from '../drift/evaluate.js';
-import type { Schedule } from '../drift/schedule.js';
+import type { ControlLimits, EvaluatedCheck, JudgedCheck, SigmaChoice } from '../drift/evaluate.js';
+import type { Verdict } from '../drift/record.js';
+import type { RuleFiring } from '../drift/rules.js';
+import type { Schedule, ScheduleState } from '../drift/schedule.js';
 import type { GasStatus } from '../drift/status.js';
 import type { DriftTrend } from '../drift/trend.js';
-import { unitLabel } from '../gas/units.js';
+import { unitLabel, type ConcentrationUnit } from '../gas/units.js';
 import { TOOL } from '../version.js';
+import type { ToolStamp } from './results.js';
 import { formatNumber, formatTextTable } from './table.js';
 
 /** Everything a recheck produced, for output. */
@@ -127,12 +130,50 @@ export function formatRecheckText(outcome: RecheckOutcome): string {
   return lines.join('\n');
 }
 
+/** The `recheck --json` document (`recheckDocument`); `null` stands for a value that is absent. */
+export interface RecheckDocument {
+  /** The tool that wrote it. */
+  tool: ToolStamp;
+  calibration: { file: string; sha256: string };
+  gas: string;
+  unit: ConcentrationUnit;
+  measured: number;
+  certified: number;
+  recoveryPct: number | null;
+  low: number | null;
+  high: number | null;
+  verdict: Verdict;
+  rules: Pick<RuleFiring, 'rule' | 'severity' | 'reason'>[];
+  nextDue: string | null;
+  trend: DriftTrend;
+  time: string;
+  recordedAt: string;
+  scan: { path: string; sha256: string };
+  level: number;
+  se: number;
+  z: number | null;
+  detectionLimit: number | null;
+  kind: EvaluatedCheck['kind'];
+  recoveryLowPct: number | null;
+  recoveryHighPct: number | null;
+  tolerancePct: number;
+  everyDays: number;
+  nearTolerance: boolean;
+  sigma: SigmaChoice | null;
+  limits: ControlLimits | null;
+  reasons: string[];
+  schedule: Schedule;
+  history: { file: string; line: number | null; created: boolean; checks: number };
+  notes: string[];
+  cautions: string[];
+}
+
 /**
  * The recheck as a JSON document (DESIGN §4 fields first, then the detail).
  *
  * @param outcome - the recheck
  */
-export function recheckDocument(outcome: RecheckOutcome): Record<string, unknown> {
+export function recheckDocument(outcome: RecheckOutcome): RecheckDocument {
   const { measurement: m, judged, schedule } = outcome;
   const check = judged.check;
   const finite = (v: number): number | null => (Number.isFinite(v) ? v : null);
@@ -251,12 +292,44 @@ export function formatStatusText(report: StatusReport): string {
   return parts.join('\n\n');
 }
 
+/** One calibration gas in the `status --json` document. */
+export interface StatusEntry {
+  file: string;
+  sha256: string;
+  title: string | null;
+  gas: string;
+  unit: ConcentrationUnit;
+  everyDays: number;
+  tolerancePct: number;
+  checks: number;
+  lastCheck: NonNullable<GasStatus['lastCheck']> | null;
+  state: ScheduleState;
+  nextDue: string | null;
+  daysUntilDue: number | null;
+  daysOverdue: number;
+  reason: string;
+  trend: DriftTrend;
+  notes: string[];
+}
+
+/** The `status --json` document (`statusDocument`). */
+export interface StatusDocument {
+  /** The tool that wrote it. */
+  tool: ToolStamp;
+  /** The time judged at, ISO. */
+  now: string;
+  exitStatus: number;
+  calibrations: StatusEntry[];
+  skipped: StatusProblem[];
+  errors: StatusProblem[];
+}
+
 /**
  * The status as a JSON document for schedulers.
  *
  * @param report - what status found
  */
-export function statusDocument(report: StatusReport): Record<string, unknown> {
+export function statusDocument(report: StatusReport): StatusDocument {
   return {
     tool: { name: TOOL.name, version: TOOL.version },
     now: report.now,

@@ -91,6 +91,24 @@ export function formatResultsText(entries: readonly BatchEntry[], level: number)
   return parts.join('\n\n');
 }
 
+/** The tool that wrote a document: name and version. */
+export interface ToolStamp {
+  name: string;
+  version: string;
+}
+
+/** The `quantify --json` document (`resultsDocument`), also the demo's `*.results.json`. */
+export interface QuantifyDocument {
+  /** The tool that wrote it. */
+  tool: ToolStamp;
+  /** The calibration file and its SHA-256. */
+  calibration: { file: string; sha256: string };
+  /** Prediction-interval level. */
+  level: number;
+  /** Results and failures in input order. */
+  results: BatchEntry[];
+}
+
 /**
  * The `quantify --json` document.
  *
@@ -102,12 +120,12 @@ export function resultsDocument(
   entries: readonly BatchEntry[],
   calibration: { file: string; sha256: string },
   level: number,
-): object {
+): QuantifyDocument {
   return {
     tool: { name: TOOL.name, version: TOOL.version },
     calibration,
     level,
-    results: entries,
+    results: [...entries],
   };
 }
 

@@ -3,112 +3,21 @@
  * that tests read its output with type checks; and narrowing of a batch entry to a result or a
  * failure, failing the test (and showing the entry) when it is the other.
  *
- * The documents are assembled in src/report (results.ts `resultsDocument`, drift-text.ts
- * `recheckDocument` and `statusDocument`) and src/cli (inspect, verify); each type here follows
- * the function named beside it.
+ * The quantify, recheck and status documents are the product's own declared types (src/report
+ * results.ts and drift-text.ts), re-exported here; inspect's is assembled in src/cli/inspect.ts and
+ * follows it.
  */
 import { expect } from 'vitest';
+export type { QuantifyDocument } from '../../src/report/results.js';
+export type { RecheckDocument, StatusDocument, StatusEntry } from '../../src/report/drift-text.js';
 import type { BatchEntry, ScanFailure } from '../../src/report/results.js';
 import { isFailure } from '../../src/report/results.js';
 import type { GasResult, ScanResult } from '../../src/calibration/result.js';
-import type { ConcentrationUnit } from '../../src/gas/units.js';
-import type { ControlLimits, EvaluatedCheck, SigmaChoice } from '../../src/drift/evaluate.js';
-import type { Verdict } from '../../src/drift/record.js';
-import type { RuleFiring } from '../../src/drift/rules.js';
-import type { Schedule, ScheduleState } from '../../src/drift/schedule.js';
-import type { GasStatus } from '../../src/drift/status.js';
-import type { DriftTrend } from '../../src/drift/trend.js';
-import type { StatusProblem } from '../../src/report/drift-text.js';
 import type { ScanDescription } from '../../src/report/inspect.js';
 import type { FileStamp } from '../../src/batch/watch-folder.js';
 
-/** The tool that wrote a document. */
-interface ToolStamp {
-  name: string;
-  version: string;
-}
-
-/** The `quantify --json` document (`resultsDocument`), also the demo's `*.results.json`. */
-export interface QuantifyDocument {
-  tool: ToolStamp;
-  /** The calibration file and its SHA-256. */
-  calibration: { file: string; sha256: string };
-  /** Prediction-interval level. */
-  level: number;
-  /** Results and failures in input order. */
-  results: BatchEntry[];
-}
-
 /** One line of `--jsonl` (quantify, watch): a results element with the calibration's hash. */
 export type ResultLine = BatchEntry & { calibrationSha256: string };
-
-/** The `recheck --json` document (`recheckDocument`); `null` stands for a value that is absent. */
-export interface RecheckDocument {
-  tool: ToolStamp;
-  calibration: { file: string; sha256: string };
-  gas: string;
-  unit: ConcentrationUnit;
-  measured: number;
-  certified: number;
-  recoveryPct: number | null;
-  low: number | null;
-  high: number | null;
-  verdict: Verdict;
-  rules: Pick<RuleFiring, 'rule' | 'severity' | 'reason'>[];
-  nextDue: string | null;
-  trend: DriftTrend;
-  time: string;
-  recordedAt: string;
-  scan: { path: string; sha256: string };
-  level: number;
-  se: number;
-  z: number | null;
-  detectionLimit: number | null;
-  kind: EvaluatedCheck['kind'];
-  recoveryLowPct: number | null;
-  recoveryHighPct: number | null;
-  tolerancePct: number;
-  everyDays: number;
-  nearTolerance: boolean;
-  sigma: SigmaChoice | null;
-  limits: ControlLimits | null;
-  reasons: string[];
-  schedule: Schedule;
-  history: { file: string; line: number | null; created: boolean; checks: number };
-  notes: string[];
-  cautions: string[];
-}
-
-/** One calibration gas in the `status --json` document. */
-export interface StatusEntry {
-  file: string;
-  sha256: string;
-  title: string | null;
-  gas: string;
-  unit: ConcentrationUnit;
-  everyDays: number;
-  tolerancePct: number;
-  checks: number;
-  lastCheck: NonNullable<GasStatus['lastCheck']> | null;
-  state: ScheduleState;
-  nextDue: string | null;
-  daysUntilDue: number | null;
-  daysOverdue: number;
-  reason: string;
-  trend: DriftTrend;
-  notes: string[];
-}
-
-/** The `status --json` document (`statusDocument`). */
-export interface StatusDocument {
-  tool: ToolStamp;
-  /** The time judged at, ISO. */
-  now: string;
-  exitStatus: number;
-  calibrations: StatusEntry[];
-  skipped: StatusProblem[];
-  errors: StatusProblem[];
-}
 
 /** The `inspect --json` document (src/cli/inspect.ts). */
 export interface InspectDocument {
