@@ -6,13 +6,13 @@
  * `reuseOutput` its x and y are views on the buffers of this reader's own {@link ScanParser},
  * valid until its next read, which saves an allocation and a copy per column of every scan.
  */
-import { closeSync, openSync, readSync, statSync } from 'node:fs';
+import { closeSync, readSync } from 'node:fs';
 import { BandwrightError } from '../errors.js';
 import { fileSystemError } from '../store/file-errors.js';
 import type { Spectrum } from '../spectrum/spectrum.js';
 import { resourceLimits } from '../resource-limits.js';
 import { ScanParser } from '../formats/scan.js';
-import { readScan, type ReadScanOptions } from '../store/scan-file.js';
+import { openScanFile, readScan, type ReadScanOptions } from '../store/scan-file.js';
 
 /** Reads one scan; see {@link createScanReader}. */
 export type ScanReader = (path: string) => Spectrum;
@@ -52,23 +52,7 @@ export function createScanReader(options: ScanReaderOptions = {}): ScanReader {
   let buffer = Buffer.allocUnsafe(1 << 20);
   return (path: string): Spectrum => {
     if (path === '-') return readScan(path, { ...parseOptions, maxBytes });
-    let descriptor: number;
-    let size: number;
-    try {
-      const stats = statSync(path);
-      if (stats.isDirectory())
-        throw new BandwrightError('FILE_READ', `${path} is a folder, expected a scan file`, { file: path });
-      if (stats.size > maxBytes)
-        throw new BandwrightError(
-          'LIMIT',
-          `${path}: ${stats.size} bytes, above the limit of ${maxBytes} bytes (BANDWRIGHT_MAX_SCAN_BYTES raises it)`,
-          { file: path },
-        );
-      size = stats.size;
-      descriptor = openSync(path, 'r');
-    } catch (error) {
-      throw fileSystemError(error, path);
-    }
+    const { descriptor, size } = openScanFile(path, maxBytes);
     let length = 0;
     try {
       // One spare byte shows whether the file grew after the stat; keep reading to its end.

@@ -34,12 +34,7 @@ function readAll(descriptor: number, label: string, maxBytes: number): Uint8Arra
         continue;
       }
       if (code === 'EOF') break;
-      throw new BandwrightError(
-        'FILE_READ',
-        `${label}: cannot read: ${(error as Error).message}`,
-        { file: label },
-        { cause: error },
-      );
+      throw fileSystemError(error, label);
     }
     if (count === 0) break;
     total += count;
@@ -52,6 +47,33 @@ function readAll(descriptor: number, label: string, maxBytes: number): Uint8Arra
     chunks.push(Buffer.from(chunk.subarray(0, count)));
   }
   return new Uint8Array(Buffer.concat(chunks, total));
+}
+
+/**
+ * Opens a scan file for reading after the checks every reader makes: it exists, it is a file, and
+ * it is not larger than the limit (the size is checked before any byte is read).
+ *
+ * @param path - file path
+ * @param maxBytes - largest file accepted, bytes
+ * @returns the open descriptor (the caller closes it) and the file's size, bytes
+ * @throws BandwrightError `FILE_NOT_FOUND`, `FILE_READ` (a folder, permissions), `LIMIT`
+ */
+export function openScanFile(path: string, maxBytes: number): { descriptor: number; size: number } {
+  try {
+    const stats = statSync(path);
+    if (stats.isDirectory())
+      throw new BandwrightError('FILE_READ', `${path} is a folder, expected a scan file`, { file: path });
+    if (stats.size > maxBytes)
+      throw new BandwrightError(
+        'LIMIT',
+        `${path}: ${stats.size} bytes, above the limit of ${maxBytes} bytes ` +
+          '(BANDWRIGHT_MAX_SCAN_BYTES raises it)',
+        { file: path },
+      );
+    return { descriptor: openSync(path, 'r'), size: stats.size };
+  } catch (error) {
+    throw fileSystemError(error, path);
+  }
 }
 
 /**
@@ -79,21 +101,7 @@ export function readScan(path: string, options: ReadScanOptions = {}): Spectrum 
     bytes = readAll(0, source, maxBytes);
   } else {
     source = givenSource ?? path;
-    let descriptor: number;
-    try {
-      const stats = statSync(path);
-      if (stats.isDirectory())
-        throw new BandwrightError('FILE_READ', `${path} is a folder, expected a scan file`, { file: path });
-      if (stats.size > maxBytes)
-        throw new BandwrightError(
-          'LIMIT',
-          `${path}: ${stats.size} bytes, above the limit of ${maxBytes} bytes (BANDWRIGHT_MAX_SCAN_BYTES raises it)`,
-          { file: path },
-        );
-      descriptor = openSync(path, 'r');
-    } catch (error) {
-      throw fileSystemError(error, path);
-    }
+    const { descriptor } = openScanFile(path, maxBytes);
     try {
       bytes = readAll(descriptor, path, maxBytes);
     } finally {
