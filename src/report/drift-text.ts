@@ -79,13 +79,16 @@ export function formatRecheckText(outcome: RecheckOutcome): string {
     ['certified', `${formatNumber(m.certified)} ${unit}${m.certified === 0 ? ' (zero gas)' : ''}`],
     [
       'measured',
-      `${formatNumber(m.measured)} ${unit}, ${level} interval ${formatNumber(m.low)} to ${formatNumber(m.high)} ${unit} (se ${formatNumber(m.se, 3)})`,
+      `${formatNumber(m.measured)} ${unit}, ${level} interval ` +
+        `${formatNumber(m.low)} to ${formatNumber(m.high)} ${unit} (se ${formatNumber(m.se, 3)})`,
     ],
   ];
   if (check.kind === 'span') {
     rows.push([
       'recovery',
-      `${percent(check.recoveryPct)} % (interval ${percent(check.recoveryLowPct)} to ${percent(check.recoveryHighPct)} %); tolerance ${percent(100 - tolerance)} to ${percent(100 + tolerance)} %`,
+      `${percent(check.recoveryPct)} % ` +
+        `(interval ${percent(check.recoveryLowPct)} to ${percent(check.recoveryHighPct)} %); ` +
+        `tolerance ${percent(100 - tolerance)} to ${percent(100 + tolerance)} %`,
     ]);
   } else if (m.detectionLimit !== undefined) {
     rows.push(['zero gas', `judged against the detection limit ${formatNumber(m.detectionLimit)} ${unit}`]);
@@ -95,7 +98,8 @@ export function formatRecheckText(outcome: RecheckOutcome): string {
     rows.push(['σ', check.sigma.reason]);
     rows.push([
       'limits',
-      `±2σ ${percent(check.limits.warning[0])}–${percent(check.limits.warning[1])} %, ±3σ ${percent(check.limits.action[0])}–${percent(check.limits.action[1])} %`,
+      `±2σ ${percent(check.limits.warning[0])}–${percent(check.limits.warning[1])} %, ` +
+        `±3σ ${percent(check.limits.action[0])}–${percent(check.limits.action[1])} %`,
     ]);
   }
   rows.push([
@@ -117,7 +121,8 @@ export function formatRecheckText(outcome: RecheckOutcome): string {
   ]);
   rows.push([
     'history',
-    `${outcome.history} line ${record.line ?? '?'}${outcome.created ? ' (new history)' : ''}, ${judged.evaluation.checks.length} check(s) of ${m.gas}`,
+    `${outcome.history} line ${record.line ?? '?'}${outcome.created ? ' (new history)' : ''}, ` +
+      `${judged.evaluation.checks.length} check(s) of ${m.gas}`,
   ]);
   const width = Math.max(...rows.map(([k]) => k.length));
   const lines = [
@@ -279,7 +284,8 @@ export function formatStatusText(report: StatusReport): string {
   const notes: string[] = [];
   for (const row of report.rows) {
     notes.push(
-      `${row.file} ${row.gas}: ${row.schedule.reason}; every ${row.policy.everyDays} days, tolerance ±${row.policy.tolerancePct} %`,
+      `${row.file} ${row.gas}: ${row.schedule.reason}; ` +
+        `every ${row.policy.everyDays} days, tolerance ±${row.policy.tolerancePct} %`,
     );
     if (row.trend.status !== 'insufficient') notes.push(`${row.file} ${row.gas}: trend ${row.trend.summary}`);
     for (const note of row.notes) notes.push(`${row.file} ${row.gas}: ${note}`);

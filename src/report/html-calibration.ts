@@ -21,7 +21,10 @@ export function maybe(value: number | null, digits = 4): string {
   return value === null ? 'not available' : formatNumber(value, digits);
 }
 
-/** The coefficient table of one gas: each coefficient with its standard error, then s, R², n and the condition number. */
+/**
+ * The coefficient table of one gas: each coefficient with its standard error, then s, R², n and the
+ * condition number.
+ */
 export function statisticsTable(gas: GasCalibration): string {
   const model = gas.model;
   const unit = unitLabel(gas.unit);
@@ -112,7 +115,9 @@ export function limitsTable(gas: GasCalibration): string {
   ];
   if (gas.zeroGasLimit !== undefined) rows.push(row('zero-gas limit', gas.zeroGasLimit));
   return htmlTable({
-    caption: `${gas.gas}: detection and determination limits (α = ${limits.alpha}, β = ${limits.beta}, k = ${limits.k})`,
+    caption:
+      `${gas.gas}: detection and determination limits ` +
+      `(α = ${limits.alpha}, β = ${limits.beta}, k = ${limits.k})`,
     header: ['limit', numberCell('value'), 'unit', 'definition'],
     rows,
   });
@@ -124,9 +129,16 @@ export function gasHeading(gas: GasCalibration): string {
   const where =
     feature === undefined
       ? 'from tabulated responses'
-      : `${feature.response === 'area' ? 'band area' : 'peak height'} over ${formatWindow(feature.band)}${feature.baseline.length > 0 ? `, baseline of order ${feature.baselineOrder} through ${feature.baseline.map(formatWindow).join(', ')}` : ', no baseline correction'}`;
+      : `${feature.response === 'area' ? 'band area' : 'peak height'} over ${formatWindow(feature.band)}` +
+        `${
+          feature.baseline.length > 0
+            ? `, baseline of order ${feature.baselineOrder} ` +
+              `through ${feature.baseline.map(formatWindow).join(', ')}`
+            : ', no baseline correction'
+        }`;
   return paragraph(
-    `${where}; curve: ${CURVE_WORDS[gas.model.form]}, ${gas.model.weights === 'none' ? 'unweighted' : `weighted ${gas.model.weights}`}.`,
+    `${where}; curve: ${CURVE_WORDS[gas.model.form]}, ` +
+      `${gas.model.weights === 'none' ? 'unweighted' : `weighted ${gas.model.weights}`}.`,
   );
 }
 
@@ -243,7 +255,14 @@ export function clsSection(calibration: Calibration): string {
   });
   return (
     paragraph(
-      `Every component is fitted together over the regions (K-matrix classical least squares); the baseline polynomials are projected out of every spectrum. Interferents are modelled but not reported. Ranges and detection limits (LOD) are at the reference conditions: the LOD is 3.3 × the prediction standard error of a blank, and a sample's limit is this ÷ its φ. RMSECV is the root-mean-square error of leave-one-out cross-validation over the standards; the interval inflation is the factor the prediction intervals are widened by so that they cover those errors.`,
+      `Every component is fitted together over the regions (K-matrix classical least squares); ` +
+        `the baseline polynomials are projected out of every spectrum. ` +
+        `Interferents are modelled but not reported. ` +
+        `Ranges and detection limits (LOD) are at the reference conditions: ` +
+        `the LOD is 3.3 × the prediction standard error of a blank, and a sample's limit is this ÷ its φ. ` +
+        `RMSECV is the root-mean-square error of leave-one-out cross-validation over the standards; ` +
+        `the interval inflation is the factor the prediction intervals are widened by ` +
+        `so that they cover those errors.`,
     ) +
     components +
     facts

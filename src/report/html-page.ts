@@ -15,16 +15,20 @@ import { formatNumber } from './table.js';
 export const REPORT_CSP =
   "default-src 'none'; style-src 'unsafe-inline'; img-src data:; base-uri 'none'; form-action 'none'";
 
-const STYLE = `
+const STYLE =
+  `
 :root { color-scheme: light; }
 * { box-sizing: border-box; }
-body { margin: 0 auto; max-width: 980px; padding: 20px 24px 48px; font-family: system-ui, 'DejaVu Sans', 'Liberation Sans', Arial, sans-serif; font-size: 14px; line-height: 1.45; color: #222; background: #fff; }
+body { margin: 0 auto; max-width: 980px; padding: 20px 24px 48px; ` +
+  `font-family: system-ui, 'DejaVu Sans', 'Liberation Sans', Arial, sans-serif; ` +
+  `font-size: 14px; line-height: 1.45; color: #222; background: #fff; }
 h1 { font-size: 22px; margin: 0 0 4px; }
 h2 { font-size: 18px; margin: 28px 0 8px; padding-bottom: 3px; border-bottom: 2px solid #1f4e9c; }
 h3 { font-size: 15px; margin: 18px 0 6px; }
 p { margin: 6px 0; }
 .subtitle { color: #555; margin: 0 0 12px; }
-code, .hash { font-family: 'DejaVu Sans Mono', 'Liberation Mono', Consolas, monospace; font-size: 12px; overflow-wrap: anywhere; }
+code, .hash { font-family: 'DejaVu Sans Mono', 'Liberation Mono', Consolas, monospace; ` +
+  `font-size: 12px; overflow-wrap: anywhere; }
 table { border-collapse: collapse; margin: 8px 0 12px; width: 100%; }
 caption { text-align: left; font-weight: bold; padding: 4px 0; }
 th, td { border: 1px solid #c8c8c8; padding: 3px 6px; text-align: left; vertical-align: top; }
@@ -206,7 +210,8 @@ export function cautionBox(cautions: readonly string[], id = 'safety'): string {
     cautions.length > 0
       ? cautions
       : [
-          'The gases involved carry no specific caution in the species table. Handle compressed-gas standards as their safety data sheets say.',
+          'The gases involved carry no specific caution in the species table. ' +
+            'Handle compressed-gas standards as their safety data sheets say.',
         ];
   return element(
     'section',

@@ -79,7 +79,13 @@ function gasesOf(calibration: Calibration): string {
     return cls.model.components
       .map(
         (c, i) =>
-          `${c.name} (${c.unit}${c.reported ? `, calibrated ${formatNumber(cls.model.ranges[i]?.min ?? 0)}–${formatNumber(cls.model.ranges[i]?.max ?? 0)} at reference conditions` : ', interferent'})`,
+          `${c.name} (${c.unit}` +
+          `${
+            c.reported
+              ? `, calibrated ${formatNumber(cls.model.ranges[i]?.min ?? 0)}–` +
+                `${formatNumber(cls.model.ranges[i]?.max ?? 0)} at reference conditions`
+              : ', interferent'
+          })`,
       )
       .join('; ');
   }
@@ -200,7 +206,9 @@ export function quantifyReportHtml(input: QuantifyReportInput, options: Quantify
       const notes = [
         ...entry.gases.flatMap((g) => g.notes.map((n) => `${g.gas}: ${n}`)),
         ...entry.warnings,
-        `conditions: path ${formatNumber(entry.conditions.pathLength_m, 4)} m, ${formatNumber(entry.conditions.temperature_K, 5)} K, ${formatNumber(entry.conditions.pressure_kPa, 6)} kPa`,
+        `conditions: path ${formatNumber(entry.conditions.pathLength_m, 4)} m, ` +
+          `${formatNumber(entry.conditions.temperature_K, 5)} K, ` +
+          `${formatNumber(entry.conditions.pressure_kPa, 6)} kPa`,
         ...(entry.residualRms === undefined ? [] : [`residual RMS ${formatNumber(entry.residualRms, 3)} AU`]),
       ];
       parts.push(bulletList(notes));
@@ -250,7 +258,9 @@ export function quantifyReportHtml(input: QuantifyReportInput, options: Quantify
       'Results',
       table +
         paragraph(
-          'Flags: below-lod (report as "< LOD"), below-loq, extrapolated (outside the calibrated range), saturated, poor-fit, over-limit (upper end of the interval above a given limit), conditions-far (far from the calibration’s conditions). The notes under each sample say why.',
+          'Flags: below-lod (report as "< LOD"), below-loq, extrapolated (outside the calibrated range), ' +
+            'saturated, poor-fit, over-limit (upper end of the interval above a given limit), ' +
+            'conditions-far (far from the calibration’s conditions). The notes under each sample say why.',
           'muted',
         ),
     ),

@@ -142,7 +142,9 @@ function provenance(input: CalibrationReportInput): string {
     check.role,
     hashCell(check.path),
     hashCell(check.sha256),
-    `${STATUS_WORDS[check.status]}${check.currentSha256 === undefined ? '' : `; now ${check.currentSha256}`}${check.message === undefined ? '' : `; ${check.message}`}`,
+    `${STATUS_WORDS[check.status]}` +
+      `${check.currentSha256 === undefined ? '' : `; now ${check.currentSha256}`}` +
+      `${check.message === undefined ? '' : `; ${check.message}`}`,
   ]);
   const changed = input.inputs.filter((c) => c.status !== 'unchanged');
   const sameTool =
@@ -156,7 +158,8 @@ function provenance(input: CalibrationReportInput): string {
       ['built', `${calibration.createdAt} by ${calibration.tool.name} ${calibration.tool.version}`],
       [
         'report made',
-        `${input.generatedAt} by ${input.tool.name} ${input.tool.version}${sameTool ? '' : ' (a different version from the one that built the calibration)'}`,
+        `${input.generatedAt} by ${input.tool.name} ${input.tool.version}` +
+          `${sameTool ? '' : ' (a different version from the one that built the calibration)'}`,
       ],
       ...(input.histories?.[0]?.source === undefined
         ? []
@@ -164,7 +167,10 @@ function provenance(input: CalibrationReportInput): string {
     ]) +
     (changed.length > 0
       ? notice(
-          `${changed.length} of ${input.inputs.length} recorded input file(s) are missing or no longer match their recorded SHA-256; the numbers above come from the calibration file itself, the plots leave out what could not be verified.`,
+          `${changed.length} of ${input.inputs.length} recorded input file(s) are missing ` +
+            `or no longer match their recorded SHA-256; ` +
+            `the numbers above come from the calibration file itself, ` +
+            `the plots leave out what could not be verified.`,
         )
       : '') +
     htmlTable({
@@ -210,7 +216,11 @@ function historySection(
       (views.length > 1 ? element('h3', {}, escapeText(history.gas)) : '') +
       figure(
         plot.svg,
-        `Control chart of ${history.gas}: recovery of the check standard against time, tolerance ±${significantDigits(history.chart.tolerancePct, 3)} %, warning (±2σ) and action (±3σ) limits with the σ in force for the next check (σ = ${significantDigits(history.chart.sigmaPct, 3)} %, why: below the chart); checks where a control rule fired are ringed and labelled above the chart.`,
+        `Control chart of ${history.gas}: recovery of the check standard against time, ` +
+          `tolerance ±${significantDigits(history.chart.tolerancePct, 3)} %, ` +
+          `warning (±2σ) and action (±3σ) limits with the σ in force for the next check ` +
+          `(σ = ${significantDigits(history.chart.sigmaPct, 3)} %, why: below the chart); ` +
+          `checks where a control rule fired are ringed and labelled above the chart.`,
       ) +
       (history.notes === undefined || history.notes.length === 0 ? '' : bulletList(history.notes)) +
       htmlTable({
@@ -338,7 +348,8 @@ export function calibrationReportHtml(
     ['standards', `${calibration.standards.length}`],
     [
       'reference conditions',
-      `path ${formatNumber(reference.pathLength_m, 4)} m, ${formatNumber(reference.temperature_K, 5)} K, ${formatNumber(reference.pressure_kPa, 6)} kPa; responses scaled by φ = (L/L_ref)(P/P_ref)(T_ref/T)`,
+      `path ${formatNumber(reference.pathLength_m, 4)} m, ${formatNumber(reference.temperature_K, 5)} K, ` +
+        `${formatNumber(reference.pressure_kPa, 6)} kPa; responses scaled by φ = (L/L_ref)(P/P_ref)(T_ref/T)`,
     ],
     [
       'recheck',
@@ -348,7 +359,13 @@ export function calibrationReportHtml(
   ];
   const verdicts = calibration.gases.map(
     (g) =>
-      `${g.gas}: ${g.model.mandel === null ? 'linearity not tested (too few standards or levels)' : g.model.mandel.recommendation}; LOD ${maybe(g.model.limits.detection.value, 3)} ${unitLabel(g.unit)}`,
+      `${g.gas}: ` +
+      `${
+        g.model.mandel === null
+          ? 'linearity not tested (too few standards or levels)'
+          : g.model.mandel.recommendation
+      }` +
+      `; LOD ${maybe(g.model.limits.detection.value, 3)} ${unitLabel(g.unit)}`,
   );
   parts.push(
     pageSection(
@@ -372,14 +389,17 @@ export function calibrationReportHtml(
       figures.push(
         figure(
           curve.svg,
-          `${gas.gas}: standards (responses at reference conditions) and the fitted curve with its ${levelText(level)} confidence and prediction bands; detection (LOD) and determination (LOQ) limits as vertical lines; residuals below.`,
+          `${gas.gas}: standards (responses at reference conditions) and the fitted curve ` +
+            `with its ${levelText(level)} confidence and prediction bands; ` +
+            `detection (LOD) and determination (LOQ) limits as vertical lines; residuals below.`,
         ),
       );
     if (spectra !== undefined)
       figures.push(
         figure(
           spectra.svg,
-          `${gas.gas}: the standards' absorbance spectra (grouped by certified concentration), band window shaded, baseline windows hatched, each standard's fitted baseline dotted.`,
+          `${gas.gas}: the standards' absorbance spectra (grouped by certified concentration), ` +
+            `band window shaded, baseline windows hatched, each standard's fitted baseline dotted.`,
         ),
       );
     else if (gas.feature !== undefined)
@@ -409,7 +429,8 @@ export function calibrationReportHtml(
             ? notice('No standard spectrum could be read and verified, so the spectra plot is left out.')
             : figure(
                 spectra.svg,
-                "The standards' absorbance spectra over the method's fit regions (shaded), grouped by their certified concentrations.",
+                "The standards' absorbance spectra over the method's fit regions (shaded), " +
+                  'grouped by their certified concentrations.',
               )),
       ),
     );

@@ -215,7 +215,8 @@ export function fitUnivariate(data: UnivariateData, options: UnivariateFitOption
     const tIntercept = criticalT(0.95, straight.fit.degreesOfFreedom);
     if (Math.abs(straight.coefficients.a) > tIntercept * interceptSE) {
       warnings.push(
-        `a straight line with intercept gives a = ${significantDigits(straight.coefficients.a)} ± ${significantDigits(interceptSE)} ` +
+        `a straight line with intercept gives a = ${significantDigits(straight.coefficients.a)} ` +
+          `± ${significantDigits(interceptSE)} ` +
           `(standard error), significantly different from 0 at 95 %: a through-origin calibration is biased on ` +
           `these standards`,
       );

@@ -58,7 +58,8 @@ export function invertCurve(model: UnivariateModel, target: number): number {
     throw new BandwrightError(
       'NO_SOLUTION',
       `response ${significantDigits(target)} is reached twice inside the calibrated range (at concentrations ` +
-        `${significantDigits(inside[0] as number)} and ${significantDigits(inside[1] as number)}), because the second-order curve ` +
+        `${significantDigits(inside[0] as number)} and ${significantDigits(inside[1] as number)}), ` +
+        `because the second-order curve ` +
         `turns at ${significantDigits(vertex)}: the calibration is not monotonic there`,
       { parameter: 'responses' },
     );

@@ -187,7 +187,8 @@ export function predictUnivariate(
   if (!Number.isFinite(value) || !Number.isFinite(se)) {
     throw new BandwrightError(
       'NO_SOLUTION',
-      `response ${significantDigits(mean)} gives concentration ${significantDigits(value)} with standard error ${significantDigits(se)}: not a ` +
+      `response ${significantDigits(mean)} gives concentration ${significantDigits(value)} ` +
+        `with standard error ${significantDigits(se)}: not a ` +
         `finite estimate; the response is too far outside the calibrated responses ` +
         `(${significantDigits(model.meanResponse)} on average) or the model is damaged`,
       { parameter: 'responses' },
@@ -247,8 +248,8 @@ export function predictUnivariate(
     }
   } else if (g !== null && g > 0.1) {
     warnings.push(
-      `the slope is poorly determined (g = ${significantDigits(g)} > 0.1): the standard interval is only approximate; use ` +
-        `the Fieller method`,
+      `the slope is poorly determined (g = ${significantDigits(g)} > 0.1): ` +
+        `the standard interval is only approximate; use the Fieller method`,
     );
   }
   const [rangeLow, rangeHigh] = model.range;
@@ -256,7 +257,8 @@ export function predictUnivariate(
   const extrapolated = value < rangeLow - tolerance || value > rangeHigh + tolerance;
   if (extrapolated)
     warnings.push(
-      `concentration ${significantDigits(value)} is outside the calibrated range ${rangeLow}–${rangeHigh} (extrapolated)`,
+      `concentration ${significantDigits(value)} is outside the calibrated range ` +
+        `${rangeLow}–${rangeHigh} (extrapolated)`,
     );
   return {
     value,

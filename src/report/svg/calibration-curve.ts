@@ -358,7 +358,8 @@ export function renderCalibrationCurve(
         'title',
         {},
         escapeText(
-          `${s.label === undefined ? '' : `${s.label}: `}${formatNumber(s.concentration)} ${input.unit}, response ${formatNumber(s.response, 5)}, residual ${formatNumber(s.residual, 3)}`,
+          `${s.label === undefined ? '' : `${s.label}: `}${formatNumber(s.concentration)} ${input.unit}, ` +
+            `response ${formatNumber(s.response, 5)}, residual ${formatNumber(s.residual, 3)}`,
         ),
       ),
     ),
@@ -374,7 +375,8 @@ export function renderCalibrationCurve(
       'title',
       {},
       escapeText(
-        `${limit.name} = ${formatNumber(limit.value, 4)} ${input.unit}${limit.definition === undefined ? '' : `: ${limit.definition}`}`,
+        `${limit.name} = ${formatNumber(limit.value, 4)} ${input.unit}` +
+          `${limit.definition === undefined ? '' : `: ${limit.definition}`}`,
       ),
     );
     const rule = { colour: style.colour, width: 1.4, dash: style.dash };
@@ -434,7 +436,15 @@ export function renderCalibrationCurve(
   }
   body.push(legend.svg);
 
-  const described = `${input.gas} calibration: ${input.standards.length} standards, fitted ${input.curveName ?? 'curve'} with ${level} confidence and prediction bands${input.limits.length > 0 ? `, ${input.limits.map((l) => `${l.name} ${formatNumber(l.value, 3)} ${input.unit}`).join(', ')}` : ''}; residuals below.`;
+  const described =
+    `${input.gas} calibration: ${input.standards.length} standards, ` +
+    `fitted ${input.curveName ?? 'curve'} with ${level} confidence and prediction bands` +
+    `${
+      input.limits.length > 0
+        ? `, ${input.limits.map((l) => `${l.name} ${formatNumber(l.value, 3)} ${input.unit}`).join(', ')}`
+        : ''
+    }` +
+    `; residuals below.`;
   return svgDocument({
     id,
     kind: 'plot-calibration-curve',

@@ -165,7 +165,8 @@ export function linearAxisScale(
  * Extent of finite values over several series, padded by a fraction of the span.
  *
  * @param series - arrays of values (non-finite values are skipped)
- * @param options - `pad` fraction of the span added at each end (default 0.05), `include` values that must lie inside (e.g. 0)
+ * @param options - `pad` fraction of the span added at each end (default 0.05), `include` values that
+ *   must lie inside (e.g. 0)
  * @returns [low, high]; [0, 1] when there is no finite value
  */
 export function paddedExtent(

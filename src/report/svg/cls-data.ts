@@ -25,7 +25,8 @@ import type { ClsFitPlotInput } from './cls-fit.js';
  * @param conditions - the sample's cell conditions as quantify resolved them (path m, K, kPa)
  * @param options - interval level (default the model's), `title` (default `<scan>: classical-least-squares fit`)
  * @returns plot input on the calibration's channels
- * @throws BandwrightError `INVALID_VALUE` for a calibration that is not CLS; `WINDOW` when the scan does not cover the regions
+ * @throws BandwrightError `INVALID_VALUE` for a calibration that is not CLS; `WINDOW` when the scan
+ *   does not cover the regions
  */
 export function clsFitData(
   calibration: Calibration,
@@ -37,7 +38,8 @@ export function clsFitData(
   if (cls === undefined || cls.model.grid === null) {
     throw new BandwrightError(
       'INVALID_VALUE',
-      `the calibration is a ${calibration.method.model} calibration; the CLS fit plot needs a classical-least-squares calibration with a channel grid`,
+      `the calibration is a ${calibration.method.model} calibration; ` +
+        `the CLS fit plot needs a classical-least-squares calibration with a channel grid`,
       { parameter: 'calibration' },
     );
   }
@@ -84,7 +86,8 @@ export function clsFitData(
     residualRms: prediction.residualRms,
     calibrationResidualRms: model.calibration.residualRms,
     notes: [
-      'measured and fitted are shown with the baseline polynomials (and background, if any) removed, as the model fits them',
+      'measured and fitted are shown with the baseline polynomials (and background, if any) removed, ' +
+        'as the model fits them',
     ],
   };
 }

@@ -114,7 +114,8 @@ function checkLengths(input: ClsFitPlotInput): void {
     if (!((input.grid[i] as number) > (input.grid[i - 1] as number)))
       throw new BandwrightError(
         'NOT_MONOTONIC',
-        `CLS plot: grid[${i}] = ${input.grid[i]} is not above grid[${i - 1}] = ${input.grid[i - 1]}; the grid must ascend`,
+        `CLS plot: grid[${i}] = ${input.grid[i]} is not above grid[${i - 1}] = ${input.grid[i - 1]}; ` +
+          `the grid must ascend`,
         { parameter: 'grid' },
       );
   }
@@ -129,7 +130,8 @@ function checkLengths(input: ClsFitPlotInput): void {
  * @param input - grid, measured, fitted, contributions, residual
  * @param options - id, size, axis direction
  * @returns SVG markup
- * @throws BandwrightError `INVALID_VALUE` when an array's length differs from the grid's; `NOT_MONOTONIC` for a grid that does not ascend
+ * @throws BandwrightError `INVALID_VALUE` when an array's length differs from the grid's;
+ *   `NOT_MONOTONIC` for a grid that does not ascend
  */
 export function renderClsFit(input: ClsFitPlotInput, options: ClsFitPlotOptions = {}): string {
   checkLengths(input);
@@ -264,7 +266,12 @@ export function renderClsFit(input: ClsFitPlotInput, options: ClsFitPlotOptions 
   const rmsText =
     input.residualRms === undefined
       ? ''
-      : `: RMS ${formatNumber(input.residualRms, 3)} AU${input.calibrationResidualRms === undefined ? '' : ` (calibration ${formatNumber(input.calibrationResidualRms, 3)} AU)`}`;
+      : `: RMS ${formatNumber(input.residualRms, 3)} AU` +
+        `${
+          input.calibrationResidualRms === undefined
+            ? ''
+            : ` (calibration ${formatNumber(input.calibrationResidualRms, 3)} AU)`
+        }`;
   body.push(
     panelTitle(residualPanel, `Residual (measured − fitted)${rmsText}`),
     element(
@@ -292,7 +299,10 @@ export function renderClsFit(input: ClsFitPlotInput, options: ClsFitPlotOptions 
     width,
     height,
     title: input.title,
-    description: `Measured spectrum, fitted model and the contributions of ${input.contributions.map((c) => c.gas).join(', ') || 'no component'}; residual below${rmsText === '' ? '' : ` (${rmsText.slice(2)})`}.`,
+    description:
+      `Measured spectrum, fitted model and the contributions of ` +
+      `${input.contributions.map((c) => c.gas).join(', ') || 'no component'}; ` +
+      `residual below${rmsText === '' ? '' : ` (${rmsText.slice(2)})`}.`,
     defs,
     body: body.join(''),
   });

@@ -66,7 +66,10 @@ export interface ControlChartTrend {
   fittedTo: string;
   /** Draw the projection (dashed) up to this time, ISO 8601. */
   projectUntil: string;
-  /** When the projected trend leaves the tolerance, ISO 8601, or null/undefined when it does not within the projection. */
+  /**
+   * When the projected trend leaves the tolerance, ISO 8601, or null/undefined when it does not
+   * within the projection.
+   */
   leavesToleranceAt?: string | null;
 }
 
@@ -369,7 +372,10 @@ export function renderControlChart(input: ControlChartInput, options: ControlCha
       record.verdict === 'fail' ? symbolCross : record.verdict === 'warning' ? symbolTriangle : symbolCircle;
     const colour =
       record.verdict === 'fail' ? ALERT : record.verdict === 'warning' ? seriesStyle(1).colour : INK;
-    const hover = `${record.time}: recovery ${formatNumber(record.recoveryPct, 4)} %, ${record.verdict}${record.rules.length > 0 ? `, rules ${record.rules.join(', ')}` : ''}${record.label === undefined ? '' : ` (${record.label})`}`;
+    const hover =
+      `${record.time}: recovery ${formatNumber(record.recoveryPct, 4)} %, ${record.verdict}` +
+      `${record.rules.length > 0 ? `, rules ${record.rules.join(', ')}` : ''}` +
+      `${record.label === undefined ? '' : ` (${record.label})`}`;
     if (record.rules.length > 0) {
       marks.push(
         element('circle', {
@@ -452,7 +458,15 @@ export function renderControlChart(input: ControlChartInput, options: ControlCha
     width,
     height,
     title: input.title ?? 'Check-standard recoveries',
-    description: `${records.length} checks against tolerance ±${significantDigits(input.tolerancePct, 3)} % and ±2σ/±3σ limits with σ = ${significantDigits(input.sigmaPct, 3)} %; ${fired} with a control rule fired${input.trend === undefined ? '' : `; trend ${formatNumber(input.trend.slopePctPerDay * 7, 3)} % per week`}.`,
+    description:
+      `${records.length} checks against tolerance ±${significantDigits(input.tolerancePct, 3)} % ` +
+      `and ±2σ/±3σ limits with σ = ${significantDigits(input.sigmaPct, 3)} %; ` +
+      `${fired} with a control rule fired` +
+      `${
+        input.trend === undefined
+          ? ''
+          : `; trend ${formatNumber(input.trend.slopePctPerDay * 7, 3)} % per week`
+      }.`,
     defs,
     body: body.join(''),
   });

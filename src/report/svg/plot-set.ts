@@ -103,7 +103,10 @@ export function calibrationPlots(
           : present
               .map(
                 (c) =>
-                  `${c.name} ${concentrationGroup(standard?.concentrations[c.name] as number, c.unit as ConcentrationUnit)}`,
+                  `${c.name} ${concentrationGroup(
+                    standard?.concentrations[c.name] as number,
+                    c.unit as ConcentrationUnit,
+                  )}`,
               )
               .join(', ');
       return { label: standardLabel(calibration, index), spectrum, group };

@@ -83,7 +83,10 @@ export interface SpectraPlotInput {
 export interface SpectraOptions extends PlotOptions {
   /** Panel height, px (default 300). */
   panelHeight?: number;
-  /** Wavenumber axis direction: `descending` (high wavenumbers on the left, the usual IR layout; default) or `ascending`. */
+  /**
+   * Wavenumber axis direction: `descending` (high wavenumbers on the left, the usual IR layout;
+   * default) or `ascending`.
+   */
   wavenumberAxis?: WavenumberAxis;
   /** Wavenumber range to show [low, high], cm⁻¹ (default: the windows with a margin, else the data). */
   range?: readonly [number, number];
@@ -331,7 +334,15 @@ export function renderSpectra(input: SpectraPlotInput, options: SpectraOptions =
     width,
     height,
     title: input.title,
-    description: `${input.series.length} absorbance spectra${input.band === undefined ? '' : `, band ${formatWindow(input.band)} shaded`}${input.baselineWindows.length > 0 ? `, baseline windows ${input.baselineWindows.map(formatWindow).join(', ')} hatched` : ''}${input.baselines.length > 0 ? ', fitted baselines dotted' : ''}.`,
+    description:
+      `${input.series.length} absorbance spectra` +
+      `${input.band === undefined ? '' : `, band ${formatWindow(input.band)} shaded`}` +
+      `${
+        input.baselineWindows.length > 0
+          ? `, baseline windows ${input.baselineWindows.map(formatWindow).join(', ')} hatched`
+          : ''
+      }` +
+      `${input.baselines.length > 0 ? ', fitted baselines dotted' : ''}.`,
     defs,
     body: body.join(''),
   });
@@ -365,7 +376,8 @@ function labelledSeries(item: LabelledSpectrum, absorbance: Spectrum): SpectrumS
  * @param gas - a gas calibration with a band feature
  * @param spectra - labelled spectra (standards or samples)
  * @param options - `title` (default `<gas> standards`), `notes` printed under the plot
- * @returns plot input; spectra whose baseline cannot be fitted (windows outside the scan) are drawn without it and named in the notes
+ * @returns plot input; spectra whose baseline cannot be fitted (windows outside the scan) are drawn
+ *   without it and named in the notes
  */
 export function gasSpectraData(
   gas: GasCalibration,
