@@ -7,25 +7,41 @@ import { Command, CommanderError } from 'commander';
 import { BandwrightError } from '../errors.js';
 import { resourceLimits, resourceLimitsHelp } from '../resource-limits.js';
 import { TOOL } from '../version.js';
-import { registerCalibrate } from './calibrate.js';
-import { registerDemo } from './demo.js';
 import type { CommandContext, TextSink } from './context.js';
 import { CLI_PARAMETER_NAMES } from './parameter-names.js';
-import { registerInspect } from './inspect.js';
-import { registerQuantify } from './quantify.js';
-import { registerRecheck } from './recheck.js';
-import { registerReport } from './report.js';
-import { registerSimulate } from './simulate.js';
-import { registerStatus } from './status.js';
-import { registerVerify } from './verify.js';
-import { registerWatch } from './watch.js';
+
+/** Adds one command to the program. */
+type Registration = (program: Command, context: CommandContext) => void;
+
+/**
+ * The commands in the order help lists them, each loaded only when needed: a run of one command
+ * loads that command's modules and not the others' (plots, reports, the simulator …), which keeps
+ * the start of every run short — it matters for batches of one scan started by a scheduler.
+ */
+const COMMANDS: Readonly<Record<string, () => Promise<Registration>>> = {
+  calibrate: async () => (await import('./calibrate.js')).registerCalibrate,
+  quantify: async () => (await import('./quantify.js')).registerQuantify,
+  watch: async () => (await import('./watch.js')).registerWatch,
+  inspect: async () => (await import('./inspect.js')).registerInspect,
+  simulate: async () => (await import('./simulate.js')).registerSimulate,
+  recheck: async () => (await import('./recheck.js')).registerRecheck,
+  status: async () => (await import('./status.js')).registerStatus,
+  verify: async () => (await import('./verify.js')).registerVerify,
+  report: async () => (await import('./report.js')).registerReport,
+  demo: async () => {
+    const { registerDemo } = await import('./demo.js');
+    return (program, context) => registerDemo(program, context, runCaptured);
+  },
+};
 
 /**
  * Builds the program. Each command's action stores its exit status in the context.
  *
  * @param context - output streams and status
+ * @param commandName - register only this command (the one the arguments name); all when omitted
+ * @returns the program, ready to parse
  */
-export function buildProgram(context: CommandContext): Command {
+export async function buildProgram(context: CommandContext, commandName?: string): Promise<Command> {
   const program = new Command();
   program
     .name('bandwright')
@@ -38,16 +54,12 @@ export function buildProgram(context: CommandContext): Command {
     .addHelpText('after', `\n${resourceLimitsHelp()}\n`)
     .configureOutput({ writeOut: (s) => context.stdout.write(s), writeErr: (s) => context.stderr.write(s) })
     .exitOverride();
-  registerCalibrate(program, context);
-  registerQuantify(program, context);
-  registerWatch(program, context);
-  registerInspect(program, context);
-  registerSimulate(program, context);
-  registerRecheck(program, context);
-  registerStatus(program, context);
-  registerVerify(program, context);
-  registerReport(program, context);
-  registerDemo(program, context, runCaptured);
+  const names =
+    commandName !== undefined && Object.hasOwn(COMMANDS, commandName) ? [commandName] : Object.keys(COMMANDS);
+  const registrations = await Promise.all(
+    names.map((name) => (COMMANDS[name] as () => Promise<Registration>)()),
+  );
+  for (const register of registrations) register(program, context);
   for (const command of program.commands)
     command.exitOverride().configureOutput({
       writeOut: (s) => context.stdout.write(s),
@@ -92,7 +104,9 @@ export async function main(
     interactive: streams.interactive ?? process.stderr.isTTY === true,
     status: 0,
   };
-  const program = buildProgram(context);
+  // argv[2] is the command when the line names one (`bandwright quantify …`); otherwise (help,
+  // version, a mistyped command) every command is registered so commander can list or refuse them.
+  const program = await buildProgram(context, argv[2]);
   try {
     // A mistyped limit variable is a usage error of every command, found before any file is read.
     resourceLimits();
