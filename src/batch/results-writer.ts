@@ -226,7 +226,14 @@ export function openResultsWriter(path: string, options: ResultsWriterOptions): 
     }
   } else {
     if (!options.overwrite && existsSync(path)) {
-      throw new BandwrightError('FILE_EXISTS', `${path} exists; use --force to replace it`, { file: path });
+      throw new BandwrightError(
+        'FILE_EXISTS',
+        (name) => `${path} exists; use ${name('overwrite')} to replace it`,
+        {
+          file: path,
+          parameter: 'overwrite',
+        },
+      );
     }
     writingPath = partialResultsPath(path);
     try {
@@ -308,8 +315,10 @@ export function openResultsWriter(path: string, options: ResultsWriterOptions): 
       if (!options.overwrite && existsSync(path)) {
         throw new BandwrightError(
           'FILE_EXISTS',
-          `${path} appeared while the results were written; they are kept in ${writingPath}; use --force to replace it`,
-          { file: path },
+          (name) =>
+            `${path} appeared while the results were written; they are kept in ${writingPath}; ` +
+            `use ${name('overwrite')} to replace it`,
+          { file: path, parameter: 'overwrite' },
         );
       }
       try {

@@ -46,8 +46,8 @@ function checkLevel(level: number): number {
   if (!(level > 0 && level < 1)) {
     throw new BandwrightError(
       'INVALID_VALUE',
-      `--level = ${level}, must be a probability between 0 and 1 (e.g. 0.95)`,
-      { parameter: '--level' },
+      (name) => `${name('level')} = ${level}, must be a probability between 0 and 1 (e.g. 0.95)`,
+      { parameter: 'level' },
     );
   }
   return level;
@@ -137,7 +137,8 @@ export function quantifyBandScan(
     if (feature === undefined)
       throw new BandwrightError(
         'SCHEMA',
-        `calibration gas ${gas.gas} has no band; it was built from responses, use quantify --response`,
+        (name) =>
+          `calibration gas ${gas.gas} has no band; it was built from responses, give ${name('responses')}`,
       );
     const measured = measureBand(absorbance, feature.band, {
       windows: feature.baseline,
@@ -358,19 +359,22 @@ export function quantifyResponses(
   if (calibration.gases.length !== 1) {
     throw new BandwrightError(
       'INVALID_VALUE',
-      `the calibration has ${calibration.gases.length} gases; --response needs a calibration of one gas`,
-      { parameter: '--response' },
+      (name) =>
+        `the calibration has ${calibration.gases.length} gases; ${name('responses')} needs a calibration of one gas`,
+      { parameter: 'responses' },
     );
   }
   if (responses.length === 0)
-    throw new BandwrightError('INVALID_VALUE', '--response: give at least one response', {
-      parameter: '--response',
+    throw new BandwrightError('INVALID_VALUE', (name) => `${name('responses')}: give at least one response`, {
+      parameter: 'responses',
     });
   responses.forEach((r, i) => {
     if (!Number.isFinite(r))
-      throw new BandwrightError('INVALID_VALUE', `--response ${i + 1} = ${r}, must be a finite number`, {
-        parameter: '--response',
-      });
+      throw new BandwrightError(
+        'INVALID_VALUE',
+        (name) => `${name('responses')} ${i + 1} = ${r}, must be a finite number`,
+        { parameter: 'responses' },
+      );
   });
   const level = checkLevel(options.level ?? 0.95);
   const gas = calibration.gases[0] as GasCalibration;
@@ -405,7 +409,9 @@ export function quantifyScan(
     case 'responses':
       throw new BandwrightError(
         'INVALID_VALUE',
-        'the calibration was built from tabulated responses and cannot read scans; give --response values instead',
+        (name) =>
+          `the calibration was built from tabulated responses and cannot read scans; give ${name('responses')} ` +
+          'values instead',
         { parameter: 'scans' },
       );
     case 'cls':

@@ -124,9 +124,10 @@ export function decorateGases(
     if (water === undefined) {
       throw new BandwrightError(
         'CONVERSION',
-        'dry basis asked for, but the calibration does not measure H2O in the scan; give the water vapour ' +
-          'fraction (--h2o <%>)',
-        { parameter: '--dry' },
+        (name) =>
+          'dry basis asked for, but the calibration does not measure H2O in the scan; give the water vapour ' +
+          `fraction (${name('waterFraction')})`,
+        { parameter: 'waterFraction' },
       );
     }
     waterFraction = toPpm(water.value, water.unit) * 1e-6;

@@ -56,7 +56,7 @@ describe('replace mode', () => {
   it('refuses an existing file without overwrite, keeps it intact, and replaces it with overwrite', () => {
     writeFileSync(at('old.csv'), 'previous\n');
     expect(() => openResultsWriter(at('old.csv'), { mode: 'replace', header: 'scan\n' })).toThrow(
-      /old\.csv exists; use --force to replace it/,
+      /old\.csv exists; use `overwrite` to replace it/,
     );
     const writer = openResultsWriter(at('old.csv'), { mode: 'replace', header: 'scan\n', overwrite: true });
     writer.write('a\n');
