@@ -21,6 +21,7 @@ export const Y_COLUMN_NAMES: Readonly<Record<Exclude<YKind, 'single-beam'>, stri
   'absorbance-natural': 'absorbance_natural',
   transmittance: 'transmittance',
   'transmittance-percent': 'transmittance_pct',
+  'absorbance-per-amount': 'absorbance_per_ppm_m',
 });
 
 /** Shortest round-trip text of a double; keeps the sign of −0, which `String` drops. */

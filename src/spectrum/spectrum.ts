@@ -13,9 +13,17 @@ import { BandwrightError, assertAscending } from '../errors.js';
  * - `transmittance`: fraction, 0…1
  * - `transmittance-percent`: percent, 0…100
  * - `single-beam`: sample single-beam intensity; needs a `background` of the same grid
+ * - `absorbance-per-amount`: a quantitative reference spectrum, decadic absorbance per µmol/mol of
+ *   the gas per metre of path (JCAMP-DX `(micromol/mol)-1m-1 (base 10)`); not a measured scan and
+ *   never plain absorbance: {@link absorbanceFromReference} turns it into one for an amount and path
  */
 export type YKind =
-  'absorbance' | 'absorbance-natural' | 'transmittance' | 'transmittance-percent' | 'single-beam';
+  | 'absorbance'
+  | 'absorbance-natural'
+  | 'transmittance'
+  | 'transmittance-percent'
+  | 'single-beam'
+  | 'absorbance-per-amount';
 
 /** All y-kinds, for validating options and column names. */
 export const Y_KINDS: readonly YKind[] = [
@@ -24,7 +32,45 @@ export const Y_KINDS: readonly YKind[] = [
   'transmittance',
   'transmittance-percent',
   'single-beam',
+  'absorbance-per-amount',
 ];
+
+/**
+ * Why a reader accepted a file it could have refused, or what it changed: each leniency shows.
+ * - `line-start-x`: the abscissa printed at XYDATA line starts disagrees with the header's grid
+ * - `deltax`: ##DELTAX printed rounded; the grid comes from FIRSTX, LASTX and NPOINTS
+ * - `saturated`: points with transmittance at or below zero (as printed) made undefined
+ * - `percent-transmittance`: transmittance declared as a fraction but written in percent
+ * - `trailing-bytes`: bytes after the last ##END= (an end-of-file byte, blank lines, padding)
+ * - `duplicate-label`: a label given twice with the same value
+ * - `label-text`: free text after a value and its unit, ignored
+ * - `implausible-condition`: a path, temperature or pressure no gas cell has, not used
+ * - `implausible-absorbance`: absorbance too high to be one; the y values are probably not absorbance
+ * - `compound-block`: one infrared spectrum taken from a file of several blocks
+ * - `label-order`: header labels out of the standard's order
+ * - `line-ends`: old Mac OS line ends (CR alone)
+ */
+export type ReadWarningCode =
+  | 'line-start-x'
+  | 'deltax'
+  | 'saturated'
+  | 'percent-transmittance'
+  | 'trailing-bytes'
+  | 'duplicate-label'
+  | 'label-text'
+  | 'implausible-condition'
+  | 'implausible-absorbance'
+  | 'compound-block'
+  | 'label-order'
+  | 'line-ends';
+
+/** A warning from reading a scan: a stable code for scripts and a message for people. */
+export interface ReadWarning {
+  /** Stable code. */
+  readonly code: ReadWarningCode;
+  /** What was seen and what was done, naming the file and line or point. */
+  readonly message: string;
+}
 
 /** Cell conditions and labels a scan file may carry. Units are fixed by the field names. */
 export interface ScanMetadata {
@@ -44,6 +90,13 @@ export interface ScanMetadata {
   format?: 'csv' | 'jcamp';
   /** Date/time text found in the file, kept verbatim (not trusted as a measurement time). */
   dateText?: string;
+  /**
+   * Number of saturated points: y is NaN there (transmittance at or below zero as printed, so no
+   * absorbance can be given). A spectrum holds NaN only when this counts them.
+   */
+  saturatedPoints?: number;
+  /** What the reader accepted leniently or changed, in file order. */
+  warnings?: readonly ReadWarning[];
 }
 
 /**
@@ -71,7 +124,8 @@ function label(spectrum: Pick<Spectrum, 'metadata'>): string {
 
 /**
  * Builds a spectrum after checking its invariants: equal lengths, at least two points, finite
- * values, strictly ascending x, a background exactly when the kind is `single-beam`.
+ * values (y may be NaN at as many points as `metadata.saturatedPoints` counts), strictly ascending
+ * x, a background exactly when the kind is `single-beam`.
  *
  * @param init - the fields of the spectrum; arrays are taken, not copied
  * @returns the same data as a `Spectrum`
@@ -94,8 +148,10 @@ export function makeSpectrum(init: Spectrum): Spectrum {
       { file: init.metadata.source },
     );
   }
+  let undefinedPoints = init.metadata.saturatedPoints ?? 0;
   for (let i = 0; i < x.length; i++) {
-    if (!Number.isFinite(x[i]) || !Number.isFinite(y[i])) {
+    const saturated = Number.isNaN(y[i]) && undefinedPoints-- > 0;
+    if (!Number.isFinite(x[i]) || !(saturated || Number.isFinite(y[i]))) {
       throw new BandwrightError(
         'INVALID_VALUE',
         `${where}: point ${i + 1}: x = ${x[i]}, y = ${y[i]}, must be finite numbers`,
@@ -160,14 +216,24 @@ export function spectrumFromCheckedArrays(init: Spectrum): Spectrum {
  * Converts a spectrum to decadic absorbance.
  *
  * Transmittance T ≤ 0 (or a non-positive single-beam intensity) has no absorbance; such a
- * point is an error, because clipping it would invent a number.
+ * point is an error, because clipping it would invent a number. Saturated points (NaN, counted
+ * in `metadata.saturatedPoints`) stay NaN.
  *
- * @param spectrum - any y-kind
+ * @param spectrum - any y-kind but `absorbance-per-amount`
  * @returns a new spectrum of kind `absorbance` (the input itself if it already is)
- * @throws BandwrightError `INVALID_VALUE` naming the first point with T ≤ 0 or intensity ≤ 0
+ * @throws BandwrightError `INVALID_VALUE` naming the first point with T ≤ 0 or intensity ≤ 0, or
+ *   for a reference spectrum in absorbance per amount (see {@link absorbanceFromReference})
  */
 export function toAbsorbance(spectrum: Spectrum): Spectrum {
   if (spectrum.yKind === 'absorbance') return spectrum;
+  if (spectrum.yKind === 'absorbance-per-amount') {
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `${label(spectrum)}: a quantitative reference spectrum (decadic absorbance per µmol/mol per metre), ` +
+        'not a measured scan; it becomes absorbance only for a stated amount and path length',
+      { file: spectrum.metadata.source },
+    );
+  }
   const n = spectrum.y.length;
   const out = new Float64Array(n);
   const where = label(spectrum);
@@ -188,7 +254,7 @@ export function toAbsorbance(spectrum: Spectrum): Spectrum {
       const scale = spectrum.yKind === 'transmittance-percent' ? 0.01 : 1;
       for (let i = 0; i < n; i++) {
         const t = (y[i] as number) * scale;
-        if (!(t > 0)) bad(i, 'transmittance', y[i] as number);
+        if (!(t > 0) && !Number.isNaN(t)) bad(i, 'transmittance', y[i] as number);
         out[i] = -Math.log10(t);
       }
       break;
@@ -206,6 +272,49 @@ export function toAbsorbance(spectrum: Spectrum): Spectrum {
     }
   }
   return { x: spectrum.x, y: out, yKind: 'absorbance', metadata: spectrum.metadata };
+}
+
+/**
+ * The absorbance a quantitative reference spectrum predicts for an amount of its gas in a path:
+ * A(ν) = k(ν) · c · L (Beer–Lambert, DESIGN §3), at the reference's own temperature and pressure.
+ *
+ * @param reference - a spectrum of kind `absorbance-per-amount` (per µmol/mol per m)
+ * @param amount_ppm - mole fraction of the gas, µmol/mol (ppm)
+ * @param pathLength_m - optical path length, m
+ * @returns a new spectrum of kind `absorbance` on the same grid, with the path in its metadata
+ * @throws BandwrightError `INVALID_VALUE` when the spectrum is another kind, or the amount or path
+ *   is not a finite number (amount ≥ 0, path > 0)
+ */
+export function absorbanceFromReference(
+  reference: Spectrum,
+  amount_ppm: number,
+  pathLength_m: number,
+): Spectrum {
+  if (reference.yKind !== 'absorbance-per-amount') {
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `${label(reference)}: y-kind ${reference.yKind}, must be absorbance-per-amount (a quantitative reference)`,
+      { file: reference.metadata.source },
+    );
+  }
+  if (!(Number.isFinite(amount_ppm) && amount_ppm >= 0)) {
+    throw new BandwrightError('INVALID_VALUE', `amount = ${amount_ppm} ppm, must be a finite number ≥ 0`, {
+      parameter: 'amount_ppm',
+    });
+  }
+  if (!(Number.isFinite(pathLength_m) && pathLength_m > 0)) {
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `path length = ${pathLength_m} m, must be a finite number > 0`,
+      {
+        parameter: 'pathLength_m',
+      },
+    );
+  }
+  const factor = amount_ppm * pathLength_m;
+  const y = new Float64Array(reference.y.length);
+  for (let i = 0; i < y.length; i++) y[i] = (reference.y[i] as number) * factor;
+  return { x: reference.x, y, yKind: 'absorbance', metadata: { ...reference.metadata, pathLength_m } };
 }
 
 /**

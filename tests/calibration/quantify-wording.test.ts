@@ -14,7 +14,7 @@ import { makeSpectrum } from '../../src/spectrum/spectrum.js';
 const calibration = buildResponseCalibration(
   parseResponseMethod({ name: 'CO' }, 'options'),
   [0, 50, 100, 200].flatMap((concentration) =>
-    [0.99, 1.01].map((f) => ({ concentration, response: 0.002 * concentration * f + 0.001 })),
+    [0.99, 1.01].map((f, line) => ({ concentration, response: 0.002 * concentration * f + 0.001, line })),
   ),
   { inputs: [], createdAt: '2026-12-01T00:00:00.000Z' },
 );

@@ -73,6 +73,7 @@ const Y_NAMES: ReadonlyMap<string, YKind | 'sample' | 'background'> = new Map<
     'pct_transmittance',
     '%_transmittance',
   ].map((n) => [n, 'transmittance-percent'] as const),
+  ...['absorbance_per_ppm_m', 'absorbance_per_umol_mol_m'].map((n) => [n, 'absorbance-per-amount'] as const),
   ...['sample', 'single_beam_sample', 'sample_single_beam', 'sample_intensity', 'sb_sample'].map(
     (n) => [n, 'sample'] as const,
   ),
