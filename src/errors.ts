@@ -47,7 +47,25 @@ export type ErrorCode =
   /** An input above a configured size or point limit. */
   | 'LIMIT'
   /** A unit conversion whose assumptions do not hold (for example O2 near the air value). */
-  | 'CONVERSION';
+  | 'CONVERSION'
+  /**
+   * A well-formed file that holds something other than a single infrared spectrum (NMR, a mass
+   * spectrum, UV/Vis, several spectra …); `location.content` says what.
+   */
+  | 'UNSUPPORTED';
+
+/** What a refused file holds, for scripts that sort refusals (see `UNSUPPORTED`). */
+export type FileContent =
+  | 'nmr'
+  | 'mass-spectrum'
+  | 'uv-vis'
+  | 'raman'
+  | 'reflectance'
+  | 'chromatogram'
+  | 'peak-table'
+  | 'multidimensional'
+  | 'several-spectra'
+  | 'other';
 
 /** Where an error happened, when known. All fields are optional and only used for messages. */
 export interface ErrorLocation {
@@ -57,6 +75,8 @@ export interface ErrorLocation {
   line?: number;
   /** Option, column or field name. */
   parameter?: string;
+  /** What the file holds, when it is refused for that (`UNSUPPORTED`). */
+  content?: FileContent;
 }
 
 /**

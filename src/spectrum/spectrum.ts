@@ -41,7 +41,10 @@ export const Y_KINDS: readonly YKind[] = [
  * - `deltax`: ##DELTAX printed rounded; the grid comes from FIRSTX, LASTX and NPOINTS
  * - `saturated`: points with transmittance at or below zero (as printed) made undefined
  * - `percent-transmittance`: transmittance declared as a fraction but written in percent
+ * - `transmittance-above-one`: isolated transmittance fractions above 1.5 (spikes), kept
+ * - `firsty`: ##FIRSTY disagrees a little with the first decoded ordinate
  * - `trailing-bytes`: bytes after the last ##END= (an end-of-file byte, blank lines, padding)
+ * - `leading-bytes`: stray characters before ##TITLE= on the first line, skipped
  * - `duplicate-label`: a label given twice with the same value
  * - `label-text`: free text after a value and its unit, ignored
  * - `implausible-condition`: a path, temperature or pressure no gas cell has, not used
@@ -55,7 +58,10 @@ export type ReadWarningCode =
   | 'deltax'
   | 'saturated'
   | 'percent-transmittance'
+  | 'transmittance-above-one'
+  | 'firsty'
   | 'trailing-bytes'
+  | 'leading-bytes'
   | 'duplicate-label'
   | 'label-text'
   | 'implausible-condition'

@@ -189,16 +189,35 @@ describe('JCAMP-DX validation: each failure names the line and the rule', () => 
   });
 
   it('a line X that disagrees with FIRSTX + i·DELTAX', () => {
+    // Without ##NPOINTS or LASTX to confirm the count, the line starts are held to 0.1·DELTAX.
+    const unconfirmed = { NPOINTS: '', LASTX: '' };
     expectError(
-      () => read(file('1000 1 2 3 3 2\n1006 1 0 -1 -2 -3')),
+      () => read(file('1000 1 2 3 3 2\n1006 1 0 -1 -2 -3', unconfirmed)),
       'PARSE',
-      's.jdx line 13',
+      's.jdx line 11',
       'X = 1006',
       'FIRSTX + 5·DELTAX = 1005',
+      '1.5 when ##NPOINTS confirms the count',
     );
-    expectError(() => read(file('1000.0 1 2 3 3 2\n1005.3 1 0 -1 -2 -3')), 'PARSE', 'line 13', 'X = 1005.3');
-    // Within 0.1·DELTAX plus half a unit of the printed last digit it is accepted.
-    expect(read(file('1000 1 2 3 3 2\n1005.05 1 0 -1 -2 -3')).x.length).toBe(10);
+    expectError(
+      () => read(file('1000.0 1 2 3 3 2\n1005.3 1 0 -1 -2 -3', unconfirmed)),
+      'PARSE',
+      'line 11',
+      'X = 1005.3',
+    );
+    // Within 0.1·DELTAX plus half a unit of the printed last digit it is accepted silently.
+    const close = read(file('1000 1 2 3 3 2\n1005.05 1 0 -1 -2 -3'));
+    expect(close.x.length).toBe(10);
+    expect(close.metadata.warnings).toBeUndefined();
+    // With the count confirmed, a line that starts one step off is read on the header's grid, with
+    // a warning saying how far off it was.
+    const oneOff = read(file('1000 1 2 3 3 2\n1006 1 0 -1 -2 -3'));
+    expectSameDoubles(oneOff.x, [1000, 1001, 1002, 1003, 1004, 1005, 1006, 1007, 1008, 1009], 'x');
+    expect(oneOff.metadata.warnings?.map((w) => w.code)).toEqual(['line-start-x']);
+    expect(oneOff.metadata.warnings?.[0]?.message).toContain('by up to 1.00 (1.00 steps, line 13)');
+    // Two steps off cannot be reconciled with the header, confirmed count or not.
+    // (The tolerance adds half a unit of the printed X: 1.5 + 0.5 steps for integer X here.)
+    expectError(() => read(file('1000 1 2 3 3 2\n1008 1 0 -1 -2 -3')), 'PARSE', 'line 13', '3.00 steps away');
   });
 
   it('missing ##END=', () => {
@@ -212,32 +231,37 @@ describe('JCAMP-DX validation: each failure names the line and the rule', () => 
       'first label is ##JCAMP-DX',
       'must be ##TITLE=',
     );
-    expectError(
-      () => read('##TITLE=x\n##XUNITS=1/CM\n##END=\n'),
-      'PARSE',
-      '##JCAMP-DX= must follow ##TITLE=',
+    expectError(() => read('##TITLE=x\n##XUNITS=1/CM\n##END=\n'), 'PARSE', 'no ##JCAMP-DX= label');
+    // Out of the standard's order, the version is read with a warning.
+    const late = read(
+      file('1000 ABCCBA@abc')
+        .replace('##JCAMP-DX=5.01\n', '')
+        .replace('##XFACTOR', '##JCAMP-DX=5.01\n##XFACTOR'),
     );
+    expect(late.metadata.warnings?.map((w) => w.code)).toEqual(['label-order']);
     expectError(() => read('wavenumber,absorbance\n1,2\n'), 'PARSE', 'line 1', 'before the first label');
     expectError(() => read(file('1000 ABCCBA@abc', { 'JCAMP-DX': '6.00' })), 'PARSE', 'supported versions');
   });
 
-  it('compound and multi-block files are refused: single spectra only', () => {
+  it('compound and multi-dimensional files: one infrared spectrum opens, anything else is refused for what it holds', () => {
     expectError(
       () => read('##TITLE=link\n##JCAMP-DX=5.01\n##DATA TYPE=LINK\n##BLOCKS=2\n##END=\n'),
-      'PARSE',
-      'not supported: single spectra only',
+      'UNSUPPORTED',
+      'holds data of type "LINK"',
     );
+    // A spectrum followed by a block without data: the spectrum is read, with a note.
+    const withEmpty = read(`${file('1000 ABCCBA@abc')}##TITLE=second\n##END=\n`);
+    expect(withEmpty.x.length).toBe(10);
+    expect(withEmpty.metadata.warnings?.map((w) => w.code)).toEqual(['compound-block']);
     expectError(
-      () => read(`${file('1000 ABCCBA@abc')}##TITLE=second\n##END=\n`),
-      'PARSE',
-      'second block',
-      'single spectra only',
+      () => read(`${file('1000 ABCCBA@abc')}${file('1000 ABCCBA@abc', { TITLE: 'again' })}`),
+      'UNSUPPORTED',
+      '2 spectra in 2 blocks',
     );
     expectError(
       () => read('##TITLE=nd\n##JCAMP-DX=5.01\n##NTUPLES=INFRARED\n##END=\n'),
-      'PARSE',
+      'UNSUPPORTED',
       'NTUPLES',
-      'single spectra only',
     );
   });
 
@@ -247,7 +271,28 @@ describe('JCAMP-DX validation: each failure names the line and the rule', () => 
   });
 
   it('##DELTAX must agree with FIRSTX, LASTX and the count', () => {
-    expectError(() => read(file('1000 ABCCBA@abc', { DELTAX: '2' })), 'PARSE', '##DELTAX=2 disagrees');
+    expectError(
+      () => read(file('1000 ABCCBA@abc', { DELTAX: '2', NPOINTS: '' })),
+      'PARSE',
+      '##DELTAX=2 disagrees',
+      'no ##NPOINTS confirms the count',
+    );
+    // With ##NPOINTS confirming the count, FIRSTX, LASTX and NPOINTS define the grid.
+    const confirmed = read(file('1000 ABCCBA@abc', { DELTAX: '2' }));
+    expect(confirmed.x[9]).toBe(1009);
+    expect(confirmed.metadata.warnings?.map((w) => w.code)).toEqual(['deltax']);
+    // DELTAX truncated to its printed digits (0.241 for 0.24106; over 3,000 points FIRSTX + (n−1)·DELTAX
+    // misses LASTX by 0.18, more than half a step) is accepted with a warning.
+    const n = 3000;
+    const lines = Array.from(
+      { length: n / 10 },
+      (_, line) => `${(1000 + line * 10 * 0.24106).toFixed(3)} 1 2 3 4 5 6 7 8 9 10`,
+    );
+    const truncated = read(
+      file(lines.join('\n'), { LASTX: (1000 + (n - 1) * 0.24106).toFixed(5), DELTAX: '0.241', NPOINTS: '' }),
+    );
+    expect(truncated.x.length).toBe(n);
+    expect(truncated.metadata.warnings?.[0]?.message).toContain('rounded or truncated');
     // DELTAX alone (no LASTX) sets the spacing.
     expectSameDoubles(
       read(file('1000 ABCCBA@abc', { LASTX: '', DELTAX: '0.5' })).x,
@@ -282,7 +327,7 @@ describe('JCAMP-DX validation: each failure names the line and the rule', () => 
       file('4 ABCCBA@abc', { XUNITS: 'MICROMETERS', FIRSTX: '4', LASTX: '4.9', DELTAX: '0.1' }),
     );
     expect(microns.x[9]).toBeCloseTo(1e4 / 4, 9);
-    expectError(() => read(file('1000 ABCCBA@abc', { XUNITS: 'HZ' })), 'PARSE', '##XUNITS=HZ not supported');
+    expectError(() => read(file('1000 ABCCBA@abc', { XUNITS: 'HZ' })), 'UNSUPPORTED', 'an NMR spectrum');
   });
 
   it('y-kinds: transmittance fraction, percent, natural log only when declared', () => {
@@ -315,8 +360,8 @@ describe('JCAMP-DX validation: each failure names the line and the rule', () => 
     );
     expectError(
       () => read(file('1000 ABCCBA@abc', { YUNITS: 'ARBITRARY UNITS' })),
-      'PARSE',
-      'not supported',
+      'UNSUPPORTED',
+      'neither absorbance nor transmittance',
       'ABSORBANCE',
     );
   });
@@ -465,7 +510,7 @@ describe('JCAMP-DX writer', () => {
     const x = Float64Array.from([1000, 1001, 1003, 1004.5]);
     const spectrum = makeSpectrum({
       x,
-      y: Float64Array.of(0.1, 0.25, -0.0625, 1e-7),
+      y: Float64Array.of(0.1, 0.25, 0.0625, 1e-7),
       yKind: 'transmittance',
       metadata: {},
     });
@@ -488,8 +533,13 @@ describe('JCAMP-DX writer', () => {
         (n, first, step, values, plateau, yKind) => {
           const x = grid(n, first, step);
           // Plateaus (repeated values) exercise DUP; a few exact zeros exercise '@' and '%'.
+          // Transmittance stays above zero: at or below it a reader makes the point undefined.
           const y = Float64Array.from({ length: n }, (_, i) =>
-            plateau > 0 && i % 7 < plateau ? 0.25 : (values[i] as number),
+            plateau > 0 && i % 7 < plateau
+              ? 0.25
+              : yKind === 'absorbance'
+                ? (values[i] as number)
+                : Math.abs(values[i] as number) + 0.01,
           );
           const spectrum = makeSpectrum({ x, y, yKind, metadata: { pathLength_m: 0.05 } });
           const decoded = (['affn', 'sqz', 'dif-dup'] as const).map((compression) =>

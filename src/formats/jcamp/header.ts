@@ -1,12 +1,12 @@
 /**
- * The header of a single JCAMP-DX spectrum (versions 4.24 and 5.x): the structure every file
- * must have (`##TITLE=` first, `##JCAMP-DX=` second, `##END=` last, each label this reader uses
- * given once, no compound or multi-dimensional blocks), the axis units, scale factors and the
+ * The header of one JCAMP-DX spectrum block (versions 4.24 and 5.x): the structure every block
+ * must have (`##TITLE=` first, `##JCAMP-DX=` in it, `##END=` last, each label this reader uses
+ * given once or repeated with the same value), the axis units, scale factors and the
  * declared first and last abscissae, step, count and first ordinate, and the metadata (title,
  * date, sample conditions).
  */
 import { BandwrightError } from '../../errors.js';
-import type { ScanMetadata, YKind } from '../../spectrum/spectrum.js';
+import type { ReadWarning, ScanMetadata, YKind } from '../../spectrum/spectrum.js';
 import { parseNumberText } from '../number-parse.js';
 import type { AbscissaUnit } from '../reader-checks.js';
 import type { JcampRecord } from './records.js';
@@ -30,10 +30,12 @@ export interface JcampHeader {
   yFactor: number;
   firstX?: PrintedNumber;
   lastX?: PrintedNumber;
-  deltaX?: number;
+  deltaX?: PrintedNumber;
   nPoints?: number;
   firstY?: PrintedNumber;
   metadata: ScanMetadata;
+  /** What was accepted leniently, in file order; the reader adds its own and puts them in the metadata. */
+  warnings: ReadWarning[];
 }
 
 /** Labels this reader uses; each may appear once. */
@@ -71,51 +73,59 @@ function lastDigitUnit(text: string): number {
   return 10 ** (exponent - fraction);
 }
 
-/** The records by normalised label, refusing compound files and repeated labels. */
-function recordsByKey(records: JcampRecord[], source: string): Map<string, JcampRecord> {
+/** Two values of a label that say the same: equal as numbers when both are, else as trimmed text. */
+function sameValue(a: string, b: string): boolean {
+  const x = parseNumberText(a);
+  const y = parseNumberText(b);
+  return Number.isFinite(x) && Number.isFinite(y) ? x === y : a.trim() === b.trim();
+}
+
+/**
+ * The records by normalised label. A label this reader uses, given twice with the same value, is
+ * read once with a warning; with different values it is refused, naming both.
+ */
+function recordsByKey(
+  records: JcampRecord[],
+  source: string,
+  warnings: ReadWarning[],
+): Map<string, JcampRecord> {
   const byKey = new Map<string, JcampRecord>();
   for (const record of records) {
     if (record.key === '') continue; // `##=` comment record
-    if (record.key === 'BLOCKS' || (record.key === 'DATATYPE' && /^LINK\b/i.test(record.value))) {
-      throw new BandwrightError(
-        'PARSE',
-        `${source} line ${record.line}: compound JCAMP-DX file (##${record.name}=${record.value}); ` +
-          `not supported: single spectra only`,
-        {
-          file: source,
-          line: record.line,
-        },
-      );
-    }
-    if (record.key === 'NTUPLES') {
-      throw new BandwrightError(
-        'PARSE',
-        `${source} line ${record.line}: ##NTUPLES (multi-dimensional data) not supported: single spectra only`,
-        {
-          file: source,
-          line: record.line,
-        },
-      );
-    }
     const earlier = byKey.get(record.key);
-    if (earlier !== undefined && USED_KEYS.has(record.key)) {
+    if (earlier === undefined) {
+      byKey.set(record.key, record);
+      continue;
+    }
+    if (!USED_KEYS.has(record.key)) continue;
+    if (!sameValue(earlier.value, record.value)) {
       throw new BandwrightError(
         'PARSE',
-        `${source} line ${record.line}: ##${record.name} given again (first on line ` +
-          `${earlier.line}), must appear once in a single spectrum`,
-        {
-          file: source,
-          line: record.line,
-        },
+        `${source} line ${record.line}: ##${record.name}=${record.value} contradicts ##${earlier.name}=` +
+          `${earlier.value} on line ${earlier.line}; a label given twice must say the same`,
+        { file: source, line: record.line, parameter: record.name },
       );
     }
-    if (earlier === undefined) byKey.set(record.key, record);
+    warnings.push({
+      code: 'duplicate-label',
+      message:
+        `${source} line ${record.line}: ##${record.name}=${record.value} given again (first on line ` +
+        `${earlier.line}) with the same value; read once`,
+    });
   }
   return byKey;
 }
 
-/** Checks `##TITLE=`, then `##JCAMP-DX=` of a supported version, and `##END=`; returns the title record. */
-function checkFraming(records: JcampRecord[], byKey: Map<string, JcampRecord>, source: string): JcampRecord {
+/**
+ * Checks `##TITLE=` first, `##JCAMP-DX=` of a supported version (second by the standard; later
+ * with a warning), and `##END=`; returns the title record.
+ */
+function checkFraming(
+  records: JcampRecord[],
+  byKey: Map<string, JcampRecord>,
+  source: string,
+  warnings: ReadWarning[],
+): JcampRecord {
   const first = records[0];
   if (first === undefined || first.key !== 'TITLE') {
     throw new BandwrightError(
@@ -126,23 +136,31 @@ function checkFraming(records: JcampRecord[], byKey: Map<string, JcampRecord>, s
       { file: source, line: first?.line },
     );
   }
-  const second = records[1];
-  if (second === undefined || second.key !== 'JCAMPDX') {
+  const version = byKey.get('JCAMPDX');
+  if (version === undefined) {
     throw new BandwrightError(
       'PARSE',
-      `${source} line ${second?.line ?? first.line}: ##JCAMP-DX= must follow ` +
-        `##TITLE=${second === undefined ? '' : `, found ##${second.name}`}`,
-      { file: source, line: second?.line ?? first.line },
+      `${source} line ${first.line}: no ##JCAMP-DX= label in the block of ##TITLE=${first.value}; the ` +
+        'version must follow the title',
+      { file: source, line: first.line },
     );
   }
-  const version = parseNumberText(/^\s*[\d.]+/.exec(second.value)?.[0] ?? '');
-  if (!(version >= 4 && version < 6)) {
+  if (records[1] !== version) {
+    warnings.push({
+      code: 'label-order',
+      message:
+        `${source} line ${version.line}: ##JCAMP-DX= comes after ##${records[1]?.name ?? ''}=; the ` +
+        'standard puts it right after ##TITLE=, read anyway',
+    });
+  }
+  const number = parseNumberText(/^\s*[\d.]+/.exec(version.value)?.[0] ?? '');
+  if (!(number >= 4 && number < 6)) {
     throw new BandwrightError(
       'PARSE',
-      `${source} line ${second.line}: ##JCAMP-DX=${second.value}, supported versions are 4.24 and 5.x`,
+      `${source} line ${version.line}: ##JCAMP-DX=${version.value}, supported versions are 4.24 and 5.x`,
       {
         file: source,
-        line: second.line,
+        line: version.line,
       },
     );
   }
@@ -163,12 +181,13 @@ function checkFraming(records: JcampRecord[], byKey: Map<string, JcampRecord>, s
  * @param source - label for messages and `metadata.source`
  * @returns units, factors, declared abscissae and counts, and the metadata (conditions in m, K,
  *   kPa; resolution in cm⁻¹)
- * @throws BandwrightError `PARSE` (structure, version, missing or repeated labels, units,
- *   compound files), `INVALID_VALUE` (label values that are not numbers or break their rule)
+ * @throws BandwrightError `PARSE` (structure, version, missing labels or repeated ones that
+ *   disagree, units), `INVALID_VALUE` (label values that are not numbers or break their rule)
  */
 export function readHeader(records: JcampRecord[], source: string): JcampHeader {
-  const byKey = recordsByKey(records, source);
-  const title = checkFraming(records, byKey, source);
+  const warnings: ReadWarning[] = [];
+  const byKey = recordsByKey(records, source, warnings);
+  const title = checkFraming(records, byKey, source, warnings);
   const required = (key: string, name: string): JcampRecord => {
     const record = byKey.get(key);
     if (record === undefined) {
@@ -206,7 +225,7 @@ export function readHeader(records: JcampRecord[], source: string): JcampHeader 
   const metadata: ScanMetadata = { source, format: 'jcamp' };
   const titleText = title.value.trim();
   if (titleText !== '') metadata.title = titleText;
-  readSampleConditions(byKey, source, metadata);
+  readSampleConditions(byKey, source, metadata, warnings);
   const longDate = byKey.get('LONGDATE')?.value.trim();
   const date = byKey.get('DATE')?.value.trim();
   const time = byKey.get('TIME')?.value.trim();
@@ -220,6 +239,7 @@ export function readHeader(records: JcampRecord[], source: string): JcampHeader 
     xFactor: optionalNumber('XFACTOR', 'non-zero')?.value ?? 1,
     yFactor: optionalNumber('YFACTOR', 'non-zero')?.value ?? 1,
     metadata,
+    warnings,
   };
   const firstX = optionalNumber('FIRSTX', 'finite');
   const lastX = optionalNumber('LASTX', 'finite');
@@ -228,7 +248,7 @@ export function readHeader(records: JcampRecord[], source: string): JcampHeader 
   const firstY = optionalNumber('FIRSTY', 'finite');
   if (firstX !== undefined) header.firstX = firstX;
   if (lastX !== undefined) header.lastX = lastX;
-  if (deltaX !== undefined) header.deltaX = deltaX.value;
+  if (deltaX !== undefined) header.deltaX = deltaX;
   if (nPoints !== undefined) header.nPoints = nPoints.value;
   if (firstY !== undefined) header.firstY = firstY;
   return header;

@@ -17,12 +17,18 @@
  * {@link JcampReader}, whose buffers belong to the caller that made it.
  */
 import { BandwrightError } from '../../errors.js';
-import { makeSpectrum, spectrumFromCheckedArrays, type Spectrum } from '../../spectrum/spectrum.js';
-import { checkedText } from '../bytes.js';
+import {
+  makeSpectrum,
+  spectrumFromCheckedArrays,
+  type ReadWarning,
+  type Spectrum,
+} from '../../spectrum/spectrum.js';
+import { BYTE, checkedText } from '../bytes.js';
 import { pointLimit, wavelengthsToWavenumbers } from '../reader-checks.js';
 import { readHeader } from './header.js';
-import { assertOrdinatesFitKind } from './ordinates.js';
-import { splitRecords } from './records.js';
+import { infraredBlock, splitBlocks } from './blocks.js';
+import { reviewOrdinates } from './ordinates.js';
+import { splitRecords, textAfterEnd } from './records.js';
 import { readXyData, type XyDataBuffers } from './xydata.js';
 import { readXyPoints } from './xypoints.js';
 
@@ -102,9 +108,32 @@ function readJcamp(
 ): Spectrum {
   const source = options.source;
   const maxPoints = pointLimit(options.maxPoints);
-  const bytes = checkedText(typeof input === 'string' ? new TextEncoder().encode(input) : input, source);
-  const { records } = splitRecords(bytes, source);
+  const early: ReadWarning[] = [];
+  const bytes = checkedText(
+    withLineFeeds(typeof input === 'string' ? new TextEncoder().encode(input) : input, source, early),
+    source,
+  );
+  const { records: allRecords, trailing, junk, leading } = splitRecords(bytes, source);
+  const { block, compoundNote } = infraredBlock(splitBlocks(allRecords), source);
+  if (junk !== undefined) throw textAfterEnd(source, junk);
+  const records = block.records;
+  if (leading !== undefined) {
+    early.push({
+      code: 'leading-bytes',
+      message: `${source} line 1: ${JSON.stringify(leading)} before ##TITLE=, skipped`,
+    });
+  }
+  if (compoundNote !== undefined) early.push({ code: 'compound-block', message: compoundNote });
+  if (trailing !== undefined) {
+    early.push({
+      code: 'trailing-bytes',
+      message:
+        `${source} line ${trailing.line}: ${trailing.bytes} byte(s) of padding after the last ##END= ` +
+        '(an end-of-file mark, NUL or spaces), ignored',
+    });
+  }
   const header = readHeader(records, source);
+  header.warnings.unshift(...early);
   const xyData = records.find((r) => r.key === 'XYDATA');
   const xyPoints = records.find((r) => r.key === 'XYPOINTS');
   if (xyData !== undefined && xyPoints !== undefined) {
@@ -152,9 +181,25 @@ function readJcamp(
     x.reverse();
     y.reverse();
   }
-  assertOrdinatesFitKind(y, header.yKind, source);
-  const init: Spectrum = { x, y, yKind: header.yKind, metadata: header.metadata };
+  const { yKind, saturatedPoints } = reviewOrdinates(x, y, header.yKind, source, header.warnings);
+  const metadata = header.metadata;
+  if (saturatedPoints > 0) metadata.saturatedPoints = saturatedPoints;
+  if (header.warnings.length > 0) metadata.warnings = header.warnings;
+  const init: Spectrum = { x, y, yKind, metadata };
   // Reversal keeps x strictly monotonic; anything the reading did not vouch for, and every
   // failure message, goes through makeSpectrum's full checks.
-  return checked && header.yKind !== 'single-beam' ? spectrumFromCheckedArrays(init) : makeSpectrum(init);
+  return checked && yKind !== 'single-beam' ? spectrumFromCheckedArrays(init) : makeSpectrum(init);
+}
+
+/**
+ * Text whose lines end with CR alone (an old Mac OS export) as LF-ended lines, with a warning;
+ * other text unchanged.
+ */
+function withLineFeeds(bytes: Uint8Array, source: string, warnings: ReadWarning[]): Uint8Array {
+  if (bytes.indexOf(BYTE.LF) >= 0 || bytes.indexOf(BYTE.CR) < 0) return bytes;
+  warnings.push({
+    code: 'line-ends',
+    message: `${source}: lines end with CR alone (an old Mac OS export); read as line ends`,
+  });
+  return bytes.map((b) => (b === BYTE.CR ? BYTE.LF : b));
 }

@@ -59,22 +59,53 @@ export function commentStart(bytes: Uint8Array, start: number, end: number): num
   return -1;
 }
 
+/** Most stray characters skipped before `##TITLE=` on the first line. */
+const LEADING_BYTES_LIMIT = 4;
+
+/** Bytes some writers leave after the last `##END=`: DOS end-of-file (0x1A), NUL padding, spaces. */
+function isPadding(bytes: Uint8Array, start: number, end: number): boolean {
+  for (let i = start; i < end; i++) {
+    const b = bytes[i];
+    if (b !== 0x1a && b !== 0 && b !== SPACE && b !== TAB && b !== CR && b !== 0x0c) return false;
+  }
+  return true;
+}
+
+/** The records of a file and what followed its last `##END=`. */
+export interface SplitRecords {
+  /** Every record in file order, those of later blocks too (a compound file has several `##END=`). */
+  records: JcampRecord[];
+  /** Padding after the last `##END=` (an end-of-file byte, NUL padding, spaces): lines and bytes. */
+  trailing?: { line: number; bytes: number };
+  /**
+   * The first text after an `##END=` that is neither a label, a comment nor padding; reading
+   * stops there. The reader refuses it once it knows the file holds an infrared spectrum (a file
+   * of another kind is refused for that, whatever follows).
+   */
+  junk?: { line: number; text: string; endLine: number };
+  /** Bytes before `##TITLE=` on the first line (a stray character some writers leave), skipped. */
+  leading?: string;
+}
+
 /**
- * Cuts a JCAMP-DX file into its labelled records, up to and including `##END=`.
+ * Cuts a JCAMP-DX file into its labelled records, block after block: a compound file's blocks
+ * follow each other (and nest, for `##BLOCKS=`), each closed by `##END=`.
  *
  * @param bytes - file content (a UTF-8 byte-order mark is skipped)
  * @param source - label for messages
- * @returns the records in file order and the line of `##END=` (0 when there is none)
- * @throws BandwrightError `PARSE` for text before the first label, a label without `=`, and
- *   anything but blank or comment lines after `##END=` (a second block is named as such)
+ * @returns the records in file order, padding after the last `##END=`, and text that cannot follow it
+ * @throws BandwrightError `PARSE` for text before the first label (but up to four stray characters
+ *   before `##TITLE=`) and a label without `=` (but a bare `##END` and private `##$` flags)
  */
-export function splitRecords(bytes: Uint8Array, source: string): { records: JcampRecord[]; endLine: number } {
+export function splitRecords(bytes: Uint8Array, source: string): SplitRecords {
   const records: JcampRecord[] = [];
   const length = bytes.length;
   let pos = byteOrderMarkLength(bytes);
   let lineNumber = 0;
   let current: JcampRecord | undefined;
   let endLine = 0;
+  let trailing: { line: number; bytes: number } | undefined;
+  let leading: string | undefined;
   while (pos < length) {
     lineNumber++;
     let lineEnd = bytes.indexOf(LF, pos);
@@ -85,17 +116,42 @@ export function splitRecords(bytes: Uint8Array, source: string): { records: Jcam
     pos = lineEnd + 1;
     let p = lineStart;
     while (p < end && (bytes[p] === SPACE || bytes[p] === TAB)) p++;
-    const isLabel = p + 1 < end && bytes[p] === HASH && bytes[p + 1] === HASH;
-    if (endLine !== 0) {
+    let isLabel = p + 1 < end && bytes[p] === HASH && bytes[p + 1] === HASH;
+    if (current === undefined && endLine !== 0 && !isLabel) {
       if (p === end || (bytes[p] === DOLLAR && bytes[p + 1] === DOLLAR)) continue;
-      afterEnd(decodeText(bytes, p, end), isLabel, source, lineNumber, endLine);
+      if (isPadding(bytes, p, end)) {
+        trailing ??= { line: lineNumber, bytes: 0 };
+        trailing.bytes += end - p;
+        continue;
+      }
+      return { records, junk: { line: lineNumber, text: decodeText(bytes, p, end), endLine } };
+    }
+    if (!isLabel && records.length === 0 && leading === undefined) {
+      // A stray character or two before the first label (`I##TITLE=`) is skipped, not the file.
+      for (let i = p + 1; i <= p + LEADING_BYTES_LIMIT && i + 1 < end; i++) {
+        if (bytes[i] !== HASH || bytes[i + 1] !== HASH) continue;
+        const label = decodeText(bytes, i + 2, Math.min(end, i + 12));
+        if (!/^\s*TITLE\s*=/i.test(label)) break;
+        leading = decodeText(bytes, p, i);
+        p = i;
+        break;
+      }
+      if (leading !== undefined) {
+        isLabel = true;
+      }
     }
     if (isLabel) {
+      trailing = undefined;
       if (current !== undefined) current.dataEnd = lineStart;
       const hash = commentStart(bytes, p + 2, end);
       const text = decodeText(bytes, p + 2, hash < 0 ? end : hash);
       const comment = hash < 0 ? '' : decodeText(bytes, hash + 2, end).trim();
-      const equals = text.indexOf('=');
+      let equals = text.indexOf('=');
+      // A bare `##END` closes the block; a private `##$NAME` without a value is a flag some
+      // writers use. Neither has a value to lose.
+      if (equals < 0 && (normaliseJcampLabel(text) === 'END' || text.trimStart().startsWith('$'))) {
+        equals = text.length;
+      }
       if (equals < 0) {
         throw new BandwrightError(
           'PARSE',
@@ -141,38 +197,28 @@ export function splitRecords(bytes: Uint8Array, source: string): { records: Jcam
     current.dataEnd = pos;
   }
   if (current !== undefined) current.dataEnd = length;
-  return { records, endLine };
+  return {
+    records,
+    ...(trailing === undefined ? {} : { trailing }),
+    ...(leading === undefined ? {} : { leading }),
+  };
 }
 
-/** Refuses a line after `##END=`, naming a second block as such. */
-function afterEnd(
-  text: string,
-  isLabel: boolean,
+/**
+ * The error for text after `##END=` that is not a label, a comment or padding.
+ *
+ * @param source - label for messages
+ * @param junk - what followed, where (see {@link SplitRecords.junk})
+ * @returns the error to throw
+ */
+export function textAfterEnd(
   source: string,
-  lineNumber: number,
-  endLine: number,
-): never {
-  if (
-    isLabel &&
-    normaliseJcampLabel(text.slice(2, text.indexOf('=') < 0 ? undefined : text.indexOf('='))) === 'TITLE'
-  ) {
-    throw new BandwrightError(
-      'PARSE',
-      `${source} line ${lineNumber}: a second block starts after ##END= on line ${endLine}; not ` +
-        `supported: single spectra only`,
-      {
-        file: source,
-        line: lineNumber,
-      },
-    );
-  }
-  throw new BandwrightError(
+  junk: { line: number; text: string; endLine: number },
+): BandwrightError {
+  return new BandwrightError(
     'PARSE',
-    `${source} line ${lineNumber}: ${JSON.stringify(text.slice(0, 40))} after ##END= on line ` +
-      `${endLine}, nothing may follow it`,
-    {
-      file: source,
-      line: lineNumber,
-    },
+    `${source} line ${junk.line}: ${JSON.stringify(junk.text.slice(0, 40))} after ##END= on line ` +
+      `${junk.endLine}; only labels of a next block, comments, blank lines or end-of-file padding may follow it`,
+    { file: source, line: junk.line },
   );
 }

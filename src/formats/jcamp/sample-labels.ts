@@ -6,7 +6,7 @@
  * (cm⁻¹) is informational and ignored when it is not a number.
  */
 import { BandwrightError } from '../../errors.js';
-import type { ScanMetadata } from '../../spectrum/spectrum.js';
+import type { ReadWarning, ScanMetadata } from '../../spectrum/spectrum.js';
 import { DECIMAL_POINT, parseNumberText } from '../number-parse.js';
 import type { JcampRecord } from './records.js';
 
@@ -53,14 +53,25 @@ const PRESSURE_UNITS: UnitTable = new Map<string, (value: number) => number>([
 
 const LEADING_NUMBER = /^([+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?)\s*(.*)$/s;
 
-/** A number with an optional unit after it or in the `$$` comment, converted by `units`. */
+/** A number with its unit as read: the unit key and whether the convention supplied it. */
+interface Quantity {
+  number: number;
+  unit: string;
+  conventional: boolean;
+}
+
+/**
+ * A number with an optional unit after it or in the `$$` comment, converted by `units`. Free text
+ * after a recognised unit (`18 CM CELL`) is ignored with a warning.
+ */
 function readQuantity(
   record: JcampRecord,
   source: string,
   units: UnitTable,
   conventional: string,
   unitNames: string,
-): number {
+  warnings: ReadWarning[],
+): Quantity {
   const where = `${source} line ${record.line}: ##${record.name}`;
   const match = LEADING_NUMBER.exec(record.value);
   if (match === null) {
@@ -75,7 +86,17 @@ function readQuantity(
     );
   }
   const number = parseNumberText(match[1] as string, DECIMAL_POINT);
-  const inline = (match[2] as string).trim();
+  let inline = (match[2] as string).trim();
+  const words = /^(\S+)\s+(.+)$/s.exec(inline);
+  if (!units.has(unitKey(inline)) && words !== null && units.has(unitKey(words[1] as string))) {
+    warnings.push({
+      code: 'label-text',
+      message:
+        `${where}=${record.value}: read as ${match[1]} ${words[1]}; the text after the unit ` +
+        `(${JSON.stringify(words[2])}) is ignored`,
+    });
+    inline = words[1] as string;
+  }
   const pick = (text: string, what: string): string | undefined => {
     if (text === '') return undefined;
     const key = unitKey(text);
@@ -109,8 +130,8 @@ function readQuantity(
       },
     );
   }
-  const unit = inlineUnit ?? commentUnit ?? conventional;
-  return (units.get(unit) as (value: number) => number)(number);
+  const unit = inlineUnit ?? commentUnit;
+  return { number, unit: unit ?? conventional, conventional: unit === undefined };
 }
 
 /** The sample conditions: label, metadata field, unit tables, the convention and the unit of the result. */
@@ -124,6 +145,13 @@ const CONDITIONS: readonly {
   accepted: string;
   /** Unit of the converted value, for messages. */
   unit: string;
+  /** Values a gas cell can have, in `unit`; outside them the value is reported and not used. */
+  plausible: readonly [number, number];
+  /**
+   * A usual value, in `unit`: among other readings of the number, the nearest is suggested (NaN:
+   * suggest none, as for path lengths, where a short one is more likely a film than a slip of unit).
+   */
+  usual: number;
 }[] = [
   {
     key: 'PATHLENGTH',
@@ -132,6 +160,8 @@ const CONDITIONS: readonly {
     conventional: 'cm',
     accepted: 'm, cm, mm; cm when none is named',
     unit: 'm',
+    plausible: [0.001, 10_000],
+    usual: Number.NaN,
   },
   {
     key: 'TEMPERATURE',
@@ -140,6 +170,8 @@ const CONDITIONS: readonly {
     conventional: 'c',
     accepted: 'K, C or °C; °C when none is named',
     unit: 'K',
+    plausible: [150, 1500],
+    usual: 296,
   },
   {
     key: 'PRESSURE',
@@ -148,6 +180,8 @@ const CONDITIONS: readonly {
     conventional: 'atm',
     accepted: 'atm, bar, mbar, hPa, kPa, Pa, Torr, mmHg, psi; atm when none is named',
     unit: 'kPa',
+    plausible: [1, 1000],
+    usual: 101.325,
   },
 ];
 
@@ -166,13 +200,46 @@ function positive(record: JcampRecord, value: number, unit: string, source: stri
   return value;
 }
 
+const UNIT_NAMES: Readonly<Record<string, string>> = {
+  m: 'm',
+  cm: 'cm',
+  mm: 'mm',
+  k: 'K',
+  c: '°C',
+  atm: 'atm',
+  bar: 'bar',
+  mbar: 'mbar',
+  hpa: 'hPa',
+  kpa: 'kPa',
+  pa: 'Pa',
+  torr: 'Torr',
+  mmhg: 'mmHg',
+  psi: 'psi',
+};
+
+/** The unit under which a number would be a plausible value nearest the usual one (in log terms). */
+function probableUnit(number: number, condition: (typeof CONDITIONS)[number]): string | undefined {
+  if (Number.isNaN(condition.usual)) return undefined;
+  let best: { unit: string; distance: number } | undefined;
+  for (const [unit, convert] of condition.units) {
+    const value = convert(number);
+    if (!(value >= condition.plausible[0] && value <= condition.plausible[1])) continue;
+    const distance = Math.abs(Math.log(value / condition.usual));
+    if (best === undefined || distance < best.distance) best = { unit, distance };
+  }
+  return best?.unit;
+}
+
 /**
  * Reads the sample-condition labels into the metadata: path length (m), temperature (K),
- * pressure (kPa) and resolution (cm⁻¹).
+ * pressure (kPa) and resolution (cm⁻¹). A condition no gas cell has (pressure below 1 kPa or
+ * above 1,000 kPa, temperature below 150 K or above 1,500 K, path below 1 mm or above 10 km) is
+ * not used; a warning gives the value as written and what it probably meant.
  *
  * @param byKey - the file's records by normalised label
  * @param source - label for messages
  * @param metadata - receives `pathLength_m`, `temperature_K`, `pressure_kPa`, `resolution_cm`
+ * @param warnings - receives free-text and implausible-value warnings
  * @throws BandwrightError `INVALID_VALUE` for a value that is not a number, a unit the label does
  *   not accept, a value and comment that name different units, or a condition that is not > 0
  */
@@ -180,12 +247,44 @@ export function readSampleConditions(
   byKey: ReadonlyMap<string, JcampRecord>,
   source: string,
   metadata: ScanMetadata,
+  warnings: ReadWarning[],
 ): void {
   for (const condition of CONDITIONS) {
     const record = byKey.get(condition.key);
     if (record === undefined) continue;
-    const value = readQuantity(record, source, condition.units, condition.conventional, condition.accepted);
-    metadata[condition.field] = positive(record, value, condition.unit, source);
+    const quantity = readQuantity(
+      record,
+      source,
+      condition.units,
+      condition.conventional,
+      condition.accepted,
+      warnings,
+    );
+    const value = positive(
+      record,
+      (condition.units.get(quantity.unit) as (value: number) => number)(quantity.number),
+      condition.unit,
+      source,
+    );
+    const [low, high] = condition.plausible;
+    if (value >= low && value <= high) {
+      metadata[condition.field] = value;
+      continue;
+    }
+    const probable = probableUnit(quantity.number, condition);
+    const reading = quantity.conventional
+      ? `(${UNIT_NAMES[quantity.unit] ?? quantity.unit} by the JCAMP-DX convention)`
+      : 'as written';
+    warnings.push({
+      code: 'implausible-condition',
+      message:
+        `${source} line ${record.line}: ##${record.name}=${record.value} is ${value.toPrecision(4)} ` +
+        `${condition.unit} ${reading}, outside what a gas cell has (${low}–${high} ${condition.unit}); ` +
+        (probable === undefined
+          ? ''
+          : `probably ${quantity.number} ${UNIT_NAMES[probable] ?? probable} was meant; `) +
+        'not used: give it in the manifest or as an option',
+    });
   }
   const resolution = byKey.get('RESOLUTION');
   if (resolution !== undefined) {

@@ -1,7 +1,8 @@
 /**
  * What a JCAMP-DX file's axis units mean. `##XUNITS=1/CM`, `MICROMETERS` (ν = 10⁴/λ) or
  * `NANOMETERS` (ν = 10⁷/λ). `##YUNITS=ABSORBANCE` (decadic), `TRANSMITTANCE` (a fraction),
- * `% TRANSMITTANCE` / `PERCENT TRANSMITTANCE`. Natural-log absorbance only when declared by the
+ * `% TRANSMITTANCE` / `PERCENT TRANSMITTANCE`, and decadic absorbance per µmol/mol per metre
+ * (`(micromol/mol)-1m-1 (base 10)`, quantitative reference spectra). Natural-log absorbance only when declared by the
  * private label `##$Y KIND=absorbance-natural` together with `##YUNITS=ABSORBANCE`; a YUNITS
  * comment that mentions a natural log without that label is an error rather than a guess.
  */
@@ -20,6 +21,12 @@ const PERCENT_TRANSMITTANCE_SPELLINGS = [
   'TRANSMITTANCE%',
   'TRANSMITTANCEPERCENT',
 ];
+/**
+ * Absorbance per amount per path, as quantitative reference spectra declare it, e.g.
+ * `(micromol/mol)-1m-1 (base 10)` (squeezed: upper case, no spaces, brackets or commas).
+ */
+const PER_AMOUNT = /^(MICROMOL\/MOL|ΜMOL\/MOL|µMOL\/MOL|UMOL\/MOL|PPM|PPMV)-1\*?M-1(BASE(10|E))?$/;
+
 /** The y-kinds `##$Y KIND=` may declare. */
 const DECLARABLE_Y_KINDS: YKind[] = [
   'absorbance',
@@ -33,7 +40,7 @@ const DECLARABLE_Y_KINDS: YKind[] = [
  *
  * @param record - the XUNITS record
  * @param source - label for messages
- * @throws BandwrightError `PARSE` for any other unit
+ * @throws BandwrightError `UNSUPPORTED` for any other unit
  */
 export function readXUnit(record: JcampRecord, source: string): AbscissaUnit {
   const key = record.value.toUpperCase().replace(/\s+/g, '');
@@ -41,13 +48,10 @@ export function readXUnit(record: JcampRecord, source: string): AbscissaUnit {
   if (MICROMETRE_SPELLINGS.includes(key)) return 'um';
   if (NANOMETRE_SPELLINGS.includes(key)) return 'nm';
   throw new BandwrightError(
-    'PARSE',
-    `${source} line ${record.line}: ##XUNITS=${record.value} not supported; use 1/CM, MICROMETERS or NANOMETERS`,
-    {
-      file: source,
-      line: record.line,
-      parameter: 'XUNITS',
-    },
+    'UNSUPPORTED',
+    `${source} line ${record.line}: ##XUNITS=${record.value}: not a wavenumber or wavelength axis; bandwright ` +
+      'reads infrared spectra on 1/CM, MICROMETERS or NANOMETERS',
+    { file: source, line: record.line, parameter: 'XUNITS', content: 'other' },
   );
 }
 
@@ -57,21 +61,33 @@ export function readXUnit(record: JcampRecord, source: string): AbscissaUnit {
  * @param yUnits - the YUNITS record (its `$$` comment is read too)
  * @param yKindLabel - the `##$Y KIND=` record, when present
  * @param source - label for messages
- * @throws BandwrightError `PARSE` for an unsupported unit, an unknown or contradicting y-kind,
+ * @throws BandwrightError `UNSUPPORTED` for y values of another kind; `PARSE` for an unknown or
+ *   contradicting y-kind, absorbance per amount not stated as decadic,
  *   and a YUNITS comment that suggests natural-log absorbance without `##$Y KIND`
  */
 export function readYKind(yUnits: JcampRecord, yKindLabel: JcampRecord | undefined, source: string): YKind {
   const key = yUnits.value.toUpperCase().replace(/[\s(),]+/g, '');
   let yKind: YKind;
   if (key === 'ABSORBANCE' || key === 'ABSORBANCEUNITS') yKind = 'absorbance';
-  else if (key === 'TRANSMITTANCE') yKind = 'transmittance';
+  else if (PER_AMOUNT.test(key)) {
+    if (!/BASE10$/.test(key)) {
+      throw new BandwrightError(
+        'PARSE',
+        `${source} line ${yUnits.line}: ##YUNITS=${yUnits.value}: absorbance per amount, but not stated ` +
+          'as decadic "(base 10)"; bandwright reads quantitative reference spectra in decadic absorbance',
+        { file: source, line: yUnits.line, parameter: 'YUNITS' },
+      );
+    }
+    yKind = 'absorbance-per-amount';
+  } else if (key === 'TRANSMITTANCE') yKind = 'transmittance';
   else if (PERCENT_TRANSMITTANCE_SPELLINGS.includes(key)) yKind = 'transmittance-percent';
   else {
     throw new BandwrightError(
-      'PARSE',
-      `${source} line ${yUnits.line}: ##YUNITS=${yUnits.value} not supported; bandwright reads ` +
-        `ABSORBANCE, TRANSMITTANCE (a fraction) or % TRANSMITTANCE`,
-      { file: source, line: yUnits.line, parameter: 'YUNITS' },
+      'UNSUPPORTED',
+      `${source} line ${yUnits.line}: ##YUNITS=${yUnits.value}: y values that are neither absorbance nor ` +
+        'transmittance; bandwright reads ABSORBANCE, TRANSMITTANCE (a fraction), % TRANSMITTANCE or ' +
+        '(micromol/mol)-1m-1 (base 10)',
+      { file: source, line: yUnits.line, parameter: 'YUNITS', content: 'other' },
     );
   }
   if (yKindLabel !== undefined) {

@@ -2,16 +2,18 @@
  * `##XYDATA=(X++(Y..Y))`: evenly spaced abscissae from FIRSTX, LASTX, DELTAX and the count, and
  * one line per run of ordinates, each opening with the X of its first ordinate. Checked: the
  * decoded count against `##NPOINTS`, `##DELTAX` against FIRSTX/LASTX (the whole span may disagree
- * by at most half a step), and the X at the start of each line against FIRSTX + i·DELTAX.
+ * by at most half a step, or DELTAX is the step rounded or truncated to its printed digits), and the X at the
+ * start of each line against FIRSTX + i·step, a cross-check of the count.
  */
 import { BandwrightError } from '../../errors.js';
+import type { ReadWarning } from '../../spectrum/spectrum.js';
 import { BYTE } from '../bytes.js';
 import type { ScanCursor } from '../number-parse.js';
 import { decodeDataLine, type DataLine } from './asdf.js';
 import { decodeAsdfLineFast } from './asdf-fast.js';
 import type { JcampHeader } from './header.js';
 import { OrdinateStream, type LineX } from './ordinate-stream.js';
-import { assertFirstY, scaleOrdinates } from './ordinates.js';
+import { checkFirstY, scaleOrdinates } from './ordinates.js';
 import { commentStart, type JcampRecord } from './records.js';
 
 const { CR, DOLLAR, LF, SPACE, TAB } = BYTE;
@@ -114,25 +116,65 @@ function decodeXyData(
   return { written: stream.out.values.subarray(0, stream.out.length), lineStarts };
 }
 
-/** The x step of the table from the header and the decoded count, checking DELTAX against LASTX. */
-function stepOf(header: JcampHeader, n: number, source: string): number {
+/**
+ * How far the X printed at a line start may stray from the header's grid, in steps, when the
+ * point count is confirmed by ##NPOINTS or by DELTAX against LASTX: writers round or truncate it,
+ * compute it from a rounded DELTAX, or start lines one step off. Beyond it the header and the
+ * data cannot be reconciled.
+ */
+export const LINE_START_TOLERANCE_STEPS = 1.5;
+
+/** Agreement of line-start X with the grid expected of every writer: a tenth of a step. */
+const STRICT_LINE_START_STEPS = 0.1;
+
+/**
+ * The x step of the table from the header and the decoded count, checking DELTAX against LASTX.
+ * A DELTAX that is the step rounded or truncated to its printed digits is accepted with a warning.
+ *
+ * @returns the step and whether DELTAX and LASTX together confirm the count
+ */
+function stepOf(
+  header: JcampHeader,
+  n: number,
+  source: string,
+  warnings: ReadWarning[],
+): { step: number; countConfirmed: boolean } {
   const firstX = (header.firstX as { value: number }).value;
   let step: number;
+  let countConfirmed = false;
+  const deltaX = header.deltaX;
   if (header.lastX !== undefined) {
     step = (header.lastX.value - firstX) / (n - 1);
-    if (header.deltaX !== undefined) {
-      const span = Math.abs(firstX + (n - 1) * header.deltaX - header.lastX.value);
-      if (!(span <= 0.5 * Math.abs(step))) {
-        throw new BandwrightError(
-          'PARSE',
-          `${source}: ##DELTAX=${header.deltaX} disagrees with ##FIRSTX=${firstX}, ` +
-            `##LASTX=${header.lastX.value} and ${n} points (which give ${step}); FIRSTX + ` +
-            `(n−1)·DELTAX misses LASTX by ${span}`,
-          { file: source, parameter: 'DELTAX' },
-        );
+    if (deltaX !== undefined) {
+      const span = Math.abs(firstX + (n - 1) * deltaX.value - header.lastX.value);
+      countConfirmed = span <= 0.5 * Math.abs(step);
+      if (!countConfirmed) {
+        // Rounded or truncated: within one unit of its last printed digit (and 1 % of the step, so
+        // that an integer DELTAX is not taken for a rounding of half its value).
+        const difference = Math.abs(deltaX.value - step);
+        const rounded = difference <= deltaX.unit * (1 + 1e-9) && difference <= 0.01 * Math.abs(step);
+        if (!rounded && header.nPoints === undefined) {
+          throw new BandwrightError(
+            'PARSE',
+            `${source}: ##DELTAX=${deltaX.value} disagrees with ##FIRSTX=${firstX}, ` +
+              `##LASTX=${header.lastX.value} and ${n} points (which give ${step}); FIRSTX + ` +
+              `(n−1)·DELTAX misses LASTX by ${span}, and no ##NPOINTS confirms the count`,
+            { file: source, parameter: 'DELTAX' },
+          );
+        }
+        // With NPOINTS confirming the count, FIRSTX, LASTX and the count define the grid, and the
+        // line starts cross-check it; DELTAX is then only a (wrong) restatement.
+        warnings.push({
+          code: 'deltax',
+          message: rounded
+            ? `${source}: ##DELTAX=${deltaX.value} is the step rounded or truncated to its printed digits; ` +
+              `##FIRSTX, ##LASTX and the ${n} points give ${step.toPrecision(8)}, used for the abscissae`
+            : `${source}: ##DELTAX=${deltaX.value} disagrees with ##FIRSTX, ##LASTX and ##NPOINTS=${n}, ` +
+              `which give ${step.toPrecision(8)}, used for the abscissae (the data line starts agree with it)`,
+        });
       }
     }
-  } else if (header.deltaX !== undefined) step = header.deltaX;
+  } else if (deltaX !== undefined) step = deltaX.value;
   else
     throw new BandwrightError(
       'PARSE',
@@ -146,37 +188,57 @@ function stepOf(header: JcampHeader, n: number, source: string): number {
       { file: source },
     );
   }
-  return step;
+  return { step, countConfirmed: countConfirmed || header.nPoints !== undefined };
 }
 
 /**
- * Checks the X at the start of each data line against FIRSTX + i·step, within 0.1·|step| plus
- * half a unit of the last digit printed in that X (times XFACTOR), since writers round it.
+ * Cross-checks the X at the start of each data line against FIRSTX + i·step. Within a tenth of a
+ * step plus half a unit of the last digit printed in that X (times XFACTOR) it is silent; when
+ * the count is confirmed, up to {@link LINE_START_TOLERANCE_STEPS} steps is accepted with one
+ * warning saying how large the disagreement was.
  *
- * @throws BandwrightError `PARSE` at the first line whose X is off, naming the line
+ * @throws BandwrightError `PARSE` at the first line whose X is off beyond what is accepted
  */
-function assertLineStartsOnGrid(
+function checkLineStarts(
   lineStarts: readonly LineStart[],
   firstX: number,
   step: number,
   xFactor: number,
+  countConfirmed: boolean,
   source: string,
+  warnings: ReadWarning[],
 ): void {
+  const allowedSteps = countConfirmed ? LINE_START_TOLERANCE_STEPS : STRICT_LINE_START_STEPS;
+  let worst: { start: LineStart; off: number } | undefined;
+  let beyondStrict = 0;
   for (const start of lineStarts) {
     const actual = start.x * xFactor;
     const expected = firstX + start.index * step;
-    const tolerance =
-      0.1 * Math.abs(step) + 0.5 * start.printedUnit * Math.abs(xFactor) + 1e-12 * Math.abs(expected);
-    if (!(Math.abs(actual - expected) <= tolerance)) {
+    const rounding = 0.5 * start.printedUnit * Math.abs(xFactor) + 1e-12 * Math.abs(expected);
+    const off = Math.abs(actual - expected);
+    if (off <= STRICT_LINE_START_STEPS * Math.abs(step) + rounding) continue;
+    if (!(off <= allowedSteps * Math.abs(step) + rounding)) {
       throw new BandwrightError(
         'PARSE',
         `${source} line ${start.line}: X = ${actual} at the start of the line, but point ` +
-          `${start.index + 1} lies at FIRSTX + ${start.index}·DELTAX = ${expected} (tolerance ` +
-          `${tolerance.toPrecision(3)}); points are missing or extra before this line, or DELTAX ` +
-          `is wrong`,
+          `${start.index + 1} lies at FIRSTX + ${start.index}·DELTAX = ${expected}, ` +
+          `${(off / Math.abs(step)).toPrecision(3)} steps away (accepted: ${allowedSteps}` +
+          `${countConfirmed ? '' : `, or ${LINE_START_TOLERANCE_STEPS} when ##NPOINTS confirms the count`}); ` +
+          'points are missing or extra before this line, or DELTAX is wrong',
         { file: source, line: start.line },
       );
     }
+    beyondStrict++;
+    if (worst === undefined || off > worst.off) worst = { start, off };
+  }
+  if (worst !== undefined) {
+    warnings.push({
+      code: 'line-start-x',
+      message:
+        `${source}: the X printed at ${beyondStrict} of ${lineStarts.length} data line starts strays from ` +
+        `the header's grid by up to ${worst.off.toPrecision(3)} (${(worst.off / Math.abs(step)).toFixed(2)} ` +
+        `steps, line ${worst.start.line}); the abscissae come from ##FIRSTX, ##LASTX and the point count`,
+    });
   }
 }
 
@@ -273,12 +335,12 @@ export function readXyData(
       parameter: 'FIRSTX',
     });
   const firstX = header.firstX.value;
-  const step = stepOf(header, n, source);
-  assertLineStartsOnGrid(lineStarts, firstX, step, header.xFactor, source);
+  const { step, countConfirmed } = stepOf(header, n, source, header.warnings);
+  checkLineStarts(lineStarts, firstX, step, header.xFactor, countConfirmed, source, header.warnings);
   // Scaled in place when the output may be a view on the decoding buffer.
   const y = reuseOutput ? written : new Float64Array(n);
   const yFinite = scaleOrdinates(written, n, header.yFactor, y);
-  assertFirstY(header, y[0] as number, source);
+  checkFirstY(header, y.subarray(0, n), source);
   if (reuseOutput && buffers.x.length < n) buffers.x = new Float64Array(n);
   const x = reuseOutput ? buffers.x.subarray(0, n) : new Float64Array(n);
   const xChecked = fillAbscissae(x, n, firstX, step, header);
