@@ -71,14 +71,31 @@ function oneLine(text: string): string {
   return text.replace(/[\r\n]+/g, ' ').trim();
 }
 
+/** The ordinates to write: saturated transmittance (NaN) as 0, as it was printed in the file read. */
+function withSaturatedAsZero(spectrum: Spectrum, where: string): Float64Array {
+  const { y } = spectrum;
+  if (!y.some(Number.isNaN)) return y;
+  if (spectrum.yKind !== 'transmittance' && spectrum.yKind !== 'transmittance-percent') {
+    throw new BandwrightError(
+      'INVALID_VALUE',
+      `${where}: ${y.filter(Number.isNaN).length} undefined (saturated) ordinate(s) in a ${spectrum.yKind} ` +
+        'spectrum; only transmittance can write them (as 0)',
+      { parameter: 'y' },
+    );
+  }
+  return y.map((value) => (Number.isNaN(value) ? 0 : value));
+}
+
 /**
  * Formats a spectrum as JCAMP-DX 5.01 text.
  *
- * @param spectrum - y-kind absorbance, absorbance-natural, transmittance or transmittance-percent;
- *   x ascending in cm⁻¹; metadata conditions in m, K, kPa, resolution in cm⁻¹
+ * @param spectrum - any y-kind but single-beam; x ascending in cm⁻¹; metadata conditions in m, K,
+ *   kPa, resolution in cm⁻¹. Saturated (NaN) transmittance is written as 0, which reads back as
+ *   saturated.
  * @param options - title, compression, YFACTOR, origin, owner
  * @returns the file text, ending with `##END=` and a line break
- * @throws BandwrightError `INVALID_VALUE` for a single-beam spectrum, a bad `yFactor`, ordinates
+ * @throws BandwrightError `INVALID_VALUE` for a single-beam spectrum, undefined (NaN) ordinates of
+ *   a kind other than transmittance, a bad `yFactor`, ordinates
  *   too large for exact integers at that factor, or an abscissa that cannot be written in plain
  *   decimals
  * @example
@@ -97,7 +114,8 @@ export function formatJcamp(spectrum: Spectrum, options: JcampWriteOptions): str
     );
   }
   const compression = options.compression ?? 'dif-dup';
-  const { x, y } = spectrum;
+  const { x } = spectrum;
+  const y = withSaturatedAsZero(spectrum, where);
   const n = x.length;
   const step = ((x[n - 1] as number) - (x[0] as number)) / (n - 1);
   let even = true;
@@ -138,6 +156,9 @@ export function formatJcamp(spectrum: Spectrum, options: JcampWriteOptions): str
       break;
     case 'transmittance-percent':
       lines.push('##YUNITS=PERCENT TRANSMITTANCE');
+      break;
+    case 'absorbance-per-amount':
+      lines.push('##YUNITS=(micromol/mol)-1m-1 (base 10)');
       break;
   }
 
