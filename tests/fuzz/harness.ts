@@ -35,6 +35,7 @@ const CODES = new Set([
   'SCHEMA',
   'LIMIT',
   'CONVERSION',
+  'UNSUPPORTED',
 ]);
 
 /** Counts of what a fuzz run saw, for the summary line. */
