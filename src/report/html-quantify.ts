@@ -205,7 +205,7 @@ export function quantifyReportHtml(input: QuantifyReportInput, options: Quantify
     else {
       const notes = [
         ...entry.gases.flatMap((g) => g.notes.map((n) => `${g.gas}: ${n}`)),
-        ...entry.warnings,
+        ...entry.warnings.map((w) => `${w.message} (${w.code})`),
         `conditions: path ${formatNumber(entry.conditions.pathLength_m, 4)} m, ` +
           `${formatNumber(entry.conditions.temperature_K, 5)} K, ` +
           `${formatNumber(entry.conditions.pressure_kPa, 6)} kPa`,
