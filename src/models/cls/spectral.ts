@@ -10,7 +10,7 @@
  * standard and per sample (dimensionless), so the model works in φ-scaled concentrations.
  */
 import { BandwrightError } from '../../errors.js';
-import { channelSegments, MAX_BASELINE_ORDER, nuisanceBasis } from './basis.js';
+import { channelSegments, MAX_BASELINE_ORDER, nuisanceBasis, removeSpan } from './basis.js';
 import { fitClsCore } from './fit-core.js';
 import {
   type ClsCommonFitOptions,
@@ -315,13 +315,29 @@ function predictOnDefinedChannels(
       { parameter: 'spectrum' },
     );
   }
+  const background = model.background === null ? null : keep.map((j) => model.background![j]!);
+  // The fitted pure spectra are orthogonal to the baseline basis over all channels; on a subset
+  // they are not to the subset's basis, and prediction takes them as they are: project them again.
+  const nuisance = nuisanceBasis({
+    positions,
+    regionOf,
+    order: model.baselineOrder,
+    ...(background === null ? {} : { background }),
+  });
   const restricted: ClsModel = {
     ...model,
     channelCount: keep.length,
-    pureSpectra: model.pureSpectra.map((row) => keep.map((j) => row[j]!)),
+    pureSpectra: model.pureSpectra.map((row) =>
+      Array.from(
+        removeSpan(
+          keep.map((j) => row[j]!),
+          nuisance,
+        ),
+      ),
+    ),
     segments: channelSegments(regionOf, positions),
     grid: positions,
-    background: model.background === null ? null : keep.map((j) => model.background![j]!),
+    background,
   };
   let prediction: ClsPrediction;
   try {
