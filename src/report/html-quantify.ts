@@ -201,8 +201,11 @@ export function quantifyReportHtml(input: QuantifyReportInput, options: Quantify
   const sampleSections = entries.map((entry, i) => {
     const spectrum = input.spectra.find((s) => s.scan === entry.scan);
     const parts: string[] = [];
-    if (isFailure(entry)) parts.push(notice(`Could not be quantified: ${entry.error}`));
-    else {
+    if (isFailure(entry)) {
+      parts.push(notice(`Could not be quantified: ${entry.error}`));
+      const warnings = entry.warnings ?? [];
+      if (warnings.length > 0) parts.push(bulletList(warnings.map((w) => `${w.message} (${w.code})`)));
+    } else {
       const notes = [
         ...entry.gases.flatMap((g) => g.notes.map((n) => `${g.gas}: ${n}`)),
         ...entry.warnings.map((w) => `${w.message} (${w.code})`),

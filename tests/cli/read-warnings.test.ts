@@ -182,6 +182,23 @@ describe('read warnings through the commands', () => {
     expect(csv.data[1]?.CO_flags).toBe('saturated');
   });
 
+  it('the HTML report lists each warning with its code beside the sample', async () => {
+    const run = await runCli(
+      'quantify',
+      at('co.json'),
+      at('sample-warned.csv'),
+      ...conditionFlags,
+      '--quiet',
+      '--report',
+      at('report.html'),
+    );
+    expect(run.status, run.stderr).toBe(0);
+    const html = readFileSync(at('report.html'), 'utf8');
+    expect(html).toMatch(
+      /sample-warned\.csv: 1 byte after the last record \(0x1A\), ignored \(trailing-bytes\)/,
+    );
+  });
+
   it('the quantify table lists each warning with its code under Notes', async () => {
     const run = await runCli('quantify', at('co.json'), at('sample-warned.csv'), ...conditionFlags);
     expect(run.status, run.stderr).toBe(0);
