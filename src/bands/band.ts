@@ -6,9 +6,19 @@
  * half-span taken over the band and its baseline windows, so that the fit is well conditioned at
  * any wavenumber offset; it is fitted by QR least squares through every grid point inside the
  * baseline windows.
+ *
+ * Saturated points (y NaN: transmittance at or below zero as printed) are left out of the
+ * baseline fit, and bridged by linear interpolation from their finite neighbours inside the band;
+ * a band measured that way is a lower bound, and the features say where such points were.
  */
 import { BandwrightError } from '../errors.js';
 import { interpolateAt, type Spectrum } from '../spectrum/spectrum.js';
+import {
+  bridgeUndefinedPoints,
+  describeUndefinedPoints,
+  findUndefinedPoints,
+  type UndefinedPoints,
+} from '../spectrum/undefined-points.js';
 import { leastSquares } from '../stats/least-squares.js';
 import { assertBandWindows, formatWindow, windowIndices, type Window } from './windows.js';
 
@@ -32,6 +42,8 @@ export interface FittedBaseline {
   rms_AU: number;
   /** Number of grid points the baseline was fitted through. */
   points: number;
+  /** Saturated (NaN) points inside the baseline windows, left out of the fit; absent when none. */
+  undefinedPoints?: UndefinedPoints;
 }
 
 /** Band features measured on one spectrum. */
@@ -46,6 +58,11 @@ export interface BandFeatures {
   peakAbsorbance: number;
   /** The baseline used. */
   baseline: FittedBaseline;
+  /**
+   * Saturated (NaN) points inside the band, bridged by linear interpolation from their finite
+   * neighbours: area and height are then lower bounds. Absent when none.
+   */
+  undefinedPoints?: UndefinedPoints;
 }
 
 const MAX_BASELINE_ORDER = 3;
@@ -100,6 +117,8 @@ export function fitBaseline(spectrum: Spectrum, band: Window, spec: BaselineSpec
   spec.windows.forEach((window, i) => {
     const [start, end] = windowIndices(spectrum, window, `baseline window ${i + 1}`, 1);
     for (let j = start; j < end; j++) {
+      // A saturated point says only that the absorbance is high there: no value to fit through.
+      if (Number.isNaN(spectrum.y[j])) continue;
       const t = ((spectrum.x[j] as number) - centre) / halfSpan;
       const row = new Array<number>(order + 1);
       let power = 1;
@@ -111,12 +130,15 @@ export function fitBaseline(spectrum: Spectrum, band: Window, spec: BaselineSpec
       values.push(spectrum.y[j] as number);
     }
   });
+  const undefinedPoints = findUndefinedPoints(spectrum.x, spectrum.y, spec.windows);
   if (values.length < order + 1) {
     throw new BandwrightError(
       'WINDOW',
       `${spectrum.metadata.source ?? 'scan'}: ` +
         `baseline windows ${spec.windows.map(formatWindow).join(', ')} ` +
-        `hold ${values.length} point(s), an order-${order} baseline needs at least ${order + 1}`,
+        `hold ${values.length} point(s)` +
+        (undefinedPoints === undefined ? '' : ` besides ${describeUndefinedPoints(undefinedPoints)}`) +
+        `, an order-${order} baseline needs at least ${order + 1}`,
       { file: spectrum.metadata.source },
     );
   }
@@ -128,6 +150,7 @@ export function fitBaseline(spectrum: Spectrum, band: Window, spec: BaselineSpec
     halfSpan_cm: halfSpan,
     rms_AU: rms,
     points: values.length,
+    ...(undefinedPoints === undefined ? {} : { undefinedPoints }),
   };
 }
 
@@ -139,8 +162,9 @@ export function fitBaseline(spectrum: Spectrum, band: Window, spec: BaselineSpec
  * @param spectrum - absorbance spectrum on an ascending grid (cm⁻¹)
  * @param band - integration window, cm⁻¹
  * @param baseline - baseline windows and order
- * @returns area (AU·cm⁻¹), height (AU) and the baseline used
- * @throws BandwrightError `WINDOW` when windows are invalid, overlap or lie outside the scan
+ * @returns area (AU·cm⁻¹), height (AU), the baseline used, and the saturated points bridged
+ * @throws BandwrightError `WINDOW` when windows are invalid, overlap or lie outside the scan, or
+ *   when saturated points in the band run to the end of the scan (nothing to bridge from)
  * @example
  * const features = measureBand(spectrum, [2040, 2245], { windows: [[2000, 2030], [2255, 2290]] });
  */
@@ -155,7 +179,21 @@ export function measureBand(spectrum: Spectrum, band: Window, baseline: Baseline
   assertBandWindows(band, baseline.windows, 'band');
   const [start, end] = windowIndices(spectrum, band, 'band', 1);
   const fitted = fitBaseline(spectrum, band, baseline);
-  const { x, y } = spectrum;
+  const { x } = spectrum;
+  // The points just outside the band enter through the interpolated end values, so they count.
+  const first = Math.max(start - 1, 0);
+  const last = Math.min(end, x.length - 1);
+  const undefinedPoints = findUndefinedPoints(x, spectrum.y, [[x[first] as number, x[last] as number]]);
+  const y = undefinedPoints === undefined ? spectrum.y : bridgeUndefinedPoints(x, spectrum.y);
+  if (undefinedPoints !== undefined && (Number.isNaN(y[first]) || Number.isNaN(y[last]))) {
+    throw new BandwrightError(
+      'WINDOW',
+      `${spectrum.metadata.source ?? 'scan'}: band ${formatWindow(band)} holds ` +
+        `${describeUndefinedPoints(undefinedPoints)} that reach the end of the scan, so they cannot be ` +
+        'bridged from both sides',
+      { file: spectrum.metadata.source },
+    );
+  }
   const corrected = (j: number): number => (y[j] as number) - evaluateBaseline(fitted, x[j] as number);
 
   const lowEdge = band[0];
@@ -183,5 +221,12 @@ export function measureBand(spectrum: Spectrum, band: Window, baseline: Baseline
     if ((y[j] as number) > peak) peak = y[j] as number;
   }
   area += 0.5 * (highValue + previousY) * (highEdge - previousX);
-  return { area, height, heightPosition_cm: heightPosition, peakAbsorbance: peak, baseline: fitted };
+  return {
+    area,
+    height,
+    heightPosition_cm: heightPosition,
+    peakAbsorbance: peak,
+    baseline: fitted,
+    ...(undefinedPoints === undefined ? {} : { undefinedPoints }),
+  };
 }

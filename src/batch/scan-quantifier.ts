@@ -14,15 +14,20 @@ import { BandwrightError, type ParameterNames } from '../errors.js';
 import { formatCsv } from '../formats/csv-table.js';
 import { createScanReader, type ScanReader } from './scan-reader.js';
 import type { SampleSpectrum } from '../report/html-quantify.js';
-import { isFailure, resultRow, type BatchEntry } from '../report/results.js';
+import { isFailure, resultRow, type BatchEntry, type ResultCsvLayout } from '../report/results.js';
+import { readWarnings } from '../calibration/result.js';
 import type { Spectrum, YKind } from '../spectrum/spectrum.js';
 
 /** Gases as result columns: name and unit, in calibration order. */
 export type ResultGases = readonly { gas: string; unit: string }[];
 
-/** A result-file line made for every scan: a results CSV row or a JSON-lines record. */
+/**
+ * A result-file line made for every scan: a results CSV row (with the `warnings` column unless
+ * `warningsColumn` is false, for appending to a file made before that column) or a JSON-lines record.
+ */
 export type LineFormat =
-  { kind: 'csv'; gases: ResultGases; sha256: string } | { kind: 'jsonl'; sha256: string };
+  | { kind: 'csv'; gases: ResultGases; sha256: string; warningsColumn?: boolean }
+  | { kind: 'jsonl'; sha256: string };
 
 /** Everything a batch needs besides the paths; plain data, so it can be sent to a worker. */
 export interface BatchSetup {
@@ -66,10 +71,16 @@ export type ScanQuantifier = (path: string) => BatchItem;
  * @param entry - result or failure
  * @param gases - gases in column order
  * @param sha256 - the calibration's hash
+ * @param layout - whether the row ends with the `warnings` column (default true)
  */
-export function resultsCsvRow(entry: BatchEntry, gases: ResultGases, sha256: string): string {
+export function resultsCsvRow(
+  entry: BatchEntry,
+  gases: ResultGases,
+  sha256: string,
+  layout: ResultCsvLayout = {},
+): string {
   // formatCsv with no columns writes an empty header line; the rest is the row as resultsCsv writes it.
-  return formatCsv([], [resultRow(entry, gases, sha256)]).slice(1);
+  return formatCsv([], [resultRow(entry, gases, sha256, layout)]).slice(1);
 }
 
 /**
@@ -91,7 +102,7 @@ export function resultsJsonLine(entry: BatchEntry, sha256: string): string {
  */
 export function formatLine(entry: BatchEntry, format: LineFormat): string {
   return format.kind === 'csv'
-    ? resultsCsvRow(entry, format.gases, format.sha256)
+    ? resultsCsvRow(entry, format.gases, format.sha256, { warningsColumn: format.warningsColumn !== false })
     : resultsJsonLine(entry, format.sha256);
 }
 
@@ -137,6 +148,9 @@ export function createScanQuantifier(setup: BatchSetup): ScanQuantifier {
     } catch (error) {
       if (!(error instanceof BandwrightError)) throw error;
       entry = { scan: path, error: error.describe(setup.parameterNames) };
+      // A scan read with warnings that then failed keeps them: they often say why.
+      const warnings = readWarnings(spectrum?.metadata.warnings);
+      if (warnings.length > 0) entry.warnings = warnings;
     }
     const item = batchItem(entry, setup);
     if (keepSpectra && spectrum !== undefined) item.sample = { scan: path, spectrum };

@@ -5,6 +5,7 @@
  * Each output holds at most one page of entries, so memory stays flat in the number of scans,
  * and each gives the same text as the whole-batch formatters of `report/results.ts`.
  */
+import { isBandwrightError } from '../errors.js';
 import { formatCsv } from '../formats/csv-table.js';
 import { formatResultsText, resultColumns, resultsDocument, type BatchEntry } from '../report/results.js';
 import { openResultsWriter } from './results-writer.js';
@@ -28,8 +29,8 @@ export interface EntrySink {
 }
 
 /** The header line of a results CSV for these gases. */
-function resultsCsvHeader(gases: ResultGases): string {
-  return formatCsv(resultColumns(gases), []);
+function resultsCsvHeader(format: Extract<LineFormat, { kind: 'csv' }>): string {
+  return formatCsv(resultColumns(format.gases, { warningsColumn: format.warningsColumn !== false }), []);
 }
 
 /** The entry of an item, for the outputs that need it (the batch keeps entries for them). */
@@ -85,15 +86,31 @@ export function openResultFiles(
   options: FileSinkOptions,
 ): { sinks: EntrySink[]; lineFormats: LineFormat[] } {
   const sinks: EntrySink[] = [];
+  const lineFormats = files.map((file) => file.format);
   try {
     files.forEach(({ path, format }, line) => {
-      const header = format.kind === 'csv' ? { header: resultsCsvHeader(format.gases) } : {};
-      const writer = openResultsWriter(path, {
-        mode: options.mode,
-        ...header,
-        overwrite: options.overwrite === true,
-        createFolder: true,
-      });
+      const open = (as: LineFormat): ReturnType<typeof openResultsWriter> =>
+        openResultsWriter(path, {
+          mode: options.mode,
+          ...(as.kind === 'csv' ? { header: resultsCsvHeader(as) } : {}),
+          overwrite: options.overwrite === true,
+          createFolder: true,
+        });
+      let writer: ReturnType<typeof openResultsWriter>;
+      try {
+        writer = open(format);
+      } catch (error) {
+        // A results CSV made before the `warnings` column existed keeps growing in its own layout.
+        if (!(options.mode === 'append' && format.kind === 'csv' && isBandwrightError(error, 'PARSE')))
+          throw error;
+        const earlier: LineFormat = { ...format, warningsColumn: false };
+        try {
+          writer = open(earlier);
+        } catch {
+          throw error;
+        }
+        lineFormats[line] = earlier;
+      }
       sinks.push({
         add: (item) => writer.write(item.lines[line] as string),
         finish: () => writer.commit(),
@@ -105,7 +122,7 @@ export function openResultFiles(
     for (const sink of sinks) sink.abort();
     throw error;
   }
-  return { sinks, lineFormats: files.map((file) => file.format) };
+  return { sinks, lineFormats };
 }
 
 /** Scans per page of the terminal table: a batch up to this size prints one table, as before. */

@@ -21,8 +21,23 @@ import { densityPathFactor, resolveConditions, type CellConditions } from '../ga
 import { cautionsFor } from '../gas/safety.js';
 import { fromPpm, toPpm } from '../gas/units.js';
 import { fitCls, predictCls } from '../models/cls/spectral.js';
-import { interpolateAt, lowerBound, resample, toAbsorbance, type Spectrum } from '../spectrum/spectrum.js';
-import { provenanceHeader, referenceConditions, type BuildContext, type StandardScan } from './build.js';
+import {
+  assertMeasuredSpectrum,
+  interpolateAt,
+  lowerBound,
+  resample,
+  toAbsorbance,
+  type Spectrum,
+} from '../spectrum/spectrum.js';
+import { describeUndefinedPoints, findUndefinedPoints } from '../spectrum/undefined-points.js';
+import {
+  assertUsableStandard,
+  provenanceHeader,
+  referenceConditions,
+  standardReadWarnings,
+  type BuildContext,
+  type StandardScan,
+} from './build.js';
 import { sealCalibration, type Calibration, type CalibrationStandard } from './calibration.js';
 import type { ClsMethod } from './method.js';
 
@@ -171,6 +186,20 @@ function lanczosAt(values: Float64Array, u: number): number {
   return sum / weights;
 }
 
+/** Refuses a background spectrum that is not a measurement or has saturated points in the regions. */
+function assertUsableBackground(background: Spectrum, regions: readonly Window[]): void {
+  assertMeasuredSpectrum(background, 'background spectrum');
+  const found = findUndefinedPoints(background.x, background.y, regions);
+  if (found === undefined) return;
+  throw new BandwrightError(
+    'INVALID_VALUE',
+    `${background.metadata.source ?? 'background'}: ${describeUndefinedPoints(found)} (transmittance at or ` +
+      `below zero as printed) inside the regions ${regions.map(formatWindow).join(', ')}; a background ` +
+      'spectrum must be defined on every channel',
+    { file: background.metadata.source },
+  );
+}
+
 /**
  * Builds a classical-least-squares calibration.
  *
@@ -178,9 +207,10 @@ function lanczosAt(values: Float64Array, u: number): number {
  * @param standards - standards with their scans (every component's concentration given)
  * @param context - provenance, default conditions, and the background spectrum when the method names one
  * @returns the sealed calibration
- * @throws BandwrightError `INVALID_VALUE` when the manifest lacks a component; `WINDOW` when a scan
- *   does not cover the regions; `SINGULAR` naming the gases that cannot be separated;
- *   `CONDITIONS_MISSING`
+ * @throws BandwrightError `INVALID_VALUE` when the manifest lacks a component, or a standard or the
+ *   background is a quantitative reference spectrum or has saturated points inside the regions;
+ *   `WINDOW` when a scan does not cover the regions; `SINGULAR` naming the gases that cannot be
+ *   separated; `CONDITIONS_MISSING`
  */
 export function buildClsCalibration(
   method: ClsMethod,
@@ -189,6 +219,9 @@ export function buildClsCalibration(
 ): Calibration {
   const first = standards[0];
   if (first === undefined) throw new BandwrightError('INSUFFICIENT_DATA', 'no standards given');
+  const regionWords = `the region${method.regions.length === 1 ? '' : 's'}`;
+  for (const standard of standards) assertUsableStandard(standard, method.regions, regionWords);
+  if (context.background !== undefined) assertUsableBackground(context.background, method.regions);
   const components = [
     ...method.gases.map((g) => ({ ...g, reported: true })),
     ...method.interferents.map((g) => ({ ...g, reported: false })),
@@ -207,10 +240,24 @@ export function buildClsCalibration(
   const reference = referenceConditions(method.reference, plain);
   const phis = plain.map((c) => densityPathFactor(c, reference));
   const { grid, regionOf } = channelsFromScan(first.spectrum, method.regions);
-  const warnings = [...(context.warnings ?? [])];
+  const warnings = [...(context.warnings ?? []), ...standardReadWarnings(standards)];
+  for (const warning of context.background?.metadata.warnings ?? [])
+    warnings.push(
+      `background ${context.background?.metadata.source ?? ''}: ${warning.message} (${warning.code})`,
+    );
   let peak = 0;
   const spectra = standards.map((standard) => {
     const values = onChannels(standard.spectrum, grid, method.regions);
+    // A saturated point just outside a region still reaches the channels interpolated beside it.
+    const found = findUndefinedPoints(grid, values);
+    if (found !== undefined)
+      throw new BandwrightError(
+        'INVALID_VALUE',
+        `${standard.scan} (manifest line ${standard.line}): ${describeUndefinedPoints(found)} on the ` +
+          `calibration's channels, interpolated from saturated points beside ${regionWords}; a standard must ` +
+          'not be saturated: measure it with a shorter path or a lower concentration',
+        { file: standard.scan, line: standard.line },
+      );
     for (const v of values) peak = Math.max(peak, v);
     return values;
   });

@@ -5,8 +5,14 @@
  * Band method, per gas: measure the baseline-corrected band (area or height) in every standard,
  * divide by the standard's φ to bring it to the reference conditions (DESIGN §3), and fit the
  * chosen univariate curve of scaled response against certified concentration.
+ *
+ * Every standard must be a measured spectrum (not a quantitative reference spectrum) with no
+ * saturated point (NaN) inside the windows or regions the method uses: a standard's response
+ * must be a measurement, not a lower bound. Saturated points elsewhere are harmless. The
+ * standards' read warnings go into the calibration's warnings, each naming its file and code.
  */
 import { measureBand } from '../bands/band.js';
+import { formatWindow, type Window } from '../bands/windows.js';
 import { BandwrightError } from '../errors.js';
 import {
   densityPathFactor,
@@ -19,7 +25,8 @@ import {
 import { cautionsFor } from '../gas/safety.js';
 import { fromPpm, toPpm, type ConcentrationUnit } from '../gas/units.js';
 import { fitUnivariate } from '../models/univariate/fit.js';
-import { toAbsorbance, type Spectrum } from '../spectrum/spectrum.js';
+import { assertMeasuredSpectrum, toAbsorbance, type Spectrum } from '../spectrum/spectrum.js';
+import { describeUndefinedPoints, findUndefinedPoints } from '../spectrum/undefined-points.js';
 import { TOOL } from '../version.js';
 import {
   SCHEMA_VERSION,
@@ -63,6 +70,47 @@ export interface BuildContext {
   title?: string;
   /** Notes from reading the inputs (e.g. ignored manifest columns). */
   warnings?: readonly string[];
+}
+
+/** Where a standard is, for messages: its scan and manifest line. */
+function standardPlace(standard: StandardScan): string {
+  return `${standard.scan} (manifest line ${standard.line})`;
+}
+
+/**
+ * Refuses a standard that is not a measured spectrum, or that has saturated points inside the
+ * windows or regions the method reads.
+ *
+ * @param standard - the standard with its scan
+ * @param windows - the windows (cm⁻¹) that must hold no saturated point
+ * @param what - what the windows are, for the message (e.g. `the CO band and baseline windows`)
+ * @throws BandwrightError `INVALID_VALUE` naming the file, the number of points and where
+ */
+export function assertUsableStandard(standard: StandardScan, windows: readonly Window[], what: string): void {
+  assertMeasuredSpectrum(standard.spectrum, 'standard');
+  const found = findUndefinedPoints(standard.spectrum.x, standard.spectrum.y, windows);
+  if (found === undefined) return;
+  throw new BandwrightError(
+    'INVALID_VALUE',
+    `${standardPlace(standard)}: ${describeUndefinedPoints(found)} (transmittance at or below zero as ` +
+      `printed) inside ${what} ${windows.map(formatWindow).join(', ')}; a standard must not be saturated ` +
+      '(its response would be only a lower bound): measure it with a shorter path or a lower concentration',
+    { file: standard.scan, line: standard.line },
+  );
+}
+
+/**
+ * The read warnings of the standards as calibration warnings, each naming its standard, file and
+ * code: `standard co-050.jdx (manifest line 4): <message> (<code>)`.
+ *
+ * @param standards - the standards in manifest order
+ */
+export function standardReadWarnings(standards: readonly StandardScan[]): string[] {
+  return standards.flatMap((standard) =>
+    (standard.spectrum.metadata.warnings ?? []).map(
+      (warning) => `standard ${standardPlace(standard)}: ${warning.message} (${warning.code})`,
+    ),
+  );
 }
 
 function certifiedIn(standard: StandardScan, gas: string, unit: ConcentrationUnit, where: string): number {
@@ -130,7 +178,8 @@ function zeroGasLimit(
  * @returns the sealed calibration
  * @throws BandwrightError `CONDITIONS_MISSING` naming the standard; `WINDOW` when a band or
  *   baseline window is outside a scan; `INSUFFICIENT_DATA`/`SINGULAR` from the curve fit;
- *   `INVALID_VALUE` when the manifest lacks a gas of the method
+ *   `INVALID_VALUE` when the manifest lacks a gas of the method, or a standard is a quantitative
+ *   reference spectrum or has saturated points inside a band or baseline window
  */
 export function buildBandCalibration(
   method: BandMethod,
@@ -138,7 +187,15 @@ export function buildBandCalibration(
   context: BuildContext,
 ): Calibration {
   if (standards.length === 0) throw new BandwrightError('INSUFFICIENT_DATA', 'no standards given');
-  const warnings = [...(context.warnings ?? [])];
+  for (const standard of standards) {
+    for (const gas of method.gases)
+      assertUsableStandard(
+        standard,
+        [gas.band, ...gas.baseline],
+        `the ${gas.name} band and baseline window${gas.baseline.length === 1 ? '' : 's'}`,
+      );
+  }
+  const warnings = [...(context.warnings ?? []), ...standardReadWarnings(standards)];
   const resolved = standards.map((standard) =>
     resolveConditions(
       { manifest: standard.conditions, scan: standard.spectrum.metadata, options: context.defaultConditions },
@@ -169,6 +226,14 @@ export function buildBandCalibration(
         windows: gasMethod.baseline,
         order: gasMethod.baselineOrder,
       });
+      if (features.undefinedPoints !== undefined)
+        throw new BandwrightError(
+          'INVALID_VALUE',
+          `${where}: ${describeUndefinedPoints(features.undefinedPoints)} beside the ${gasMethod.name} band ` +
+            `${formatWindow(gasMethod.band)} reach its interpolated ends; a standard must not be saturated: ` +
+            'measure it with a shorter path or a lower concentration',
+          { file: standard.scan, line: standard.line },
+        );
       const raw = gasMethod.response === 'area' ? features.area : features.height;
       const scaled = raw / (phis[i] as number);
       if (!Number.isFinite(scaled)) {

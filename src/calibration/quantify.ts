@@ -6,8 +6,13 @@
  * the calibration curve for the concentration and its prediction interval, then flag what a
  * reader must know (below the detection or determination limit, outside the calibrated range,
  * saturated, far from the calibration's conditions).
+ *
+ * A scan's read warnings (`metadata.warnings`) lead its result's warnings. Saturated points
+ * (NaN: transmittance at or below zero as printed) raise the `saturated` flag with a note saying
+ * how many and where: a band bridges them (the value is then a lower bound), classical least
+ * squares leaves those channels out.
  */
-import { measureBand } from '../bands/band.js';
+import { measureBand, type BandFeatures } from '../bands/band.js';
 import { BandwrightError } from '../errors.js';
 import {
   conditionsFarReasons,
@@ -20,14 +25,17 @@ import { cautionsFor } from '../gas/safety.js';
 import { toPpm, unitLabel, type ConcentrationUnit } from '../gas/units.js';
 import { predictCls } from '../models/cls/spectral.js';
 import { predictUnivariate } from '../models/univariate/predict.js';
-import { toAbsorbance, type Spectrum } from '../spectrum/spectrum.js';
+import { assertMeasuredSpectrum, toAbsorbance, type Spectrum } from '../spectrum/spectrum.js';
+import { describeUndefinedPoints, findUndefinedPoints } from '../spectrum/undefined-points.js';
 import { onChannels } from './build-cls.js';
 import type { Calibration, GasCalibration } from './calibration.js';
 import {
   decorateGases,
+  readWarnings,
   type GasResult,
   type ReportingOptions,
   type ResultFlag,
+  type ResultWarning,
   type ScanResult,
 } from './result.js';
 import { listNames } from '../words.js';
@@ -114,7 +122,8 @@ function estimate(gas: GasCalibration, responses: readonly number[], level: numb
  * @param options - level, conditions, reporting
  * @returns the scan's result
  * @throws BandwrightError `CONDITIONS_MISSING`, `WINDOW` (band outside the scan), `NO_SOLUTION`,
- *   `CONVERSION`, `INVALID_VALUE` (level, or a calibration that is not a band calibration)
+ *   `CONVERSION`, `INVALID_VALUE` (level, a calibration that is not a band calibration, or a
+ *   quantitative reference spectrum given as the scan)
  */
 export function quantifyBandScan(
   calibration: Calibration,
@@ -127,6 +136,7 @@ export function quantifyBandScan(
       `the calibration is a ${calibration.method.model} calibration; quantifyBandScan needs a band calibration`,
     );
   }
+  assertMeasuredSpectrum(spectrum, 'sample scan');
   const level = checkLevel(options.level ?? 0.95);
   const { scan, conditions, phi, far } = scanConditions(calibration, spectrum, options);
   const absorbance = toAbsorbance(spectrum);
@@ -163,6 +173,11 @@ export function quantifyBandScan(
           `${calibration.method.saturationAbsorbance}: lines saturate, the result may be biased low`,
       );
     }
+    const undefinedNotes = undefinedPointNotes(measured, feature.response);
+    if (undefinedNotes.length > 0) {
+      if (!result.flags.includes('saturated')) result.flags.push('saturated');
+      result.notes.push(...undefinedNotes);
+    }
     if (far.length > 0) {
       result.flags.push('conditions-far');
       result.notes.push(...far);
@@ -175,8 +190,25 @@ export function quantifyBandScan(
     gases: decorateGases(gases, options, conditions.pathLength_m),
     residualRms: baselineRms,
     cautions: cautionsFor(calibration.gases.map((g) => g.gas)),
-    warnings: [],
+    warnings: readWarnings(spectrum.metadata.warnings),
   };
+}
+
+/** Notes on the saturated points a band measurement met: in the band (bridged) and in the baseline windows. */
+function undefinedPointNotes(measured: BandFeatures, response: 'area' | 'height'): string[] {
+  const notes: string[] = [];
+  if (measured.undefinedPoints !== undefined)
+    notes.push(
+      `${describeUndefinedPoints(measured.undefinedPoints)} in the band (transmittance at or below zero as ` +
+        `printed): bridged by linear interpolation from their neighbours, so the ${response} and the result ` +
+        'are lower bounds',
+    );
+  if (measured.baseline.undefinedPoints !== undefined)
+    notes.push(
+      `${describeUndefinedPoints(measured.baseline.undefinedPoints)} in the baseline windows: left out of the ` +
+        'baseline fit',
+    );
+  return notes;
 }
 
 /** The scan's conditions, φ and how far they are from the calibration's. */
@@ -214,7 +246,9 @@ function scanConditions(
  * @param options - level, conditions, reporting
  * @returns the scan's result, with the fit's residual RMS (AU)
  * @throws BandwrightError `WINDOW` naming the scan when it does not cover the regions,
- *   `CONDITIONS_MISSING`, `CONVERSION`
+ *   `CONDITIONS_MISSING`, `CONVERSION`, `INVALID_VALUE` for a quantitative reference spectrum given
+ *   as the scan; `INSUFFICIENT_DATA` or `SINGULAR` naming the scan when its saturated channels
+ *   leave too few to fit
  */
 export function quantifyClsScan(
   calibration: Calibration,
@@ -229,14 +263,37 @@ export function quantifyClsScan(
         `classical-least-squares calibration`,
     );
   }
+  assertMeasuredSpectrum(spectrum, 'sample scan');
   const level = checkLevel(options.level ?? 0.95);
   const { scan, conditions, phi, far } = scanConditions(calibration, spectrum, options);
   const grid = Float64Array.from(cls.model.grid ?? []);
   const values = onChannels(spectrum, grid, cls.regions);
   let peak = 0;
-  for (const v of values) peak = Math.max(peak, v);
-  const prediction = predictCls(cls.model, values, { phi, level });
-  const warnings = [...prediction.warnings];
+  for (const v of values) if (v > peak) peak = v;
+  const undefinedChannels = findUndefinedPoints(grid, values);
+  let prediction: ReturnType<typeof predictCls>;
+  try {
+    prediction = predictCls(cls.model, values, { phi, level });
+  } catch (error) {
+    if (undefinedChannels === undefined || !(error instanceof BandwrightError)) throw error;
+    throw new BandwrightError(
+      error.code,
+      `${scan}: ${describeUndefinedPoints(undefinedChannels)} on the calibration's channels, so the scan ` +
+        `cannot be quantified: ${error.message}`,
+      { file: scan },
+      { cause: error },
+    );
+  }
+  const undefinedNote =
+    undefinedChannels === undefined
+      ? undefined
+      : `${describeUndefinedPoints(undefinedChannels)} on the calibration's channels (transmittance at or ` +
+        `below zero as printed): left out, the gases fitted by least squares on the other ` +
+        `${grid.length - undefinedChannels.points} of ${grid.length} channels`;
+  const warnings: ResultWarning[] = [
+    ...readWarnings(spectrum.metadata.warnings),
+    ...prediction.warnings.map((message): ResultWarning => ({ code: 'model', message })),
+  ];
   // Interferents are not reported, so their range flags would go unseen: say which are outside
   // the standards' range, and name them among the possible causes of a poor fit. Under a poor
   // fit the standard error reflects the misfit itself, so any value above the range counts
@@ -302,6 +359,10 @@ export function quantifyClsScan(
           `${calibration.method.saturationAbsorbance}: lines saturate`,
       );
     }
+    if (undefinedNote !== undefined) {
+      if (!flags.includes('saturated')) flags.push('saturated');
+      notes.push(undefinedNote);
+    }
     if (far.length > 0) {
       flags.push('conditions-far');
       notes.push(...far);
@@ -313,13 +374,14 @@ export function quantifyClsScan(
     prediction.estimates.find((e) => e.name === 'H2O');
   for (const interferent of prediction.interferents) {
     const label = unitLabel(interferent.unit as ConcentrationUnit);
-    warnings.push(
-      outside.includes(interferent)
+    warnings.push({
+      code: 'interferent',
+      message: outside.includes(interferent)
         ? `interferent ${interferent.name} modelled at ${interferent.value.toPrecision(4)} ${label} (not ` +
-            `reported), outside the standards' ${rangeOf(interferent.name)} at this scan's conditions: the ` +
-            `reported gases may be biased`
+          `reported), outside the standards' ${rangeOf(interferent.name)} at this scan's conditions: the ` +
+          `reported gases may be biased`
         : `interferent ${interferent.name} modelled at ${interferent.value.toPrecision(4)} ${label} (not reported)`,
-    );
+    });
   }
   const reporting: ReportingOptions =
     options.dryBasis !== undefined && options.dryBasis.waterFraction === undefined && water !== undefined
@@ -403,6 +465,7 @@ export function quantifyScan(
   spectrum: Spectrum,
   options: QuantifyOptions = {},
 ): ScanResult {
+  assertMeasuredSpectrum(spectrum, 'sample scan');
   switch (calibration.method.model) {
     case 'band':
       return quantifyBandScan(calibration, spectrum, options);

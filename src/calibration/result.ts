@@ -16,10 +16,39 @@ import {
   type ReferenceState,
 } from '../gas/units.js';
 import { BandwrightError } from '../errors.js';
+import type { ReadWarning, ReadWarningCode } from '../spectrum/spectrum.js';
 
 /** Result flags (DESIGN §4). */
 export type ResultFlag =
   'below-lod' | 'below-loq' | 'extrapolated' | 'saturated' | 'poor-fit' | 'over-limit' | 'conditions-far';
+
+/**
+ * Codes of the warnings quantification itself adds to a scan's result (after the reader's):
+ * - `interferent`: an interferent was modelled but is not reported (its estimate, and whether it
+ *   lies outside the standards' range, which may bias the reported gases)
+ * - `model`: a note from the model's prediction (e.g. the second-order solution did not converge)
+ */
+export type QuantifyWarningCode = 'interferent' | 'model';
+
+/** Code of a result warning: one of the reader's ({@link ReadWarningCode}) or quantification's. */
+export type ResultWarningCode = ReadWarningCode | QuantifyWarningCode;
+
+/** A warning about a whole scan: a stable code for scripts and a message for people. */
+export interface ResultWarning {
+  /** Stable code. */
+  code: ResultWarningCode;
+  /** What was seen, naming the scan or file. */
+  message: string;
+}
+
+/**
+ * The read warnings a spectrum carries, as result warnings (copies, in file order).
+ *
+ * @param warnings - the spectrum's `metadata.warnings`
+ */
+export function readWarnings(warnings: readonly ReadWarning[] | undefined): ResultWarning[] {
+  return (warnings ?? []).map((w) => ({ code: w.code, message: w.message }));
+}
 
 /** A derived value: another unit or basis, with the assumptions it rests on. */
 export interface Conversion {
@@ -77,8 +106,11 @@ export interface ScanResult {
   residualRms?: number;
   /** Safety cautions. */
   cautions: string[];
-  /** Notes that are not about one gas. */
-  warnings: string[];
+  /**
+   * Warnings about the whole scan, not one gas: those from reading it first (file order), then
+   * quantification's own (DESIGN §4 `warnings: [{code, message}]`).
+   */
+  warnings: ResultWarning[];
 }
 
 /** What the user asked for beyond concentrations. */

@@ -201,11 +201,14 @@ export function quantifyReportHtml(input: QuantifyReportInput, options: Quantify
   const sampleSections = entries.map((entry, i) => {
     const spectrum = input.spectra.find((s) => s.scan === entry.scan);
     const parts: string[] = [];
-    if (isFailure(entry)) parts.push(notice(`Could not be quantified: ${entry.error}`));
-    else {
+    if (isFailure(entry)) {
+      parts.push(notice(`Could not be quantified: ${entry.error}`));
+      const warnings = entry.warnings ?? [];
+      if (warnings.length > 0) parts.push(bulletList(warnings.map((w) => `${w.message} (${w.code})`)));
+    } else {
       const notes = [
         ...entry.gases.flatMap((g) => g.notes.map((n) => `${g.gas}: ${n}`)),
-        ...entry.warnings,
+        ...entry.warnings.map((w) => `${w.message} (${w.code})`),
         `conditions: path ${formatNumber(entry.conditions.pathLength_m, 4)} m, ` +
           `${formatNumber(entry.conditions.temperature_K, 5)} K, ` +
           `${formatNumber(entry.conditions.pressure_kPa, 6)} kPa`,

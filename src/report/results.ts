@@ -2,7 +2,7 @@
  * Quantification results as text (terminal), JSON (DESIGN §4 `quantify --json`) and CSV rows
  * (DESIGN §4 `--csv`).
  */
-import type { GasResult, ScanResult } from '../calibration/result.js';
+import type { GasResult, ResultWarning, ScanResult } from '../calibration/result.js';
 import { unitLabel } from '../gas/units.js';
 import { TOOL } from '../version.js';
 import { formatCsv } from '../formats/csv-table.js';
@@ -14,6 +14,8 @@ export interface ScanFailure {
   scan: string;
   /** The error message. */
   error: string;
+  /** Warnings from reading the scan, when it was read before it failed (absent when none). */
+  warnings?: ResultWarning[];
 }
 
 /** One entry of a batch: a result or a failure. */
@@ -22,6 +24,23 @@ export type BatchEntry = ScanResult | ScanFailure;
 /** True when a batch entry is a failure. */
 export function isFailure(entry: BatchEntry): entry is ScanFailure {
   return (entry as ScanFailure).error !== undefined;
+}
+
+/**
+ * A scan warning as one line of text: the message, prefixed with the scan unless the message
+ * already starts with it, and the code in brackets, e.g. `s1.jdx line 12: … (line-start-x)`.
+ *
+ * @param scan - the scan as named
+ * @param warning - code and message
+ */
+export function warningText(scan: string, warning: ResultWarning): string {
+  const message = warning.message.startsWith(scan) ? warning.message : `${scan}: ${warning.message}`;
+  return `${message} (${warning.code})`;
+}
+
+/** The distinct codes of a scan's warnings, in order, space-separated (the CSV `warnings` cell). */
+function warningCodes(warnings: readonly ResultWarning[] | undefined): string {
+  return [...new Set((warnings ?? []).map((w) => w.code))].join(' ');
 }
 
 function valueText(gas: GasResult): string {
@@ -42,6 +61,7 @@ export function formatResultsText(entries: readonly BatchEntry[], level: number)
   for (const entry of entries) {
     if (isFailure(entry)) {
       rows.push([entry.scan, '—', 'failed', '', '', '', '']);
+      for (const warning of entry.warnings ?? []) notes.push(warningText(entry.scan, warning));
       notes.push(`${entry.scan}: ${entry.error}`);
       continue;
     }
@@ -69,7 +89,7 @@ export function formatResultsText(entries: readonly BatchEntry[], level: number)
       }
       for (const note of gas.notes) notes.push(`${entry.scan} ${gas.gas}: ${note}`);
     }
-    for (const warning of entry.warnings) notes.push(`${entry.scan}: ${warning}`);
+    for (const warning of entry.warnings) notes.push(warningText(entry.scan, warning));
     for (const caution of entry.cautions) cautions.add(caution);
   }
   const percent = `${(level * 100).toFixed(level * 100 === Math.round(level * 100) ? 0 : 1)} %`;
@@ -129,18 +149,34 @@ export function resultsDocument(
   };
 }
 
+/** Layout options of the results CSV. */
+export interface ResultCsvLayout {
+  /**
+   * Whether rows end with the `warnings` column (default true). False writes the columns of
+   * results files made before it existed, so rows can still be appended to such a file.
+   */
+  warningsColumn?: boolean;
+}
+
 /**
- * Column names of the results CSV for a calibration's gases.
+ * Column names of the results CSV for a calibration's gases: `scan`, four columns per gas,
+ * `residual_rms`, `calibration_sha256`, `error`, then `warnings` (the codes of the scan's
+ * warnings, space-separated; the messages are in the JSON outputs).
  *
  * @param gases - gas names with units, in calibration order
+ * @param layout - whether to end with the `warnings` column (default true)
  */
-export function resultColumns(gases: readonly { gas: string; unit: string }[]): string[] {
+export function resultColumns(
+  gases: readonly { gas: string; unit: string }[],
+  layout: ResultCsvLayout = {},
+): string[] {
   return [
     'scan',
     ...gases.flatMap(({ gas, unit }) => [`${gas}_${unit}`, `${gas}_low`, `${gas}_high`, `${gas}_flags`]),
     'residual_rms',
     'calibration_sha256',
     'error',
+    ...(layout.warningsColumn === false ? [] : ['warnings']),
   ];
 }
 
@@ -150,21 +186,24 @@ export function resultColumns(gases: readonly { gas: string; unit: string }[]): 
  * @param entry - result or failure
  * @param gases - gases in column order
  * @param sha256 - the calibration's hash
+ * @param layout - whether to end with the `warnings` column (default true)
  */
 export function resultRow(
   entry: BatchEntry,
   gases: readonly { gas: string }[],
   sha256: string,
+  layout: ResultCsvLayout = {},
 ): (string | number)[] {
+  const warnings = layout.warningsColumn === false ? [] : [warningCodes(entry.warnings)];
   if (isFailure(entry))
-    return [entry.scan, ...gases.flatMap(() => ['', '', '', '']), '', sha256, entry.error];
+    return [entry.scan, ...gases.flatMap(() => ['', '', '', '']), '', sha256, entry.error, ...warnings];
   const cells: (string | number)[] = [entry.scan];
   for (const { gas } of gases) {
     const result = entry.gases.find((g) => g.gas === gas);
     if (result === undefined) cells.push('', '', '', '');
     else cells.push(result.value, result.low, result.high, result.flags.join(' '));
   }
-  cells.push(entry.residualRms ?? '', sha256, '');
+  cells.push(entry.residualRms ?? '', sha256, '', ...warnings);
   return cells;
 }
 

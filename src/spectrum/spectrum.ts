@@ -219,6 +219,26 @@ export function spectrumFromCheckedArrays(init: Spectrum): Spectrum {
 }
 
 /**
+ * Refuses a quantitative reference spectrum (y-kind `absorbance-per-amount`) where a measured
+ * spectrum is needed: it holds absorbance per µmol/mol per metre, not the absorbance of a gas in a
+ * cell, so using it as a sample or a standard would give numbers without meaning.
+ *
+ * @param spectrum - the spectrum about to be used as a measurement
+ * @param role - what it was given as, for the message (e.g. `sample scan`, `standard`)
+ * @throws BandwrightError `INVALID_VALUE` naming the file, what it is and where it can be used
+ */
+export function assertMeasuredSpectrum(spectrum: Spectrum, role: string): void {
+  if (spectrum.yKind !== 'absorbance-per-amount') return;
+  throw new BandwrightError(
+    'INVALID_VALUE',
+    `${label(spectrum)}: a quantitative reference spectrum (decadic absorbance per µmol/mol per metre of ` +
+      `path), not a measured spectrum; it is usable as a reference spectrum of its gas (absorbance only for a ` +
+      `stated amount and path length), not as a ${role}`,
+    { file: spectrum.metadata.source },
+  );
+}
+
+/**
  * Converts a spectrum to decadic absorbance.
  *
  * Transmittance T ≤ 0 (or a non-positive single-beam intensity) has no absorbance; such a
@@ -232,14 +252,7 @@ export function spectrumFromCheckedArrays(init: Spectrum): Spectrum {
  */
 export function toAbsorbance(spectrum: Spectrum): Spectrum {
   if (spectrum.yKind === 'absorbance') return spectrum;
-  if (spectrum.yKind === 'absorbance-per-amount') {
-    throw new BandwrightError(
-      'INVALID_VALUE',
-      `${label(spectrum)}: a quantitative reference spectrum (decadic absorbance per µmol/mol per metre), ` +
-        'not a measured scan; it becomes absorbance only for a stated amount and path length',
-      { file: spectrum.metadata.source },
-    );
-  }
+  assertMeasuredSpectrum(spectrum, 'scan');
   const n = spectrum.y.length;
   const out = new Float64Array(n);
   const where = label(spectrum);
@@ -384,7 +397,8 @@ export function interpolateAt(x: ArrayLike<number>, y: ArrayLike<number>, value:
  *
  * @param spectrum - source spectrum
  * @param grid - target wavenumbers, cm⁻¹, ascending, inside the source range
- * @returns a spectrum on `grid` of the same kind and metadata
+ * @returns a spectrum on `grid` of the same kind and metadata; a grid point between two source
+ *   points of which one is saturated (NaN) is NaN too, and `metadata.saturatedPoints` counts them
  * @throws BandwrightError `WINDOW` when the grid reaches outside the source range
  */
 export function resample(spectrum: Spectrum, grid: Float64Array): Spectrum {
@@ -400,6 +414,7 @@ export function resample(spectrum: Spectrum, grid: Float64Array): Spectrum {
     );
   }
   const out = new Float64Array(grid.length);
+  let undefinedPoints = 0;
   let j = 1;
   for (let i = 0; i < grid.length; i++) {
     const value = grid[i] as number;
@@ -407,13 +422,24 @@ export function resample(spectrum: Spectrum, grid: Float64Array): Spectrum {
     const x1 = x[j - 1] as number;
     const x2 = x[j] as number;
     const t = (value - x1) / (x2 - x1);
-    out[i] = (y[j - 1] as number) + t * ((y[j] as number) - (y[j - 1] as number));
+    // A grid point on a source point takes its value, so a saturated (NaN) neighbour does not
+    // spread to it; between two points, one NaN makes the interpolated value NaN (a gap).
+    const y1 = y[j - 1] as number;
+    const y2 = y[j] as number;
+    const interpolated = t === 0 ? y1 : t === 1 ? y2 : y1 + t * (y2 - y1);
+    out[i] = interpolated;
+    if (Number.isNaN(interpolated)) undefinedPoints++;
   }
+  // The count of undefined points travels with the values, so the result is a valid spectrum.
+  const metadata =
+    undefinedPoints === (spectrum.metadata.saturatedPoints ?? 0)
+      ? spectrum.metadata
+      : { ...spectrum.metadata, saturatedPoints: undefinedPoints };
   const background =
     spectrum.background === undefined
       ? undefined
       : resample({ ...spectrum, y: spectrum.background, background: undefined, yKind: 'absorbance' }, grid).y;
   return background === undefined
-    ? { x: grid, y: out, yKind: spectrum.yKind, metadata: spectrum.metadata }
-    : { x: grid, y: out, yKind: spectrum.yKind, background, metadata: spectrum.metadata };
+    ? { x: grid, y: out, yKind: spectrum.yKind, metadata }
+    : { x: grid, y: out, yKind: spectrum.yKind, background, metadata };
 }

@@ -253,7 +253,9 @@ describe('quantifyClsScan', () => {
     const co = result.gases[0]!;
     expect(co.low).toBeLessThanOrEqual(60);
     expect(co.high).toBeGreaterThanOrEqual(60);
-    expect(result.warnings.join('\n')).toMatch(/interferent H2O modelled at 1[34]\.\d+ % \(not reported\)/);
+    expect(result.warnings.map((w) => `${w.code}: ${w.message}`).join('\n')).toMatch(
+      /interferent: interferent H2O modelled at 1[34]\.\d+ % \(not reported\)/,
+    );
     expect(result.residualRms).toBeGreaterThan(0);
     expect(result.cautions.join('\n')).toMatch(/CO \(carbon monoxide\) is toxic/);
   });
@@ -297,8 +299,8 @@ describe('quantifyClsScan', () => {
     expect(co.notes.join('\n')).toMatch(
       /the fit leaves a residual [\d.]+× the calibration's \(limit [\d.]+\): H2O outside the standards' range/,
     );
-    expect(result.warnings.join('\n')).toMatch(
-      /interferent H2O modelled at [\d.]+ % \(not reported\), outside the standards' 0–20(\.\d+)? %/,
+    expect(result.warnings.map((w) => `${w.code}: ${w.message}`).join('\n')).toMatch(
+      /interferent: interferent H2O modelled at [\d.]+ % \(not reported\), outside the standards' 0–20(\.\d+)? %/,
     );
   });
 });

@@ -199,7 +199,7 @@ describe('streamed outputs give the whole-batch text', () => {
         },
       ],
       cautions: [],
-      warnings: ['w'],
+      warnings: [{ code: 'model', message: 'w' }],
     },
   ];
   const collect = () => {
@@ -352,6 +352,7 @@ describe('SIGTERM during a batch', () => {
       'residual_rms',
       'calibration_sha256',
       'error',
+      'warnings',
     ]);
     const done = parsed.data.length;
     expect(done).toBeGreaterThan(18);

@@ -97,6 +97,7 @@ describe('calibrate then quantify', () => {
       'residual_rms',
       'calibration_sha256',
       'error',
+      'warnings',
     ]);
     expect(Number(parsed.data[0]?.CO_ppm)).toBeCloseTo(150, 0);
     const again = await runCli('quantify', at('co.json'), at('sample.jdx'), '--csv', at('results.csv'));

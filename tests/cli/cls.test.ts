@@ -134,8 +134,9 @@ async function quantifyJson(...args: string[]): Promise<ScanResult[]> {
 
 /** x_H2O of a result, from its interferent warning (printed to 4 significant digits). */
 function waterFraction(result: ScanResult): number {
-  const match = /interferent H2O modelled at ([\d.]+) % \(not reported\)/.exec(result.warnings.join('\n'));
-  expect(match, result.warnings.join('\n')).not.toBeNull();
+  const text = result.warnings.map((w) => `${w.code}: ${w.message}`).join('\n');
+  const match = /interferent: interferent H2O modelled at ([\d.]+) % \(not reported\)/.exec(text);
+  expect(match, text).not.toBeNull();
   return Number(match![1]) / 100;
 }
 
@@ -176,7 +177,9 @@ describe('quantify with a cls calibration', () => {
         expect(Math.abs(gas.value - expected), shown).toBeLessThan(Math.max(1, 0.02 * expected));
         expect(gas.flags, shown).toEqual([]);
       }
-      expect(result.warnings.join('\n')).toMatch(/interferent CO2 modelled at [\d.]+ % \(not reported\)/);
+      expect(result.warnings.map((w) => `${w.code}: ${w.message}`).join('\n')).toMatch(
+        /interferent: interferent CO2 modelled at [\d.]+ % \(not reported\)/,
+      );
       expect(result.residualRms).toBeGreaterThan(0);
     });
   });
@@ -200,6 +203,7 @@ describe('quantify with a cls calibration', () => {
       'residual_rms',
       'calibration_sha256',
       'error',
+      'warnings',
     ]);
     expect(Number(parsed.data[0]!.CO_ppm)).toBeCloseTo(74, -0.5);
     expect(Number(parsed.data[0]!.N2O_ppm)).toBeCloseTo(22, 0);

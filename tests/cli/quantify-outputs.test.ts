@@ -106,7 +106,7 @@ describe('quantify --response', () => {
     expect(run.status, run.stderr).toBe(0);
     expect(run.stdout).toMatch(/mean of 2 responses\s+CO/);
     const csv = readFileSync(at('response.csv'), 'utf8').split('\n');
-    expect(csv[0]).toBe('scan,CO_ppm,CO_low,CO_high,CO_flags,residual_rms,calibration_sha256,error');
+    expect(csv[0]).toBe('scan,CO_ppm,CO_low,CO_high,CO_flags,residual_rms,calibration_sha256,error,warnings');
     expect(Number(csv[1]?.split(',')[1])).toBeCloseTo(100.5, 0);
     const line = JSON.parse(readFileSync(at('response.jsonl'), 'utf8')) as { scan: string };
     expect(line.scan).toBe('mean of 2 responses');

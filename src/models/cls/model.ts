@@ -267,4 +267,9 @@ export interface ClsPrediction {
   readonly iterations: number;
   /** Non-fatal notes (e.g. Gauss–Newton stopped before converging). */
   readonly warnings: readonly string[];
+  /**
+   * Channels left out because the sample is undefined there (NaN: saturated); absent when every
+   * channel was used. The residual is NaN at those channels.
+   */
+  readonly undefinedChannels?: number;
 }

@@ -10,7 +10,7 @@
  * standard and per sample (dimensionless), so the model works in φ-scaled concentrations.
  */
 import { BandwrightError } from '../../errors.js';
-import { channelSegments, MAX_BASELINE_ORDER, nuisanceBasis } from './basis.js';
+import { channelSegments, MAX_BASELINE_ORDER, nuisanceBasis, removeSpan } from './basis.js';
 import { fitClsCore } from './fit-core.js';
 import {
   type ClsCommonFitOptions,
@@ -209,20 +209,39 @@ export function clsPredictionState(model: ClsModel): ClsState {
  * the factors its intervals need) and caches it; later calls cost a few matrix–vector products
  * over the channels.
  *
+ * Channels where the sample is undefined (NaN: saturated, transmittance at or below zero as
+ * printed) are left out: the model is restricted to the remaining channels (pure spectra, baseline
+ * basis per region on what remains, noise segments split at the gaps) and the least squares solved
+ * there. The residual is NaN at the channels left out, and `undefinedChannels` counts them.
+ *
  * @param model - a model from {@link fitCls} (or the same object read back from JSON)
  * @param spectrum - decadic absorbance on the model's channels; not modified
  * @param options - the sample's φ, confidence level (default the model's), poor-fit ratio
  * @returns per reported gas { name, unit, value, se, low, high, flags } at the sample's
  *   conditions, the interferents likewise, the residual spectrum and its RMS (absorbance), and
  *   the `poor-fit` flag
- * @throws BandwrightError `INVALID_VALUE` for a spectrum of the wrong length or with non-finite
+ * @throws BandwrightError `INVALID_VALUE` for a spectrum of the wrong length or with infinite
  *   values, φ ≤ 0, or a level outside (0, 1); `NO_SOLUTION` when the estimates overflow
- *   (absorbances far beyond any calibration)
+ *   (absorbances far beyond any calibration); `INSUFFICIENT_DATA` when too few channels remain
+ *   besides the undefined ones for the gases and baseline terms; `SINGULAR` when the remaining
+ *   channels no longer separate the gases
  * @example
  * const result = predictCls(model, sampleAbsorbance, { phi: 1 });
  * result.estimates[0]; // { name: 'CO', value: 71.3, se: 0.4, low: 70.5, high: 72.1, ... }
  */
 export function predictCls(
+  model: ClsModel,
+  spectrum: ArrayLike<number>,
+  options: ClsPredictOptions,
+): ClsPrediction {
+  let undefinedChannels = 0;
+  for (let j = 0; j < spectrum.length; j++) if (Number.isNaN(spectrum[j])) undefinedChannels++;
+  if (undefinedChannels > 0 && spectrum.length === model.channelCount)
+    return predictOnDefinedChannels(model, spectrum, undefinedChannels, options);
+  return predictOnAllChannels(model, spectrum, options);
+}
+
+function predictOnAllChannels(
   model: ClsModel,
   spectrum: ArrayLike<number>,
   options: ClsPredictOptions,
@@ -251,4 +270,95 @@ export function predictCls(
     );
   }
   return prediction;
+}
+
+/**
+ * Prediction on the channels where the sample is defined: the model restricted to them, as
+ * {@link predictCls} describes, with the residual put back on all channels (NaN where left out).
+ */
+function predictOnDefinedChannels(
+  model: ClsModel,
+  spectrum: ArrayLike<number>,
+  undefinedChannels: number,
+  options: ClsPredictOptions,
+): ClsPrediction {
+  const keep: number[] = [];
+  for (let j = 0; j < spectrum.length; j++) if (!Number.isNaN(spectrum[j])) keep.push(j);
+  const regionOfAll = new Int32Array(model.channelCount);
+  for (const segment of model.segments) regionOfAll.fill(segment.region, segment.start, segment.end);
+  const positionsAll = model.grid ?? Array.from({ length: model.channelCount }, (_, i) => i);
+  const regionOf = Int32Array.from(keep, (j) => regionOfAll[j]!);
+  const positions = keep.map((j) => positionsAll[j]!);
+  const left = `${undefinedChannels} of the ${model.channelCount} channels are undefined (saturated)`;
+  const members = new Map<number, number>();
+  for (const region of regionOfAll) members.set(region, 0);
+  for (const region of regionOf) members.set(region, (members.get(region) ?? 0) + 1);
+  let baselineTerms = model.background === null ? 0 : 1;
+  for (const [region, count] of members) {
+    if (count === 0) continue;
+    if (count < model.baselineOrder + 3) {
+      throw new BandwrightError(
+        'INSUFFICIENT_DATA',
+        `${left}: region ${region + 1} keeps ${count} channel(s), its order-${model.baselineOrder} baseline ` +
+          `needs at least ${model.baselineOrder + 3}`,
+        { parameter: 'spectrum' },
+      );
+    }
+    baselineTerms += model.baselineOrder + 1;
+  }
+  const unknowns = model.terms.length + baselineTerms;
+  if (keep.length <= unknowns) {
+    throw new BandwrightError(
+      'INSUFFICIENT_DATA',
+      `${left}: the ${keep.length} left cannot determine ${model.terms.length} gas term(s) and ` +
+        `${baselineTerms} baseline term(s) with a residual to judge the fit by`,
+      { parameter: 'spectrum' },
+    );
+  }
+  const background = model.background === null ? null : keep.map((j) => model.background![j]!);
+  // The fitted pure spectra are orthogonal to the baseline basis over all channels; on a subset
+  // they are not to the subset's basis, and prediction takes them as they are: project them again.
+  const nuisance = nuisanceBasis({
+    positions,
+    regionOf,
+    order: model.baselineOrder,
+    ...(background === null ? {} : { background }),
+  });
+  const restricted: ClsModel = {
+    ...model,
+    channelCount: keep.length,
+    pureSpectra: model.pureSpectra.map((row) =>
+      Array.from(
+        removeSpan(
+          keep.map((j) => row[j]!),
+          nuisance,
+        ),
+      ),
+    ),
+    segments: channelSegments(regionOf, positions),
+    grid: positions,
+    background,
+  };
+  let prediction: ClsPrediction;
+  try {
+    prediction = predictOnAllChannels(
+      restricted,
+      keep.map((j) => spectrum[j] as number),
+      options,
+    );
+  } catch (error) {
+    if (error instanceof BandwrightError && error.code === 'SINGULAR')
+      throw new BandwrightError(
+        'SINGULAR',
+        `${left}; on the channels left, ${error.message}`,
+        { parameter: 'spectrum' },
+        { cause: error },
+      );
+    throw error;
+  }
+  const residual = new Float64Array(model.channelCount).fill(Number.NaN);
+  keep.forEach((j, k) => {
+    residual[j] = prediction.residual[k]!;
+  });
+  return { ...prediction, residual, undefinedChannels };
 }

@@ -288,10 +288,15 @@ export function renderSpectra(input: SpectraPlotInput, options: SpectraOptions =
     ),
   ];
 
+  // Saturated points (NaN) leave gaps in the trace rather than breaking the whole path.
   const path = line<number>().digits(2);
   const spectra = thinned.map((t, i) => {
     const style = seriesStyle(groupOf[i] as number);
-    const d = path.x((_, k) => px(t.x[k] as number)).y((_, k) => py(t.y[k] as number))(t.x) ?? '';
+    const d =
+      path
+        .defined((_, k) => Number.isFinite(t.y[k]))
+        .x((_, k) => px(t.x[k] as number))
+        .y((_, k) => py(t.y[k] as number))(t.x) ?? '';
     return element(
       'path',
       {
@@ -309,7 +314,11 @@ export function renderSpectra(input: SpectraPlotInput, options: SpectraOptions =
   });
   const baselines = input.baselines.map((b) => {
     const style = seriesStyle(groupOf[b.series] ?? 0);
-    const d = path.x((_, k) => px(b.x[k] as number)).y((_, k) => py(b.y[k] as number))(b.x as number[]) ?? '';
+    const d =
+      path
+        .defined((_, k) => Number.isFinite(b.y[k]))
+        .x((_, k) => px(b.x[k] as number))
+        .y((_, k) => py(b.y[k] as number))(b.x as number[]) ?? '';
     return element('path', {
       class: 'fitted-baseline',
       'data-series': String(b.series),
