@@ -14,6 +14,7 @@ export {
   type ScanFailure,
   type QuantifyDocument,
   type ToolStamp,
+  type ResultCsvLayout,
 } from '../report/results.js';
 export { formatCalibrationSummary } from '../report/calibration-summary.js';
 export { formatTextTable, formatNumber, type TextColumn } from '../report/table.js';

@@ -9,10 +9,14 @@ export {
   resample,
   interpolateAt,
   Y_KINDS,
+  absorbanceFromReference,
   type Spectrum,
   type YKind,
   type ScanMetadata,
+  type ReadWarning,
+  type ReadWarningCode,
 } from '../spectrum/spectrum.js';
+export type { UndefinedPoints } from '../spectrum/undefined-points.js';
 export {
   measureBand,
   fitBaseline,

@@ -117,9 +117,12 @@ describe('scans with CR-only line ends', () => {
       'old.csv: lines end with CR alone (an old Mac OS export); save the file with LF or CRLF line ends',
     );
   });
-  it('a JCAMP-DX file says so instead of "##JCAMP-DX= must follow ##TITLE="', () => {
-    const error = thrown(() => parseJcamp('##TITLE=t\r##JCAMP-DX=5.01\r##END=\r', { source: 'old.jdx' }));
-    expect(error.message).toMatch(/^old.jdx: lines end with CR alone/);
+  it('a JCAMP-DX file is read line by line, with a warning (before: "##JCAMP-DX= must follow ##TITLE=")', () => {
+    const text =
+      '##TITLE=t\r##JCAMP-DX=5.01\r##XUNITS=1/CM\r##YUNITS=ABSORBANCE\r##XYPOINTS=(XY..XY)\r1,2\r3,4\r##END=\r';
+    const spectrum = parseJcamp(text, { source: 'old.jdx' });
+    expect(spectrum.x.length).toBe(2);
+    expect(spectrum.metadata.warnings?.[0]?.message).toMatch(/^old.jdx: lines end with CR alone/);
   });
   it('a long comment value is shortened in the message', () => {
     const error = thrown(() =>
