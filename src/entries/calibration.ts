@@ -27,7 +27,15 @@ export {
 } from '../calibration/calibration.js';
 export { channelsFromScan, onChannels, type ChannelGrid } from '../calibration/build-cls.js';
 export { quantifyBandScan, quantifyClsScan } from '../calibration/quantify.js';
-export { decorateGases, type ReportingOptions, type Conversion } from '../calibration/result.js';
+export {
+  decorateGases,
+  readWarnings,
+  type ReportingOptions,
+  type Conversion,
+  type ResultWarning,
+  type ResultWarningCode,
+  type QuantifyWarningCode,
+} from '../calibration/result.js';
 export { parseManifest, type ManifestEntry, type CertifiedValue } from '../store/manifest.js';
 export { readLimits } from '../store/tables.js';
 export {

@@ -12,7 +12,18 @@ export {
   type Spectrum,
   type YKind,
   type ScanMetadata,
+  absorbanceFromReference,
+  assertMeasuredSpectrum,
+  type ReadWarning,
+  type ReadWarningCode,
 } from '../spectrum/spectrum.js';
+export {
+  findUndefinedPoints,
+  describeUndefinedPoints,
+  bridgeUndefinedPoints,
+  type UndefinedPoints,
+  type Interval,
+} from '../spectrum/undefined-points.js';
 export {
   measureBand,
   fitBaseline,
