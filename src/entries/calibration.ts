@@ -29,6 +29,7 @@ export { channelsFromScan, onChannels, type ChannelGrid } from '../calibration/b
 export { quantifyBandScan, quantifyClsScan } from '../calibration/quantify.js';
 export {
   decorateGases,
+  readWarnings,
   type ReportingOptions,
   type Conversion,
   type ResultWarning,

@@ -10,11 +10,12 @@ export {
   resultColumns,
   resultRow,
   isFailure,
+  warningText,
   type BatchEntry,
+  type ResultCsvLayout,
   type ScanFailure,
   type QuantifyDocument,
   type ToolStamp,
-  type ResultCsvLayout,
 } from '../report/results.js';
 export { formatCalibrationSummary } from '../report/calibration-summary.js';
 export { formatTextTable, formatNumber, type TextColumn } from '../report/table.js';

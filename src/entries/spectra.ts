@@ -9,14 +9,21 @@ export {
   resample,
   interpolateAt,
   Y_KINDS,
-  absorbanceFromReference,
   type Spectrum,
   type YKind,
   type ScanMetadata,
+  absorbanceFromReference,
+  assertMeasuredSpectrum,
   type ReadWarning,
   type ReadWarningCode,
 } from '../spectrum/spectrum.js';
-export type { UndefinedPoints } from '../spectrum/undefined-points.js';
+export {
+  findUndefinedPoints,
+  describeUndefinedPoints,
+  bridgeUndefinedPoints,
+  type UndefinedPoints,
+  type Interval,
+} from '../spectrum/undefined-points.js';
 export {
   measureBand,
   fitBaseline,
