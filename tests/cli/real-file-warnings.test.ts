@@ -42,10 +42,7 @@ describe('real-file warnings, read from a file and shown by inspect', () => {
   it('inspect --json carries each warning with its code, in file order', async () => {
     const run = await runCli('inspect', path, '--json');
     expect(run.status, run.stderr).toBe(0);
-    const [entry] =
-      parseJsonAs<{ scans: InspectEntry[] } | InspectEntry[]>(run.stdout) instanceof Array
-        ? parseJsonAs<InspectEntry[]>(run.stdout)
-        : parseJsonAs<{ scans: InspectEntry[] }>(run.stdout).scans;
+    const [entry] = parseJsonAs<{ scans: InspectEntry[] }>(run.stdout).scans;
     expect(entry?.yKind).toBe('transmittance-percent');
     expect(entry?.saturatedPoints).toBe(1);
     expect(entry?.warnings.map((w) => w.code)).toEqual([
