@@ -107,7 +107,7 @@ function lateText(entries: VerdictRevision['lateEntries']): string {
   const each = entries.map(
     (e) => `${checkLabel(e)}${where(e.line)}, recorded on ${e.recordedAt.slice(0, 10)} for an earlier time`,
   );
-  return `${each.join('; ')} now ${entries.length === 1 ? 'comes' : 'come'} before it`;
+  return `${each.join('; ')}, now ${entries.length === 1 ? 'comes' : 'come'} before it`;
 }
 
 /**

@@ -95,7 +95,9 @@ describe('σ: tolerance/3 until the baseline exists, then the baseline SD, froze
     const evaluation = evaluateHistory(series(new Array<number>(9).fill(100)), { policy });
     expect(evaluation.sigma.basis).toBe('floor');
     expect(evaluation.sigma.valuePct).toBe(0.5);
-    expect(evaluation.sigma.reason).toMatch(/the SD of the 8 baseline checks .*, 0\.000 %, and this check's standard error, 0\.500 %, are both smaller/);
+    expect(evaluation.sigma.reason).toMatch(
+      /the SD of the 8 baseline checks .*, 0\.000 %, and this check's standard error, 0\.500 %, are both smaller/,
+    );
   });
 
   it('notes when the baseline is too scattered for the tolerance (±3σ wider than the tolerance)', () => {
