@@ -18,7 +18,7 @@ import {
 } from './judge.js';
 import type { CheckRecord, Verdict } from './record.js';
 import { revisionNotes, verdictRevisions, type VerdictRevision } from './revisions.js';
-import type { SigmaChoice } from './sigma.js';
+import { sigmaFloor, type SigmaChoice } from './sigma.js';
 import { fitDriftTrend, type DriftTrend } from './trend.js';
 
 export { controlLimits, type Baseline, type ControlLimits, type EvaluatedCheck } from './judge.js';
@@ -222,6 +222,8 @@ export function evaluateHistory(records: readonly CheckRecord[], options: Evalua
       tolerancePct: tolerance,
       maxPoints: options.trendChecks ?? DEFAULT_TREND_CHECKS,
       minimumPoints: options.minimumTrendChecks ?? DEFAULT_MINIMUM_TREND_CHECKS,
+      // Checks cannot scatter less than one resolves, nor than the floor: as for σ.
+      scatterFloorPct: Math.max(series.latestSePct ?? 0, sigmaFloor(policy).valuePct),
       ...(options.level === undefined ? {} : { level: options.level }),
     },
   );

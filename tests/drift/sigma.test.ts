@@ -70,6 +70,8 @@ describe('twenty identical checks within tolerance', () => {
     // CUSUM: z − k = 0.617 − 0.5 = 0.117 per check from the ninth on: 12 × 0.117 = 1.40 < h = 5.
     expect(evaluation.cusum.upper).toBeCloseTo(12 * (0.74 / 1.2 - 0.5), 10);
     expect(evaluation.cusum.signal).toBeNull();
+    // Nor does the trend judge rounding noise: its scatter has the same floor.
+    expect(evaluation.trend.status).toBe('none');
   });
 
   it('all pass when recorded one after another, as rechecks append them', () => {
