@@ -20,7 +20,13 @@ import type { RecheckPolicy } from '../calibration/method.js';
 import { CUSUM_START, cusumSettings, cusumStep, type CusumPoint, type CusumSettings } from './cusum.js';
 import { deviationPercent, isZeroCheck, recoveryPercent, type CheckRecord, type Verdict } from './record.js';
 import { controlRulesAt, formatSigmaMultiple, type RuleFiring } from './rules.js';
-import { checkStandardErrorPct, chooseSigma, type BaselineState, type SigmaChoice } from './sigma.js';
+import {
+  checkStandardErrorPct,
+  chooseSigma,
+  sigmaFloor,
+  type BaselineState,
+  type SigmaChoice,
+} from './sigma.js';
 
 /** The baseline of checks that fixes the SD candidate of σ once it exists. */
 export interface Baseline {
@@ -229,7 +235,8 @@ export function judgeSeries(
     const zHere = z[position] as number;
     const rules = controlRulesAt(z, position, {
       labels,
-      runOffsetFloor: sePct === undefined ? 0 : sePct / sigma.valuePct,
+      // A run's offset smaller than one check resolves, or than the floor, is not a shift worth a reject.
+      runOffsetFloor: Math.max(sePct ?? 0, sigmaFloor(policy).valuePct) / sigma.valuePct,
     });
     const cusum = cusumStep(cusumState, zHere, position, settings);
     const cusumRule = cusumFiring(cusum, settings, position, labels);

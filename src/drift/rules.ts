@@ -22,10 +22,11 @@
  * also fire on a constant offset that is within what the calibration itself is uncertain of: the
  * standard error of prediction includes the uncertainty of the fitted curve, which every check
  * with the calibration shares, so averaging checks does not shrink it. 10-x therefore also needs
- * the mean of its ten checks to lie more than the caller's `runOffsetFloor` (the check's own
- * standard error, in σ) from the centre; 4-1s and 2-2s need every check beyond 1σ or 2σ, and σ is
- * never below that standard error (`sigma.ts`), so they meet it by construction. Without
- * `runOffsetFloor` the rules are those of 1981.
+ * the mean of its ten checks to lie more than the caller's `runOffsetFloor` (in σ: the larger of
+ * the check's own standard error and the σ floor, below which an offset is negligible for the
+ * acceptance decision) from the centre; 4-1s and 2-2s need every check beyond 1σ or 2σ, and σ is
+ * never below either (`sigma.ts`), so they meet it by construction. Without `runOffsetFloor` the
+ * rules are those of 1981.
  *
  * `CUSUM` is not judged here: `cusum.ts` keeps the cumulative sums and `evaluate.ts` adds its firing.
  */
@@ -64,7 +65,7 @@ export const CONTROL_RULES: Readonly<
     severity: 'reject',
     description:
       'ten consecutive checks on the same side of the certified value, ' +
-      "their mean further from it than one check's standard error",
+      "their mean further from it than one check's standard error and the σ floor",
   },
   CUSUM: {
     severity: 'warning',
@@ -217,7 +218,7 @@ export function controlRulesAt(
         `${label(index - 9)} to ${label(index)}: ten consecutive checks ${sideWord(tenX)} the certified value` +
         (offsetFloor > 0
           ? `, their mean at ${formatZ(runMean)}, further from it than one check's standard error ` +
-            `(${formatZ(tenX * offsetFloor)})`
+            `and the σ floor (${formatZ(tenX * offsetFloor)})`
           : ''),
     });
   }
