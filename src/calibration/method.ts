@@ -23,12 +23,39 @@ import {
 /** Which band feature is the response. */
 export type ResponseKind = 'area' | 'height';
 
-/** The recheck schedule and acceptance of a calibration. */
+/** What a signal of the cumulative-sum chart does to a check's verdict. */
+export type CusumSignal = 'warning' | 'fail';
+
+/** The verdicts a CUSUM signal may give. */
+export const CUSUM_SIGNALS: readonly CusumSignal[] = ['warning', 'fail'];
+
+/**
+ * Settings of the tabular CUSUM chart of check recoveries (ISO 7870-4), each optional: absent
+ * fields take the defaults of `src/drift/cusum.ts` (k = 0.5σ, h = 5σ, a signal is a warning).
+ */
+export interface CusumPolicy {
+  /** Reference value k, in units of σ (≥ 0): the shift per check the chart lets pass. */
+  k?: number;
+  /** Decision interval h, in units of σ (> 0): a cumulative sum above it is a signal. */
+  h?: number;
+  /** Verdict of a check at which the chart signals. */
+  onSignal?: CusumSignal;
+}
+
+/**
+ * The recheck schedule and acceptance of a calibration. The control-chart fields are optional and
+ * kept only when the method states them, so that a calibration records what its author chose and
+ * the defaults (in `src/drift/`) apply otherwise.
+ */
 export interface RecheckPolicy {
   /** Days between rechecks. */
   everyDays: number;
   /** Largest acceptable deviation of a check standard's recovery from 100 %, %. */
   tolerancePct: number;
+  /** Smallest σ of the control rules, % recovery, > 0 and below the tolerance (default: tolerance/10). */
+  sigmaFloorPct?: number;
+  /** The cumulative-sum chart's settings. */
+  cusum?: CusumPolicy;
 }
 
 /** Default recheck policy: weekly, ±5 % (check-standard agreement within ±5 %: common practice). */
@@ -203,9 +230,36 @@ class Checker {
   }
 }
 
+/** Largest CUSUM reference value and decision interval accepted, in units of σ. */
+const CUSUM_K_LIMIT = 3;
+const CUSUM_H_LIMIT = 20;
+
+function parseCusumPolicy(check: Checker, value: Json): CusumPolicy {
+  const raw = check.object(value, 'recheck.cusum');
+  check.onlyKeys(raw, 'recheck.cusum', ['k', 'h', 'onSignal']);
+  const cusum: CusumPolicy = {};
+  if (raw.k !== undefined)
+    cusum.k = check.number(
+      raw.k,
+      'recheck.cusum.k',
+      (n) => n >= 0 && n <= CUSUM_K_LIMIT,
+      `must be a reference value in units of σ from 0 to ${CUSUM_K_LIMIT}`,
+    );
+  if (raw.h !== undefined)
+    cusum.h = check.number(
+      raw.h,
+      'recheck.cusum.h',
+      (n) => n > 0 && n <= CUSUM_H_LIMIT,
+      `must be a decision interval in units of σ > 0 and at most ${CUSUM_H_LIMIT}`,
+    );
+  if (raw.onSignal !== undefined)
+    cusum.onSignal = check.choice(raw.onSignal, 'recheck.cusum.onSignal', CUSUM_SIGNALS, 'warning');
+  return cusum;
+}
+
 function parseCommon(check: Checker, root: Record<string, Json>): MethodCommon {
   const recheckRaw = root.recheck === undefined ? {} : check.object(root.recheck, 'recheck');
-  check.onlyKeys(recheckRaw, 'recheck', ['everyDays', 'tolerancePct']);
+  check.onlyKeys(recheckRaw, 'recheck', ['everyDays', 'tolerancePct', 'sigmaFloorPct', 'cusum']);
   const recheck: RecheckPolicy = {
     everyDays:
       recheckRaw.everyDays === undefined
@@ -226,6 +280,14 @@ function parseCommon(check: Checker, root: Record<string, Json>): MethodCommon {
             'must be a percentage > 0 and < 100',
           ),
   };
+  if (recheckRaw.sigmaFloorPct !== undefined)
+    recheck.sigmaFloorPct = check.number(
+      recheckRaw.sigmaFloorPct,
+      'recheck.sigmaFloorPct',
+      (n) => n > 0 && n < recheck.tolerancePct,
+      `must be a percentage > 0 and below the tolerance (${recheck.tolerancePct} %)`,
+    );
+  if (recheckRaw.cusum !== undefined) recheck.cusum = parseCusumPolicy(check, recheckRaw.cusum);
   const referenceRaw = root.reference === undefined ? {} : check.object(root.reference, 'reference');
   check.onlyKeys(referenceRaw, 'reference', ['pathLength_m', 'temperature_K', 'pressure_kPa']);
   const reference: PartialConditions = {};

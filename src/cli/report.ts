@@ -148,6 +148,7 @@ export function recheckHistoryViews(
       notes: [
         `σ: ${evaluation.sigma.reason}`,
         `trend: ${evaluation.trend.summary}`,
+        evaluation.cusum.summary,
         `schedule at ${now}: ${schedule.reason}`,
         ...evaluation.notes,
       ],

@@ -14,10 +14,11 @@ export type Verdict = 'pass' | 'warning' | 'fail';
 export const VERDICTS: readonly Verdict[] = ['pass', 'warning', 'fail'];
 
 /**
- * Control rules (Westgard, Barry, Hunt & Groth, Clinical Chemistry 27 (1981) 493), in the order
- * they are reported.
+ * Control rules, in the order they are reported: the multirule set of Westgard, Barry, Hunt &
+ * Groth (Clinical Chemistry 27 (1981) 493), then `CUSUM`, a signal of the tabular cumulative-sum
+ * chart (ISO 7870-4) for slow, persistent drift.
  */
-export type ControlRuleName = '1-2s' | '1-3s' | '2-2s' | 'R-4s' | '4-1s' | '10-x';
+export type ControlRuleName = '1-2s' | '1-3s' | '2-2s' | 'R-4s' | '4-1s' | '10-x' | 'CUSUM';
 
 /** All control rules. */
 export const CONTROL_RULE_NAMES: readonly ControlRuleName[] = [
@@ -27,6 +28,7 @@ export const CONTROL_RULE_NAMES: readonly ControlRuleName[] = [
   'R-4s',
   '4-1s',
   '10-x',
+  'CUSUM',
 ];
 
 /** One recorded check, as a line of the history file holds it. */

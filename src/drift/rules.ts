@@ -17,6 +17,18 @@
  * Every rule is evaluated at every check, not only after a 1-2s warning as in the 1981 flow
  * chart; computerised multirule QC usually does so (common practice, from memory), and it lets
  * the systematic-error rules (4-1s, 10-x) warn of drift that never reaches 2σ.
+ *
+ * The centre of the chart is the certified value, not the mean of the checks, so a run rule would
+ * also fire on a constant offset that is within what the calibration itself is uncertain of: the
+ * standard error of prediction includes the uncertainty of the fitted curve, which every check
+ * with the calibration shares, so averaging checks does not shrink it. 10-x therefore also needs
+ * the mean of its ten checks to lie more than the caller's `runOffsetFloor` (in σ: the larger of
+ * the check's own standard error and the σ floor, below which an offset is negligible for the
+ * acceptance decision) from the centre; 4-1s and 2-2s need every check beyond 1σ or 2σ, and σ is
+ * never below either (`sigma.ts`), so they meet it by construction. Without `runOffsetFloor` the
+ * rules are those of 1981.
+ *
+ * `CUSUM` is not judged here: `cusum.ts` keeps the cumulative sums and `evaluate.ts` adds its firing.
  */
 import type { ControlRuleName } from './record.js';
 
@@ -51,7 +63,16 @@ export const CONTROL_RULES: Readonly<
   '4-1s': { severity: 'reject', description: 'four consecutive checks beyond the same ±1σ limit' },
   '10-x': {
     severity: 'reject',
-    description: 'ten consecutive checks on the same side of the certified value',
+    description:
+      'ten consecutive checks on the same side of the certified value, ' +
+      "their mean further from it than one check's standard error and the σ floor",
+  },
+  CUSUM: {
+    severity: 'warning',
+    description:
+      'the cumulative sum of (recovery − 100 %)/σ beyond the reference value k has passed the decision ' +
+      'interval h (tabular CUSUM, ISO 7870-4): a slow, persistent drift; a warning unless the method ' +
+      'makes it a fail',
   },
 };
 
@@ -63,10 +84,33 @@ function signedLimit(sign: number, k: number): string {
   return `${sign > 0 ? '+' : '−'}${k}σ`;
 }
 
-function formatZ(z: number): string {
-  const text = Math.abs(z) >= 100 ? Math.abs(z).toExponential(2) : Math.abs(z).toFixed(2);
-  return `${z < 0 ? '−' : '+'}${text}σ`;
+/** Largest multiple of σ printed as a number; beyond it the text says "more than". */
+const LARGEST_PRINTED_MULTIPLE = 999;
+
+/**
+ * A multiple of σ as text, signed, with the digits it can carry: two decimals below 10σ
+ * (`+2.10σ`), one below 100σ (`−12.4σ`), none up to 999σ (`+245σ`), and `more than +999σ`
+ * beyond, never an exponent: σ has a floor, so a far larger multiple only says the check is far
+ * outside the chart.
+ *
+ * @param z - (recovery − 100 %)/σ, dimensionless
+ * @example
+ * formatSigmaMultiple(-2.104); // '−2.10σ'
+ */
+export function formatSigmaMultiple(z: number): string {
+  const sign = z < 0 ? '−' : '+';
+  const size = Math.abs(z);
+  if (!Number.isFinite(size) || Math.round(size) > LARGEST_PRINTED_MULTIPLE)
+    return `more than ${sign}${LARGEST_PRINTED_MULTIPLE}σ`;
+  const digits = size < 10 ? 2 : size < 100 ? 1 : 0;
+  let text = size.toFixed(digits);
+  // Rounding may carry into the next band (9.996 → 10.00): print it with that band's digits.
+  if (Number(text) >= 10 && digits === 2) text = size.toFixed(1);
+  if (Number(text) >= 100 && digits >= 1) text = size.toFixed(0);
+  return `${sign}${text}σ`;
 }
+
+const formatZ = formatSigmaMultiple;
 
 /** All of the last `count` values (ending at `index`) beyond `k` on the same side; returns that side or 0. */
 function sameSideRun(z: readonly number[], index: number, count: number, k: number): number {
@@ -96,15 +140,17 @@ function range(from: number, to: number): number[] {
  * @param z - the series of checks in time order, each as (recovery − 100) / σ (dimensionless);
  *   NaN entries never satisfy a rule
  * @param index - the check to judge (0-based); only checks up to it are looked at
- * @param options - `labels`: a short label per check for the reasons (default `check N`, 1-based)
- * @returns the rules that fired, in the order of {@link CONTROL_RULES}
+ * @param options - `labels`: a short label per check for the reasons (default `check N`, 1-based);
+ *   `runOffsetFloor`: how far (in σ, ≥ 0) the mean of a 10-x run must lie from the centre for the
+ *   rule to fire (default 0: the 1981 rule)
+ * @returns the rules that fired, in the order of {@link CONTROL_RULES} (never `CUSUM`)
  * @example
  * controlRulesAt([2.3, 2.4], 1).map((f) => f.rule); // ['1-2s', '2-2s']
  */
 export function controlRulesAt(
   z: readonly number[],
   index: number,
-  options: { labels?: readonly string[] } = {},
+  options: { labels?: readonly string[]; runOffsetFloor?: number } = {},
 ): RuleFiring[] {
   const label = (i: number): string => options.labels?.[i] ?? `check ${i + 1}`;
   const current = z[index];
@@ -161,12 +207,19 @@ export function controlRulesAt(
     });
   }
   const tenX = sameSideRun(z, index, 10, 0);
-  if (tenX !== 0) {
+  const offsetFloor = options.runOffsetFloor ?? 0;
+  const runMean = tenX === 0 ? 0 : range(index - 9, index).reduce((sum, i) => sum + (z[i] as number), 0) / 10;
+  if (tenX !== 0 && Math.abs(runMean) > offsetFloor) {
     fired.push({
       rule: '10-x',
       severity: 'reject',
       checks: range(index - 9, index),
-      reason: `${label(index - 9)} to ${label(index)}: ten consecutive checks ${sideWord(tenX)} the certified value`,
+      reason:
+        `${label(index - 9)} to ${label(index)}: ten consecutive checks ${sideWord(tenX)} the certified value` +
+        (offsetFloor > 0
+          ? `, their mean at ${formatZ(runMean)}, further from it than one check's standard error ` +
+            `and the σ floor (${formatZ(tenX * offsetFloor)})`
+          : ''),
     });
   }
   return fired;

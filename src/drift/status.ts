@@ -5,7 +5,12 @@
 import { reportedGases, type Calibration } from '../calibration/calibration.js';
 import type { RecheckPolicy } from '../calibration/method.js';
 import type { ConcentrationUnit } from '../gas/units.js';
-import { evaluateHistory, type DriftEvaluation, type EvaluateOptions } from './evaluate.js';
+import {
+  evaluateHistory,
+  type CusumSummary,
+  type DriftEvaluation,
+  type EvaluateOptions,
+} from './evaluate.js';
 import type { CheckRecord, Verdict } from './record.js';
 import { scheduleFor, type Schedule } from './schedule.js';
 import type { DriftTrend } from './trend.js';
@@ -39,6 +44,8 @@ export interface GasStatus {
   schedule: Schedule;
   /** Trend of recovery against time. */
   trend: DriftTrend;
+  /** The CUSUM chart after the latest check. */
+  cusum: CusumSummary;
   /** Notes from the evaluation (verdicts that changed under the policy used, …). */
   notes: string[];
   /** The full evaluation (for charts). */
@@ -93,6 +100,7 @@ export function calibrationStatus(
       checks: evaluation.checks.length,
       schedule,
       trend: evaluation.trend,
+      cusum: evaluation.cusum,
       notes: evaluation.notes,
       evaluation,
     };

@@ -39,6 +39,12 @@ export interface TrendOptions {
   minimumPoints?: number;
   /** Confidence level of the slope test and the projection range (default 0.95). */
   level?: number;
+  /**
+   * Smallest scatter of the checks about the line the slope test uses, % recovery (default 0):
+   * checks that agree more closely than one check resolves (the same scan rechecked) would
+   * otherwise make a slope of rounding noise "significant". The residual SD reported is the fitted one.
+   */
+  scatterFloorPct?: number;
 }
 
 /** When the fitted line leaves (or left) the tolerance. */
@@ -82,6 +88,8 @@ export interface DriftTrend {
   slopeStandardErrorPctPerDay?: number;
   /** Residual SD about the line, % recovery. */
   residualSdPct?: number;
+  /** Scatter the slope test, the projection range and the band use: the residual SD, or the floor when larger, %. */
+  scatterPct?: number;
   /** Σ (t − t̄)², days². */
   sxxDays2?: number;
   /** Residual degrees of freedom, n − 2. */
@@ -96,8 +104,17 @@ export interface DriftTrend {
   projection?: TrendProjection;
 }
 
+/** Largest time a Date can hold, ms from the epoch (ECMAScript's ±8.64e15). */
+const LAST_DATE_MS = 8.64e15;
+
 function isoAt(originMs: number, days: number): string {
-  return new Date(originMs + days * DAY_MS).toISOString();
+  const ms = originMs + days * DAY_MS;
+  return new Date(Math.max(-LAST_DATE_MS, Math.min(LAST_DATE_MS, ms))).toISOString();
+}
+
+/** Whether a time so many days from the origin is one a Date can hold. */
+function representable(originMs: number, days: number): boolean {
+  return Math.abs(originMs + days * DAY_MS) <= LAST_DATE_MS;
 }
 
 function formatSlope(perDay: number, se: number): string {
@@ -171,7 +188,8 @@ export function fitDriftTrend(points: readonly TrendPoint[], options: TrendOptio
   }
   const a = fit.coefficients[0] as number;
   const b = fit.coefficients[1] as number;
-  const s = fit.residualSD;
+  const fitted = fit.residualSD;
+  const s = Math.max(fitted, options.scatterFloorPct ?? 0);
   const df = fit.degreesOfFreedom;
   const seSlope = s / Math.sqrt(sxx);
   const tStatistic =
@@ -190,7 +208,8 @@ export function fitDriftTrend(points: readonly TrendPoint[], options: TrendOptio
     interceptPct: a,
     slopePctPerDay: b,
     slopeStandardErrorPctPerDay: seSlope,
-    residualSdPct: s,
+    residualSdPct: fitted,
+    scatterPct: s,
     sxxDays2: sxx,
     df,
     tStatistic,
@@ -206,6 +225,10 @@ export function fitDriftTrend(points: readonly TrendPoint[], options: TrendOptio
   const limit: 'upper' | 'lower' = b > 0 ? 'upper' : 'lower';
   const limitPct = 100 + (limit === 'upper' ? options.tolerancePct : -options.tolerancePct);
   const crossing = (limitPct - a) / b;
+  if (!representable(originMs, crossing)) {
+    trend.summary = `drift ${slopeText}, but too slow to reach ${limitPct} % in any time a calendar can hold`;
+    return trend;
+  }
   const q = tCritical * tCritical * s * s;
   const A = b * b - q / sxx;
   const B = 2 * b * (a - limitPct);
@@ -261,7 +284,7 @@ export function trendAt(
     return undefined;
   const u = (Date.parse(time) - Date.parse(trend.origin)) / DAY_MS;
   const value = trend.interceptPct + trend.slopePctPerDay * u;
-  const s = trend.residualSdPct ?? 0;
+  const s = trend.scatterPct ?? trend.residualSdPct ?? 0;
   const half =
     (trend.criticalT ?? 0) *
     s *

@@ -1,6 +1,6 @@
 /**
- * `bandwright/drift`: judging check standards over time — control rules, the baseline σ, the
- * drift trend and its projected crossing, the recheck schedule and the status of calibrations —
+ * `bandwright/drift`: judging check standards over time — control rules, σ and what sets it, the
+ * CUSUM chart, the drift trend and its projected crossing, the recheck schedule and the status of calibrations —
  * with the history file's format, finding calibrations in folders, and the recheck and status
  * documents and text.
  */
@@ -13,7 +13,34 @@ export {
   type Verdict,
   type ControlRuleName,
 } from '../drift/record.js';
-export { controlRulesAt, CONTROL_RULES, type RuleFiring, type RuleSeverity } from '../drift/rules.js';
+export {
+  controlRulesAt,
+  formatSigmaMultiple,
+  CONTROL_RULES,
+  type RuleFiring,
+  type RuleSeverity,
+} from '../drift/rules.js';
+export {
+  chooseSigma,
+  checkStandardErrorPct,
+  sigmaFloor,
+  DEFAULT_SIGMA_FLOOR_DIVISOR,
+  SHORT_HISTORY_FLOOR_DIVISOR,
+  type SigmaSource,
+  type BaselineState,
+} from '../drift/sigma.js';
+export {
+  tabularCusum,
+  cusumStep,
+  cusumSettings,
+  CUSUM_START,
+  DEFAULT_CUSUM_K,
+  DEFAULT_CUSUM_H,
+  DEFAULT_CUSUM_SIGNAL,
+  type CusumPoint,
+  type CusumSettings,
+  type CusumDirection,
+} from '../drift/cusum.js';
 export {
   fitDriftTrend,
   trendAt,
@@ -34,6 +61,10 @@ export {
   type SigmaChoice,
   type Baseline,
   type ControlLimits,
+  type CusumSummary,
+  type VerdictRevision,
+  type RevisionCause,
+  type VerdictChange,
 } from '../drift/evaluate.js';
 export { scheduleFor, type Schedule, type ScheduleState, type ScheduleOptions } from '../drift/schedule.js';
 export {
@@ -69,5 +100,7 @@ export {
   type RecheckDocument,
   type StatusDocument,
   type StatusEntry,
+  type CusumEntry,
 } from '../report/drift-text.js';
+export type { CusumPolicy, CusumSignal } from '../calibration/method.js';
 export type { LockOptions } from '../store/lock.js';

@@ -55,6 +55,7 @@ export {
   type ControlChartTrend,
 } from '../report/svg/control-chart.js';
 export { controlChartFromEvaluation } from '../report/svg/control-chart-data.js';
+export type { ControlChartCusum, CusumChartPoint } from '../report/svg/cusum-panel.js';
 export {
   calibrationPlots,
   samplePlots,

@@ -1,9 +1,17 @@
 /**
  * Recheck and status output: text for people (terminal) and JSON for scripts (DESIGN §4
- * `recheck --json`: measured, certified, recoveryPct, low, high, verdict, rules, nextDue, trend).
+ * `recheck --json`: measured, certified, recoveryPct, low, high, verdict, rules, nextDue, trend;
+ * then σ and what set it, the CUSUM chart, and the verdicts a late entry changed).
  */
 import type { CheckMeasurement } from '../drift/recheck.js';
-import type { ControlLimits, EvaluatedCheck, JudgedCheck, SigmaChoice } from '../drift/evaluate.js';
+import type { CusumDirection } from '../drift/cusum.js';
+import type {
+  ControlLimits,
+  CusumSummary,
+  EvaluatedCheck,
+  JudgedCheck,
+  SigmaChoice,
+} from '../drift/evaluate.js';
 import type { Verdict } from '../drift/record.js';
 import type { RuleFiring } from '../drift/rules.js';
 import type { Schedule, ScheduleState } from '../drift/schedule.js';
@@ -42,12 +50,7 @@ function minute(iso: string | undefined): string {
   return iso === undefined ? '—' : `${iso.slice(0, 10)} ${iso.slice(11, 16)}Z`;
 }
 
-/**
- * A short text for a trend, for table cells.
- *
- * @param trend - the trend
- */
-export function trendCell(trend: DriftTrend): string {
+function trendText(trend: DriftTrend): string {
   if (trend.status === 'insufficient') return `— (${trend.points} of ${trend.minimumPoints} checks)`;
   if (trend.status === 'none') return 'no significant drift';
   const projection = trend.projection;
@@ -55,6 +58,87 @@ export function trendCell(trend: DriftTrend): string {
   return projection.alreadyOutside
     ? `crossed ${projection.limitPct} % ${projection.date.slice(0, 10)}`
     : `${projection.limitPct} % by ${projection.date.slice(0, 10)}`;
+}
+
+/**
+ * A short text for the CUSUM chart, for table cells: `CUSUM low` (or `high`) when it signals,
+ * else the larger sum against h, e.g. `CUSUM 1.3/5σ`.
+ *
+ * @param cusum - the chart after the latest check
+ */
+export function cusumCell(cusum: Pick<CusumSummary, 'upper' | 'lower' | 'h' | 'signal'>): string {
+  if (cusum.signal !== null) return `CUSUM ${cusum.signal === 'below' ? 'low' : 'high'}`;
+  return `CUSUM ${Math.max(cusum.upper, cusum.lower).toFixed(1)}/${cusum.h}σ`;
+}
+
+/**
+ * A short text for a trend, for table cells, with the CUSUM chart after it when given.
+ *
+ * @param trend - the trend
+ * @param cusum - the CUSUM chart after the latest check
+ */
+export function trendCell(trend: DriftTrend, cusum?: CusumSummary): string {
+  const text = trendText(trend);
+  return cusum === undefined || trend.points === 0 ? text : `${text}; ${cusumCell(cusum)}`;
+}
+
+/** The CUSUM chart at one check, as the recheck JSON gives it (σ units). */
+export interface CusumEntry {
+  /** Reference value k, σ. */
+  k: number;
+  /** Decision interval h, σ. */
+  h: number;
+  /** C⁺ after the check, σ. */
+  upper: number;
+  /** C⁻ after the check, σ. */
+  lower: number;
+  /** `below` or `above` when a sum is beyond h at this check, else null. */
+  signal: CusumDirection | null;
+  /** The verdict a signal gives: `warning` (default) or `fail`. */
+  onSignal: CusumSummary['onSignal'];
+  /** Time of the first check of the rise that signals, ISO, or null. */
+  since: string | null;
+}
+
+function cusumAt(judged: JudgedCheck): CusumEntry | null {
+  const point = judged.check.cusum;
+  if (point === undefined) return null;
+  const { spanChecks, checks } = judged.evaluation;
+  const sinceIndex =
+    point.signal === 'below' ? point.lowerSince : point.signal === 'above' ? point.upperSince : undefined;
+  const since = sinceIndex === undefined ? undefined : checks[spanChecks[sinceIndex] as number];
+  const settings = judged.evaluation.cusum;
+  return {
+    k: settings.k,
+    h: settings.h,
+    upper: point.upper,
+    lower: point.lower,
+    signal: point.signal,
+    onSignal: settings.onSignal,
+    since: since?.record.time ?? null,
+  };
+}
+
+function cusumRow(entry: CusumEntry): string {
+  const sums = `C⁺ = ${entry.upper.toFixed(2)}σ, C⁻ = ${entry.lower.toFixed(2)}σ (k = ${entry.k}σ, h = ${entry.h}σ)`;
+  if (entry.signal === null) return `${sums}: no signal`;
+  return (
+    `${sums}: signal, drifting ${entry.signal === 'below' ? 'low' : 'high'}` +
+    `${entry.since === null ? '' : ` since ${entry.since.slice(0, 10)}`} (${entry.onSignal})`
+  );
+}
+
+/** Notes of a recheck: the verdicts it changed, and a count of other checks judged differently. */
+function recheckNotes(judged: JudgedCheck): string[] {
+  const changed = new Set(judged.changed.map((c) => c.check.index));
+  const others = judged.evaluation.revisions.filter((r) => !changed.has(r.index));
+  const notes = judged.changed.map((c) => c.note);
+  if (others.length > 0)
+    notes.push(
+      `${others.length} earlier check${others.length === 1 ? ' is' : 's are'} judged differently now than ` +
+        'when recorded; the status of the calibration lists them with the cause',
+    );
+  return notes;
 }
 
 /**
@@ -102,6 +186,8 @@ export function formatRecheckText(outcome: RecheckOutcome): string {
         `±3σ ${percent(check.limits.action[0])}–${percent(check.limits.action[1])} %`,
     ]);
   }
+  const cusum = cusumAt(judged);
+  if (cusum !== null) rows.push(['CUSUM', cusumRow(cusum)]);
   rows.push([
     'rules fired',
     check.rules.length === 0 ? 'none' : check.rules.map((r) => `${r.rule} (${r.severity})`).join(', '),
@@ -129,7 +215,7 @@ export function formatRecheckText(outcome: RecheckOutcome): string {
     `Recheck of ${m.gas} with ${outcome.calibration.file} (sha256 ${outcome.calibration.sha256.slice(0, 12)}…)`,
     ...rows.map(([k, v]) => `  ${k.padEnd(width)}  ${v}`),
   ];
-  const notes = [...m.notes, ...judged.evaluation.notes];
+  const notes = [...m.notes, ...recheckNotes(judged)];
   if (notes.length > 0) lines.push('Notes:', ...notes.map((n) => `  ${n}`));
   if (m.result.cautions.length > 0) lines.push('Caution:', ...m.result.cautions.map((c) => `  ${c}`));
   return lines.join('\n');
@@ -164,8 +250,13 @@ export interface RecheckDocument {
   tolerancePct: number;
   everyDays: number;
   nearTolerance: boolean;
+  /** σ at this check: value, what set it (`baseline`, `check-se`, `floor`), the candidates, why. */
   sigma: SigmaChoice | null;
   limits: ControlLimits | null;
+  /** The CUSUM chart after this check (null for zero gas). */
+  cusum: CusumEntry | null;
+  /** Earlier checks whose verdict this check changed (it was recorded for an earlier time). */
+  changedVerdicts: { time: string; line: number | null; from: Verdict; to: Verdict; note: string }[];
   reasons: string[];
   schedule: Schedule;
   history: { file: string; line: number | null; created: boolean; checks: number };
@@ -211,6 +302,14 @@ export function recheckDocument(outcome: RecheckOutcome): RecheckDocument {
     nearTolerance: check.nearTolerance,
     sigma: check.sigma ?? null,
     limits: check.limits ?? null,
+    cusum: cusumAt(judged),
+    changedVerdicts: judged.changed.map((c) => ({
+      time: c.check.record.time,
+      line: c.check.record.line ?? null,
+      from: c.before,
+      to: c.after,
+      note: c.note,
+    })),
     reasons: check.reasons,
     schedule,
     history: {
@@ -219,7 +318,7 @@ export function recheckDocument(outcome: RecheckOutcome): RecheckDocument {
       created: outcome.created,
       checks: judged.evaluation.checks.length,
     },
-    notes: [...m.notes, ...judged.evaluation.notes],
+    notes: [...m.notes, ...recheckNotes(judged)],
     cautions: m.result.cautions,
   };
 }
@@ -276,7 +375,7 @@ export function formatStatusText(report: StatusReport): string {
     row.schedule.nextDue === undefined ? 'now' : minute(row.schedule.nextDue),
     row.schedule.daysOverdue > 0 ? row.schedule.daysOverdue.toFixed(1) : '',
     row.schedule.state.toUpperCase(),
-    trendCell(row.trend),
+    trendCell(row.trend, row.cusum),
   ]);
   const parts = [`Recheck status at ${minute(report.now)}`];
   if (rows.length > 0) parts.push(formatTextTable(columns, rows));
@@ -288,6 +387,7 @@ export function formatStatusText(report: StatusReport): string {
         `every ${row.policy.everyDays} days, tolerance ±${row.policy.tolerancePct} %`,
     );
     if (row.trend.status !== 'insufficient') notes.push(`${row.file} ${row.gas}: trend ${row.trend.summary}`);
+    if (row.checks > 0) notes.push(`${row.file} ${row.gas}: ${row.cusum.summary}`);
     for (const note of row.notes) notes.push(`${row.file} ${row.gas}: ${note}`);
   }
   if (notes.length > 0) parts.push(notes.join('\n'));
@@ -315,6 +415,8 @@ export interface StatusEntry {
   daysOverdue: number;
   reason: string;
   trend: DriftTrend;
+  /** The CUSUM chart after the latest check (σ units). */
+  cusum: CusumSummary;
   notes: string[];
 }
 
@@ -356,6 +458,7 @@ export function statusDocument(report: StatusReport): StatusDocument {
       daysOverdue: row.schedule.daysOverdue,
       reason: row.schedule.reason,
       trend: row.trend,
+      cusum: row.cusum,
       notes: row.notes,
     })),
     skipped: report.skipped,

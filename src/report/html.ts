@@ -220,7 +220,12 @@ function historySection(
           `tolerance ±${significantDigits(history.chart.tolerancePct, 3)} %, ` +
           `warning (±2σ) and action (±3σ) limits with the σ in force for the next check ` +
           `(σ = ${significantDigits(history.chart.sigmaPct, 3)} %, why: below the chart); ` +
-          `checks where a control rule fired are ringed and labelled above the chart.`,
+          `checks where a control rule fired are ringed and labelled above the chart` +
+          (history.chart.cusum === undefined
+            ? '.'
+            : `. Under it, the CUSUM chart: C⁺ upwards and C⁻ downwards in units of σ, with the ` +
+              `decision interval ±h = ±${significantDigits(history.chart.cusum.h, 3)}σ ` +
+              `(k = ${significantDigits(history.chart.cusum.k, 3)}σ); a sum beyond it is marked.`),
       ) +
       (history.notes === undefined || history.notes.length === 0 ? '' : bulletList(history.notes)) +
       htmlTable({

@@ -6,7 +6,7 @@
  * concentration (tests/helpers/band-scans.ts), so a scan made at 96.5 ppm checked against a
  * certified 100 ppm has a recovery of 96.5 % (recovery = measured/certified × 100, common
  * practice). Rules: Westgard et al., Clinical Chemistry 27 (1981) 493; σ = tolerance/3 before the
- * baseline exists (DESIGN §3). Exit statuses: DESIGN §4. SHA-256 cross-checked with node:crypto.
+ * baseline exists unless the check's own standard error is larger (DESIGN §3, src/drift/sigma.ts). Exit statuses: DESIGN §4. SHA-256 cross-checked with node:crypto.
  */
 import { createHash } from 'node:crypto';
 import { existsSync, readFileSync, writeFileSync } from 'node:fs';
@@ -79,7 +79,9 @@ describe('a recheck', () => {
     expect(result.rules).toEqual([]);
     expect(result.nextDue).toBe('2026-09-08T09:30:00.000Z');
     expect(result.trend.status).toBe('insufficient');
-    expect(result.sigma?.basis).toBe('tolerance');
+    // Before the baseline, σ is tolerance/3 unless the check's own standard error is larger.
+    expect(result.sigma?.basis).toBe('floor');
+    expect(result.sigma?.checkSePct).toBeCloseTo((result.se / 100) * 100, 12);
     expect(result.sigma?.valuePct).toBeCloseTo(5 / 3, 12);
     expect(result.z).toBeCloseTo((result.measured - 100) / result.se, 10);
     expect(result.cautions.join(' ')).toMatch(/not a life-safety monitor/);

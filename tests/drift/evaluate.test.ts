@@ -3,9 +3,10 @@
  * zero-gas checks, time order, several gases.
  *
  * Sources: the rule definitions of Westgard et al., Clinical Chemistry 27 (1981) 493 (facts.md);
- * σ = tolerance/3 until a baseline of 8 checks, then the baseline SD frozen (Shewhart phase I /
- * phase II, common practice; DESIGN §3); recovery % = measured/certified × 100 (common practice);
- * the sample SD with n − 1 (its definition).
+ * σ = tolerance/3 until a baseline of 8 checks (the short-history floor), then the baseline SD
+ * frozen (Shewhart phase I / phase II, common practice; DESIGN §3), never below the check's own
+ * standard error nor the floor (tests/drift/sigma.test.ts); recovery % = measured/certified × 100
+ * (common practice); the sample SD with n − 1 (its definition).
  */
 import { describe, expect, it } from 'vitest';
 import { evaluateHistory, judgeCheck, controlLimits, type EvaluatedCheck } from '../../src/drift/evaluate.js';
@@ -50,7 +51,9 @@ describe('σ: tolerance/3 until the baseline exists, then the baseline SD, froze
   it('uses tolerance/3 for the first checks and says why', () => {
     const evaluation = evaluateHistory(series([100.4, 99.6, 100.2]), { policy });
     const sigma = last(evaluation.checks).sigma;
-    expect(sigma?.basis).toBe('tolerance');
+    expect(sigma?.basis).toBe('floor');
+    expect(sigma?.shortHistory).toBe(true);
+    expect(sigma?.reason).toMatch(/the history is too short to estimate σ/);
     expect(sigma?.valuePct).toBeCloseTo(5 / 3, 14);
     expect(sigma?.reason).toMatch(
       /σ = tolerance\/3 = 5 %\/3 = 1\.667 %: 2 of the 8 baseline checks within tolerance exist so far, so the ±3σ action limit is the tolerance/,
@@ -69,7 +72,7 @@ describe('σ: tolerance/3 until the baseline exists, then the baseline SD, froze
     expect(evaluation.baseline.checks).toEqual([0, 1, 3, 4, 5, 6, 7, 8]);
     expect(evaluation.baseline.sdPct).toBeCloseTo(sd, 12);
     // The 9th baseline check itself was judged with tolerance/3; the checks after it with the frozen SD.
-    expect(evaluation.checks[8]?.sigma?.basis).toBe('tolerance');
+    expect(evaluation.checks[8]?.sigma?.basis).toBe('floor');
     expect(evaluation.checks[9]?.sigma).toMatchObject({ basis: 'baseline' });
     expect(evaluation.checks[9]?.sigma?.valuePct).toBeCloseTo(sd, 12);
     expect(evaluation.checks[10]?.sigma?.valuePct).toBeCloseTo(sd, 12);
@@ -87,10 +90,14 @@ describe('σ: tolerance/3 until the baseline exists, then the baseline SD, froze
     expect(b.sigma.valuePct).toBe(a.sigma.valuePct);
   });
 
-  it('falls back to tolerance/3 when the baseline SD is 0, and says so', () => {
+  it('does not let a baseline SD of 0 set σ: the floor (here equal to the standard error) does, and says so', () => {
+    // se 0.5 ppm of 100 ppm = 0.5 %; floor tolerance/10 = 0.5 %.
     const evaluation = evaluateHistory(series(new Array<number>(9).fill(100)), { policy });
-    expect(evaluation.sigma.basis).toBe('tolerance');
-    expect(evaluation.sigma.reason).toMatch(/have an SD of 0/);
+    expect(evaluation.sigma.basis).toBe('floor');
+    expect(evaluation.sigma.valuePct).toBe(0.5);
+    expect(evaluation.sigma.reason).toMatch(
+      /the SD of the 8 baseline checks .*, 0\.000 %, and this check's standard error, 0\.500 %, are both smaller/,
+    );
   });
 
   it('notes when the baseline is too scattered for the tolerance (±3σ wider than the tolerance)', () => {

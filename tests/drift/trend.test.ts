@@ -167,4 +167,23 @@ describe('no significant drift', () => {
     expect(fitDriftTrend(sameTime, { tolerancePct: 5 }).status).toBe('insufficient');
     expect(trendAt(fitDriftTrend(three, { tolerancePct: 5 }), at(0))).toBeUndefined();
   });
+
+  it('does not call a slope of rounding noise a drift when the scatter has a floor, and never fails on it', () => {
+    // Ten checks that agree to 1e-13 % (the same scan rechecked): the fitted residual SD is rounding
+    // noise, so without a floor a slope of 1e-14 %/day is "significant" and crosses 105 % only in
+    // some 1e12 years, beyond any date (which used to throw a RangeError).
+    const flat = Array.from({ length: 10 }, (_, d) => ({ time: at(d), recoveryPct: 100.74 + d * 1e-13 }));
+    const bare = fitDriftTrend(flat, { tolerancePct: 5 });
+    expect(bare.status).toBe('drift');
+    expect(bare.projection).toBeUndefined();
+    expect(bare.summary).toMatch(/but too slow to reach 105 % in any time a calendar can hold$/);
+    // With the checks' resolution as the floor (0.5 %), the slope is no drift at all.
+    const floored = fitDriftTrend(flat, { tolerancePct: 5, scatterFloorPct: 0.5 });
+    expect(floored.status).toBe('none');
+    expect(floored.scatterPct).toBe(0.5);
+    expect(floored.residualSdPct).toBeLessThan(1e-12);
+    expect(floored.summary).toMatch(
+      /^no significant drift \(\+0\.000 ± 0\.385 %\/week over the last 10 checks, p = 1\.000\)$/,
+    );
+  });
 });

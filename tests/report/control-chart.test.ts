@@ -5,7 +5,8 @@
  * Sources: Shewhart limits at ±2σ (warning) and ±3σ (action) around the certified value, and the
  * tolerance band (DESIGN §3 "Drift"; common practice); the Westgard multirule names (Westgard et
  * al., Clinical Chemistry 27 (1981) 493, in facts.md); recovery % = measured/certified × 100
- * (common practice). Pixels follow the SVG viewBox mapping (W3C SVG 1.1 §7.7).
+ * (common practice). Pixels follow the SVG viewBox mapping (W3C SVG 1.1 §7.7). The CUSUM panel
+ * draws the tabular sums of ISO 7870-4 (C⁺ upwards, C⁻ downwards) with the decision interval ±h.
  */
 import { describe, expect, it } from 'vitest';
 import { evaluateHistory } from '../../src/drift/evaluate.js';
@@ -171,6 +172,98 @@ describe('control chart from a drift evaluation', () => {
     expect(byClass(svg, 'trend-line')).toHaveLength(1);
     expect(byClass(svg, 'rule-violation').length).toBe(
       chart.records.filter((r) => r.rules.length > 0).length,
+    );
+  });
+});
+
+describe('CUSUM panel under the control chart', () => {
+  const cusum = {
+    k: 0.5,
+    h: 5,
+    points: [
+      { time: at(0), upper: 0, lower: 0.2, signal: null },
+      { time: at(7), upper: 0, lower: 2.4, signal: null },
+      { time: at(14), upper: 1.1, lower: 0, signal: null },
+      { time: at(21), upper: 0, lower: 6.3, signal: 'below' as const },
+    ],
+  };
+  const svg = parseMarkup(renderControlChart({ ...input, cusum }, { id: 'cs', recoveryDomain: [90, 110] }));
+  const frames = byClass(svg, 'panel-frame');
+
+  it('sits under the chart on the same time axis', () => {
+    expect(frames).toHaveLength(2);
+    const [chart, sums] = frames.map((f) => ({
+      left: numberAttribute(f, 'x'),
+      top: numberAttribute(f, 'y'),
+      width: numberAttribute(f, 'width'),
+      height: numberAttribute(f, 'height'),
+    }));
+    expect(frames[1]?.attributes['data-panel']).toBe('cusum');
+    expect(sums!.top).toBeGreaterThan(chart!.top + chart!.height);
+    expect([sums!.left, sums!.width]).toEqual([chart!.left, chart!.width]);
+    const checkXs = byClass(svg, 'check').map((c) => translation(c)[0]);
+    const sumXs = byClass(svg, 'cusum-point')
+      .filter((_, i) => i % 2 === 0)
+      .map((c) => translation(c)[0]);
+    sumXs.forEach((x, i) => expect(Math.abs(x - (checkXs[i] as number))).toBeLessThanOrEqual(0.5));
+  });
+
+  it('draws C⁺ up and C⁻ down from zero, the decision interval ±h, and marks the signal', () => {
+    const zero = numberAttribute(byClass(svg, 'cusum-zero')[0] as Node, 'y1');
+    const decision = byClass(svg, 'decision-line');
+    expect(decision.map((d) => d.attributes['data-value'])).toEqual(['5', '-5']);
+    const plus = numberAttribute(decision[0] as Node, 'y1');
+    const minus = numberAttribute(decision[1] as Node, 'y1');
+    // Linear axis: +h and −h are equally far from zero, +h above.
+    expect(plus).toBeLessThan(zero);
+    expect(Math.abs(zero - plus - (minus - zero))).toBeLessThanOrEqual(0.5);
+    const perSigma = (zero - plus) / 5;
+    const points = byClass(svg, 'cusum-point');
+    // The 2nd check: C⁻ = 2.4 drawn at −2.4; the 3rd: C⁺ = 1.1 at +1.1.
+    expect(Math.abs(translation(points[3] as Node)[1] - (zero + 2.4 * perSigma))).toBeLessThanOrEqual(0.5);
+    expect(Math.abs(translation(points[4] as Node)[1] - (zero - 1.1 * perSigma))).toBeLessThanOrEqual(0.5);
+    const signals = byClass(svg, 'cusum-signal');
+    expect(signals.map((n) => [n.attributes['data-signal'], n.attributes['data-time']])).toEqual([
+      ['below', at(21)],
+    ]);
+    expect(byClass(svg, 'cusum-upper')).toHaveLength(1);
+    expect(byClass(svg, 'cusum-lower')).toHaveLength(1);
+    expect(textOf(svg)).toContain('k = 0.5σ, decision interval h = 5σ');
+    expect(byClass(svg, 'axis-label').map(textOf)).toEqual([
+      'check time (UTC)',
+      'recovery / %',
+      'check time (UTC)',
+      'sum / σ',
+    ]);
+  });
+
+  it('comes from the evaluation: the sums of every span check', () => {
+    const records = [100.2, 99.1, 98.4, 97.9, 97.1].map((r, k) => ({
+      time: at(7 * k),
+      recordedAt: at(7 * k),
+      gas: 'CO',
+      unit: 'ppm' as const,
+      certified: 100,
+      measured: r,
+      low: r - 1,
+      high: r + 1,
+      se: 0.5,
+      verdict: 'pass' as const,
+      rules: [],
+      tolerancePct: 5,
+      scan: `c${k}.jdx`,
+      scanSha256: 'a'.repeat(64),
+      toolVersion: '0.1.0',
+    }));
+    const evaluation = evaluateHistory(records, { policy: { everyDays: 7, tolerancePct: 5 } });
+    const chart = controlChartFromEvaluation(evaluation);
+    expect(chart.cusum?.h).toBe(5);
+    expect(chart.cusum?.points.map((p) => p.lower)).toEqual(evaluation.checks.map((c) => c.cusum?.lower));
+  });
+
+  it('refuses h ≤ 0', () => {
+    expect(() => renderControlChart({ ...input, cusum: { ...cusum, h: 0 } })).toThrow(
+      /cusum\.h = 0, must be > 0/,
     );
   });
 });

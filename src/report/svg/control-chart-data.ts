@@ -1,8 +1,8 @@
 /**
  * The control chart's input from a drift evaluation (`evaluateHistory`): every span check with
  * its recovery, verdict and the rules that fired, the σ and limits in force for the next check,
- * the fitted trend and, when the trend is significant, its projected crossing of the tolerance.
- * Zero-gas checks have no recovery and are left off the chart (the report's table lists them).
+ * the fitted trend and, when the trend is significant, its projected crossing of the tolerance,
+ * and the CUSUM sums of every span check for the panel under the chart. Zero-gas checks have no recovery and are left off the chart (the report's table lists them).
  */
 import type { DriftEvaluation } from '../../drift/evaluate.js';
 import { DAY_MS } from '../../drift/trend.js';
@@ -62,6 +62,12 @@ export function controlChartFromEvaluation(
       leavesToleranceAt: crossing === undefined ? null : (projection?.date ?? null),
     };
   }
+  const cusumPoints = evaluation.spanChecks.flatMap((position) => {
+    const check = evaluation.checks[position];
+    const point = check?.cusum;
+    if (check === undefined || point === undefined) return [];
+    return [{ time: check.record.time, upper: point.upper, lower: point.lower, signal: point.signal }];
+  });
   return {
     title: options.title ?? `${evaluation.gas} check-standard recoveries`,
     records,
@@ -71,5 +77,6 @@ export function controlChartFromEvaluation(
     sigmaSource: evaluation.sigma.reason,
     ...(chartTrend === undefined ? {} : { trend: chartTrend }),
     ...(options.nextDue === undefined ? {} : { nextDue: options.nextDue }),
+    cusum: { k: evaluation.cusum.k, h: evaluation.cusum.h, points: cusumPoints },
   };
 }

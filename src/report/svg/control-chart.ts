@@ -6,6 +6,8 @@
  *
  * The input is a plain record list, documented below, so any recheck history can be drawn: the
  * drift evaluation supplies σ and its origin, the verdicts, the rules that fired and the trend.
+ * When the input carries the CUSUM sums, a second panel under the chart draws them on the same
+ * time axis (`cusum-panel.ts`).
  */
 import { scaleUtc } from 'd3-scale';
 import { line, symbolCircle, symbolCross, symbolDiamond, symbolTriangle } from 'd3-shape';
@@ -27,6 +29,7 @@ import { element, escapeText, translate } from './markup.js';
 import { ALERT, INK, MUTED, seriesStyle } from './palette.js';
 import {
   horizontalRule,
+  panelBelow,
   panelBottom,
   panelFrame,
   PLOT_MARGIN,
@@ -34,6 +37,7 @@ import {
   type RuleStyle,
 } from './panel.js';
 import { significantDigits } from '../../words.js';
+import { CUSUM_PANEL_HEIGHT, renderCusumPanel, type ControlChartCusum } from './cusum-panel.js';
 
 /** Verdict of one check. */
 export type CheckVerdict = 'pass' | 'warning' | 'fail';
@@ -91,6 +95,8 @@ export interface ControlChartInput {
   trend?: ControlChartTrend;
   /** When the next recheck is due, ISO 8601 (drawn as a tick on the time axis). */
   nextDue?: string;
+  /** The CUSUM sums of the checks, drawn in a panel under the chart. */
+  cusum?: ControlChartCusum;
 }
 
 /** Size options of {@link renderControlChart} (default id `control-chart`). */
@@ -142,7 +148,8 @@ function timeFormatter(ticks: readonly Date[]): (value: number) => string {
  * Classes: `check` markers (`data-verdict`, `data-recovery`, `data-time`, at
  * `transform="translate(x,y)"`), `rule-violation` rings and `rule-label` texts, `centre-line`,
  * `tolerance-line`, `warning-line` (±2σ), `action-line` (±3σ), `trend-line`, `trend-projection`,
- * `leaves-tolerance`, `panel-frame`, axes with `axis-label`, `legend`.
+ * `leaves-tolerance`, `panel-frame`, axes with `axis-label`, `legend`; with `input.cusum`, the
+ * classes of `renderCusumPanel` in a `cusum-panel` group under the chart.
  *
  * @param input - records, limits, σ, trend
  * @param options - id, size, fixed recovery domain
@@ -217,7 +224,9 @@ export function renderControlChart(input: ControlChartInput, options: ControlCha
     ...wrapWords(`σ: ${input.sigmaSource}`, Math.floor(panel.width / 6.2)),
     ...(crossing === undefined || crossing === null ? [] : ['']),
   ];
-  const height = panelBottom(panel) + PLOT_MARGIN.bottom + 8 + 14 * sigmaLines.length;
+  const cusumPanel = input.cusum === undefined ? undefined : panelBelow(panel, CUSUM_PANEL_HEIGHT);
+  const lowest = cusumPanel ?? panel;
+  const height = panelBottom(lowest) + PLOT_MARGIN.bottom + 8 + 14 * sigmaLines.length;
 
   const times = records.map((r) => r.at);
   if (input.trend !== undefined) times.push(timeOf(input.trend.projectUntil, 'trend.projectUntil'));
@@ -254,19 +263,18 @@ export function renderControlChart(input: ControlChartInput, options: ControlCha
   const clip = `${id}-clip`;
   const defs = clipPath(clip, panel);
 
+  const timeAxis = {
+    ticks: timeTicks.map((t) => t.getTime()),
+    position: px,
+    format: timeFormatter(timeTicks),
+    label: 'check time (UTC)',
+  };
   const body: string[] = [
     panelFrame(panel),
-    panelAxes(
-      panel,
-      {
-        ticks: timeTicks.map((t) => t.getTime()),
-        position: px,
-        format: timeFormatter(timeTicks),
-        label: 'check time (UTC)',
-      },
-      { ticks: y.ticks, position: py, format: y.format, label: 'recovery / %' },
-    ),
+    panelAxes(panel, timeAxis, { ticks: y.ticks, position: py, format: y.format, label: 'recovery / %' }),
   ];
+  if (cusumPanel !== undefined && input.cusum !== undefined)
+    body.push(renderCusumPanel(cusumPanel, input.cusum, px, timeAxis));
 
   const horizontal = (value: number, style: RuleStyle, label: string): string =>
     horizontalRule(
@@ -448,7 +456,7 @@ export function renderControlChart(input: ControlChartInput, options: ControlCha
   }
   if (records.length === 0) body.push(noteText(panel.left + 10, panel.top + 20, 'no rechecks recorded yet'));
   const noteLines = [...sigmaLines.filter((l) => l !== ''), ...footnotes];
-  body.push(...notesBelow(panel, noteLines, { gap: 10, lineHeight: 14 }));
+  body.push(...notesBelow(lowest, noteLines, { gap: 10, lineHeight: 14 }));
   body.push(legend.svg);
 
   const fired = records.filter((r) => r.rules.length > 0).length;
@@ -466,6 +474,11 @@ export function renderControlChart(input: ControlChartInput, options: ControlCha
         input.trend === undefined
           ? ''
           : `; trend ${formatNumber(input.trend.slopePctPerDay * 7, 3)} % per week`
+      }${
+        input.cusum === undefined
+          ? ''
+          : `; CUSUM with k = ${significantDigits(input.cusum.k, 3)}σ and h = ${significantDigits(input.cusum.h, 3)}σ, ` +
+            `${input.cusum.points.filter((p) => p.signal !== null).length} checks with a signal`
       }.`,
     defs,
     body: body.join(''),
