@@ -12,9 +12,10 @@ export type AbscissaUnit = 'cm-1' | 'um' | 'nm';
 export const DEFAULT_MAX_POINTS = RESOURCE_LIMIT_SETTINGS.maxPoints.default;
 
 /**
- * The largest transmittance-fraction value accepted. A fraction cannot exceed 1 beyond noise;
- * values above 1.5 are percent mislabelled as a fraction, and reading them as a fraction would
- * give wildly wrong absorbances, so they are refused rather than rescaled by guesswork.
+ * The largest transmittance-fraction value accepted. A fraction cannot exceed 1 beyond noise, and
+ * reading percent as a fraction would give wildly wrong absorbances: a CSV table above it is
+ * refused; a JCAMP-DX reader reads a spectrum whose median is above it as percent and keeps a
+ * few isolated spikes above it, with warnings (formats/jcamp/ordinates.ts).
  */
 export const MAX_TRANSMITTANCE_FRACTION = 1.5;
 

@@ -1,9 +1,11 @@
 /**
- * Reader for single-spectrum JCAMP-DX files (versions 4.24 and 5.x), the IUPAC open format for
+ * Reader for JCAMP-DX infrared spectra (versions 4.24 and 5.x), the IUPAC open format for
  * infrared spectra (McDonald & Wilks, Applied Spectroscopy 42 (1988) 151; JCAMP-DX 5.01).
  *
  * It validates what other readers take on trust; each part lives in its own file:
- * - `records.ts`: labelled data records, `$$` comments, nothing after `##END=`;
+ * - `records.ts`: labelled data records, `$$` comments, what may follow `##END=`;
+ * - `blocks.ts`: the blocks of compound files and what a file holds (one infrared spectrum, or
+ *   something refused as `UNSUPPORTED`);
  * - `header.ts`: file structure, declared abscissae, counts and factors, metadata;
  *   `units.ts` the axis units (XUNITS, YUNITS, `##$Y KIND`); `sample-labels.ts` the sample
  *   conditions with their unit conventions and `$$` unit comments;
@@ -89,10 +91,14 @@ export class JcampReader {
  * @param input - the file content as bytes (UTF-8/ASCII) or text
  * @param options - source label for messages and metadata; point limit
  * @returns the spectrum on ascending wavenumbers (cm⁻¹) with `metadata.format = 'jcamp'`, the
- *   title, date text and sample conditions converted to m, K, kPa (resolution in cm⁻¹)
- * @throws BandwrightError `PARSE` (structure, labels, units, data syntax, NPOINTS, line X,
- *   FIRSTY, compound files), `YCHECK` (DIF check value mismatch), `INVALID_VALUE` (bad label
- *   values, transmittance fraction above 1.5), `NOT_MONOTONIC`, `LIMIT`. Messages name the line.
+ *   title, date text and sample conditions converted to m, K, kPa (resolution in cm⁻¹), the read
+ *   warnings, and the count of saturated (NaN) points
+ * @throws BandwrightError `UNSUPPORTED` (a file that holds something other than one infrared
+ *   spectrum, or y values that are not absorbance or transmittance; `location.content` says what),
+ *   `PARSE` (structure, labels, data syntax, NPOINTS, line X beyond its tolerance, FIRSTY),
+ *   `YCHECK` (DIF check value mismatch), `INVALID_VALUE` (bad label values, a fraction-scale
+ *   transmittance with many values above 1.5), `NOT_MONOTONIC`, `LIMIT`. Messages name the line;
+ *   what was accepted leniently is in `metadata.warnings`.
  * @example
  * const spectrum = parseJcamp(readFileSync('co.jdx'), { source: 'co.jdx' });
  */
