@@ -1,6 +1,11 @@
 /**
  * Calibration files of schema 1.0, written by bandwright 0.1.0 (tests/fixtures/calibrations-1.0,
  * the bundled calibrations as that release wrote them), read by the current release.
+ *
+ * Source of the fixtures: this project's own earlier release (bandwright 0.1.0, calibration schema
+ * 1.0, commit 27fe979), kept byte for byte (their recorded SHA-256 proves it); see the folder's
+ * README. They are compatibility fixtures, not reference data: the expected values come from the
+ * calibrations the current release regenerates from examples/, which each test compares with.
  */
 import { readdirSync, readFileSync } from 'node:fs';
 import { dirname, join } from 'node:path';

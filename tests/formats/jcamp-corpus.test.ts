@@ -33,10 +33,10 @@ const REFUSED_FOR_DATA: Readonly<Record<string, string>> = {
 };
 
 /**
- * Where the independent decoder is wrong, with the line that shows it. dupinc2 line 113 reads
- * `2887.024A666TL1…`: the Y-check value 16.66 (the previous line's last ordinate), DUP count 2 (T)
- * repeats it once, then DIF +0.31 (L1) gives 16.97 — the JCAMP-DX DIFDUP rule. jcampconverter
- * restarts at FIRSTY (44.97) there instead and stays 28.31 off for the rest of the line.
+ * Where the independent decoder is wrong. In dupinc2 (data line 113) a DUP count directly follows
+ * the line's Y-check value: by the JCAMP-DX DIFDUP rule it repeats that value once, and the next
+ * DIF continues from it (the DIF Y-checks of the following lines confirm this reading).
+ * jcampconverter restarts at FIRSTY there instead and stays off for the rest of the line.
  */
 const DECODER_DIVERGES: ReadonlySet<string> = new Set(['nzhagen/Robert_J_Lancashire_test_data__dupinc2.jdx']);
 
