@@ -174,9 +174,10 @@ export function infraredBlock(
     return { block: first };
   }
   // In a compound file, blocks without a data table (structures, links) are not spectra.
+  const contents = leaves.map(nonInfraredContent);
   const candidates = leaves.filter(
-    (leaf) =>
-      nonInfraredContent(leaf) === undefined &&
+    (leaf, i) =>
+      contents[i] === undefined &&
       leaf.records.some((record) => record.key === 'XYDATA' || record.key === 'XYPOINTS'),
   );
   const only = candidates[0];
@@ -196,11 +197,9 @@ export function infraredBlock(
       ' (a compound file)',
     );
   }
-  const typed = leaves.find((leaf) => nonInfraredContent(leaf) !== undefined);
-  const content = (typed === undefined ? undefined : nonInfraredContent(typed)) ?? {
-    kind: 'other',
-    what: 'no data table in any block',
-  };
+  const typedIndex = contents.findIndex((content) => content !== undefined);
+  const typed = leaves[typedIndex];
+  const content = contents[typedIndex] ?? { kind: 'other', what: 'no data table in any block' };
   refuse(
     source,
     lineOf(typed ?? first),

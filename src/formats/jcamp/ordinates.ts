@@ -136,13 +136,15 @@ export function reviewOrdinates(
   let kind = yKind;
   if (kind === 'transmittance') {
     const above = y.reduce((count, value) => (value > MAX_TRANSMITTANCE_FRACTION ? count + 1 : count), 0);
-    if (above > 0 && median(y) > MAX_TRANSMITTANCE_FRACTION) {
+    // Sorting for the median is needed only when some value is above the fraction limit.
+    const middle = above > 0 ? median(y) : 0;
+    if (above > 0 && middle > MAX_TRANSMITTANCE_FRACTION) {
       kind = 'transmittance-percent';
       warnings.push({
         code: 'percent-transmittance',
         message:
           `${source}: ##YUNITS declares transmittance as a fraction, but the values are percent ` +
-          `(median ${median(y).toPrecision(3)}, ${above} of ${y.length} points above ${MAX_TRANSMITTANCE_FRACTION}); ` +
+          `(median ${middle.toPrecision(3)}, ${above} of ${y.length} points above ${MAX_TRANSMITTANCE_FRACTION}); ` +
           'read as percent transmittance',
       });
     } else if (above > Math.max(1, 0.01 * y.length)) {
@@ -153,13 +155,12 @@ export function reviewOrdinates(
         code: 'transmittance-above-one',
         message:
           `${source}: ${above} transmittance value(s) above ${MAX_TRANSMITTANCE_FRACTION} at ${text} in a ` +
-          `spectrum whose median is ${median(y).toPrecision(3)}: spikes, kept as written (not percent)`,
+          `spectrum whose median is ${middle.toPrecision(3)}: spikes, kept as written (not percent)`,
       });
     }
   }
   let saturatedPoints = 0;
   if (kind === 'transmittance' || kind === 'transmittance-percent') {
-    const { runs, text } = runsText(x, (i) => (y[i] as number) <= 0);
     for (let i = 0; i < y.length; i++) {
       if ((y[i] as number) <= 0) {
         y[i] = Number.NaN;
@@ -167,6 +168,8 @@ export function reviewOrdinates(
       }
     }
     if (saturatedPoints > 0) {
+      // Only now, and only for files that have them, are the runs of saturated points described.
+      const { runs, text } = runsText(x, (i) => Number.isNaN(y[i]));
       warnings.push({
         code: 'saturated',
         message:

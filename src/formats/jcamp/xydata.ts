@@ -133,12 +133,7 @@ const STRICT_LINE_START_STEPS = 0.1;
  *
  * @returns the step and whether DELTAX and LASTX together confirm the count
  */
-function stepOf(
-  header: JcampHeader,
-  n: number,
-  source: string,
-  warnings: ReadWarning[],
-): { step: number; countConfirmed: boolean } {
+function stepOf(header: JcampHeader, n: number, source: string): { step: number; countConfirmed: boolean } {
   const firstX = (header.firstX as { value: number }).value;
   let step: number;
   let countConfirmed = false;
@@ -164,7 +159,7 @@ function stepOf(
         }
         // With NPOINTS confirming the count, FIRSTX, LASTX and the count define the grid, and the
         // line starts cross-check it; DELTAX is then only a (wrong) restatement.
-        warnings.push({
+        header.warnings.push({
           code: 'deltax',
           message: rounded
             ? `${source}: ##DELTAX=${deltaX.value} is the step rounded or truncated to its printed digits; ` +
@@ -335,7 +330,7 @@ export function readXyData(
       parameter: 'FIRSTX',
     });
   const firstX = header.firstX.value;
-  const { step, countConfirmed } = stepOf(header, n, source, header.warnings);
+  const { step, countConfirmed } = stepOf(header, n, source);
   checkLineStarts(lineStarts, firstX, step, header.xFactor, countConfirmed, source, header.warnings);
   // Scaled in place when the output may be a view on the decoding buffer.
   const y = reuseOutput ? written : new Float64Array(n);
